@@ -1,0 +1,11 @@
+"""fastmst: fast, exact, deterministic minimum spanning forests of large graphs.
+
+The public API is re-exported here; see ``minimum_spanning_forest`` for the semantics and the
+tie rule shared by every function.
+"""
+from fastmst._dsu import DisjointSet
+from fastmst.forest import METHODS, SpanningForest, minimum_spanning_forest
+
+__version__ = "0.1.0"
+
+__all__ = ["DisjointSet", "METHODS", "SpanningForest", "minimum_spanning_forest", "__version__"]

@@ -1,0 +1,205 @@
+"""Disjoint set (union-find) with union by rank and true path compression."""
+import numpy as np
+cimport numpy as cnp
+from libc.stdint cimport int32_t, int64_t, uint8_t
+
+from fastmst._typedefs cimport index_t
+from fastmst._dsu cimport dsu_find, dsu_link
+
+cnp.import_array()
+
+_INT32_LIMIT = 2 ** 31
+
+
+cdef index_t _find_grow(index_t* parent, int64_t* size, uint8_t* rank,
+                        index_t a, index_t b, bint* merged) noexcept nogil:
+    cdef index_t ra = dsu_find(parent, a)
+    cdef index_t rb = dsu_find(parent, b)
+    cdef index_t r
+    if ra == rb:
+        merged[0] = False
+        return ra
+    r = dsu_link(parent, rank, ra, rb)
+    size[r] = size[ra] + size[rb]
+    merged[0] = True
+    return r
+
+
+cdef Py_ssize_t _union_pairs(index_t[::1] parent, uint8_t[::1] rank, int64_t[::1] size,
+                             const int64_t[::1] a, const int64_t[::1] b,
+                             uint8_t[::1] out) noexcept nogil:
+    cdef Py_ssize_t i, merges = 0
+    cdef bint merged
+    for i in range(a.shape[0]):
+        _find_grow(&parent[0], &size[0], &rank[0], <index_t>a[i], <index_t>b[i], &merged)
+        out[i] = merged
+        merges += merged
+    return merges
+
+
+cdef class DisjointSet:
+    """Disjoint sets over the elements 0..n-1.
+
+    Union by rank with true path compression: every ``find`` re-points each node on the walked
+    path straight at its root, so a sequence of m operations costs O(m alpha(n)).  Parents are
+    stored as int32 when ``n < 2**31`` and as int64 beyond.
+
+    Parameters
+    ----------
+    n : int
+        Number of elements, ``n >= 0``.
+
+    Examples
+    --------
+    >>> ds = DisjointSet(4)
+    >>> ds.union(0, 1), ds.union(1, 0)
+    (True, False)
+    >>> ds.connected(0, 1), ds.n_sets, ds.set_size(1)
+    (True, 3, 2)
+    >>> ds.labels().tolist()
+    [0, 0, 1, 2]
+    """
+
+    def __init__(self, n):
+        if isinstance(n, bool) or not isinstance(n, (int, np.integer)):
+            raise TypeError(f"DisjointSet(n): n must be an integer, received {type(n).__name__} "
+                            f"{n!r}; pass the number of elements, e.g. DisjointSet(10).")
+        n = int(n)
+        if n < 0:
+            raise ValueError(f"DisjointSet(n): n must be >= 0, received {n}; pass the number of "
+                             f"elements.")
+        self.n = n
+        self._n_sets = n
+        self._wide = n >= _INT32_LIMIT
+        self._parent = np.arange(n, dtype=np.int64 if self._wide else np.int32)
+        self._rank = np.zeros(n, dtype=np.uint8)
+        self._size = np.ones(n, dtype=np.int64)
+
+    def _check(self, x, name="x"):
+        if isinstance(x, bool) or not isinstance(x, (int, np.integer)):
+            raise TypeError(f"DisjointSet: {name} must be an integer element id, received "
+                            f"{type(x).__name__} {x!r}.")
+        x = int(x)
+        if not 0 <= x < self.n:
+            raise ValueError(f"DisjointSet: {name}={x} is out of range; expected 0 <= {name} < "
+                             f"{self.n}.")
+        return x
+
+    def find(self, x):
+        """Return the representative (root) of the set holding ``x``; compresses the path."""
+        x = self._check(x)
+        cdef int32_t[::1] p32
+        cdef int64_t[::1] p64
+        if self._wide:
+            p64 = self._parent
+            return int(dsu_find(&p64[0], <int64_t>x))
+        p32 = self._parent
+        return int(dsu_find(&p32[0], <int32_t>x))
+
+    def union(self, a, b):
+        """Merge the sets of ``a`` and ``b``; return True when two different sets merged."""
+        a = self._check(a, "a")
+        b = self._check(b, "b")
+        out = self.union_pairs(np.array([a], dtype=np.int64), np.array([b], dtype=np.int64))
+        return bool(out[0])
+
+    def union_pairs(self, a, b):
+        """Union the pairs ``(a[i], b[i])`` in order.
+
+        Returns
+        -------
+        merged : ndarray of shape (len(a),), dtype=bool
+            ``merged[i]`` is True when pair i joined two different sets at the moment it was
+            applied (so the True pairs form a spanning forest of the pairs).
+        """
+        a = np.asarray(a)
+        b = np.asarray(b)
+        if a.ndim != 1 or b.ndim != 1 or a.shape[0] != b.shape[0]:
+            raise ValueError(f"DisjointSet.union_pairs: a and b must be 1-D arrays of one length, "
+                             f"received shapes {a.shape} and {b.shape}.")
+        for name, arr in (("a", a), ("b", b)):
+            if arr.size and arr.dtype.kind not in "iu":
+                raise TypeError(f"DisjointSet.union_pairs: {name} must hold integers, received "
+                                f"dtype {arr.dtype}; convert with .astype(np.int64).")
+            if arr.size:
+                bad = np.flatnonzero((arr < 0) | (arr >= self.n))
+                if bad.size:
+                    raise ValueError(f"DisjointSet.union_pairs: {name}[{bad[0]}] = {arr[bad[0]]} "
+                                     f"is out of range; expected 0 <= value < {self.n}.")
+        a64 = np.ascontiguousarray(a, dtype=np.int64)
+        b64 = np.ascontiguousarray(b, dtype=np.int64)
+        out = np.zeros(a64.shape[0], dtype=np.uint8)
+        cdef Py_ssize_t merges
+        if a64.shape[0] == 0:
+            return out.view(bool)
+        if self._wide:
+            merges = _union_pairs[int64_t](self._parent, self._rank, self._size, a64, b64, out)
+        else:
+            merges = _union_pairs[int32_t](self._parent, self._rank, self._size, a64, b64, out)
+        self._n_sets -= merges
+        return out.view(bool)
+
+    def connected(self, a, b):
+        """True when ``a`` and ``b`` are in the same set."""
+        return self.find(a) == self.find(b)
+
+    def set_size(self, x):
+        """Number of elements in the set holding ``x``."""
+        return int(self._size[self.find(x)])
+
+    @property
+    def n_sets(self):
+        """Number of disjoint sets."""
+        return self._n_sets
+
+    def labels(self):
+        """Compact set ids.
+
+        Returns
+        -------
+        labels : ndarray of shape (n,), dtype=int64
+            Ids 0..k-1, numbered in order of first appearance when scanning elements 0..n-1.
+        """
+        return labels_from_parent(self._parent)[0]
+
+    def __len__(self):
+        return self.n
+
+    def __repr__(self):
+        return f"DisjointSet(n={self.n}, n_sets={self._n_sets})"
+
+
+cdef Py_ssize_t _labels_from_parent(index_t[::1] parent, int64_t[::1] root_label,
+                                    int64_t[::1] out) noexcept nogil:
+    cdef Py_ssize_t i
+    cdef int64_t next_label = 0
+    cdef index_t r
+    for i in range(parent.shape[0]):
+        r = dsu_find(&parent[0], <index_t>i)
+        if root_label[r] < 0:
+            root_label[r] = next_label
+            next_label += 1
+        out[i] = root_label[r]
+    return next_label
+
+
+def labels_from_parent(index_t[::1] parent):
+    """Compact component ids from a union-find parent array (compresses it in place).
+
+    Returns
+    -------
+    labels : ndarray of shape (n,), dtype=int64
+        Ids 0..k-1 in order of first appearance.
+    k : int
+        Number of components.
+    """
+    cdef Py_ssize_t n = parent.shape[0]
+    out = np.empty(n, dtype=np.int64)
+    root_label = np.full(n, -1, dtype=np.int64)
+    cdef int64_t[::1] o = out
+    cdef int64_t[::1] rl = root_label
+    cdef Py_ssize_t k = 0
+    if n:
+        with nogil:
+            k = _labels_from_parent(parent, rl, o)
+    return out, k

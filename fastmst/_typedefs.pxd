@@ -1,0 +1,21 @@
+# Shared fused types of the fastmst kernels.
+#
+# Node ids are int32 when every id fits (graphs below 2**31 nodes, the common case: half the memory
+# traffic of int64 in every find/union), int64 beyond.  Edge positions are always int64 (intp on
+# every supported platform), since edge counts pass 2**31 long before node counts do.
+#
+# Weights are read in place for the dtypes listed in weight_t.  Narrower dtypes (int8, int16,
+# uint8, uint16, float16) are widened once by validation.py before any kernel runs.
+from libc.stdint cimport int32_t, int64_t, uint32_t, uint64_t, uint8_t
+
+ctypedef fused index_t:
+    int32_t
+    int64_t
+
+ctypedef fused weight_t:
+    float
+    double
+    int32_t
+    int64_t
+    uint32_t
+    uint64_t

@@ -1,0 +1,252 @@
+"""Every input check of fastmst, in one place.
+
+Each message says what was received, what was expected and how to fix it, and names the first
+offending position.  Wrong types raise TypeError, wrong values raise ValueError.  Nothing here
+mutates its inputs: conversions make new arrays, and arrays already in a kernel dtype are passed
+through without a copy (read-only and memory-mapped arrays included).
+"""
+from __future__ import annotations
+
+import operator
+import os
+from dataclasses import dataclass
+
+import numpy as np
+
+INT32_LIMIT = 2**31
+
+# Weight dtypes the kernels read in place (see _typedefs.pxd); narrower ones are widened once.
+_KERNEL_WEIGHTS = {np.dtype(t) for t in (np.float32, np.float64, np.int32, np.int64,
+                                         np.uint32, np.uint64)}
+_WIDEN = {np.dtype(np.int8): np.int32, np.dtype(np.int16): np.int32,
+          np.dtype(np.uint8): np.int32, np.dtype(np.uint16): np.int32,
+          np.dtype(np.float16): np.float32}
+
+
+@dataclass(frozen=True)
+class EdgeArrays:
+    """Validated edges.
+
+    ``tail``/``head``/``weight`` are the caller's arrays as NumPy arrays (dtypes kept, for the
+    result); ``ktail``/``khead``/``kweight`` are contiguous, native-endian arrays in kernel dtypes
+    (int32 or int64 ids, the same dtype for both), views of the caller's data where possible.
+    """
+    tail: np.ndarray
+    head: np.ndarray
+    weight: np.ndarray
+    ktail: np.ndarray
+    khead: np.ndarray
+    kweight: np.ndarray
+    n_nodes: int
+
+    @property
+    def n_edges(self) -> int:
+        return int(self.tail.shape[0])
+
+
+def _as_1d(x, name: str, func: str) -> np.ndarray:
+    if x is None:
+        raise TypeError(f"{func}: {name} is None; expected a 1-D array of length E.")
+    try:
+        arr = np.asarray(x)
+    except (ValueError, TypeError) as exc:
+        raise TypeError(f"{func}: {name} could not be read as an array ({exc}); pass a 1-D "
+                        f"NumPy array or list of numbers.") from None
+    if arr.ndim != 1:
+        raise ValueError(f"{func}: {name} must be 1-D, received an array of shape {arr.shape}; "
+                         f"pass one value per edge (flatten with .ravel() if that is what "
+                         f"you meant).")
+    return arr
+
+
+def _native_contiguous(arr: np.ndarray, dtype=None) -> np.ndarray:
+    """The same data as a contiguous native-endian array; no copy when it already is one."""
+    dtype = np.dtype(dtype or arr.dtype).newbyteorder("=")
+    return np.ascontiguousarray(arr, dtype=dtype)
+
+
+def check_ids(arr: np.ndarray, name: str, func: str) -> np.ndarray:
+    """Check the dtype of an id array; return it (empty float arrays become int64)."""
+    kind = arr.dtype.kind
+    if arr.size == 0 and kind in "fiu":
+        return arr.astype(np.int64) if kind == "f" else arr
+    if kind in "iu":
+        return arr
+    if kind == "b":
+        raise TypeError(f"{func}: {name} has dtype bool; node ids must be integers. Convert with "
+                        f"{name}.astype(np.int64) if True/False really are node ids 1/0.")
+    if kind == "f":
+        raise TypeError(f"{func}: {name} has dtype {arr.dtype}; node ids must be integers "
+                        f"0..n_nodes-1. If the values are whole numbers, convert with "
+                        f"{name}.astype(np.int64).")
+    raise TypeError(f"{func}: {name} has dtype {arr.dtype}; node ids must be integers "
+                    f"0..n_nodes-1. Map other labels (strings, map ids) to compact integers "
+                    f"first, e.g. with np.unique(labels, return_inverse=True).")
+
+
+def check_weights(arr: np.ndarray, func: str, name: str = "weight") -> np.ndarray:
+    """Check the dtype and values of a weight array; return it in a kernel dtype."""
+    dt = arr.dtype
+    if dt.kind == "b":
+        raise TypeError(f"{func}: {name} has dtype bool; expected integer or float weights. "
+                        f"Convert with {name}.astype(np.int64) if 0/1 costs are meant.")
+    if dt.kind not in "iuf":
+        raise TypeError(f"{func}: {name} has dtype {dt}; expected integer or float weights "
+                        f"(int32, int64, uint32, uint64, float32, float64 are read in place). "
+                        f"Convert with {name}.astype(np.float64).")
+    native = np.dtype(dt).newbyteorder("=")
+    if native in _WIDEN:
+        arr = arr.astype(_WIDEN[native])
+    elif native not in _KERNEL_WEIGHTS:
+        raise TypeError(f"{func}: {name} has dtype {dt}, which the kernels cannot compare "
+                        f"exactly; expected float32, float64 or a 32/64-bit integer. Convert "
+                        f"with {name}.astype(np.float64).")
+    arr = _native_contiguous(arr)
+    if arr.dtype.kind == "f" and arr.size and np.isnan(arr.min()):
+        first = int(np.flatnonzero(np.isnan(arr))[0])
+        raise ValueError(f"{func}: {name}[{first}] is NaN; every edge needs a comparable "
+                         f"weight. Drop or fill the NaN edges first (e.g. keep = "
+                         f"~np.isnan({name})); infinite weights are allowed.")
+    return arr
+
+
+def check_n_nodes(n_nodes, func: str) -> int | None:
+    if n_nodes is None:
+        return None
+    if isinstance(n_nodes, (bool, np.bool_)) or not isinstance(n_nodes, (int, np.integer)):
+        raise TypeError(f"{func}: n_nodes must be an integer or None, received "
+                        f"{type(n_nodes).__name__} {n_nodes!r}.")
+    n = int(n_nodes)
+    if n < 0:
+        raise ValueError(f"{func}: n_nodes must be >= 0, received {n}.")
+    return n
+
+
+def _range_error(arr, name, n_nodes, func, given):
+    bad_neg = np.flatnonzero(arr < 0) if arr.dtype.kind == "i" else np.empty(0, np.int64)
+    bad_big = np.flatnonzero(arr >= n_nodes)
+    first = min(bad_neg[:1].tolist() + bad_big[:1].tolist())
+    value = arr[first]
+    if value < 0:
+        raise ValueError(f"{func}: {name}[{first}] = {value} is negative; node ids must be in "
+                         f"[0, n_nodes).")
+    fix = (f"pass n_nodes >= {int(arr.max()) + 1} or fix the id" if given
+           else "fix the id")
+    raise ValueError(f"{func}: {name}[{first}] = {value} is out of range; expected ids in "
+                     f"[0, {n_nodes}) for n_nodes={n_nodes}; {fix}.")
+
+
+def _kernel_ids(tail: np.ndarray, head: np.ndarray, n_nodes: int):
+    """Both id arrays in one kernel dtype (int32 when ids fit), viewing the data where possible."""
+    wide = n_nodes >= INT32_LIMIT
+    want = np.dtype(np.int64 if wide else np.int32)
+
+    def reuse(arr):
+        nat = arr.dtype.newbyteorder("=")
+        if not arr.dtype.isnative or not arr.flags.c_contiguous:
+            return None
+        if nat in (np.dtype(np.int32), np.dtype(np.int64)):
+            return arr
+        # Validated ids are in [0, n_nodes), so unsigned data reads the same as signed.
+        if nat == np.dtype(np.uint32) and not wide:
+            return arr.view(np.int32)
+        if nat == np.dtype(np.uint64):
+            return arr.view(np.int64)
+        return None
+
+    t, h = reuse(tail), reuse(head)
+    if t is not None and h is not None and t.dtype == h.dtype and (t.dtype == want or not wide):
+        return t, h
+    return np.ascontiguousarray(tail, dtype=want), np.ascontiguousarray(head, dtype=want)
+
+
+def validate_edges(tail, head, weight, n_nodes=None, *,
+                   func: str = "minimum_spanning_forest") -> EdgeArrays:
+    """Validate an edge list and prepare the kernel arrays.
+
+    Raises
+    ------
+    TypeError
+        An argument of the wrong type or dtype.
+    ValueError
+        Arrays of different lengths or not 1-D, NaN weights, ids out of range, bad n_nodes.
+    """
+    t = check_ids(_as_1d(tail, "tail", func), "tail", func)
+    h = check_ids(_as_1d(head, "head", func), "head", func)
+    w = _as_1d(weight, "weight", func)
+    if not (t.shape[0] == h.shape[0] == w.shape[0]):
+        raise ValueError(f"{func}: tail, head and weight must have one length (one entry per "
+                         f"edge), received lengths {t.shape[0]}, {h.shape[0]} and {w.shape[0]}.")
+    kw = check_weights(w, func)
+    n = check_n_nodes(n_nodes, func)
+    m = t.shape[0]
+    if m:
+        lo = min(int(t.min()), int(h.min()))
+        hi = max(int(t.max()), int(h.max()))
+        limit = n if n is not None else hi + 1
+        if lo < 0 or hi >= limit:
+            for name, arr in (("tail", t), ("head", h)):
+                if (arr.dtype.kind == "i" and int(arr.min()) < 0) or int(arr.max()) >= limit:
+                    _range_error(arr, name, limit, func, n is not None)
+        n = limit
+    elif n is None:
+        n = 0
+    kt, kh = _kernel_ids(t, h, n)
+    return EdgeArrays(t, h, w, kt, kh, kw, n)
+
+
+def check_choice(value, valid, name: str, func: str) -> str:
+    if not isinstance(value, str):
+        raise TypeError(f"{func}: {name} must be a string, received {type(value).__name__} "
+                        f"{value!r}; expected one of {', '.join(map(repr, valid))}.")
+    if value not in valid:
+        raise ValueError(f"{func}: unknown {name} {value!r}; expected one of "
+                         f"{', '.join(map(repr, valid))}.")
+    return value
+
+
+def check_threads(threads, func: str) -> int:
+    """Resolve ``threads`` (None or <= 0 means all available cores) to a positive count."""
+    if threads is None:
+        return max(1, len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity")
+                   else (os.cpu_count() or 1))
+    if isinstance(threads, (bool, np.bool_)):
+        raise TypeError(f"{func}: threads must be an integer or None, received {threads!r}.")
+    try:
+        t = operator.index(threads)
+    except TypeError:
+        raise TypeError(f"{func}: threads must be an integer or None, received "
+                        f"{type(threads).__name__} {threads!r}.") from None
+    if t <= 0:
+        return check_threads(None, func)
+    return t
+
+
+def check_bool(value, name: str, func: str) -> bool:
+    if not isinstance(value, (bool, np.bool_)):
+        raise TypeError(f"{func}: {name} must be True or False, received "
+                        f"{type(value).__name__} {value!r}.")
+    return bool(value)
+
+
+def check_positions(positions, n_edges: int, name: str, func: str) -> np.ndarray:
+    """Edge positions in [0, n_edges) as a new int64 array (order kept)."""
+    arr = np.asarray(positions if positions is not None else [], dtype=None)
+    if arr.ndim != 1:
+        raise ValueError(f"{func}: {name} must be a 1-D array of edge positions, received shape "
+                         f"{arr.shape}.")
+    if arr.size == 0:
+        return np.empty(0, dtype=np.int64)
+    if arr.dtype.kind == "b":
+        if arr.shape[0] != n_edges:
+            raise ValueError(f"{func}: {name} is a boolean mask of length {arr.shape[0]}; a mask "
+                             f"needs one entry per edge ({n_edges}).")
+        return np.flatnonzero(arr).astype(np.int64)
+    if arr.dtype.kind not in "iu":
+        raise TypeError(f"{func}: {name} must hold integer edge positions (or be a boolean "
+                        f"mask), received dtype {arr.dtype}.")
+    bad = np.flatnonzero((arr < 0) | (arr >= n_edges))
+    if bad.size:
+        raise ValueError(f"{func}: {name}[{bad[0]}] = {arr[bad[0]]} is not an edge position; "
+                         f"expected positions in [0, {n_edges}).")
+    return arr.astype(np.int64)
