@@ -241,3 +241,27 @@ def test_check_forest_and_sensitivity_bad_input():
         fastmst.sensitivity(tail[:2], head[:2], weight[:2], f)
     with pytest.raises(ValueError, match="contradicts the forest"):
         fastmst.sensitivity(tail, head, weight, f, maximize=True)
+
+
+@settings(deadline=None, derandomize=True, max_examples=80)
+@given(small_graphs(), st.lists(st.integers(-3, 20), max_size=10),
+       st.sampled_from(["check", "sens", "bottleneck", "clusters"]), st.integers(-2, 12))
+def test_wild_input_never_crashes(graph, edges, which, k):
+    """Arbitrary edge sets, node pairs and cluster counts give a result or a TypeError /
+    ValueError, never a crash or another exception (common practice, no source)."""
+    tail, head, weight, n = graph
+    try:
+        if which == "check":
+            c = fastmst.check_forest(tail, head, weight, edges, n)
+            assert c.is_minimum <= c.is_spanning <= c.is_forest
+        elif which == "sens":
+            s = fastmst.sensitivity(tail, head, weight, edges)
+            assert (s >= 0).all()
+        elif which == "bottleneck":
+            f = fastmst.minimum_spanning_forest(tail, head, weight, n)
+            f.bottleneck(edges, edges[::-1])
+        else:
+            f = fastmst.minimum_spanning_forest(tail, head, weight, n)
+            assert f.clusters(k=k).max() == k - 1
+    except (TypeError, ValueError) as exc:
+        assert str(exc)

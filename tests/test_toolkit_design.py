@@ -155,3 +155,36 @@ def test_add_edges_bad_input():
     g = f.add_edges(t, [2, 3], [0.5, 0.5])
     assert g.edges.tolist() == [2, 3, 0] and t.tolist() == [0, 2]
     assert f.edges.tolist() == [0, 1]
+
+
+def test_toolkit_input_contract_and_threads():
+    """Every toolkit function accepts int32/uint32 ids, float32/int64/uint64 weights, read-only
+    and non-contiguous arrays without mutating them, and gives the same answers when called
+    from four threads at once (the kernels release the GIL).  Reference: the float64/int64
+    answers of the same call."""
+    from concurrent.futures import ThreadPoolExecutor
+    rng = np.random.default_rng(5)
+    n, m = 60, 400
+    tail0, head0 = rng.integers(0, n, 2 * m), rng.integers(0, n, 2 * m)
+    weight0 = rng.integers(0, 30, 2 * m)
+    t, h, w = tail0[::2], head0[::2], weight0[::2].astype(np.float64)
+    f = fastmst.minimum_spanning_forest(t, h, w, n)
+    ref_s = fastmst.sensitivity(t, h, w, f)
+    ref_c = fastmst.check_forest(t, h, w, f.edges)
+    ref_b = f.bottleneck(np.arange(n), np.arange(n)[::-1])
+    for idt, wdt in ((np.int32, np.float32), (np.uint32, np.int64), (np.int64, np.uint64)):
+        tt, hh = tail0.astype(idt)[::2], head0.astype(idt)[::2]
+        ww = weight0.astype(wdt)[::2]
+        for a in (tt, hh, ww):
+            a.setflags(write=False)
+        before = [a.copy() for a in (tt, hh, ww)]
+        g = fastmst.minimum_spanning_forest(tt, hh, ww, n)
+        assert g.edges.tolist() == f.edges.tolist()
+        assert np.array_equal(fastmst.sensitivity(tt, hh, ww, g), ref_s)
+        assert fastmst.check_forest(tt, hh, ww, g.edges).is_minimum == ref_c.is_minimum
+        assert all(np.array_equal(x, y) for x, y in zip(g.bottleneck(np.arange(n),
+                                                                     np.arange(n)[::-1]), ref_b))
+        assert all(np.array_equal(a, b) for a, b in zip((tt, hh, ww), before))
+    with ThreadPoolExecutor(4) as ex:
+        outs = list(ex.map(lambda _: fastmst.sensitivity(t, h, w, f), range(8)))
+    assert all(np.array_equal(o, ref_s) for o in outs)
