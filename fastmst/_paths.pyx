@@ -7,9 +7,9 @@ Three near-linear kernels, each behind a thin ``def`` that allocates and checks 
     with a disjoint set; edge ``i`` becomes internal node ``n_nodes + i`` whose children are the
     two subtrees it joins.  The heaviest edge on the tree path between two nodes is their lowest
     common ancestor in this tree, and the tree is the single-linkage dendrogram.
-``tree_lca``
-    Offline lowest common ancestors in the merge tree for a batch of node pairs (Tarjan, "Applications
-    of path compression on balanced trees", 1979): one depth-first pass, O((V + Q) alpha(V)).
+``PathMaxIndex``
+    Range maxima over the merge tree's leaf order: the heaviest edge on the tree path of any
+    node pair in a few memory lookups, after an O(V) build.
 ``root_forest`` / ``cover_paths``
     For sensitivity: the forest rooted by breadth-first search, then non-tree edges taken in
     tie-rule order each mark the still-unmarked tree edges of their tree path (Tarjan,
@@ -102,129 +102,6 @@ def kruskal_tree(const index_t[::1] ftail, const index_t[::1] fhead, Py_ssize_t 
     with nogil:
         cycle = _kruskal_tree(ftail, fhead, n, d, rk, t, kp, l, r, s)
     return kparent, left, right, size, int(cycle)
-
-
-cdef void _query_csr(const index_t[::1] qa, const index_t[::1] qb, int64_t n,
-                     int64_t[::1] start, int64_t[::1] qlist) noexcept nogil:
-    """Queries grouped by endpoint (pairs of equal nodes are left out)."""
-    cdef int64_t i, q, a, b
-    cdef int64_t m = qa.shape[0]
-    for i in range(n + 1):
-        start[i] = 0
-    for q in range(m):
-        a = qa[q]
-        b = qb[q]
-        if a != b:
-            start[a + 1] += 1
-            start[b + 1] += 1
-    for i in range(n):
-        start[i + 1] += start[i]
-    for q in range(m):
-        a = qa[q]
-        b = qb[q]
-        if a != b:
-            qlist[start[a]] = q
-            start[a] += 1
-            qlist[start[b]] = q
-            start[b] += 1
-    # start[i] now holds the end of node i's block; shift back.
-    for i in range(n, 0, -1):
-        start[i] = start[i - 1]
-    start[0] = 0
-
-
-cdef inline void _finish(int64_t x, const int64_t[::1] kparent, int64_t* dsu, uint8_t* rank,
-                         int64_t[::1] anc) noexcept nogil:
-    """A finished node joins the set of its parent, whose ancestor is that parent."""
-    cdef int64_t p = kparent[x]
-    cdef int64_t rx, rp, r
-    if p < 0:
-        return
-    rx = dsu_find(dsu, x)
-    rp = dsu_find(dsu, p)
-    r = dsu_link(dsu, rank, rx, rp)
-    anc[r] = p
-
-
-cdef void _tree_lca(int64_t n, const int64_t[::1] kparent, const int64_t[::1] left,
-                    const int64_t[::1] right, const index_t[::1] qa, const index_t[::1] qb,
-                    const int64_t[::1] start, const int64_t[::1] qlist, int64_t[::1] dsu,
-                    uint8_t[::1] rank, int64_t[::1] anc, int64_t[::1] seen,
-                    uint8_t[::1] expanded, int64_t[::1] stack, int64_t[::1] out) noexcept nogil:
-    cdef int64_t total = kparent.shape[0]
-    cdef int64_t i, r, x, y, k, q, tree = 0, depth
-    for i in range(total):
-        dsu[i] = i
-        anc[i] = i
-    for i in range(qa.shape[0]):
-        out[i] = -2 if qa[i] == qb[i] else -1
-    for r in range(total):
-        if kparent[r] != -1:
-            continue
-        tree += 1
-        stack[0] = r
-        depth = 1
-        while depth > 0:
-            x = stack[depth - 1]
-            if x < n:
-                seen[x] = tree
-                for k in range(start[x], start[x + 1]):
-                    q = qlist[k]
-                    y = qb[q] if qa[q] == x else qa[q]
-                    if seen[y] == tree:
-                        out[q] = anc[dsu_find(&dsu[0], y)] - n
-                    # seen[y] == 0: answered when y is reached; another tree: stays -1.
-                depth -= 1
-                _finish(x, kparent, &dsu[0], &rank[0], anc)
-            elif not expanded[x - n]:
-                expanded[x - n] = 1
-                stack[depth] = right[x - n]
-                stack[depth + 1] = left[x - n]
-                depth += 2
-            else:
-                depth -= 1
-                _finish(x, kparent, &dsu[0], &rank[0], anc)
-
-
-def tree_lca(const int64_t[::1] kparent, const int64_t[::1] left, const int64_t[::1] right,
-             Py_ssize_t n_nodes, const index_t[::1] qa, const index_t[::1] qb):
-    """Heaviest forest edge on the tree path of each node pair, by offline LCA in the merge tree.
-
-    Parameters
-    ----------
-    kparent, left, right : outputs of ``kruskal_tree`` (without a cycle)
-    n_nodes : int
-    qa, qb : ndarray of shape (Q,), dtype=int32 or int64
-        Validated node ids in [0, n_nodes).
-
-    Returns
-    -------
-    out : ndarray of shape (Q,), dtype=int64
-        Index (into the tie-rule order of the forest edges) of the heaviest edge on the path;
-        -1 when the nodes are in different trees; -2 when they are the same node.
-    """
-    if qa.shape[0] != qb.shape[0]:
-        raise ValueError("tree_lca: qa and qb must have one length.")
-    if left.shape[0] != right.shape[0] or kparent.shape[0] != n_nodes + left.shape[0]:
-        raise ValueError("tree_lca: kparent, left and right do not describe one merge tree.")
-    cdef int64_t n = n_nodes
-    cdef int64_t total = kparent.shape[0]
-    cdef int64_t m = qa.shape[0]
-    out = np.empty(m, dtype=np.int64)
-    start = np.empty(n + 1, dtype=np.int64)
-    qlist = np.empty(2 * m, dtype=np.int64)
-    dsu = np.empty(max(total, 1), dtype=np.int64)
-    anc = np.empty(max(total, 1), dtype=np.int64)
-    rank = np.zeros(max(total, 1), dtype=np.uint8)
-    seen = np.zeros(max(n, 1), dtype=np.int64)
-    expanded = np.zeros(max(total - n, 1), dtype=np.uint8)
-    stack = np.empty(total + 2, dtype=np.int64)
-    cdef int64_t[::1] o = out, st = start, ql = qlist, d = dsu, an = anc, se = seen, sk = stack
-    cdef uint8_t[::1] rk = rank, ex = expanded
-    with nogil:
-        _query_csr(qa, qb, n, st, ql)
-        _tree_lca(n, kparent, left, right, qa, qb, st, ql, d, rk, an, se, ex, sk, o)
-    return out
 
 
 cdef void _root_forest(const index_t[::1] ftail, const index_t[::1] fhead, int64_t n,
@@ -393,3 +270,164 @@ def union_parent(const index_t[::1] ftail, const index_t[::1] fhead, Py_ssize_t 
         with nogil:
             _union_pass(ftail, fhead, d, rk)
     return parent
+
+
+# --- Path maxima by range maxima over the merge tree's leaf order ---------------------------
+#
+# Laying the merge tree's leaves out left to right makes every subtree a contiguous run, and the
+# merge that joins two neighbouring leaves is their lowest common ancestor.  So the heaviest edge
+# between nodes u and v is the largest merge index among the gaps between pos[u] and pos[v]
+# (Gabow, Bentley and Tarjan, "Scaling and related techniques for geometry problems", 1984, for
+# reducing LCA to range maxima).  Gaps between two trees hold the sentinel F.  Range maxima use
+# blocks of _BLOCK gaps with in-block prefix/suffix maxima and a sparse table over block maxima:
+# O(V log V / _BLOCK) memory, and at most a _BLOCK-long scan per query.
+
+cdef enum:
+    _BLOCK = 32
+
+
+cdef void _leaf_order(int64_t n, const int64_t[::1] kparent, const int64_t[::1] left,
+                      const int64_t[::1] right, const int64_t[::1] size, int64_t[::1] offset,
+                      int64_t[::1] gap) noexcept nogil:
+    cdef int64_t f = left.shape[0]
+    cdef int64_t total = n + f
+    cdef int64_t r, i, x, a, b, sa, cur = 0
+    for r in range(total):
+        if kparent[r] == -1:
+            if cur > 0:
+                gap[cur - 1] = f            # boundary between two trees
+            offset[r] = cur
+            cur += 1 if r < n else size[r - n]
+    for i in range(f - 1, -1, -1):
+        x = n + i
+        a = left[i]
+        b = right[i]
+        offset[a] = offset[x]
+        sa = 1 if a < n else size[a - n]
+        offset[b] = offset[x] + sa
+        gap[offset[x] + sa - 1] = i
+
+
+cdef void _block_tables(const int64_t[::1] gap, int64_t[::1] pre, int64_t[::1] suf,
+                        int64_t[::1] table, int64_t nb, int64_t levels) noexcept nogil:
+    cdef int64_t g = gap.shape[0]
+    cdef int64_t j, i, lo, hi, k, half, a, b
+    for j in range(nb):
+        lo = j * _BLOCK
+        hi = min(lo + _BLOCK, g)
+        pre[lo] = gap[lo]
+        for i in range(lo + 1, hi):
+            pre[i] = pre[i - 1] if pre[i - 1] > gap[i] else gap[i]
+        suf[hi - 1] = gap[hi - 1]
+        for i in range(hi - 2, lo - 1, -1):
+            suf[i] = suf[i + 1] if suf[i + 1] > gap[i] else gap[i]
+        table[j] = pre[hi - 1]
+    for k in range(1, levels):
+        half = 1 << (k - 1)
+        for j in range(nb - (1 << k) + 1):
+            a = table[(k - 1) * nb + j]
+            b = table[(k - 1) * nb + j + half]
+            table[k * nb + j] = a if a > b else b
+
+
+cdef inline int64_t _floor_log2(int64_t x) noexcept nogil:
+    cdef int64_t k = 0
+    while (x >> (k + 1)) > 0:
+        k += 1
+    return k
+
+
+cdef void _path_max(const int64_t[::1] pos, const int64_t[::1] gap, const int64_t[::1] pre,
+                    const int64_t[::1] suf, const int64_t[::1] table, int64_t nb, int64_t f,
+                    const index_t[::1] qa, const index_t[::1] qb,
+                    int64_t[::1] out) noexcept nogil:
+    cdef int64_t q, l, r, bl, br, best, i, k, a, b
+    for q in range(qa.shape[0]):
+        l = pos[qa[q]]
+        r = pos[qb[q]]
+        if l == r:
+            out[q] = -2
+            continue
+        if l > r:
+            l, r = r, l
+        r -= 1                               # gaps l..r inclusive
+        bl = l // _BLOCK
+        br = r // _BLOCK
+        if bl == br:
+            best = gap[l]
+            for i in range(l + 1, r + 1):
+                if gap[i] > best:
+                    best = gap[i]
+        else:
+            best = suf[l] if suf[l] > pre[r] else pre[r]
+            if br > bl + 1:
+                k = _floor_log2(br - bl - 1)
+                a = table[k * nb + bl + 1]
+                b = table[k * nb + br - (1 << k)]
+                if a > best:
+                    best = a
+                if b > best:
+                    best = b
+        out[q] = -1 if best == f else best
+
+
+cdef class PathMaxIndex:
+    """Heaviest forest edge on the tree path of any node pair, in O(1) memory lookups plus at
+    most a 32-gap scan per pair, after an O(V) build from the merge tree.
+
+    Parameters
+    ----------
+    kparent, left, right, size : outputs of ``kruskal_tree`` (without a cycle)
+    n_nodes : int
+    """
+    cdef readonly object pos
+    cdef readonly object gap
+    cdef object _pre, _suf, _table
+    cdef int64_t _nb, _f, _n
+
+    def __init__(self, const int64_t[::1] kparent, const int64_t[::1] left,
+                 const int64_t[::1] right, const int64_t[::1] size, Py_ssize_t n_nodes):
+        if left.shape[0] != right.shape[0] or size.shape[0] != left.shape[0] or \
+                kparent.shape[0] != n_nodes + left.shape[0]:
+            raise ValueError("PathMaxIndex: kparent, left, right and size do not describe one "
+                             "merge tree.")
+        cdef int64_t n = n_nodes
+        cdef int64_t f = left.shape[0]
+        cdef int64_t g = max(n - 1, 1)
+        offset = np.empty(max(n + f, 1), dtype=np.int64)
+        gap = np.full(g, f, dtype=np.int64)
+        cdef int64_t nb = (g + _BLOCK - 1) // _BLOCK
+        cdef int64_t levels = _floor_log2(nb) + 1
+        pre = np.empty(g, dtype=np.int64)
+        suf = np.empty(g, dtype=np.int64)
+        table = np.empty(levels * nb, dtype=np.int64)
+        cdef int64_t[::1] o = offset, gp = gap, pr = pre, sf = suf, tb = table
+        with nogil:
+            if n > 0:
+                _leaf_order(n, kparent, left, right, size, o, gp)
+            _block_tables(gp, pr, sf, tb, nb, levels)
+        self.pos = offset[:n]
+        self.gap = gap
+        self._pre, self._suf, self._table = pre, suf, table
+        self._nb, self._f, self._n = nb, f, n
+
+    def query(self, const index_t[::1] qa, const index_t[::1] qb):
+        """Index (into the tie-rule order of the forest edges) of the heaviest edge on each
+        pair's path; -1 for pairs in different trees, -2 for a node with itself.
+
+        ``qa`` and ``qb`` must be validated ids in [0, n_nodes).
+        """
+        if qa.shape[0] != qb.shape[0]:
+            raise ValueError("PathMaxIndex.query: qa and qb must have one length.")
+        out = np.empty(qa.shape[0], dtype=np.int64)
+        cdef int64_t[::1] o = out
+        cdef const int64_t[::1] ps = self.pos
+        cdef const int64_t[::1] gp = self.gap
+        cdef const int64_t[::1] pr = self._pre
+        cdef const int64_t[::1] sf = self._suf
+        cdef const int64_t[::1] tb = self._table
+        if qa.shape[0] and self._n == 0:
+            raise ValueError("PathMaxIndex.query: the forest has no nodes.")
+        with nogil:
+            _path_max(ps, gp, pr, sf, tb, self._nb, self._f, qa, qb, o)
+        return out

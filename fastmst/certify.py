@@ -85,8 +85,9 @@ def check_forest(tail, head, weight, edges, n_nodes=None, *, maximize=None) -> F
     verification for spanning trees", 1985; King, "A simpler minimum spanning tree
     verification algorithm", 1997).  Ties are allowed: any of several equally light forests
     passes, not only the one the tie rule of ``minimum_spanning_forest`` picks.  The heaviest
-    path edge is found for every non-tree edge at once by offline lowest common ancestors in
-    the forest's merge tree, in O(E alpha(V)) after an O(V log V) sort of the forest edges.
+    path edge of every non-tree edge is the lowest common ancestor of its ends in the forest's
+    merge tree, found by range maxima over the tree's leaf order: O(V log V) to sort the forest
+    edges and build, then O(1) per non-tree edge.
     ``excess`` needs a full solve only when there are violations.
 
     Examples

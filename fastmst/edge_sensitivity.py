@@ -58,7 +58,7 @@ def sensitivity(tail, head, weight, forest, *, maximize=None) -> np.ndarray:
     smaller move the forest stays the same; for any larger one it changes.
 
     Margins are computed in float64 (integer weights above 2**53 are rounded).  Non-tree edges
-    get their heaviest path edge by offline lowest common ancestors in the merge tree; forest
+    get their heaviest path edge from range maxima over the merge tree's leaf order; forest
     edges get their lightest covering edge by taking the non-tree edges in tie-rule order and
     marking the unmarked edges of each tree path, jumping over marked ones with a disjoint set
     (Tarjan, "Sensitivity analysis of minimum spanning trees and shortest path trees", 1982).

@@ -128,8 +128,8 @@ class SpanningForest:
 
         Notes
         -----
-        Offline lowest common ancestors in the forest's merge tree (built once and cached):
-        O((V + Q) alpha(V)) for Q pairs.
+        The lowest common ancestor of the two nodes in the forest's merge tree, by range maxima
+        over its leaf order: O(V) to build once (cached on the forest), then O(1) per pair.
 
         Examples
         --------

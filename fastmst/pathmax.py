@@ -3,7 +3,8 @@ bottleneck and single_linkage.
 
 A forest's edges taken in the tie-rule order and joined one by one form its merge tree (see
 ``fastmst._paths.kruskal_tree``); the heaviest edge on the tree path between two nodes is their
-lowest common ancestor there.  "Heaviest" is in the tie-rule order: largest weight, and among equal
+lowest common ancestor there, found by range maxima over the tree's leaf order
+(``fastmst._paths.PathMaxIndex``).  "Heaviest" is in the tie-rule order: largest weight, and among equal
 weights the latest position (for a maximum forest: smallest weight, then latest position).
 """
 from __future__ import annotations
@@ -12,7 +13,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from fastmst._paths import kruskal_tree, tree_lca
+from fastmst._paths import PathMaxIndex, kruskal_tree
 from fastmst._sort import edge_order
 
 
@@ -25,6 +26,7 @@ class MergeTree:
     right: np.ndarray
     size: np.ndarray
     n_nodes: int
+    index: PathMaxIndex
 
 
 def rule_sorted(positions: np.ndarray, kweight: np.ndarray, maximize: bool) -> np.ndarray:
@@ -46,8 +48,9 @@ def merge_tree(ftail: np.ndarray, fhead: np.ndarray, edges: np.ndarray, n_nodes:
     kparent, left, right, size, cycle = kruskal_tree(ft, fh, n_nodes)
     if cycle >= 0:
         return None, cycle
+    index = PathMaxIndex(kparent, left, right, size, n_nodes)
     return MergeTree(np.asarray(edges, dtype=np.int64), kparent, left, right, size,
-                     int(n_nodes)), -1
+                     int(n_nodes), index), -1
 
 
 def heaviest_on_paths(tree: MergeTree, qa: np.ndarray, qb: np.ndarray) -> np.ndarray:
@@ -56,8 +59,7 @@ def heaviest_on_paths(tree: MergeTree, qa: np.ndarray, qb: np.ndarray) -> np.nda
     if qa.dtype != qb.dtype or qa.dtype not in (np.dtype(np.int32), np.dtype(np.int64)):
         qa = np.ascontiguousarray(qa, dtype=np.int64)
         qb = np.ascontiguousarray(qb, dtype=np.int64)
-    return tree_lca(tree.kparent, tree.left, tree.right, tree.n_nodes,
-                    np.ascontiguousarray(qa), np.ascontiguousarray(qb))
+    return tree.index.query(np.ascontiguousarray(qa), np.ascontiguousarray(qb))
 
 
 def forest_merge_tree(forest) -> MergeTree:
