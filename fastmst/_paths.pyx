@@ -181,13 +181,15 @@ cdef int64_t _cover_paths(const int64_t[::1] pnode, const int64_t[::1] pedge,
                           const index_t[::1] qb, int64_t[::1] dsu, uint8_t[::1] rank,
                           int64_t[::1] top, int64_t[::1] cover) noexcept nogil:
     cdef int64_t n = pnode.shape[0]
-    cdef int64_t i, j, x, y, rx, rp, t, r
+    cdef int64_t i, j, x, y, rx, rp, t, r, left_to_cover = cover.shape[0]
     for i in range(n):
         dsu[i] = i
         top[i] = i
     for i in range(cover.shape[0]):
         cover[i] = -1
     for j in range(qa.shape[0]):
+        if left_to_cover == 0:
+            break                   # every tree edge has its lightest covering edge
         x = top[dsu_find(&dsu[0], <int64_t>qa[j])]
         y = top[dsu_find(&dsu[0], <int64_t>qb[j])]
         while x != y:
@@ -196,6 +198,7 @@ cdef int64_t _cover_paths(const int64_t[::1] pnode, const int64_t[::1] pedge,
             if pnode[x] < 0:
                 return j            # the pair is in two different trees
             cover[pedge[x]] = j
+            left_to_cover -= 1
             rx = dsu_find(&dsu[0], x)
             rp = dsu_find(&dsu[0], pnode[x])
             t = top[rp]

@@ -112,14 +112,12 @@ def check_forest(tail, head, weight, edges, n_nodes=None, *, maximize=None) -> F
         raise ValueError(f"{_FUNC}: the forest was computed on a graph of {expected_edges} "
                          f"edges, received {g.n_edges}; pass the same edge list.")
     pos = validation.check_positions(edges, g.n_edges, "edges", _FUNC)
-    validation.check_unique_positions(pos, "edges", _FUNC)
+    in_forest = validation.check_unique_positions(pos, g.n_edges, "edges", _FUNC)
     order = rule_sorted(pos, g.kweight, maximize)
     tree, cycle = merge_tree(g.ktail[order], g.khead[order], order, g.n_nodes)
     if tree is None:
         return ForestCheck(False, False, False, _empty(), _empty(), math.nan,
                            int(order[cycle]), _empty())
-    in_forest = np.zeros(g.n_edges, dtype=bool)
-    in_forest[pos] = True
     non = np.flatnonzero(~in_forest)
     idx = heaviest_on_paths(tree, g.ktail[non], g.khead[non])
     crossing = non[idx == -1]

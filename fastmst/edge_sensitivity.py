@@ -92,7 +92,7 @@ def sensitivity(tail, head, weight, forest, *, maximize=None) -> np.ndarray:
         raise ValueError(f"{_FUNC}: the forest was computed on a graph of {expected_edges} "
                          f"edges, received {g.n_edges}; pass the same edge list.")
     pos = validation.check_positions(forest, g.n_edges, "forest", _FUNC)
-    validation.check_unique_positions(pos, "forest", _FUNC)
+    in_forest = validation.check_unique_positions(pos, g.n_edges, "forest", _FUNC)
     fedges = rule_sorted(pos, g.kweight, maximize)
     ftail, fhead = g.ktail[fedges], g.khead[fedges]
     tree, cycle = merge_tree(ftail, fhead, fedges, g.n_nodes)
@@ -102,8 +102,6 @@ def sensitivity(tail, head, weight, forest, *, maximize=None) -> np.ndarray:
                          f"({g.tail[p]}-{g.head[p]}) closes a cycle with other forest edges. "
                          f"Pass the edges of a spanning forest, e.g. minimum_spanning_forest(...).")
     out = np.full(g.n_edges, np.inf, dtype=np.float64)
-    in_forest = np.zeros(g.n_edges, dtype=bool)
-    in_forest[pos] = True
     non = np.flatnonzero(~in_forest & (g.ktail != g.khead))
     idx = heaviest_on_paths(tree, g.ktail[non], g.khead[non])
     if non.size and idx.min() == -1:

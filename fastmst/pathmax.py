@@ -30,7 +30,13 @@ class MergeTree:
 
 
 def rule_sorted(positions: np.ndarray, kweight: np.ndarray, maximize: bool) -> np.ndarray:
-    """``positions`` reordered by the tie rule (weight, then position)."""
+    """``positions`` reordered by the tie rule (weight, then position); no sort when they
+    already are (as the edges of a SpanningForest are)."""
+    if positions.size > 1:
+        w = kweight[positions]
+        ahead = (w[1:] < w[:-1]) if maximize else (w[1:] > w[:-1])
+        if np.all(ahead | ((w[1:] == w[:-1]) & (positions[1:] > positions[:-1]))):
+            return positions.astype(np.int64, copy=False)
     pos = np.sort(positions)
     if pos.size == 0:
         return pos.astype(np.int64)

@@ -254,17 +254,19 @@ def check_positions(positions, n_edges: int, name: str, func: str) -> np.ndarray
 
 # --- checks of the network-design toolkit (check_forest, sensitivity, bottleneck, clusters) ---
 
-def check_unique_positions(pos: np.ndarray, name: str, func: str) -> np.ndarray:
-    """Reject repeated positions in an edge set (``pos`` from check_positions)."""
-    if pos.size > 1:
+def check_unique_positions(pos: np.ndarray, n_edges: int, name: str, func: str) -> np.ndarray:
+    """Reject repeated positions in an edge set (``pos`` from check_positions); return the
+    boolean membership mask of shape (n_edges,)."""
+    mask = np.zeros(n_edges, dtype=bool)
+    mask[pos] = True
+    if np.count_nonzero(mask) != pos.size:
         order = np.argsort(pos, kind="stable")
         s = pos[order]
         dup = np.flatnonzero(s[1:] == s[:-1])
-        if dup.size:
-            i, j = sorted((int(order[dup[0]]), int(order[dup[0] + 1])))
-            raise ValueError(f"{func}: {name}[{j}] = {pos[j]} repeats {name}[{i}]; an edge set "
-                             f"lists each edge position once. Deduplicate with np.unique({name}).")
-    return pos
+        i, j = sorted((int(order[dup[0]]), int(order[dup[0] + 1])))
+        raise ValueError(f"{func}: {name}[{j}] = {pos[j]} repeats {name}[{i}]; an edge set "
+                         f"lists each edge position once. Deduplicate with np.unique({name}).")
+    return mask
 
 
 def check_node_pairs(a, b, n_nodes: int, func: str):
