@@ -124,7 +124,8 @@ class SpanningForest:
             widest-path, value); then -inf across components and inf for a node with itself.
         position : ndarray of int64, same shape
             Input position of that edge (the tie-rule-heaviest among equal weights); -1 when
-            there is none.
+            there is none.  For a forest solved with ``required``/``excluded`` edges the values
+            are those of its own tree paths, not minimax values of the whole graph.
 
         Notes
         -----
