@@ -21,7 +21,7 @@ The disjoint-set primitives come from ``_dsu.pxd``.  Internal arrays are int64.
 """
 import numpy as np
 cimport numpy as cnp
-from libc.stdint cimport int64_t, uint8_t
+from libc.stdint cimport int32_t, int64_t, uint8_t
 
 from fastmst._typedefs cimport index_t
 from fastmst._dsu cimport dsu_find, dsu_link
@@ -340,8 +340,15 @@ cdef inline int64_t _floor_log2(int64_t x) noexcept nogil:
     return k
 
 
-cdef void _path_max(const int64_t[::1] pos, const int64_t[::1] gap, const int64_t[::1] pre,
-                    const int64_t[::1] suf, const int64_t[::1] table, int64_t nb, int64_t f,
+ctypedef fused rank_t:
+    # Lookup tables of the path-maxima index: int32 while node and edge counts fit (half the
+    # memory traffic of the random lookups that dominate the queries), int64 beyond.
+    int32_t
+    int64_t
+
+
+cdef void _path_max(const rank_t[::1] pos, const rank_t[::1] gap, const rank_t[::1] pre,
+                    const rank_t[::1] suf, const rank_t[::1] table, int64_t nb, int64_t f,
                     const index_t[::1] qa, const index_t[::1] qb,
                     int64_t[::1] out) noexcept nogil:
     cdef int64_t q, l, r, bl, br, best, i, k, a, b
@@ -409,6 +416,9 @@ cdef class PathMaxIndex:
             if n > 0:
                 _leaf_order(n, kparent, left, right, size, o, gp)
             _block_tables(gp, pr, sf, tb, nb, levels)
+        if n + f < 2**31 - 1:
+            offset, gap, pre, suf, table = (a.astype(np.int32)
+                                            for a in (offset, gap, pre, suf, table))
         self.pos = offset[:n]
         self.gap = gap
         self._pre, self._suf, self._table = pre, suf, table
@@ -422,15 +432,17 @@ cdef class PathMaxIndex:
         """
         if qa.shape[0] != qb.shape[0]:
             raise ValueError("PathMaxIndex.query: qa and qb must have one length.")
-        out = np.empty(qa.shape[0], dtype=np.int64)
-        cdef int64_t[::1] o = out
-        cdef const int64_t[::1] ps = self.pos
-        cdef const int64_t[::1] gp = self.gap
-        cdef const int64_t[::1] pr = self._pre
-        cdef const int64_t[::1] sf = self._suf
-        cdef const int64_t[::1] tb = self._table
         if qa.shape[0] and self._n == 0:
             raise ValueError("PathMaxIndex.query: the forest has no nodes.")
-        with nogil:
-            _path_max(ps, gp, pr, sf, tb, self._nb, self._f, qa, qb, o)
+        out = np.empty(qa.shape[0], dtype=np.int64)
+        _query(self.pos, self.gap, self._pre, self._suf, self._table, self._nb, self._f,
+               qa, qb, out)
         return out
+
+
+def _query(const rank_t[::1] pos, const rank_t[::1] gap, const rank_t[::1] pre,
+           const rank_t[::1] suf, const rank_t[::1] table, int64_t nb, int64_t f,
+           const index_t[::1] qa, const index_t[::1] qb, int64_t[::1] out):
+    """Run the query kernel on the index tables (all of one dtype); OUT: out."""
+    with nogil:
+        _path_max(pos, gap, pre, suf, table, nb, f, qa, qb, out)
