@@ -16,8 +16,11 @@ def add_edges(forest, tail, head, weight, n_nodes=None):
     k = new.n_edges
     order = np.argsort(forest.edges, kind="stable")
     old_pos = forest.edges[order]
-    t = np.concatenate([np.asarray(forest.tail)[order], new.tail])
-    h = np.concatenate([np.asarray(forest.head)[order], new.head])
+    ids = [np.asarray(forest.tail)[order], new.tail, np.asarray(forest.head)[order], new.head]
+    if len({a.dtype for a in ids}) > 1:
+        ids = [a.astype(np.int64) for a in ids]     # e.g. uint64 with int64 would give floats
+    t = np.concatenate(ids[:2])
+    h = np.concatenate(ids[2:])
     w = np.concatenate([np.asarray(forest.weights)[order], new.weight])
     if w.dtype.kind == "f" and (forest.weights.dtype.kind in "iu" or new.weight.dtype.kind in "iu"):
         # Mixed integer and float weights meet in float64; refuse if that rounds a weight.

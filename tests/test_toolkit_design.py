@@ -151,6 +151,10 @@ def test_add_edges_bad_input():
         f.add_edges([0], [2], [np.nan])
     with pytest.raises(ValueError, match=r"tail\[0\] = -3 is negative"):
         f.add_edges([-3], [2], [1.0])
+    # Mixed id dtypes (uint64 forest, int8 new ids) still combine into integer ids.
+    u = fastmst.minimum_spanning_forest(np.array([0, 1], np.uint64), np.array([1, 2], np.uint64),
+                                        [1.0, 2.0])
+    assert u.add_edges(np.array([0], np.int8), [2], [0.5]).edges.tolist() == [2, 0]
     t = np.array([0, 2]); t.setflags(write=False)
     g = f.add_edges(t, [2, 3], [0.5, 0.5])
     assert g.edges.tolist() == [2, 3, 0] and t.tolist() == [0, 2]
