@@ -123,9 +123,12 @@ def check_forest(tail, head, weight, edges, n_nodes=None, *, maximize=None) -> F
     crossing = non[idx == -1]
     inner = idx >= 0
     cand = non[inner]
-    heavy = tree.edges[idx[inner]]
-    worse = (g.kweight[cand] > g.kweight[heavy]) if maximize else \
-        (g.kweight[cand] < g.kweight[heavy])
+    hidx = idx[inner]
+    heavy = tree.edges[hidx]
+    # Forest weights gathered once: the per-edge lookups then stay in a V-sized array.
+    hw = g.kweight[tree.edges][hidx]
+    cw = g.kweight[cand]
+    worse = (cw > hw) if maximize else (cw < hw)
     violations = cand[worse]
     replaces = heavy[worse]
     is_spanning = crossing.size == 0

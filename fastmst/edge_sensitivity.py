@@ -110,8 +110,10 @@ def sensitivity(tail, head, weight, forest, *, maximize=None) -> np.ndarray:
                          f"{p} ({g.tail[p]}-{g.head[p]}) joins two of its trees. Pass the optimal "
                          f"spanning forest of this graph (minimum_spanning_forest(...)).")
     heavy = fedges[idx]
-    worse = (g.kweight[non] > g.kweight[heavy]) if maximize else \
-        (g.kweight[non] < g.kweight[heavy])
+    # Forest weights gathered once: the per-edge lookups then stay in a V-sized array.
+    hw = g.kweight[fedges][idx]
+    nw = g.kweight[non]
+    worse = (nw > hw) if maximize else (nw < hw)
     if worse.any():
         i = int(np.flatnonzero(worse)[0])
         raise ValueError(f"{_FUNC}: the forest is not {'maximum' if maximize else 'minimum'}: "
@@ -119,9 +121,8 @@ def sensitivity(tail, head, weight, forest, *, maximize=None) -> np.ndarray:
                          f"beats the forest edge at position {heavy[i]} (weight "
                          f"{g.weight[heavy[i]]!r}) on its tree path. check_forest(...) lists "
                          f"every such pair; minimum_spanning_forest(...) gives the optimum.")
-    out[non] = _margin(g.kweight[heavy], g.kweight[non]) if maximize else \
-        _margin(g.kweight[non], g.kweight[heavy])
-    del idx, heavy, worse
+    out[non] = _margin(hw, nw) if maximize else _margin(nw, hw)
+    del idx, heavy, worse, hw, nw
     if fedges.size:
         ranked = non[edge_order(g.kweight[non], maximize)] if non.size else non
         pnode, pedge, depth = root_forest(np.ascontiguousarray(ftail),
