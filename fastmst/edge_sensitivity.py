@@ -5,7 +5,6 @@ import numpy as np
 
 from fastmst import validation
 from fastmst._paths import cover_paths, root_forest
-from fastmst._sort import edge_order
 from fastmst.pathmax import heaviest_on_paths, merge_tree, rule_sorted
 
 _FUNC = "sensitivity"
@@ -124,7 +123,10 @@ def sensitivity(tail, head, weight, forest, *, maximize=None) -> np.ndarray:
     out[non] = _margin(hw, nw) if maximize else _margin(nw, hw)
     del idx, heavy, worse, hw, nw
     if fedges.size:
-        ranked = non[edge_order(g.kweight[non], maximize)] if non.size else non
+        # Lightest first (heaviest first when maximizing).  Equal weights give equal margins,
+        # so the order among ties does not matter and the faster unstable sort will do.
+        order = np.argsort(g.kweight[non])
+        ranked = non[order[::-1] if maximize else order]
         pnode, pedge, depth = root_forest(np.ascontiguousarray(ftail),
                                           np.ascontiguousarray(fhead), g.n_nodes)
         cover, _ = cover_paths(pnode, pedge, depth, fedges.shape[0],
