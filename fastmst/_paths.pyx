@@ -25,6 +25,7 @@ from libc.stdint cimport int32_t, int64_t, uint8_t
 
 from fastmst._typedefs cimport index_t
 from fastmst._dsu cimport dsu_find, dsu_link
+from cython.parallel cimport prange
 
 cnp.import_array()
 
@@ -349,36 +350,40 @@ ctypedef fused rank_t:
 
 cdef void _path_max(const rank_t[::1] pos, const rank_t[::1] gap, const rank_t[::1] pre,
                     const rank_t[::1] suf, const rank_t[::1] table, int64_t nb, int64_t f,
-                    const index_t[::1] qa, const index_t[::1] qb,
-                    int64_t[::1] out) noexcept nogil:
-    cdef int64_t q, l, r, bl, br, best, i, k, a, b
-    for q in range(qa.shape[0]):
+                    const index_t[::1] qa, const index_t[::1] qb, int64_t[::1] out,
+                    int threads) noexcept nogil:
+    """Every pair is independent: a static prange over the pairs (serial without OpenMP)."""
+    cdef Py_ssize_t q
+    cdef int64_t l, r, bl, br, best, i, k, a, b
+    for q in prange(qa.shape[0], schedule="static", num_threads=threads):
         l = pos[qa[q]]
         r = pos[qb[q]]
         if l == r:
-            out[q] = -2
-            continue
-        if l > r:
-            l, r = r, l
-        r -= 1                               # gaps l..r inclusive
-        bl = l // _BLOCK
-        br = r // _BLOCK
-        if bl == br:
-            best = gap[l]
-            for i in range(l + 1, r + 1):
-                if gap[i] > best:
-                    best = gap[i]
+            best = -2
         else:
-            best = suf[l] if suf[l] > pre[r] else pre[r]
-            if br > bl + 1:
-                k = _floor_log2(br - bl - 1)
-                a = table[k * nb + bl + 1]
-                b = table[k * nb + br - (1 << k)]
-                if a > best:
-                    best = a
-                if b > best:
-                    best = b
-        out[q] = -1 if best == f else best
+            if l > r:
+                l, r = r, l
+            r = r - 1                            # gaps l..r inclusive
+            bl = l // _BLOCK
+            br = r // _BLOCK
+            if bl == br:
+                best = gap[l]
+                for i in range(l + 1, r + 1):
+                    if gap[i] > best:
+                        best = gap[i]
+            else:
+                best = suf[l] if suf[l] > pre[r] else pre[r]
+                if br > bl + 1:
+                    k = _floor_log2(br - bl - 1)
+                    a = table[k * nb + bl + 1]
+                    b = table[k * nb + br - (1 << k)]
+                    if a > best:
+                        best = a
+                    if b > best:
+                        best = b
+            if best == f:
+                best = -1
+        out[q] = best
 
 
 cdef class PathMaxIndex:
@@ -424,25 +429,30 @@ cdef class PathMaxIndex:
         self._pre, self._suf, self._table = pre, suf, table
         self._nb, self._f, self._n = nb, f, n
 
-    def query(self, const index_t[::1] qa, const index_t[::1] qb):
+    def query(self, const index_t[::1] qa, const index_t[::1] qb, int threads=1):
         """Index (into the tie-rule order of the forest edges) of the heaviest edge on each
         pair's path; -1 for pairs in different trees, -2 for a node with itself.
 
-        ``qa`` and ``qb`` must be validated ids in [0, n_nodes).
+        ``qa`` and ``qb`` must be validated ids in [0, n_nodes).  ``threads`` >= 1 worker
+        threads share the pairs (the answer does not depend on it).
         """
+        if threads < 1:
+            raise ValueError(f"PathMaxIndex.query: threads must be >= 1, received {threads}.")
+        # Below ~64k pairs thread start-up costs more than it saves.
+        threads = min(threads, max(1, qa.shape[0] // 65536))
         if qa.shape[0] != qb.shape[0]:
             raise ValueError("PathMaxIndex.query: qa and qb must have one length.")
         if qa.shape[0] and self._n == 0:
             raise ValueError("PathMaxIndex.query: the forest has no nodes.")
         out = np.empty(qa.shape[0], dtype=np.int64)
         _query(self.pos, self.gap, self._pre, self._suf, self._table, self._nb, self._f,
-               qa, qb, out)
+               qa, qb, out, threads)
         return out
 
 
 def _query(const rank_t[::1] pos, const rank_t[::1] gap, const rank_t[::1] pre,
            const rank_t[::1] suf, const rank_t[::1] table, int64_t nb, int64_t f,
-           const index_t[::1] qa, const index_t[::1] qb, int64_t[::1] out):
+           const index_t[::1] qa, const index_t[::1] qb, int64_t[::1] out, int threads):
     """Run the query kernel on the index tables (all of one dtype); OUT: out."""
     with nogil:
-        _path_max(pos, gap, pre, suf, table, nb, f, qa, qb, out)
+        _path_max(pos, gap, pre, suf, table, nb, f, qa, qb, out, threads)

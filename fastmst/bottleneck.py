@@ -9,12 +9,13 @@ from fastmst.pathmax import forest_merge_tree, heaviest_on_paths
 _FUNC = "SpanningForest.bottleneck"
 
 
-def bottleneck(forest, a, b):
+def bottleneck(forest, a, b, threads=None):
     """Heaviest edge on the forest path between nodes ``a`` and ``b`` (see
     ``SpanningForest.bottleneck`` for the full description)."""
+    threads = validation.check_threads(threads, _FUNC)
     qa, qb, shape = validation.check_node_pairs(a, b, forest.n_nodes, _FUNC)
     tree = forest_merge_tree(forest)
-    idx = heaviest_on_paths(tree, qa, qb)
+    idx = heaviest_on_paths(tree, qa, qb, threads)
     far, same = (np.inf, -np.inf) if not forest.maximize else (-np.inf, np.inf)
     value = np.full(idx.shape[0], far, dtype=np.float64)
     position = np.full(idx.shape[0], -1, dtype=np.int64)

@@ -57,7 +57,8 @@ def _empty():
     return np.empty(0, dtype=np.int64)
 
 
-def check_forest(tail, head, weight, edges, n_nodes=None, *, maximize=None) -> ForestCheck:
+def check_forest(tail, head, weight, edges, n_nodes=None, *, maximize=None,
+                 threads=None) -> ForestCheck:
     """Certify that ``edges`` is a minimum (or maximum) spanning forest of the graph.
 
     Parameters
@@ -71,6 +72,9 @@ def check_forest(tail, head, weight, edges, n_nodes=None, *, maximize=None) -> F
     maximize : bool, optional
         Check for a maximum spanning forest.  Defaults to ``edges.maximize`` for a
         SpanningForest, False otherwise.
+    threads : int, optional
+        Worker threads for the path queries; None or <= 0 means every available core.  The
+        answer does not depend on it.
 
     Returns
     -------
@@ -107,6 +111,7 @@ def check_forest(tail, head, weight, edges, n_nodes=None, *, maximize=None) -> F
             n_nodes = edges.n_nodes
         edges = edges.edges
     maximize = False if maximize is None else validation.check_bool(maximize, "maximize", _FUNC)
+    threads = validation.check_threads(threads, _FUNC)
     g = validation.validate_edges(tail, head, weight, n_nodes, func=_FUNC)
     if expected_edges is not None and expected_edges != g.n_edges:
         raise ValueError(f"{_FUNC}: the forest was computed on a graph of {expected_edges} "
@@ -119,7 +124,7 @@ def check_forest(tail, head, weight, edges, n_nodes=None, *, maximize=None) -> F
         return ForestCheck(False, False, False, _empty(), _empty(), math.nan,
                            int(order[cycle]), _empty())
     non = np.flatnonzero(~in_forest)
-    idx = heaviest_on_paths(tree, g.ktail[non], g.khead[non])
+    idx = heaviest_on_paths(tree, g.ktail[non], g.khead[non], threads)
     crossing = non[idx == -1]
     inner = idx >= 0
     cand = non[inner]
@@ -139,7 +144,7 @@ def check_forest(tail, head, weight, edges, n_nodes=None, *, maximize=None) -> F
         excess = 0.0
     else:
         best = minimum_spanning_forest(g.ktail, g.khead, g.kweight, g.n_nodes,
-                                       maximize=maximize).weight
+                                       maximize=maximize, threads=threads).weight
         given = math.fsum(g.kweight[pos].tolist())
         excess = (best - given) if maximize else (given - best)
     return ForestCheck(True, bool(is_spanning), is_minimum, violations, replaces, float(excess),

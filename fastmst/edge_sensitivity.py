@@ -18,7 +18,7 @@ def _margin(high: np.ndarray, low: np.ndarray) -> np.ndarray:
         return np.where(h == lo, 0.0, h - lo)
 
 
-def sensitivity(tail, head, weight, forest, *, maximize=None) -> np.ndarray:
+def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None) -> np.ndarray:
     """Per-edge sensitivity of an optimal spanning forest (Tarjan 1982).
 
     Parameters
@@ -30,6 +30,9 @@ def sensitivity(tail, head, weight, forest, *, maximize=None) -> np.ndarray:
     maximize : bool, optional
         The forest is a maximum spanning forest.  Defaults to ``forest.maximize`` for a
         SpanningForest, False otherwise.
+    threads : int, optional
+        Worker threads for the path queries; None or <= 0 means every available core.  The
+        answer does not depend on it.
 
     Returns
     -------
@@ -86,6 +89,7 @@ def sensitivity(tail, head, weight, forest, *, maximize=None) -> np.ndarray:
     else:
         expected_edges = None
     maximize = False if maximize is None else validation.check_bool(maximize, "maximize", _FUNC)
+    threads = validation.check_threads(threads, _FUNC)
     g = validation.validate_edges(tail, head, weight, n_nodes, func=_FUNC)
     if expected_edges is not None and expected_edges != g.n_edges:
         raise ValueError(f"{_FUNC}: the forest was computed on a graph of {expected_edges} "
@@ -102,7 +106,7 @@ def sensitivity(tail, head, weight, forest, *, maximize=None) -> np.ndarray:
                          f"Pass the edges of a spanning forest, e.g. minimum_spanning_forest(...).")
     out = np.full(g.n_edges, np.inf, dtype=np.float64)
     non = np.flatnonzero(~in_forest & (g.ktail != g.khead))
-    idx = heaviest_on_paths(tree, g.ktail[non], g.khead[non])
+    idx = heaviest_on_paths(tree, g.ktail[non], g.khead[non], threads)
     if non.size and idx.min() == -1:
         p = int(non[np.flatnonzero(idx == -1)[0]])
         raise ValueError(f"{_FUNC}: the forest does not span the graph: the edge at position "

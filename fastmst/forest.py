@@ -107,13 +107,15 @@ class SpanningForest:
         return g
 
 
-    def bottleneck(self, a, b):
+    def bottleneck(self, a, b, *, threads=None):
         """Heaviest edge on the forest path between nodes ``a`` and ``b`` (minimax queries).
 
         Parameters
         ----------
         a, b : int or array_like of int
             Node ids in ``[0, n_nodes)``; arrays of one shape (or broadcastable) give many pairs.
+        threads : int, optional
+            Worker threads; None or <= 0 means every available core (same answer either way).
 
         Returns
         -------
@@ -141,7 +143,7 @@ class SpanningForest:
         ([3.0, 3.0, -inf], [3, 3, -1])
         """
         from fastmst.bottleneck import bottleneck
-        return bottleneck(self, a, b)
+        return bottleneck(self, a, b, threads)
 
     def add_edges(self, tail, head, weight, n_nodes=None) -> "SpanningForest":
         """Optimal forest of the old graph plus new edges, from this forest and the new edges.

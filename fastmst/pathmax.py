@@ -59,13 +59,14 @@ def merge_tree(ftail: np.ndarray, fhead: np.ndarray, edges: np.ndarray, n_nodes:
                      int(n_nodes), index), -1
 
 
-def heaviest_on_paths(tree: MergeTree, qa: np.ndarray, qb: np.ndarray) -> np.ndarray:
+def heaviest_on_paths(tree: MergeTree, qa: np.ndarray, qb: np.ndarray,
+                      threads: int = 1) -> np.ndarray:
     """Index into ``tree.edges`` of the heaviest edge on each pair's path; -1 for pairs in two
     trees, -2 for a node paired with itself."""
     if qa.dtype != qb.dtype or qa.dtype not in (np.dtype(np.int32), np.dtype(np.int64)):
         qa = np.ascontiguousarray(qa, dtype=np.int64)
         qb = np.ascontiguousarray(qb, dtype=np.int64)
-    return tree.index.query(np.ascontiguousarray(qa), np.ascontiguousarray(qb))
+    return tree.index.query(np.ascontiguousarray(qa), np.ascontiguousarray(qb), threads)
 
 
 def forest_merge_tree(forest) -> MergeTree:

@@ -189,6 +189,12 @@ def test_toolkit_input_contract_and_threads():
         assert all(np.array_equal(x, y) for x, y in zip(g.bottleneck(np.arange(n),
                                                                      np.arange(n)[::-1]), ref_b))
         assert all(np.array_equal(a, b) for a, b in zip((tt, hh, ww), before))
+    # Thread counts inside one call (OpenMP prange over the pairs) give the same answer.
+    for th in (1, 2, 3):
+        assert np.array_equal(fastmst.sensitivity(t, h, w, f, threads=th), ref_s)
+        big_a, big_b = rng.integers(0, n, 200_000), rng.integers(0, n, 200_000)
+        assert all(np.array_equal(x, y) for x, y in zip(f.bottleneck(big_a, big_b, threads=th),
+                                                         f.bottleneck(big_a, big_b, threads=1)))
     with ThreadPoolExecutor(4) as ex:
         outs = list(ex.map(lambda _: fastmst.sensitivity(t, h, w, f), range(8)))
     assert all(np.array_equal(o, ref_s) for o in outs)
