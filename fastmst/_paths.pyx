@@ -11,13 +11,14 @@ Three near-linear kernels, each behind a thin ``def`` that allocates and checks 
     Range maxima over the merge tree's leaf order: the heaviest edge on the tree path of any
     node pair in a few memory lookups, after an O(V) build.
 ``root_forest`` / ``cover_paths``
-    For sensitivity: the forest rooted by breadth-first search, then non-tree edges taken in
-    tie-rule order each mark the still-unmarked tree edges of their tree path (Tarjan,
+    For sensitivity: the forest rooted by breadth-first search, then non-tree edges taken
+    lightest first each mark the still-unmarked tree edges of their tree path (Tarjan,
     "Sensitivity analysis of minimum spanning trees and shortest path trees", 1982).  A disjoint
     set whose sets are the connected regions of marked edges jumps over marked edges, so each
     tree edge is marked once: O((V + E) alpha(V)).
 
-The disjoint-set primitives come from ``_dsu.pxd``.  Internal arrays are int64.
+The disjoint-set primitives come from ``_dsu.pxd``.  Internal arrays are int64, except the
+lookup tables of ``PathMaxIndex``, which are int32 while node and edge counts fit.
 """
 import numpy as np
 cimport numpy as cnp
@@ -282,7 +283,7 @@ def union_parent(const index_t[::1] ftail, const index_t[::1] fhead, Py_ssize_t 
 # merge that joins two neighbouring leaves is their lowest common ancestor.  So the heaviest edge
 # between nodes u and v is the largest merge index among the gaps between pos[u] and pos[v]
 # (Gabow, Bentley and Tarjan, "Scaling and related techniques for geometry problems", 1984, for
-# reducing LCA to range maxima).  Gaps between two trees hold the sentinel F.  Range maxima use
+# reducing LCA to range maxima; citation recalled from memory).  Gaps between two trees hold the sentinel F.  Range maxima use
 # blocks of _BLOCK gaps with in-block prefix/suffix maxima and a sparse table over block maxima:
 # O(V log V / _BLOCK) memory, and at most a _BLOCK-long scan per query.
 
