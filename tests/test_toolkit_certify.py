@@ -265,3 +265,18 @@ def test_wild_input_never_crashes(graph, edges, which, k):
             assert f.clusters(k=k).max() == k - 1
     except (TypeError, ValueError) as exc:
         assert str(exc)
+
+
+def test_infinite_weights():
+    """Hand-solved triangle with -inf/inf weights (worked by hand): margins between equal
+    infinities are 0, not NaN; the bottleneck of an inf-weight path is inf with a real position
+    (unlike pairs in different components, which get position -1)."""
+    tail, head = [0, 1, 0], [1, 2, 2]
+    weight = [-np.inf, np.inf, np.inf]
+    f = fastmst.minimum_spanning_forest(tail, head, weight)
+    assert sorted(f.edges.tolist()) == [0, 1]
+    assert fastmst.sensitivity(tail, head, weight, f).tolist() == [np.inf, 0.0, 0.0]
+    c = fastmst.check_forest(tail, head, weight, f)
+    assert c.is_minimum and c.excess == 0.0
+    w, p = f.bottleneck([0], [2])
+    assert w.tolist() == [np.inf] and p.tolist() == [1]
