@@ -10,7 +10,7 @@ import fastmst
 from toolkit_reference import (multigraph, nx_components, nx_forest, small_graphs,
                                tree_path_positions)
 
-PROFILE = dict(deadline=None, derandomize=True, max_examples=60)
+PROFILE = dict(deadline=None, derandomize=True, max_examples=120)
 
 
 def _random_spanning_forest(tail, head, n, seed):

@@ -8,7 +8,7 @@ from hypothesis import given, settings, strategies as st
 import fastmst
 from toolkit_reference import nx_components, nx_forest, small_graphs
 
-PROFILE = dict(deadline=None, derandomize=True, max_examples=60)
+PROFILE = dict(deadline=None, derandomize=True, max_examples=120)
 
 
 def _contracted_reference(tail, head, weight, n, req, exc, maximize):

@@ -9,7 +9,7 @@ from scipy.spatial.distance import pdist
 import fastmst
 from toolkit_reference import canonical, minimax, small_graphs, tree_path_positions
 
-PROFILE = dict(deadline=None, derandomize=True, max_examples=50)
+PROFILE = dict(deadline=None, derandomize=True, max_examples=100)
 
 
 @settings(**PROFILE)
