@@ -5,6 +5,7 @@ import numpy as np
 
 from fastmst import validation
 from fastmst._paths import cover_paths, root_forest
+from fastmst._sort import edge_order
 from fastmst.pathmax import heaviest_on_paths, merge_tree, rule_sorted
 
 _FUNC = "sensitivity"
@@ -18,7 +19,8 @@ def _margin(high: np.ndarray, low: np.ndarray) -> np.ndarray:
         return np.where(h == lo, 0.0, h - lo)
 
 
-def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None) -> np.ndarray:
+def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None,
+                return_partner=False):
     """Per-edge sensitivity of an optimal spanning forest (Tarjan 1982).
 
     Parameters
@@ -33,6 +35,8 @@ def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None) -> n
     threads : int, optional
         Worker threads for the path queries; None or <= 0 means every available core.  The
         answer does not depend on it.
+    return_partner : bool
+        Also return, for each edge, the edge it would swap with at its margin.
 
     Returns
     -------
@@ -43,6 +47,11 @@ def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None) -> n
         before it can enter, its weight minus the heaviest edge on its tree path.  inf for
         self-loops.  Always >= 0.  With ``maximize`` the directions swap: a forest edge may
         fall by its margin, a non-tree edge must rise by it.
+    partner : ndarray of shape (E,), dtype=int64, only with ``return_partner=True``
+        For a forest edge, the covering non-tree edge that would replace it (the lightest, and
+        the earliest among equal weights); for a non-tree edge, the forest edge it would
+        replace (the heaviest on its path, the latest among equal weights); -1 for bridges and
+        self-loops.
 
     Raises
     ------
@@ -104,7 +113,9 @@ def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None) -> n
         raise ValueError(f"{_FUNC}: the forest is not acyclic: the edge at position {p} "
                          f"({g.tail[p]}-{g.head[p]}) closes a cycle with other forest edges. "
                          f"Pass the edges of a spanning forest, e.g. minimum_spanning_forest(...).")
+    return_partner = validation.check_bool(return_partner, "return_partner", _FUNC)
     out = np.full(g.n_edges, np.inf, dtype=np.float64)
+    partner = np.full(g.n_edges, -1, dtype=np.int64) if return_partner else None
     non = np.flatnonzero(~in_forest & (g.ktail != g.khead))
     idx = heaviest_on_paths(tree, g.ktail[non], g.khead[non], threads)
     if non.size and idx.min() == -1:
@@ -125,12 +136,18 @@ def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None) -> n
                          f"{g.weight[heavy[i]]!r}) on its tree path. check_forest(...) lists "
                          f"every such pair; minimum_spanning_forest(...) gives the optimum.")
     out[non] = _margin(hw, nw) if maximize else _margin(nw, hw)
+    if return_partner:
+        partner[non] = heavy
     del idx, heavy, worse, hw, nw
     if fedges.size:
         # Lightest first (heaviest first when maximizing).  Equal weights give equal margins,
         # so the order among ties does not matter and the faster unstable sort will do.
-        order = np.argsort(g.kweight[non])
-        ranked = non[order[::-1] if maximize else order]
+        # With partners the tie rule picks the one reported, so the order is the stable one.
+        if return_partner:
+            ranked = non[edge_order(g.kweight[non], maximize)]
+        else:
+            order = np.argsort(g.kweight[non])
+            ranked = non[order[::-1] if maximize else order]
         pnode, pedge, depth = root_forest(np.ascontiguousarray(ftail),
                                           np.ascontiguousarray(fhead), g.n_nodes)
         cover, _ = cover_paths(pnode, pedge, depth, fedges.shape[0],
@@ -141,4 +158,6 @@ def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None) -> n
         c_has = ranked[cover[has]]
         out[f_has] = _margin(g.kweight[f_has], g.kweight[c_has]) if maximize else \
             _margin(g.kweight[c_has], g.kweight[f_has])
-    return out
+        if return_partner:
+            partner[f_has] = c_has
+    return (out, partner) if return_partner else out

@@ -280,3 +280,28 @@ def test_infinite_weights():
     assert c.is_minimum and c.excess == 0.0
     w, p = f.bottleneck([0], [2])
     assert w.tolist() == [np.inf] and p.tolist() == [1]
+
+
+@settings(**PROFILE)
+@given(small_graphs(), st.booleans())
+def test_sensitivity_partner_is_the_swap(graph, maximize):
+    """The partner of each edge is the swap that the tie rule makes just past the margin:
+    moving the edge's weight by margin + 0.5 and re-solving with minimum_spanning_forest gives
+    the old forest with exactly that pair exchanged; the forest and margins are confirmed by
+    networkx (minimum_spanning_edges) in test_sensitivity_matches_networkx_resolve."""
+    tail, head, weight, n = graph
+    f = fastmst.minimum_spanning_forest(tail, head, weight, n, maximize=maximize)
+    s, partner = fastmst.sensitivity(tail, head, weight, f, return_partner=True)
+    assert np.array_equal(s, fastmst.sensitivity(tail, head, weight, f))
+    sign = -1.0 if maximize else 1.0
+    old = set(f.edges.tolist())
+    for p in range(len(tail)):
+        if np.isinf(s[p]):
+            assert partner[p] == -1
+            continue
+        q = int(partner[p])
+        w = weight.copy()
+        w[p] += (sign if p in old else -sign) * (s[p] + 0.5)
+        new = set(fastmst.minimum_spanning_forest(tail, head, w, n, maximize=maximize)
+                  .edges.tolist())
+        assert new == old ^ {p, q}
