@@ -176,3 +176,35 @@ def test_textbook_example_graph():
     w, _ = f.bottleneck([names.index("a")] * 3, [names.index(x) for x in "egb"])
     assert w.tolist() == [9.0, 8.0, 4.0]
     assert fastmst.single_linkage(f)[-1, 2] == 9.0
+
+
+def test_bottleneck_long_paths_many_blocks():
+    """A 4000-node sparse random graph (long tree paths spanning many 32-gap blocks of the
+    range-maximum index): the heaviest edge on 150 random tree paths equals the one found by
+    walking the networkx shortest path in the forest (networkx.shortest_path)."""
+    import networkx as nx
+    rng = np.random.default_rng(21)
+    n, m = 4000, 5200
+    tail, head = rng.integers(0, n, m), rng.integers(0, n, m)
+    weight = rng.random(m)
+    f = fastmst.minimum_spanning_forest(tail, head, weight, n)
+    g = nx.Graph()
+    g.add_nodes_from(range(n))
+    for p in f.edges.tolist():
+        g.add_edge(int(tail[p]), int(head[p]), position=p)
+    a, b = rng.integers(0, n, 150), rng.integers(0, n, 150)
+    value, position = f.bottleneck(a, b)
+    longest = 0
+    for u, v, w, p in zip(a.tolist(), b.tolist(), value.tolist(), position.tolist()):
+        if u == v or not nx.has_path(g, u, v):
+            assert p == -1
+            continue
+        path = nx.shortest_path(g, u, v)
+        longest = max(longest, len(path))
+        on = [g.edges[x, y]["position"] for x, y in zip(path, path[1:])]
+        assert p == max(on, key=lambda q: weight[q]) and w == weight[p]
+    assert longest > 20
+    # The pairs lie far apart in the index's leaf order, so the sparse table over blocks is used.
+    from fastmst.pathmax import forest_merge_tree
+    pos = forest_merge_tree(f).index.pos
+    assert (np.abs(pos[a] - pos[b]) > 3 * 32).sum() > 50
