@@ -398,7 +398,7 @@ cdef class PathMaxIndex:
     """
     cdef readonly object pos
     cdef readonly object gap
-    cdef object _pre, _suf, _table
+    cdef object _pre, _suf, _table, _args
     cdef int64_t _nb, _f, _n
 
     def __init__(self, const int64_t[::1] kparent, const int64_t[::1] left,
@@ -429,6 +429,12 @@ cdef class PathMaxIndex:
         self.gap = gap
         self._pre, self._suf, self._table = pre, suf, table
         self._nb, self._f, self._n = nb, f, n
+        self._args = (np.asarray(kparent), np.asarray(left), np.asarray(right),
+                      np.asarray(size), n_nodes)
+
+    def __reduce__(self):
+        """Pickle as the merge tree it was built from (rebuilt in O(V) on load)."""
+        return (PathMaxIndex, self._args)
 
     def query(self, const index_t[::1] qa, const index_t[::1] qb, int threads=1):
         """Index (into the tie-rule order of the forest edges) of the heaviest edge on each

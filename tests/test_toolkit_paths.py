@@ -208,3 +208,18 @@ def test_bottleneck_long_paths_many_blocks():
     from fastmst.pathmax import forest_merge_tree
     pos = forest_merge_tree(f).index.pos
     assert (np.abs(pos[a] - pos[b]) > 3 * 32).sum() > 50
+
+
+def test_forest_pickles_after_queries():
+    """A forest that has cached its merge tree (after bottleneck) still pickles, e.g. to go to
+    a worker process, and answers the same afterwards (reference: the answers before)."""
+    import pickle
+    rng = np.random.default_rng(4)
+    tail, head, weight = rng.integers(0, 500, 2000), rng.integers(0, 500, 2000), rng.random(2000)
+    f = fastmst.minimum_spanning_forest(tail, head, weight, 500)
+    a, b = rng.integers(0, 500, 1000), rng.integers(0, 500, 1000)
+    before = f.bottleneck(a, b)
+    g = pickle.loads(pickle.dumps(f))
+    after = g.bottleneck(a, b)
+    assert all(np.array_equal(x, y) for x, y in zip(before, after))
+    assert np.array_equal(fastmst.single_linkage(g), fastmst.single_linkage(f))
