@@ -6,14 +6,20 @@ import math
 import numpy as np
 
 
-def _segments(coords, tail, head):
+def _polyline(coords, tail, head):
+    """x, y of every segment as one polyline broken by NaNs: one matplotlib path for all
+    segments, which draws 100k edges in a fraction of the time of 100k separate paths."""
     t = np.asarray(tail, dtype=np.int64)
     h = np.asarray(head, dtype=np.int64)
-    return np.stack([coords[t], coords[h]], axis=1)
+    out = np.full((t.size, 3, 2), np.nan)
+    out[:, 0] = coords[t]
+    out[:, 1] = coords[h]
+    out = out.reshape(-1, 2)
+    return out[:, 0], out[:, 1]
 
 
 def plot_forest(path, edges, forest, *, title=None, subtitle=None, groups=None,
-                highlight=None, dpi=150):
+                highlight=None, footnote=None, dpi=150):
     """Draw the forest over the full graph (faint) and write a PNG to ``path``, atomically.
 
     Parameters
@@ -34,7 +40,6 @@ def plot_forest(path, edges, forest, *, title=None, subtitle=None, groups=None,
     import matplotlib
     matplotlib.use("Agg", force=True)
     import matplotlib.pyplot as plt
-    from matplotlib.collections import LineCollection
 
     from fastmst.io import _atomic
 
@@ -44,28 +49,26 @@ def plot_forest(path, edges, forest, *, title=None, subtitle=None, groups=None,
     xy = edges.coords
     n_all, n_f = edges.n_edges, len(forest)
     scale = min(1.0, math.sqrt(20_000 / max(n_all, 1)))
-    fig, ax = plt.subplots(figsize=(10, 8), dpi=dpi)
-    ax.add_collection(LineCollection(_segments(xy, edges.tail, edges.head), colors="#b8b8b8",
-                                     linewidths=0.5 * scale + 0.1, alpha=0.6, zorder=1,
-                                     label=f"all {n_all:,} candidate edges"))
-    fseg = _segments(xy, forest.tail, forest.head)
+    fig, ax = plt.subplots(figsize=(11, 8), dpi=dpi)
+    ax.plot(*_polyline(xy, edges.tail, edges.head), color="#b8b8b8", lw=0.5 * scale + 0.1,
+            alpha=0.7, zorder=1, label=f"all {n_all:,} candidate edges")
+    ft, fh = np.asarray(forest.tail), np.asarray(forest.head)
     if groups is None:
-        ax.add_collection(LineCollection(fseg, colors="#1b4f9c", linewidths=1.4 * scale + 0.3,
-                                         zorder=2, label=f"forest, {n_f:,} edges"))
+        ax.plot(*_polyline(xy, ft, fh), color="#1b4f9c", lw=1.4 * scale + 0.3, zorder=2,
+                label=f"forest, {n_f:,} edges")
     else:
         idx, names, colours = groups
         idx = np.asarray(idx)
         for k, (name, colour) in enumerate(zip(names, colours)):
             sel = idx == k
             if sel.any():
-                ax.add_collection(LineCollection(fseg[sel], colors=colour,
-                                                 linewidths=1.6 * scale + 0.4, zorder=2,
-                                                 label=f"{name} ({int(sel.sum()):,})"))
+                ax.plot(*_polyline(xy, ft[sel], fh[sel]), color=colour,
+                        lw=1.6 * scale + 0.4, zorder=2, label=f"{name} ({int(sel.sum()):,})")
     if highlight is not None and len(highlight):
-        ax.add_collection(LineCollection(fseg[np.asarray(highlight)], colors="#d62728",
-                                         linewidths=3.0, zorder=3,
-                                         label=f"riskiest {len(highlight)} links"))
-    if edges.n_nodes <= 20_000:
+        hl = np.asarray(highlight)
+        ax.plot(*_polyline(xy, ft[hl], fh[hl]), color="#d62728", lw=3.0, zorder=3,
+                label=f"riskiest {len(hl)} links")
+    if edges.n_nodes <= 5_000:
         ax.scatter(xy[:, 0], xy[:, 1], s=1.5 * scale + 0.2, c="#333333", zorder=2.5,
                    linewidths=0)
     ax.autoscale()
@@ -80,9 +83,11 @@ def plot_forest(path, edges, forest, *, title=None, subtitle=None, groups=None,
         ax.set_ylabel("y")
     heading = title or f"{'Maximum' if forest.maximize else 'Minimum'} spanning forest"
     ax.set_title(heading + (f"\n{subtitle}" if subtitle else ""), fontsize=11)
-    ax.legend(loc="upper right", fontsize=8, framealpha=0.9)
+    ax.legend(loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize=8, frameon=False)
     ax.grid(True, color="#eeeeee", linewidth=0.5, zorder=0)
-    fig.tight_layout()
+    if footnote:
+        fig.text(0.01, 0.01, footnote, fontsize=8, color="#555555")
+    fig.tight_layout(rect=(0, 0.03 if footnote else 0, 1, 1))
 
     def write(tmp):
         fig.savefig(tmp, format="png")
