@@ -31,6 +31,9 @@ _SUFFIX_FORMATS = {".csv": "csv", ".tsv": "tsv", ".tab": "tsv", ".txt": "csv",
                    ".gr": "gr", ".geojson": "geojson", ".json": "geojson"}
 _LONLAT = (("lon", "lat"), ("longitude", "latitude"), ("lng", "lat"), ("long", "lat"))
 _XY = (("x", "y"), ("easting", "northing"))
+# Cells read as missing in numeric columns.  "nan" is not among them: it reads as NaN and gets
+# its own error.  Text labels are never turned into missing values ("NA" can be a label).
+_NULLS = ["", "NA", "N/A", "n/a", "NULL", "null", "None", "#N/A"]
 
 
 @dataclass
@@ -100,7 +103,8 @@ def detect_format(path, format=None, *, valid=FORMATS, func="read_edges"):
     if fmt not in valid:
         raise ValueError(f"{func}: cannot tell the format of {str(path)!r} from its name; "
                          f"expected a suffix for one of {', '.join(valid)} (CSV/TSV may end in "
-                         f".gz or .zst). Rename the file or pass format=... (CLI: --format).")
+                         f".gz or .zst). Rename the file" + (" or pass format=... (CLI: --format)."
+                                                          if func == "read_edges" else "."))
     if compression and fmt not in ("csv", "tsv"):
         raise ValueError(f"{func}: {str(path)!r} is a compressed {fmt} file; only CSV/TSV are "
                          f"read compressed. Decompress it first.")
@@ -364,8 +368,8 @@ def _scan_csv(path, delimiter, compression, numeric):
                 try:
                     float(v)
                 except ValueError:
-                    return (f"line {lineno}: {v!r} in column {name!r} is not a number; "
-                            f"expected a number such as 12.5")
+                    return (f"{_where_csv(lineno - 2)}: value {v!r} in column {name!r} is "
+                            f"not a number; expected a number such as 12.5. Fix or drop that row")
     return None
 
 
@@ -376,7 +380,8 @@ def _read_csv(path, delimiter, compression, columns, numeric, progress=None):
     read = pcsv.ReadOptions(use_threads=True, block_size=1 << 22)
     parse = pcsv.ParseOptions(delimiter=delimiter)
     cols = columns(header)
-    convert = pcsv.ConvertOptions(include_columns=list(dict.fromkeys(cols)))
+    convert = pcsv.ConvertOptions(include_columns=list(dict.fromkeys(cols)),
+                                  null_values=_NULLS)
     try:
         if progress is not None:
             src = _CountingFile(path, progress)
@@ -645,13 +650,9 @@ def _read_npz(p, tail, head, weight, nodes):
         raise FileFormatError(f"{p}: not a readable .npz file ({exc}).") from None
     with z:
         names = list(z.files)
-        cols = _default_columns(["tail", "head", "weight"] if {"tail", "head"} <= set(names)
-                                and tail is None and head is None else names,
-                                tail, head, weight, str(p), nodes is not None)
-        for c in cols:
-            if c in names or (nodes is not None and c == "length"):
-                continue
-            validation.check_column(c, names, str(p), "column", "read_edges")
+        if {"tail", "head"} <= set(names):  # the conventional names come first
+            names = ["tail", "head"] + [x for x in names if x not in ("tail", "head")]
+        cols = _default_columns(names, tail, head, weight, str(p), nodes is not None)
         try:
             arrays = {c: z[c] for c in cols if c in names}
         except ValueError as exc:
