@@ -33,6 +33,7 @@ _LONLAT = (("lon", "lat"), ("longitude", "latitude"), ("lng", "lat"), ("long", "
 _XY = (("x", "y"), ("easting", "northing"))
 # Cells read as missing in numeric columns.  "nan" is not among them: it reads as NaN and gets
 # its own error.  Text labels are never turned into missing values ("NA" can be a label).
+CSV_BLOCK_SIZE = 1 << 22   # bytes per parsing block: fewer, larger chunks than pyarrow's 1 MiB
 _NULLS = ["", "NA", "N/A", "n/a", "NULL", "null", "None", "#N/A"]
 
 
@@ -178,7 +179,9 @@ def _arrow_labels(tail, head, source, where, names):
             missing = col.is_null().to_numpy(zero_copy_only=False)
             validation.check_no_missing(missing, name, source, where, "read_edges")
     if pa.types.is_integer(t.type) and pa.types.is_integer(h.type):
-        return encode_labels(_np(t), _np(h), source, names)
+        fast = _arrow_int_labels(t, h)
+        if fast is not None:
+            return fast
     if pa.types.is_floating(t.type) or pa.types.is_floating(h.type):
         return encode_labels(_np(t), _np(h), source, names)  # raises the decimal-ids error
     if t.type != h.type:
@@ -193,6 +196,59 @@ def _arrow_labels(tail, head, source, where, names):
     ti = _np(pc.index_in(t, value_set=uniq)).astype(dt)
     hi = _np(pc.index_in(h, value_set=uniq)).astype(dt)
     return ti, hi, _np(uniq)
+
+
+def _chunks(col):
+    """The chunks of a pyarrow column as zero-copy NumPy views (the column has no nulls)."""
+    return [c.to_numpy(zero_copy_only=True) for c in getattr(col, "chunks", [col])]
+
+
+def _arrow_int_labels(t, h):
+    """Integer label columns with a dense range: compact ids in one pass per column.
+
+    Returns None when the labels are too spread out for a lookup table (the caller then hashes
+    them).  The two columns are converted in two threads (NumPy releases the GIL).
+    """
+    import pyarrow as pa
+    import pyarrow.compute as pc
+    from concurrent.futures import ThreadPoolExecutor
+    if pa.types.is_uint64(t.type) or pa.types.is_uint64(h.type):
+        return None
+    n = len(t)
+    if n == 0:
+        return None
+    mt, mh = pc.min_max(t).as_py(), pc.min_max(h).as_py()
+    lo, hi = min(mt["min"], mh["min"]), max(mt["max"], mh["max"])
+    span = hi - lo + 1
+    if span > 4 * 2 * n + 1024:
+        return None
+    tc, hc = _chunks(t), _chunks(h)
+    present = np.zeros(span, dtype=bool)
+    for a in tc + hc:
+        present[a - lo if lo else a] = True
+    dense = lo == 0 and bool(present.all())
+    if dense:
+        remap, n_nodes, labels = None, span, None
+    else:
+        n_nodes = int(np.count_nonzero(present))
+        remap = (np.cumsum(present, dtype=np.int64) - 1).astype(_id_dtype(n_nodes))
+        labels = np.flatnonzero(present) + lo
+    dt = _id_dtype(n_nodes)
+
+    def fill(chunks):
+        out = np.empty(n, dtype=dt)
+        off = 0
+        for a in chunks:
+            k = a.shape[0]
+            if remap is None:
+                out[off:off + k] = a
+            else:
+                np.take(remap, a - lo if lo else a, out=out[off:off + k])
+            off += k
+        return out
+    with ThreadPoolExecutor(2) as ex:
+        ft, fh = ex.submit(fill, tc), ex.submit(fill, hc)
+        return ft.result(), fh.result(), labels
 
 
 def _np(col) -> np.ndarray:
@@ -377,7 +433,7 @@ def _read_csv(path, delimiter, compression, columns, numeric, progress=None):
     import pyarrow as pa
     import pyarrow.csv as pcsv
     header = _csv_header(path, delimiter, compression)
-    read = pcsv.ReadOptions(use_threads=True, block_size=1 << 22)
+    read = pcsv.ReadOptions(use_threads=True, block_size=CSV_BLOCK_SIZE)
     parse = pcsv.ParseOptions(delimiter=delimiter)
     cols = columns(header)
     convert = pcsv.ConvertOptions(include_columns=list(dict.fromkeys(cols)),
