@@ -69,7 +69,8 @@ def plot_forest(path, edges, forest, *, title=None, subtitle=None, groups=None,
         ax.plot(*_polyline(xy, ft[hl], fh[hl]), color="#d62728", lw=3.0, zorder=3,
                 label=f"riskiest {len(hl)} links")
     if edges.n_nodes <= 5_000:
-        ax.scatter(xy[:, 0], xy[:, 1], s=1.5 * scale + 0.2, c="#333333", zorder=2.5,
+        ax.scatter(xy[:, 0], xy[:, 1], s=min(20.0, 2000.0 / max(edges.n_nodes, 1)) + 1.0,
+                   c="#333333", zorder=2.5,
                    linewidths=0)
     ax.autoscale()
     if edges.geographic:
