@@ -26,6 +26,11 @@ class UsageError(Exception):
     """A command line that cannot work (exit code 2)."""
 
 
+def _methods():
+    from fastmst.forest import METHODS
+    return tuple(METHODS)
+
+
 # --- shared options -----------------------------------------------------------------------------
 
 def _add_input(p, forest_file=False):
@@ -61,7 +66,8 @@ def _add_input(p, forest_file=False):
 def _add_solver(p):
     g = p.add_argument_group("solver")
     g.add_argument("--maximize", action="store_true", help="maximum spanning forest")
-    g.add_argument("--method", default="auto", help="auto, kruskal, boruvka, ... (default auto)")
+    g.add_argument("--method", default="auto", choices=_methods(),
+                   help="algorithm (default auto); every method gives the same forest")
     g.add_argument("--threads", type=int, metavar="N", help="worker threads (default: all cores)")
     g.add_argument("--required", metavar="FILE",
                    help="links that must be in the forest: a file with a 'position' column or "
@@ -160,7 +166,8 @@ def build_parser() -> argparse.ArgumentParser:
                                    "scipy.sparse.csgraph.minimum_spanning_tree and print ratios.")
     _add_input(p)
     p.add_argument("--repeat", type=int, default=3, metavar="N", help="runs each (best counts)")
-    p.add_argument("--method", default="auto", help="fastmst method (default auto)")
+    p.add_argument("--method", default="auto", choices=_methods(),
+                   help="fastmst method (default auto)")
     p.add_argument("--threads", type=int, metavar="N")
     _add_output(p, outputs=False)
     p.set_defaults(run=cmd_bench)
@@ -528,8 +535,11 @@ def cmd_clusters(args):
         if args.plot:
             from fastmst.plot import plot_forest
             with rep.phase("plotting"):
-                plot_forest(args.plot, edges, forest, title="Minimum spanning forest",
-                            subtitle=f"{int(labels.max()) + 1 if labels.size else 0} clusters")
+                plot_forest(args.plot, edges, forest, groups=_cluster_groups(forest, labels),
+                            title="Single-linkage clusters",
+                            subtitle=f"{edges.source}: {int(labels.max()) + 1 if labels.size else 0}"
+                                     f" clusters (forest edges coloured by cluster; cut edges "
+                                     f"black)")
     sizes = np.bincount(labels) if labels.size else np.zeros(0, np.int64)
     top = np.argsort(-sizes, kind="stable")[:10]
     out = {"source": edges.source, "nodes": edges.n_nodes, "clusters": int(sizes.size),
@@ -547,6 +557,21 @@ def cmd_clusters(args):
             rows.append(("wrote", ", ".join(out["written"])))
         _print_block(f"fastmst clusters: {edges.source}", rows)
     return EXIT_OK
+
+
+def _cluster_groups(forest, labels):
+    """Plot classes for the forest's edges: one colour per cluster (cycled after ten), the
+    edges cut between clusters in black."""
+    palette = ["#1f77b4", "#ff7f0e", "#2ca02c", "#d62728", "#9467bd", "#8c564b", "#e377c2",
+               "#7f7f7f", "#bcbd22", "#17becf"]
+    lt, lh = labels[forest.tail], labels[forest.head]
+    n = int(labels.max()) + 1 if labels.size else 0
+    k = min(n, len(palette))
+    idx = np.where(lt == lh, lt % len(palette), len(palette))
+    names = [f"cluster {c}" if n <= len(palette) else f"clusters {c}, {c + 10}, ..."
+             for c in range(k)]
+    names += [f"_unused{c}" for c in range(k, len(palette))] + ["cut between clusters"]
+    return idx, names, palette + ["#000000"]
 
 
 def cmd_bench(args):

@@ -14,7 +14,7 @@ from __future__ import annotations
 import math
 import os
 import tempfile
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
@@ -68,7 +68,6 @@ class EdgeList:
     geographic: bool = False
     source: str = "<edges>"
     columns: tuple = ("tail", "head", "weight")
-    meta: dict = field(default_factory=dict)
 
     @property
     def n_edges(self) -> int:
