@@ -103,17 +103,21 @@ def test_solve_end_to_end(workdir):
     assert p.stderr == ""  # no progress bars when the output is not a terminal
 
 
-def test_solve_json_quiet_and_formats(workdir):
-    """--json prints a machine-readable summary; --quiet prints no summary; .gr input and
-    Parquet output work with the column options."""
+def test_solve_json(workdir):
+    """--json prints a machine-readable summary matching networkx (reference library)."""
     p = run(["solve", "links.csv", "--json"], workdir, check_rc=0)
     d = json.loads(p.stdout)
     assert d["total_weight"] == pytest.approx(_nx_forest_weight(LINKS))
     assert d["components"] == 1 and d["forest_edges"] == 4
     assert d["heaviest_edge"]["tail"] == "west" and "no redundancy" in d["caution"]
-    q = run(["solve", "links.csv", "--quiet", "-o", "f.parquet", "--maximize"], workdir,
-            check_rc=0)
-    assert q.stdout == "" and "no redundancy" in q.stderr
+
+def test_quiet_and_maximize_in_process(workdir, capsys, monkeypatch):
+    """--quiet prints no summary (the caution still goes to stderr); --maximize with Parquet
+    output matches networkx.maximum_spanning_tree (reference library)."""
+    monkeypatch.chdir(workdir)
+    assert cli.main(["solve", "links.csv", "--quiet", "-o", "f.parquet", "--maximize"]) == 0
+    q = capsys.readouterr()
+    assert q.out == "" and "no redundancy" in q.err
     import pyarrow.parquet as pq
     t = pq.read_table(workdir / "f.parquet")
     # maximum spanning tree reference: networkx.maximum_spanning_tree
@@ -179,8 +183,12 @@ def test_malformed_subprocess_and_debug(workdir):
     assert not (workdir / "out.csv").exists()
     p = run(["solve", "bad.csv", "--debug"], workdir, check_rc=1)
     assert "Traceback" in p.stderr and "FileFormatError" in p.stderr
-    p = run(["solve", "missing.csv"], workdir, check_rc=1)
-    assert "no such file" in p.stderr
+
+
+def test_missing_file_exit_1(workdir, capsys):
+    """A missing input file exits 1 with the path in the message."""
+    assert cli.main(["solve", str(workdir / "missing.csv")]) == 1
+    assert "no such file" in capsys.readouterr().err
 
 
 def test_usage_errors_exit_2(workdir, capsys):
@@ -220,7 +228,7 @@ def test_demo_default_folder(tmp_path):
     """`fastmst demo` writes its invented scenario to ./fastmst-demo-output with the cautions;
     the backbone cost equals scipy.sparse.csgraph.minimum_spanning_tree's on the written
     candidate trenches (reference library)."""
-    p = run(["demo", "--sites", "3000"], tmp_path, check_rc=0)
+    p = run(["demo", "--sites", "1500"], tmp_path, check_rc=0)
     out = tmp_path / "fastmst-demo-output"
     for f in ("sites.csv", "trenches.csv", "backbone.csv", "backbone.geojson", "backbone.png",
               "summary.json", "README.txt"):
@@ -229,7 +237,7 @@ def test_demo_default_folder(tmp_path):
                  "backbone cost"):
         assert text in p.stdout, text
     summary = json.loads((out / "summary.json").read_text())
-    assert summary["invented"] is True and summary["sites"] == 3000
+    assert summary["invented"] is True and summary["sites"] == 1500
     from scipy.sparse import coo_array
     from scipy.sparse.csgraph import minimum_spanning_tree
     ids = {r["id"]: i for i, r in enumerate(csv.DictReader(open(out / "sites.csv")))}
@@ -238,10 +246,10 @@ def test_demo_default_folder(tmp_path):
     h = np.array([ids[r["to"]] for r in tr])
     w = np.array([float(r["cost"]) for r in tr])
     assert (w > 0).all()  # the SciPy route drops zeros; the demo has none
-    ref = minimum_spanning_tree(coo_array((w, (t, h)), shape=(3000, 3000)).tocsr()).sum()
+    ref = minimum_spanning_tree(coo_array((w, (t, h)), shape=(1500, 1500)).tocsr()).sum()
     assert summary["backbone_cost"] == pytest.approx(ref, rel=1e-12)
     back = list(csv.DictReader(open(out / "backbone.csv")))
-    assert len(back) == summary["backbone_trenches"] == 3000 - summary["components"]
+    assert len(back) == summary["backbone_trenches"] == 1500 - summary["components"]
     doc = json.loads((out / "backbone.geojson").read_text())
     assert len(doc["features"]) == len(back)
     if hasattr(fastmst, "sensitivity"):
@@ -251,11 +259,11 @@ def test_demo_default_folder(tmp_path):
         assert summary["sensitivity"].startswith("skipped")
 
 
-def test_bench_json(workdir):
+def test_bench_json(workdir, capsys):
     """`fastmst bench --json` times both routes; on a graph without zero weights or parallel
     edges both totals agree (scipy.sparse.csgraph as the reference)."""
-    p = run(["bench", "links.csv", "--repeat", "1", "--json"], workdir, check_rc=0)
-    d = json.loads(p.stdout)
+    assert cli.main(["bench", str(workdir / "links.csv"), "--repeat", "1", "--json"]) == 0
+    d = json.loads(capsys.readouterr().out)
     assert d["edges"] == len(LINKS) and d["fastmst_seconds"] > 0 and d["scipy_seconds"] > 0
     assert d["fastmst_total_weight"] == pytest.approx(d["scipy_total_weight"])
     assert d["speedup"] == pytest.approx(d["scipy_seconds"] / d["fastmst_seconds"])
