@@ -332,7 +332,7 @@ def _pick_coord_columns(names, x, y, geographic, source):
 
 
 def read_nodes(path_or_table, *, id=None, x=None, y=None, geographic=None,
-               format=None) -> NodeTable:
+               format=None) -> NodeTable:  # noqa: A002 (``id`` names the column)
     """Read a node table: one row per node with its label and coordinates.
 
     Parameters
@@ -348,6 +348,7 @@ def read_nodes(path_or_table, *, id=None, x=None, y=None, geographic=None,
         Force the coordinates to be read as (longitude, latitude) degrees (True) or planar (False).
     """
     import pyarrow as pa
+    import pyarrow.compute as pc
     table, source, where = _load_table(path_or_table, format, "read_nodes")
     names = table.column_names
     if id is None:
@@ -365,7 +366,8 @@ def read_nodes(path_or_table, *, id=None, x=None, y=None, geographic=None,
         raise FileFormatError(f"{source}: node ids in column {id!r} are decimal numbers; "
                               f"expected integers or text labels.")
     labels = _np(idcol)
-    validation.check_unique_labels(labels, id, source, where)
+    if len(pc.unique(idcol)) != len(idcol):   # hash check; sort only to name the rows
+        validation.check_unique_labels(labels, id, source, where)
     coords = np.empty((len(labels), 2), dtype=np.float64)
     for j, c in enumerate((xc, yc)):
         col = table.column(c)
@@ -564,6 +566,10 @@ def _default_columns(names, tail, head, weight, source, geometry):
                                   f"{', '.join(map(repr, names))}. Add a weight column, or give "
                                   f"a node table with coordinates and weight='length' (CLI: "
                                   f"--nodes FILE --weight length).")
+    if weight == "length" and "length" not in names and not geometry:
+        raise FileFormatError(f"{source}: no column 'length'; to compute lengths from "
+                              f"coordinates give a node table (nodes=..., CLI: --nodes FILE), "
+                              f"or pick a weight column from {', '.join(map(repr, names))}.")
     if not (geometry and weight == "length" and "length" not in names):
         validation.check_column(weight, names, source, "weight", "read_edges")
     return tail, head, weight
