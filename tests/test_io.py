@@ -15,7 +15,9 @@ import pytest
 import scipy.io
 from scipy import sparse
 
-import fastmst
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
 from fastmst import io
 from fastmst.geodesy import EARTH_RADIUS_M, haversine_m
 from fastmst.validation import FileFormatError
@@ -213,6 +215,30 @@ def test_dimacs_gr(tmp_path):
     assert el.label([0, 3]).tolist() == [1, 4]
     triples = _triples(el)
     assert el.solve().weight == _nx_mst_weight(triples)  # networkx reference
+
+
+_LABELS = st.one_of(
+    st.lists(st.integers(-2**62, 2**62), min_size=1, max_size=8, unique=True),
+    st.lists(st.integers(0, 30), min_size=1, max_size=8, unique=True),
+    st.lists(st.text(min_size=1, max_size=4), min_size=1, max_size=8, unique=True))
+
+
+@settings(deadline=None, derandomize=True, max_examples=40)
+@given(labels=_LABELS, data=st.data())
+def test_labels_map_and_back_property(labels, data):
+    """Any labels (wide or dense integers, text) map to compact ids and back unchanged, and the
+    forest weight equals networkx's on the labelled graph (reference library)."""
+    m = data.draw(st.integers(1, 12))
+    picks = data.draw(st.lists(st.tuples(st.sampled_from(labels), st.sampled_from(labels),
+                                         st.integers(-5, 5)), min_size=m, max_size=m))
+    table = pa.table({"a": [p[0] for p in picks], "b": [p[1] for p in picks],
+                      "w": [float(p[2]) for p in picks]})
+    el = io.from_table(table)
+    assert el.label(el.tail).tolist() == [p[0] for p in picks]
+    assert el.label(el.head).tolist() == [p[1] for p in picks]
+    used = {x for p in picks for x in p[:2]}
+    assert el.n_nodes == len(used)
+    assert el.solve().weight == _nx_mst_weight([(a, b, float(w)) for a, b, w in picks])
 
 
 # --- adapters --------------------------------------------------------------------------------------
