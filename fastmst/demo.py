@@ -23,7 +23,7 @@ SURFACES = (
     ("gravel track", 52.0, "#a6761d"),
     ("asphalt road", 96.0, "#377eb8"),
     ("village paving", 135.0, "#984ea3"),
-    ("river crossing", 410.0, "#e41a1c"),
+    ("river crossing", 410.0, "#17becf"),
 )
 CURRENCY = "cost units (invented)"
 CAUTIONS = (
