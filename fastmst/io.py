@@ -172,7 +172,7 @@ def _arrow_labels(tail, head, source, where, names):
     """Compact ids for two pyarrow label columns of any type; returns (tail, head, labels)."""
     import pyarrow as pa
     import pyarrow.compute as pc
-    t, h = tail, head
+    t, h = _plain(tail), _plain(head)
     for col, name in ((t, names[0]), (h, names[1])):
         if col.null_count:
             missing = col.is_null().to_numpy(zero_copy_only=False)
@@ -195,6 +195,14 @@ def _arrow_labels(tail, head, source, where, names):
     ti = _np(pc.index_in(t, value_set=uniq)).astype(dt)
     hi = _np(pc.index_in(h, value_set=uniq)).astype(dt)
     return ti, hi, _np(uniq)
+
+
+def _plain(col):
+    """Dictionary-encoded columns (pandas categoricals) decoded to their values."""
+    import pyarrow as pa
+    if pa.types.is_dictionary(col.type):
+        return col.cast(col.type.value_type)
+    return col
 
 
 def _chunks(col):
@@ -258,6 +266,7 @@ def _np(col) -> np.ndarray:
 def _arrow_weights(col, name, source, where, what="weight") -> np.ndarray:
     import pyarrow as pa
     import pyarrow.compute as pc
+    col = _plain(col)
     if col.null_count:
         validation.check_no_missing(col.is_null().to_numpy(zero_copy_only=False), name, source,
                                     where, "read_edges")
@@ -358,7 +367,7 @@ def read_nodes(path_or_table, *, id=None, x=None, y=None, geographic=None,
                               f"and two coordinate columns.")
     validation.check_column(id, names, source, "node id", "read_nodes")
     xc, yc, geo = _pick_coord_columns([n for n in names if n != id], x, y, geographic, source)
-    idcol = table.column(id)
+    idcol = _plain(table.column(id))
     if idcol.null_count:
         validation.check_no_missing(idcol.is_null().to_numpy(zero_copy_only=False), id, source,
                                     where, "read_nodes")
@@ -602,7 +611,7 @@ def _node_index(tcol, hcol, nodes: NodeTable, source, where, names):
     if isinstance(value_set, pa.ChunkedArray):
         value_set = value_set.combine_chunks()
     out = []
-    for col, name in ((tcol, names[0]), (hcol, names[1])):
+    for col, name in ((_plain(tcol), names[0]), (_plain(hcol), names[1])):
         if col.null_count:
             validation.check_no_missing(col.is_null().to_numpy(zero_copy_only=False), name,
                                         source, where, "read_edges")

@@ -276,6 +276,8 @@ def test_from_table_pandas_and_arrow():
     e2 = io.from_table(pa.Table.from_pandas(df))
     assert _triples(e1) == _triples(e2) == LINKS
     pd.testing.assert_frame_equal(df, copy)
+    cat = df.astype({"a": "category", "b": "category"})
+    assert _triples(io.from_table(cat)) == LINKS  # pandas categoricals
     with pytest.raises(TypeError, match="DataFrame or a pyarrow Table"):
         io.from_table([1, 2, 3])
 
