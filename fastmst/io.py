@@ -189,11 +189,15 @@ def _arrow_labels(tail, head, source, where, names):
         if pa.types.is_string(col.type) or pa.types.is_large_string(col.type):
             empty = pc.equal(pc.utf8_length(col), 0)
             validation.check_no_missing(_np(empty), name, source, where, "read_edges")
-    uniq = pc.unique(pa.chunked_array(list(t.chunks) + list(h.chunks), type=t.type))
-    uniq = uniq.take(pc.array_sort_indices(uniq))
-    dt = _id_dtype(len(uniq))
-    ti = _np(pc.index_in(t, value_set=uniq)).astype(dt)
-    hi = _np(pc.index_in(h, value_set=uniq)).astype(dt)
+    # Hash each column in its own thread (pyarrow releases the GIL), merge the two sets of
+    # distinct labels, sort them, then look both columns up, again one thread each.
+    from concurrent.futures import ThreadPoolExecutor
+    with ThreadPoolExecutor(2) as ex:
+        ut, uh = ex.map(pc.unique, (t, h))
+        uniq = pc.unique(pa.chunked_array([ut, uh], type=t.type))
+        uniq = uniq.take(pc.array_sort_indices(uniq))
+        dt = _id_dtype(len(uniq))
+        ti, hi = ex.map(lambda c: _np(pc.index_in(c, value_set=uniq)).astype(dt), (t, h))
     return ti, hi, _np(uniq)
 
 
