@@ -185,19 +185,23 @@ def _arrow_labels(tail, head, source, where, names):
         return encode_labels(_np(t), _np(h), source, names)  # raises the decimal-ids error
     if t.type != h.type:
         t, h = pc.cast(t, pa.string()), pc.cast(h, pa.string())
-    for col, name in ((t, names[0]), (h, names[1])):
-        if pa.types.is_string(col.type) or pa.types.is_large_string(col.type):
-            empty = pc.equal(pc.utf8_length(col), 0)
-            validation.check_no_missing(_np(empty), name, source, where, "read_edges")
-    # Hash each column in its own thread (pyarrow releases the GIL), merge the two sets of
-    # distinct labels, sort them, then look both columns up, again one thread each.
+    # Dictionary-encode each column in its own thread (one hash pass per column; pyarrow
+    # releases the GIL), merge and sort the two small dictionaries, then turn each column's
+    # codes into compact ids with one NumPy gather.
     from concurrent.futures import ThreadPoolExecutor
     with ThreadPoolExecutor(2) as ex:
-        ut, uh = ex.map(pc.unique, (t, h))
-        uniq = pc.unique(pa.chunked_array([ut, uh], type=t.type))
+        (dt_, ct), (dh_, ch) = ex.map(_dictionary_codes, (t, h))
+        uniq = pc.unique(pa.chunked_array([dt_, dh_], type=t.type))
         uniq = uniq.take(pc.array_sort_indices(uniq))
         dt = _id_dtype(len(uniq))
-        ti, hi = ex.map(lambda c: _np(pc.index_in(c, value_set=uniq)).astype(dt), (t, h))
+        rt = _np(pc.index_in(dt_, value_set=uniq)).astype(dt)
+        rh = _np(pc.index_in(dh_, value_set=uniq)).astype(dt)
+        ti, hi = ex.map(lambda a: a[0][a[1]], ((rt, ct), (rh, ch)))
+    if pa.types.is_string(t.type) or pa.types.is_large_string(t.type):
+        if len(uniq) and uniq[0].as_py() == "":   # sorted, so an empty label comes first
+            for col, name in ((t, names[0]), (h, names[1])):
+                empty = _np(pc.equal(col, ""))
+                validation.check_no_missing(empty, name, source, where, "read_edges")
     return ti, hi, _np(uniq)
 
 
@@ -260,6 +264,20 @@ def _arrow_int_labels(t, h):
     with ThreadPoolExecutor(2) as ex:
         ft, fh = ex.submit(fill, tc), ex.submit(fill, hc)
         return ft.result(), fh.result(), labels
+
+
+def _dictionary_codes(col):
+    """(distinct values, int codes) of a pyarrow column in one hash pass."""
+    import pyarrow as pa
+    d = col.dictionary_encode()
+    chunks = d.chunks if isinstance(d, pa.ChunkedArray) else [d]
+    dic = chunks[-1].dictionary
+    if any(len(c.dictionary) != len(dic) for c in chunks):  # not one shared dictionary
+        import pyarrow.compute as pc
+        dic = pc.unique(col)
+        return dic, _np(pc.index_in(col, value_set=dic))
+    codes = np.concatenate([c.indices.to_numpy(zero_copy_only=False) for c in chunks])
+    return dic, codes
 
 
 def _np(col) -> np.ndarray:

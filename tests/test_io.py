@@ -314,6 +314,7 @@ MALFORMED = {
                           r"line 3\): weight '4.5x' in column 'weight' is not a number"),
     "nan weight": ("n.csv", "a,b,weight\n1,2,3\n2,3,nan\n", r"line 3\).*NaN"),
     "missing value": ("v.csv", "a,b,weight\n1,2,3\n2,,4\n", r"line 3\).*'b' is empty"),
+    "empty text label": ("t.csv", "a,b,weight\nx,y,3\ny,\"\",4\n", r"line 3\).*'b' is empty"),
     "empty file": ("e.csv", "", "the file is empty"),
     "header only": ("h.csv", "a,b,weight\n", "no edges"),
     "field count": ("f.csv", "a,b,weight\n1,2,3\n2,3\n", "line 3 has 2 fields"),
