@@ -178,6 +178,8 @@ def _arrow_labels(tail, head, source, where, names):
             missing = col.is_null().to_numpy(zero_copy_only=False)
             validation.check_no_missing(missing, name, source, where, "read_edges")
     if pa.types.is_integer(t.type) and pa.types.is_integer(h.type):
+        if t.type != h.type:
+            t, h = pc.cast(t, pa.int64()), pc.cast(h, pa.int64())
         fast = _arrow_int_labels(t, h)
         if fast is not None:
             return fast

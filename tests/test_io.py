@@ -123,6 +123,9 @@ def test_integer_labels_noncontiguous_and_big(tmp_path):
     assert el.solve().n_components == 1  # no phantom nodes 0 or 4
     dense = _write_csv(tmp_path / "d.csv", ["u", "v", "w"], [(0, 1, 1), (1, 2, 1)])
     assert io.read_edges(dense).labels is None
+    mixed = io.from_table(pa.table({"u": pa.array([5, 9], pa.int32()),
+                                    "v": pa.array([9, 2**40], pa.int64()), "w": [1, 2]}))
+    assert mixed.labels.tolist() == [5, 9, 2**40]  # int32 and int64 columns stay integers
 
 
 def test_default_and_chosen_columns(tmp_path):
