@@ -358,9 +358,6 @@ def _summary(edges, forest, rep):
          "total_weight": _jsonable(forest.weight), "maximize": forest.maximize,
          "method": forest.method, "heaviest_edge" if not forest.maximize else "lightest_edge":
          heaviest, "seconds": {k: round(v, 6) for k, v in rep.times.items()}}
-    extra = getattr(forest, "required_cost", None)
-    if extra is not None:
-        d["requirement_cost"] = _jsonable(extra)
     return d
 
 
@@ -395,6 +392,8 @@ def cmd_solve(args):
                             subtitle=f"{edges.source}: {len(forest):,} of {edges.n_edges:,} "
                                      f"edges, total weight {_fmt_num(forest.weight)}")
     summary = _summary(edges, forest, rep)
+    if args.required:
+        summary["requirement_cost"] = _jsonable(getattr(forest, "required_excess", None))
     summary["written"] = list(args.output) + ([args.plot] if args.plot else [])
     summary["caution"] = CAUTION
     if args.json:
@@ -462,12 +461,12 @@ def cmd_check(args):
         edges = _load(args, rep)
         with rep.phase("reading forest"):
             pos = _forest_positions(args, edges)
-        w = edges.weight if not args.maximize else -edges.weight.astype(np.float64)
         with rep.phase("checking"):
-            res = fastmst.check_forest(edges.tail, edges.head, w, pos, n_nodes=edges.n_nodes)
+            res = fastmst.check_forest(edges.tail, edges.head, edges.weight, pos,
+                                       n_nodes=edges.n_nodes, maximize=args.maximize)
     viol = np.asarray(res.violations, dtype=np.int64)
     repl = np.asarray(res.replaces, dtype=np.int64)
-    excess = float(res.excess)  # how much worse than the optimum (weights negated for maximize)
+    excess = float(res.excess)  # how much worse than the optimum, >= 0
 
     def edge(p):
         a, b = edges.label([edges.tail[p], edges.head[p]]).tolist()

@@ -291,6 +291,11 @@ def test_check_optimal_and_suboptimal(workdir, capsys):
     # east--depot (position 2) closes a cycle whose heaviest tree edge is depot--north (0)
     assert any(s["add"]["position"] == 2 and s["remove"]["position"] == 0 for s in d["swaps"])
     assert all(s["add"]["weight"] < s["remove"]["weight"] for s in d["swaps"])
+    # a maximum spanning tree passes the maximize check (networkx.maximum_spanning_tree)
+    assert cli.main(["solve", links, "--maximize", "-o", forest, "--quiet"]) == 0
+    assert cli.main(["check", links, forest, "--maximize", "--json"]) == 0
+    capsys.readouterr()
+    assert cli.main(["check", links, forest, "--json"]) == 3
 
 
 @needs_toolkit
@@ -331,5 +336,6 @@ def test_required_and_excluded_links(workdir, capsys):
     g = nx.contracted_nodes(g, "north", "west", self_loops=False)
     expect = 9.0 + nx.minimum_spanning_tree(g).size(weight="weight")
     assert d["total_weight"] == pytest.approx(expect)
+    assert d["requirement_cost"] == pytest.approx(expect - _nx_forest_weight(LINKS))
     rows = list(csv.DictReader(open(workdir / "f.csv")))
     assert ("north", "west") in {(r["from"], r["to"]) for r in rows}
