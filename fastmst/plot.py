@@ -66,8 +66,10 @@ def plot_forest(path, edges, forest, *, title=None, subtitle=None, groups=None,
                         lw=1.6 * scale + 0.4, zorder=2, label=f"{name} ({int(sel.sum()):,})")
     if highlight is not None and len(highlight):
         hl = np.asarray(highlight)
-        ax.plot(*_polyline(xy, ft[hl], fh[hl]), color="#d62728", lw=3.0, zorder=3,
-                label=f"riskiest {len(hl)} links")
+        ax.plot(*_polyline(xy, ft[hl], fh[hl]), color="#d62728", lw=3.0, zorder=3)
+        mid = (xy[ft[hl]] + xy[fh[hl]]) / 2   # rings make short links findable
+        ax.scatter(mid[:, 0], mid[:, 1], s=140, facecolors="none", edgecolors="#d62728",
+                   linewidths=1.6, zorder=3.5, label=f"riskiest {len(hl)} links")
     if edges.n_nodes <= 5_000:
         ax.scatter(xy[:, 0], xy[:, 1], s=min(20.0, 2000.0 / max(edges.n_nodes, 1)) + 1.0,
                    c="#333333", zorder=2.5,
