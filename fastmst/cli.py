@@ -663,12 +663,18 @@ def main(argv=None) -> int:
             raise
         print(f"fastmst {args.command}: usage error: {exc}", file=sys.stderr)
         return EXIT_USAGE
-    except (ValueError, TypeError, OSError, ImportError, MemoryError) as exc:
+    except ImportError as exc:
+        if debug:
+            raise
+        print(f"fastmst {args.command}: error: {exc}; the command line needs its extras: "
+              f"pip install \"fastmst[cli]\"", file=sys.stderr)
+        return EXIT_DATA
+    except (ValueError, TypeError, OSError, MemoryError) as exc:
         if debug:
             raise
         print(f"fastmst {args.command}: error: {exc}", file=sys.stderr)
-        if not isinstance(exc, (ValueError, TypeError, OSError)):
-            print("  (run again with --debug for the traceback)", file=sys.stderr)
+        if isinstance(exc, MemoryError):
+            print("  (out of memory; run again with --debug for the traceback)", file=sys.stderr)
         return EXIT_DATA
     except KeyboardInterrupt:
         print("fastmst: interrupted", file=sys.stderr)
