@@ -464,6 +464,15 @@ def _scan_csv(path, delimiter, compression, numeric):
 
 
 def _read_csv(path, delimiter, compression, columns, numeric, progress=None):
+    try:
+        return _read_csv_unchecked(path, delimiter, compression, columns, numeric, progress)
+    except OSError as exc:   # pyarrow reports corrupt or truncated compressed data this way
+        how = (f"is it complete and really {compression}-compressed?" if compression else
+               "is it a complete text file?")
+        raise FileFormatError(f"{path}: could not be read ({exc}); {how}") from None
+
+
+def _read_csv_unchecked(path, delimiter, compression, columns, numeric, progress=None):
     import pyarrow as pa
     import pyarrow.csv as pcsv
     header = _csv_header(path, delimiter, compression)

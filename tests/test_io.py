@@ -328,6 +328,7 @@ MALFORMED = {
     "npz missing array": ("z.npz", None, "no weight column; the columns present are 'tail', "
                                          "'head'"),
     "not parquet": ("p.parquet", "hello", "not a readable Parquet file"),
+    "not gzip": ("g.csv.gz", "a,b,weight\n1,2,3\n", "could not be read .* gzip-compressed"),
 }
 
 
