@@ -1144,7 +1144,8 @@ def write_geojson(path, forest, edges: EdgeList, *, properties=None):
     """Write the forest's edges as a GeoJSON (RFC 7946) FeatureCollection of LineStrings.
 
     Coordinates are [longitude, latitude] in WGS 84 degrees, as RFC 7946 requires, rounded to
-    7 decimals (about 1 cm).  Each feature's properties: tail, head, weight, position, plus the
+    7 decimals (about 1 cm); a link whose short way crosses the antimeridian becomes a
+    MultiLineString cut at +-180 degrees.  Each feature's properties: tail, head, weight, position, plus the
     columns of ``properties`` (a dict of arrays indexed by forest edge).  Non-finite weights are
     written as null (JSON has no infinity).
     """
@@ -1169,15 +1170,26 @@ def write_geojson(path, forest, edges: EdgeList, *, properties=None):
         props = {"tail": tl[i], "head": hl[i], "weight": w[i], "position": pos[i]}
         for k, v in extra.items():
             props[k] = v[i]
-        feats.append({"type": "Feature", "geometry": {"type": "LineString",
-                                                      "coordinates": [a[i], b[i]]},
-                      "properties": props})
+        feats.append({"type": "Feature", "geometry": _line(a[i], b[i]), "properties": props})
     doc = {"type": "FeatureCollection", "features": feats}
 
     def write(tmp):
         with open(tmp, "w", encoding="utf-8") as fh:
             json.dump(doc, fh, separators=(",", ":"), allow_nan=False)
     return _atomic(path, write)
+
+
+def _line(p, q) -> dict:
+    """A LineString from p to q, or, when the short way crosses the antimeridian, a
+    MultiLineString cut at +-180 degrees as RFC 7946 (section 3.1.9) asks."""
+    (x1, y1), (x2, y2) = p, q
+    if abs(x2 - x1) <= 180.0:
+        return {"type": "LineString", "coordinates": [p, q]}
+    x2u = x2 - 360.0 if x2 > x1 else x2 + 360.0      # q unwrapped next to p
+    edge = 180.0 if x2u > x1 else -180.0
+    y = round(y1 + (y2 - y1) * (edge - x1) / (x2u - x1), 7)
+    return {"type": "MultiLineString",
+            "coordinates": [[p, [edge, y]], [[-edge, y], q]]}
 
 
 def _json_values(arr) -> list:

@@ -101,6 +101,15 @@ def test_geojson_rfc7946(tmp_path):
     assert feats[0]["geometry"]["coordinates"] == [[10.0, 50.0], [10.5, 50.1]]
     assert {(x["properties"]["tail"], x["properties"]["head"]) for x in feats} == \
         {("p", "q"), ("q", "r")}
+    # A link across the antimeridian is cut at +-180 (RFC 7946, section 3.1.9).
+    fiji = io.from_table(pa.table({"t": ["w"], "h": ["e"], "w": [1.0]}),
+                         nodes=pa.table({"id": ["w", "e"], "lon": [179.0, -179.0],
+                                         "lat": [-17.0, -18.0]}))
+    io.write_forest(tmp_path / "fj.geojson", fiji.solve(), fiji)
+    geom = json.loads((tmp_path / "fj.geojson").read_text())["features"][0]["geometry"]
+    assert geom == {"type": "MultiLineString",
+                    "coordinates": [[[179.0, -17.0], [180.0, -17.5]],
+                                    [[-180.0, -17.5], [-179.0, -18.0]]]}
     planar = io.from_table(pa.table({"t": [0], "h": [1], "w": [1.0]}),
                            nodes=pa.table({"id": [0, 1], "x": [0.0, 1.0], "y": [0.0, 0.0]}))
     with pytest.raises(ValueError, match="RFC 7946.* needs longitude/latitude"):
