@@ -491,8 +491,9 @@ def _read_csv_unchecked(path, delimiter, compression, columns, numeric, progress
                 table = pcsv.read_csv(stream, read_options=read, parse_options=parse,
                                       convert_options=convert)
         else:
-            table = pcsv.read_csv(pa.input_stream(str(path), compression=compression),
-                                  read_options=read, parse_options=parse,
+            source = (pa.input_stream(str(path), compression=compression) if compression
+                      else str(path))
+            table = pcsv.read_csv(source, read_options=read, parse_options=parse,
                                   convert_options=convert)
     except pa.ArrowInvalid as exc:
         where = _scan_csv(path, delimiter, compression, [c for c in numeric(cols) if c])
