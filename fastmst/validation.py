@@ -252,6 +252,45 @@ def check_positions(positions, n_edges: int, name: str, func: str) -> np.ndarray
     return arr.astype(np.int64)
 
 
+# --- Files and tables (used by fastmst.io and the command line) -------------------------------
+
+class FileFormatError(ValueError):
+    """A malformed input file or table; the message names the source and the line or row."""
+
+
+def check_column(name, present, source: str, role: str, func: str) -> str:
+    """``name`` must be one of the ``present`` column names of ``source``."""
+    if not isinstance(name, str):
+        raise TypeError(f"{func}: the {role} column must be given by name (a string), received "
+                        f"{type(name).__name__} {name!r}.")
+    if name not in present:
+        listed = ", ".join(map(repr, present)) or "none"
+        raise FileFormatError(f"{source}: no column {name!r} for the {role}; the columns present "
+                              f"are {listed}. Pick one of them (CLI: --{role} COLUMN).")
+    return name
+
+
+def check_no_missing(missing: np.ndarray, column: str, source: str, where, func: str) -> None:
+    """Raise naming the first True entry of the boolean ``missing`` (``where(i)`` words it)."""
+    if missing.size and missing.any():
+        first = int(np.flatnonzero(missing)[0])
+        raise FileFormatError(f"{source}: {where(first)}: column {column!r} is empty or missing "
+                              f"({int(missing.sum())} such rows in all); every edge needs a "
+                              f"value there. Fill or drop those rows.")
+
+
+def check_unique_labels(labels: np.ndarray, column: str, source: str, where) -> None:
+    """Node labels of a node table must be unique."""
+    order = np.argsort(labels, kind="stable")
+    s = labels[order]
+    dup = np.flatnonzero(s[1:] == s[:-1])
+    if dup.size:
+        a, b = sorted((int(order[dup[0]]), int(order[dup[0] + 1])))
+        raise FileFormatError(f"{source}: node {s[dup[0]]!r} in column {column!r} appears twice "
+                              f"({where(a)} and {where(b)}); node ids must be unique. Remove the "
+                              f"duplicate rows.")
+
+
 # --- checks of the network-design toolkit (check_forest, sensitivity, bottleneck, clusters) ---
 
 def check_unique_positions(pos: np.ndarray, n_edges: int, name: str, func: str) -> np.ndarray:
