@@ -453,9 +453,6 @@ def _label_ids(col, edges):
 
 def cmd_check(args):
     import fastmst
-    if not hasattr(fastmst, "check_forest"):
-        raise UsageError("'check' needs fastmst.check_forest (the network-design toolkit), "
-                         "which this build of fastmst does not have.")
     rep = _reporter(args)
     with rep:
         edges = _load(args, rep)
@@ -507,9 +504,6 @@ def cmd_clusters(args):
     _check_outputs(args)
     import fastmst
     from fastmst import io
-    if not hasattr(fastmst.SpanningForest, "clusters"):
-        raise UsageError("'clusters' needs SpanningForest.clusters (the network-design "
-                         "toolkit), which this build of fastmst does not have.")
     if args.k is not None and args.k < 1:
         raise UsageError(f"-k {args.k}: the number of clusters must be at least 1.")
     rep = _reporter(args)

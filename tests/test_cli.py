@@ -22,9 +22,6 @@ from fastmst import cli
 
 # The package directory that this test run imports (the worktree or the installed package).
 _ROOT = str(Path(fastmst.__file__).resolve().parent.parent)
-TOOLKIT = hasattr(fastmst, "check_forest")
-needs_toolkit = pytest.mark.skipif(not TOOLKIT, reason="needs the network-design toolkit "
-                                                       "(fastmst.check_forest & co.)")
 
 LINKS = [("depot", "north", 4.0), ("north", "east", 1.5), ("east", "depot", 2.0),
          ("east", "south", 3.0), ("south", "depot", 3.5), ("west", "depot", 6.0),
@@ -252,11 +249,8 @@ def test_demo_default_folder(tmp_path):
     assert len(back) == summary["backbone_trenches"] == 1500 - summary["components"]
     doc = json.loads((out / "backbone.geojson").read_text())
     assert len(doc["features"]) == len(back)
-    if hasattr(fastmst, "sensitivity"):
-        assert summary["sensitivity"] == "computed" and len(summary["riskiest"]) == 10
-        assert "margin" in back[0]
-    else:
-        assert summary["sensitivity"].startswith("skipped")
+    assert summary["sensitivity"] == "computed" and len(summary["riskiest"]) == 10
+    assert "margin" in back[0]
 
 
 def test_bench_json(workdir, capsys):
@@ -271,7 +265,6 @@ def test_bench_json(workdir, capsys):
 
 # --- commands that use the network-design toolkit -------------------------------------------------
 
-@needs_toolkit
 def test_check_optimal_and_suboptimal(workdir, capsys):
     """`check` accepts solve's output (exit 0) and lists a profitable swap for a worse tree
     (exit 3); the excess equals the weight above networkx's minimum (reference library)."""
@@ -298,7 +291,6 @@ def test_check_optimal_and_suboptimal(workdir, capsys):
     assert cli.main(["check", links, forest, "--json"]) == 3
 
 
-@needs_toolkit
 def test_clusters_match_scipy_single_linkage(tmp_path, capsys):
     """`clusters -k` equals scipy.cluster.hierarchy single linkage + fcluster (maxclust) on the
     complete graph of random points with distinct distances, up to relabelling."""
@@ -318,7 +310,6 @@ def test_clusters_match_scipy_single_linkage(tmp_path, capsys):
     assert len(pairs) == len(set(ours.values())) == len(set(ref.tolist())) == 4
 
 
-@needs_toolkit
 def test_required_and_excluded_links(workdir, capsys):
     """--excluded matches networkx on the graph without the excluded links; --required puts the
     link in the forest at the least extra cost (networkx with the link contracted)."""
