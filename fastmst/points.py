@@ -1,0 +1,415 @@
+"""Exact minimum spanning trees of point sets: Euclidean, great-circle, and any cdist metric.
+
+Three routes, all exact (the same tree the complete graph of all pairs gives):
+
+* Euclidean (and squared Euclidean) in 1-D, 2-D and 3-D: the Delaunay triangulation is the
+  candidate set (every minimum spanning tree edge is a Delaunay edge), then Kruskal.
+* Great-circle on (longitude, latitude): the convex hull of the points on the unit sphere is
+  their spherical Delaunay triangulation; chord length grows with arc length, so the same
+  argument holds on the sphere.
+* Any other metric, or Euclidean above 3-D: dense Prim over all pairs, O(n^2) time and O(n)
+  memory, distances computed on the fly (native kernels for euclidean, sqeuclidean, cityblock,
+  chebyshev and minkowski; ``scipy.spatial.distance.cdist`` one row at a time for the rest).
+"""
+from __future__ import annotations
+
+import numpy as np
+
+from fastmst import validation
+from fastmst._points import METRIC_CODES, dense_prim
+from fastmst.forest import SpanningForest, minimum_spanning_forest
+from fastmst.geodesy import EARTH_RADIUS_M, haversine_m
+
+__all__ = ["point_spanning_tree", "EARTH_RADIUS_M"]
+
+_FUNC = "point_spanning_tree"
+_SMALL = 8          # at most this many distinct points: every pair is a candidate
+_CHAIN_WINDOW = 2   # sorted-chain fallbacks link each point to this many successors
+_RANK_TOL = 1e-9    # relative singular value below which a direction counts as flat
+
+
+def pair_position(tail, head, n_points: int) -> np.ndarray:
+    """Position of the pair (tail, head), tail < head, in ``scipy.spatial.distance.pdist`` order.
+
+    Pairs are numbered (0, 1), (0, 2), ..., (0, n-1), (1, 2), ...: lexicographic order, so the
+    tie rule (length, smaller index, larger index) is the rule (length, position) of
+    ``minimum_spanning_forest`` over the complete graph in this order.
+    """
+    i = np.asarray(tail, dtype=np.int64)
+    j = np.asarray(head, dtype=np.int64)
+    return i * (2 * n_points - i - 1) // 2 + (j - i - 1)
+
+
+# --- candidate sets -------------------------------------------------------------------------
+
+def _group_duplicates(X: np.ndarray):
+    """Distinct rows of X: (unique rows, smallest original index of each, zero-edge tails/heads)."""
+    n = X.shape[0]
+    order = np.lexsort(X.T[::-1])                       # stable: equal rows by index
+    Xs = X[order]
+    new = np.ones(n, dtype=bool)
+    new[1:] = (Xs[1:] != Xs[:-1]).any(axis=1)
+    starts = np.flatnonzero(new)
+    reps = order[starts]                                # smallest index of each group
+    group = np.cumsum(new) - 1
+    dup = ~new
+    zt = reps[group[dup]]
+    zh = order[dup]
+    return Xs[starts], reps, zt, zh
+
+
+def _all_pairs(m: int):
+    i, j = np.triu_indices(m, 1)
+    return i.astype(np.int64), j.astype(np.int64)
+
+
+def _chain_pairs(key: np.ndarray, cyclic: bool = False):
+    """Pairs of points adjacent (within a small window) in the order of ``key``."""
+    m = key.shape[0]
+    order = np.argsort(key, kind="stable").astype(np.int64)
+    ts, hs = [], []
+    for k in range(1, min(_CHAIN_WINDOW, m - 1) + 1):
+        if cyclic:
+            ts.append(order)
+            hs.append(np.roll(order, -k))
+        else:
+            ts.append(order[:-k])
+            hs.append(order[k:])
+    return np.concatenate(ts), np.concatenate(hs)
+
+
+def _principal(Y: np.ndarray):
+    """Centered points, principal axes (rows) and the number of non-flat directions."""
+    C = Y - Y.mean(axis=0)
+    _, s, vt = np.linalg.svd(C, full_matrices=False)
+    rank = int((s > _RANK_TOL * s[0]).sum()) if s[0] > 0 else 0
+    return C, vt, rank
+
+
+def _delaunay_pairs(U: np.ndarray):
+    """Candidate pairs (indices into U) containing the Euclidean MST of distinct points U.
+
+    Returns (tail, head, route) or None when only the dense route is safe.
+    """
+    from scipy.spatial import Delaunay, QhullError
+    m, d = U.shape
+    if m <= max(_SMALL, d + 1):
+        return (*_all_pairs(m), "all-pairs")
+    if d == 1:
+        return (*_chain_pairs(U[:, 0]), "chain")
+    try:
+        tri = Delaunay(U)
+    except QhullError:
+        C, vt, rank = _principal(U)
+        if rank >= d:
+            return None
+        if rank <= 1:
+            return (*_chain_pairs(C @ vt[0]), "chain")
+        got = _delaunay_pairs(C @ vt[:rank].T)
+        if got is None:
+            return None
+        return got[0], got[1], got[2] + "-projected"
+    simp = tri.simplices.astype(np.int64)
+    ts, hs = [], []
+    for a in range(d + 1):
+        for b in range(a + 1, d + 1):
+            ts.append(simp[:, a])
+            hs.append(simp[:, b])
+    if tri.coplanar.shape[0]:
+        # Points Qhull left out as (nearly) coincident with a vertex: link them to the vertices
+        # of their simplex, to the nearest vertex and to that vertex's neighbours.
+        indptr, nbrs = tri.vertex_neighbor_vertices
+        for p, s, v in tri.coplanar.tolist():
+            near = np.concatenate([simp[s], [v], nbrs[indptr[v]:indptr[v + 1]]])
+            ts.append(np.full(near.shape[0], p, dtype=np.int64))
+            hs.append(near.astype(np.int64))
+    return np.concatenate(ts), np.concatenate(hs), "delaunay"
+
+
+def _unit_vectors(lonlat: np.ndarray) -> np.ndarray:
+    lon = np.radians(lonlat[:, 0])
+    lat = np.radians(lonlat[:, 1])
+    c = np.cos(lat)
+    return np.column_stack([c * np.cos(lon), c * np.sin(lon), np.sin(lat)])
+
+
+def _sphere_pairs(U: np.ndarray):
+    """Candidate pairs containing the great-circle MST of distinct (lon, lat) points U."""
+    from scipy.spatial import ConvexHull, QhullError
+    m = U.shape[0]
+    if m <= _SMALL:
+        return (*_all_pairs(m), "all-pairs")
+    P = _unit_vectors(U)
+    try:
+        hull = ConvexHull(P)
+    except QhullError:
+        C, vt, rank = _principal(P)
+        if rank == 2:
+            # Every point on one circle (a great circle or a parallel): the points are in convex
+            # position, so their angular order around the centroid is their order on the circle,
+            # and chord length grows with the angle between neighbours along it.
+            Y = C @ vt[:2].T
+            return (*_chain_pairs(np.arctan2(Y[:, 1], Y[:, 0]), cyclic=True), "circle-chain")
+        return None
+    simp = hull.simplices.astype(np.int64)
+    ts = [simp[:, 0], simp[:, 0], simp[:, 1]]
+    hs = [simp[:, 1], simp[:, 2], simp[:, 2]]
+    if hull.coplanar.shape[0]:
+        nb = {}
+        for a, b in zip(np.concatenate(ts).tolist(), np.concatenate(hs).tolist()):
+            nb.setdefault(a, set()).add(b)
+            nb.setdefault(b, set()).add(a)
+        for p, s, v in hull.coplanar.tolist():
+            near = sorted(set(simp[s].tolist()) | {v} | nb.get(v, set()))
+            ts.append(np.full(len(near), p, dtype=np.int64))
+            hs.append(np.asarray(near, dtype=np.int64))
+    return np.concatenate(ts), np.concatenate(hs), "sphere-hull"
+
+
+def _canonical(t, h, n):
+    """Distinct pairs with tail < head, in lexicographic (= pdist position) order."""
+    a = np.minimum(t, h)
+    b = np.maximum(t, h)
+    keep = a != b
+    key = np.sort(a[keep] * np.int64(n) + b[keep])
+    if key.shape[0] > 1:
+        first = np.ones(key.shape[0], dtype=bool)
+        first[1:] = key[1:] != key[:-1]
+        key = key[first]
+    return key // n, key % n
+
+
+def _euclid_lengths(X, t, h, squared):
+    s = np.zeros(t.shape[0], dtype=np.float64)
+    for j in range(X.shape[1]):               # summed in coordinate order, like the kernel
+        dj = X[t, j] - X[h, j]
+        s += dj * dj
+    return s if squared else np.sqrt(s)
+
+
+def _normalise_lonlat(LL: np.ndarray) -> np.ndarray:
+    """Longitudes into [-180, 180) (only where outside), a pole's longitude set to 0."""
+    out = LL + 0.0                                      # copy; -0.0 becomes 0.0
+    lon = out[:, 0]
+    wrap = (lon < -180.0) | (lon >= 180.0)
+    if wrap.any():
+        lon[wrap] = np.mod(lon[wrap] + 180.0, 360.0) - 180.0
+    lon[np.abs(out[:, 1]) == 90.0] = 0.0
+    return out
+
+
+# --- dense Prim -----------------------------------------------------------------------------
+
+def _prim_cdist(X, metric, kwargs):
+    """Dense Prim with scipy's cdist for one row per step (any metric cdist knows)."""
+    from scipy.spatial.distance import cdist
+    n = X.shape[0]
+    best_d = np.full(n, np.inf)
+    best_u = np.full(n, -1, dtype=np.int64)
+    rest = np.arange(1, n, dtype=np.int64)
+    added = np.empty(max(n - 1, 0), dtype=np.int64)
+    u = 0
+    for step in range(n - 1):
+        d = cdist(X[u:u + 1], X[rest], metric, **kwargs)[0]
+        if np.isnan(d).any():
+            v = int(rest[np.flatnonzero(np.isnan(d))[0]])
+            raise ValueError(f"{_FUNC}: metric {metric!r} gives NaN between points {u} and {v}; "
+                             f"every pair needs a comparable distance (e.g. 'cosine' is "
+                             f"undefined for all-zero rows).")
+        bu = best_u[rest]
+        cur = best_d[rest]
+        new_pos = pair_position(np.minimum(u, rest), np.maximum(u, rest), n)
+        old_pos = pair_position(np.minimum(bu, rest), np.maximum(bu, rest), n)
+        better = (bu < 0) | (d < cur) | ((d == cur) & (new_pos < old_pos))
+        upd = rest[better]
+        best_d[upd] = d[better]
+        best_u[upd] = u
+        cd = best_d[rest]
+        cand = np.flatnonzero(cd == cd.min())
+        if cand.shape[0] > 1:
+            r = rest[cand]
+            cand = cand[np.argmin(pair_position(np.minimum(best_u[r], r),
+                                                np.maximum(best_u[r], r), n))]
+        else:
+            cand = cand[0]
+        u = int(rest[cand])
+        added[step] = u
+        rest = np.delete(rest, cand)
+    other = best_u[added]
+    return np.minimum(other, added), np.maximum(other, added), best_d[added]
+
+
+def _dense_tree(X, metric, kwargs, threads):
+    """(tail, head, length) of the exact MST by dense Prim."""
+    native = metric in METRIC_CODES and (not kwargs or set(kwargs) <= {"p"})
+    if native:
+        p = float(kwargs.get("p", 2.0)) if metric == "minkowski" else 2.0
+        if metric == "minkowski" and not p >= 1.0:
+            raise ValueError(f"{_FUNC}: minkowski needs p >= 1 (a metric), received p={p}.")
+        # Parallel scans pay one fork/join per step: only worth it for large steps.
+        nt = threads if X.shape[0] >= 16384 * threads else 1
+        return dense_prim(X, METRIC_CODES[metric], p, nt)
+    return _prim_cdist(X, metric, kwargs)
+
+
+def _check_metric(metric, X, kwargs):
+    if not isinstance(metric, str):
+        raise TypeError(f"{_FUNC}: metric must be a string, received {type(metric).__name__} "
+                        f"{metric!r}; expected 'euclidean', 'great-circle' or another name "
+                        f"scipy.spatial.distance.cdist accepts.")
+    if metric == "great-circle" or (metric in METRIC_CODES and not kwargs):
+        return
+    from scipy.spatial.distance import cdist
+    probe = X[:2] if X.shape[0] >= 2 else np.zeros((2, X.shape[1]))
+    try:
+        cdist(probe[:1], probe[1:], metric, **kwargs)
+    except (ValueError, TypeError) as exc:
+        raise ValueError(f"{_FUNC}: metric {metric!r} with metric_kwargs={kwargs!r} is not "
+                         f"usable ({exc}); expected 'euclidean', 'great-circle', "
+                         f"{', '.join(repr(m) for m in METRIC_CODES if m != 'euclidean')} or "
+                         f"another name scipy.spatial.distance.cdist accepts.") from None
+
+
+# --- the public function --------------------------------------------------------------------
+
+def point_spanning_tree(points, *, metric: str = "euclidean", max_length=None,
+                        metric_kwargs=None, threads=None) -> SpanningForest:
+    """Exact minimum spanning tree (or forest, with ``max_length``) of a set of points.
+
+    Parameters
+    ----------
+    points : array_like of shape (n_points, d)
+        One row per point; node ``i`` of the result is row ``i``.  For
+        ``metric="great-circle"``, columns are (longitude, latitude) in degrees.
+    metric : str
+        ``"euclidean"`` (default), ``"great-circle"``, or any metric name
+        ``scipy.spatial.distance.cdist`` accepts (``"cityblock"``, ``"chebyshev"``,
+        ``"minkowski"``, ``"cosine"``, ...).
+    max_length : float, optional
+        Keep only tree edges of length <= max_length.  The result is then the minimum spanning
+        forest of the "within reach" graph: its components are the single-linkage clusters at
+        that distance.
+    metric_kwargs : dict, optional
+        Extra arguments of the metric, as ``cdist`` takes them (e.g. ``{"p": 3}``).
+    threads : int, optional
+        Threads for the dense Prim scan; None means every available core.
+
+    Returns
+    -------
+    SpanningForest
+        ``tail < head`` are point indices (int64), ``weights`` the edge lengths (float64;
+        metres for great-circle), ``edges`` the position of each pair in
+        ``scipy.spatial.distance.pdist`` order (int64), ``n_edges = n(n-1)/2``, ``labels`` and
+        ``n_components`` the clusters, ``method`` the route taken, and ``metric``.
+        Edges are ordered by (length, smaller index, larger index).  The result can be written
+        to files with fastmst's forest writers (GeoJSON included) like any other forest.
+
+    Raises
+    ------
+    TypeError, ValueError
+        Non-numeric or non-finite coordinates, wrong shape, latitudes outside [-90, 90], an
+        unknown metric, a negative max_length.
+
+    Notes
+    -----
+    *Tie rule.*  Pairs are ordered by (length, smaller index, larger index), a total order;
+    the tree is the unique minimum spanning tree under it, whichever route runs.  Duplicate
+    points are joined by zero-length edges (the duplicates of a point hang off its first
+    occurrence).
+
+    *Routes.*  Euclidean in 2-D/3-D uses the Delaunay triangulation of the distinct points
+    (``scipy.spatial.Delaunay``) as candidates, O(n log n) expected.  Collinear or coplanar
+    input, where the triangulation does not exist, is projected onto its own line or plane
+    (an isometry), where a sorted chain or a lower-dimensional triangulation is exact.  Up to 8
+    distinct points, every pair is a candidate.  Great-circle uses the convex hull of the unit
+    vectors (``scipy.spatial.ConvexHull``); points all on one circle (the equator, a meridian,
+    a parallel) use their cyclic order.  Other metrics, and Euclidean above 3-D, run dense
+    Prim: O(n^2 d) time, O(n) memory, practical to ~100k points.  ``method`` tells which ran.
+    The candidate graphs contain the minimum spanning tree in exact arithmetic; distances are
+    float64, so two pairs whose lengths differ only in the last bits may be ranked by rounding.
+
+    *Great-circle lengths* are haversine distances on a sphere of the IUGG mean Earth radius,
+    6 371 008.8 m (``fastmst.geodesy``): a spherical approximation of the ellipsoid, within
+    about 0.5 %.  Longitudes may be any value (a link across the antimeridian gets its short
+    length); a pole is one point whatever its longitude.
+
+    Caution: a spanning tree has no redundancy; one cut isolates part of the network.  Use it
+    to compare and plan layouts, and leave the design of utilities and roads to local codes and
+    licensed engineers.
+
+    Examples
+    --------
+    >>> import fastmst
+    >>> t = fastmst.point_spanning_tree([[0, 0], [3, 0], [3, 4], [0, 0]])
+    >>> t.tail.tolist(), t.head.tolist(), t.weights.tolist()
+    ([0, 0, 1], [3, 1, 2], [0.0, 3.0, 4.0])
+    >>> fastmst.point_spanning_tree([[0, 0], [3, 0], [3, 4]], max_length=3.5).n_components
+    2
+    """
+    if metric == "great-circle":
+        X = validation.check_lonlat(points, _FUNC)
+    else:
+        X = validation.check_points(points, _FUNC)
+    kwargs = {} if metric_kwargs is None else metric_kwargs
+    if not isinstance(kwargs, dict):
+        raise TypeError(f"{_FUNC}: metric_kwargs must be a dict or None, received "
+                        f"{type(metric_kwargs).__name__}.")
+    _check_metric(metric, X, kwargs)
+    limit = validation.check_max_length(max_length, _FUNC)
+    threads = validation.check_threads(threads, _FUNC)
+    n, d = X.shape
+
+    route = None
+    if metric == "great-circle" and not kwargs:
+        X = _normalise_lonlat(X)
+        if n >= 2:
+            U, reps, zt, zh = _group_duplicates(X)
+            got = _sphere_pairs(U)
+            if got is not None:
+                t, h = _canonical(np.concatenate([zt, reps[got[0]]]),
+                                  np.concatenate([zh, reps[got[1]]]), n)
+                route = got[2]
+        length = lambda t, h: haversine_m(X[t, 0], X[t, 1], X[h, 0], X[h, 1])  # noqa: E731
+    elif metric in ("euclidean", "sqeuclidean") and not kwargs and d <= 3:
+        if n >= 2:
+            U, reps, zt, zh = _group_duplicates(X + 0.0)
+            got = _delaunay_pairs(U)
+            if got is not None:
+                t, h = _canonical(np.concatenate([zt, reps[got[0]]]),
+                                  np.concatenate([zh, reps[got[1]]]), n)
+                route = got[2]
+        sq = metric == "sqeuclidean"
+        length = lambda t, h: _euclid_lengths(X, t, h, sq)  # noqa: E731
+    else:
+        length = None
+
+    if n < 2:
+        t = h = np.empty(0, dtype=np.int64)
+        w = np.empty(0, dtype=np.float64)
+        f = minimum_spanning_forest(t, h, w, n_nodes=n)
+        route = "all-pairs"
+    elif route is not None:
+        w = length(t, h)
+        f = minimum_spanning_forest(t, h, w, n_nodes=n)
+        if f.n_components != 1:       # a candidate set must span; never trust one that does not
+            route = None
+    if route is None:
+        route = "dense-prim"
+        if metric == "great-circle":     # chord length ranks pairs as arc length does
+            t, h, w = _dense_tree(_unit_vectors(X), "euclidean", {}, threads)
+        else:
+            t, h, w = _dense_tree(X, metric, kwargs, threads)
+        order = np.argsort(pair_position(t, h, n), kind="stable")
+        t, h = t[order], h[order]
+        w = length(t, h) if length is not None else w[order]
+        f = minimum_spanning_forest(t, h, w, n_nodes=n)
+    tt, hh, ww = t[f.edges], h[f.edges], w[f.edges]
+    if limit is not None:
+        keep = ww <= limit
+        tt, hh, ww = tt[keep], hh[keep], ww[keep]
+        f = minimum_spanning_forest(tt, hh, ww, n_nodes=n)   # labels of the clusters
+        tt, hh, ww = tt[f.edges], hh[f.edges], ww[f.edges]
+    out = SpanningForest(pair_position(tt, hh, n), tt, hh, ww, n, n * (n - 1) // 2,
+                         f.n_components, f.labels, False, route)
+    out.metric = metric
+    return out
