@@ -5,7 +5,10 @@ tie rule shared by every function.
 """
 from fastmst._dsu import DisjointSet
 from fastmst.forest import METHODS, SpanningForest, minimum_spanning_forest
+from fastmst.points import point_spanning_tree
+from fastmst.steiner import SteinerTree, steiner_tree
 
 __version__ = "0.1.0"
 
-__all__ = ["DisjointSet", "METHODS", "SpanningForest", "minimum_spanning_forest", "__version__"]
+__all__ = ["DisjointSet", "METHODS", "SpanningForest", "minimum_spanning_forest", "__version__",
+           "point_spanning_tree", "SteinerTree", "steiner_tree"]
