@@ -348,6 +348,6 @@ def check_nonnegative_finite(weight: np.ndarray, func: str, name: str = "weight"
         return
     if bad.size:
         i = int(bad[0])
-        raise ValueError(f"{func}: {name}[{i}] = {weight[i]!r}; Steiner trees need finite, "
-                         f"non-negative weights (lengths or costs along the network). Drop "
+        raise ValueError(f"{func}: {name}[{i}] = {weight[i].item()!r}; Steiner trees need "
+                         f"finite, non-negative weights (lengths or costs along the network). Drop "
                          f"the edge, or shift costs so they are >= 0.")
