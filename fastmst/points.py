@@ -86,6 +86,34 @@ def _principal(Y: np.ndarray):
     return C, vt, rank
 
 
+def _attach_orphans(P: np.ndarray, t: np.ndarray, h: np.ndarray):
+    """Link points Qhull left out of every simplex (nearly coincident with another point, within
+    its precision) to their nearest triangulated point and to that point's neighbours."""
+    m = P.shape[0]
+    covered = np.zeros(m, dtype=bool)
+    covered[t] = True
+    covered[h] = True
+    orphans = np.flatnonzero(~covered)
+    if orphans.shape[0] == 0:
+        return t, h
+    from scipy.spatial import cKDTree
+    kept = np.flatnonzero(covered)
+    _, near = cKDTree(P[kept]).query(P[orphans])
+    near = kept[near]
+    src = np.concatenate([t, h])
+    dst = np.concatenate([h, t])
+    order = np.argsort(src, kind="stable")
+    dst = dst[order]
+    indptr = np.zeros(m + 1, dtype=np.int64)
+    np.cumsum(np.bincount(src, minlength=m), out=indptr[1:])
+    deg = indptr[near + 1] - indptr[near]
+    owner = np.repeat(np.arange(orphans.shape[0]), deg)
+    offs = np.arange(owner.shape[0]) - np.repeat(np.cumsum(deg) - deg, deg)
+    nbr = dst[indptr[near][owner] + offs]
+    return (np.concatenate([t, orphans, orphans[owner]]),
+            np.concatenate([h, near, nbr]))
+
+
 def _delaunay_pairs(U: np.ndarray):
     """Candidate pairs (indices into U) containing the Euclidean MST of distinct points U.
 
@@ -115,15 +143,8 @@ def _delaunay_pairs(U: np.ndarray):
         for b in range(a + 1, d + 1):
             ts.append(simp[:, a])
             hs.append(simp[:, b])
-    if tri.coplanar.shape[0]:
-        # Points Qhull left out as (nearly) coincident with a vertex: link them to the vertices
-        # of their simplex, to the nearest vertex and to that vertex's neighbours.
-        indptr, nbrs = tri.vertex_neighbor_vertices
-        for p, s, v in tri.coplanar.tolist():
-            near = np.concatenate([simp[s], [v], nbrs[indptr[v]:indptr[v + 1]]])
-            ts.append(np.full(near.shape[0], p, dtype=np.int64))
-            hs.append(near.astype(np.int64))
-    return np.concatenate(ts), np.concatenate(hs), "delaunay"
+    t, h = _attach_orphans(U, np.concatenate(ts), np.concatenate(hs))
+    return t, h, "delaunay"
 
 
 def _unit_vectors(lonlat: np.ndarray) -> np.ndarray:
@@ -154,16 +175,8 @@ def _sphere_pairs(U: np.ndarray):
     simp = hull.simplices.astype(np.int64)
     ts = [simp[:, 0], simp[:, 0], simp[:, 1]]
     hs = [simp[:, 1], simp[:, 2], simp[:, 2]]
-    if hull.coplanar.shape[0]:
-        nb = {}
-        for a, b in zip(np.concatenate(ts).tolist(), np.concatenate(hs).tolist()):
-            nb.setdefault(a, set()).add(b)
-            nb.setdefault(b, set()).add(a)
-        for p, s, v in hull.coplanar.tolist():
-            near = sorted(set(simp[s].tolist()) | {v} | nb.get(v, set()))
-            ts.append(np.full(len(near), p, dtype=np.int64))
-            hs.append(np.asarray(near, dtype=np.int64))
-    return np.concatenate(ts), np.concatenate(hs), "sphere-hull"
+    t, h = _attach_orphans(P, np.concatenate(ts), np.concatenate(hs))
+    return t, h, "sphere-hull"
 
 
 def _canonical(t, h, n):

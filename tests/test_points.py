@@ -384,3 +384,21 @@ def test_great_circle_coarse_grid(rows):
     assert_spanning_tree(t, len(LL))
     # reference: networkx MST of all pairs under the `math` haversine
     assert t.weight == pytest.approx(nx_total(LL, hav_math), rel=1e-11, abs=1e-5)
+
+
+def test_near_coincident_points_stay_on_fast_route():
+    """Points closer than Qhull's precision are linked in, not dropped; totals match references."""
+    r = np.random.default_rng(12)
+    B = r.random((250, 2))
+    X = np.vstack([B, B[:80] + r.normal(0, 1e-13, (80, 2)), B[:40] + 1e-9])
+    t = fastmst.point_spanning_tree(X)
+    assert t.method == "delaunay"
+    assert_spanning_tree(t, len(X))
+    # reference: networkx MST of all pairs (distances below 1e-8 would be dropped by scipy)
+    assert t.weight == pytest.approx(nx_total(X, euclid), rel=1e-12)
+    LL = np.column_stack([r.uniform(-180, 180, 200), r.uniform(-80, 80, 200)])
+    LL = np.vstack([LL, LL[:60] + 1e-12])
+    s = fastmst.point_spanning_tree(LL, metric="great-circle")
+    assert s.method == "sphere-hull"
+    # reference: networkx MST of all pairs under the `math` haversine
+    assert s.weight == pytest.approx(nx_total(LL, hav_math), rel=1e-11)
