@@ -70,7 +70,7 @@ cdef void _scan_block(const double[:, ::1] X, int metric, double p, int64_t u,
                       const int64_t* rest, Py_ssize_t lo, Py_ssize_t hi,
                       double* best_d, int64_t* best_u, int64_t* blk_pos,
                       uint8_t* blk_nan, Py_ssize_t b) noexcept nogil:
-    """Relax rest[lo:hi] with the new tree point u; OUT: blk_pos[b] = position of the block's best."""
+    """Relax rest[lo:hi] with the new tree point u; OUT: blk_pos[b], the block's best."""
     cdef Py_ssize_t k, d = X.shape[1], pos = -1
     cdef int64_t v, bu, a, c
     cdef double dist

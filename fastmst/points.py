@@ -260,7 +260,7 @@ def _dense_tree(X, metric, kwargs, threads):
         if metric == "minkowski" and not p >= 1.0:
             raise ValueError(f"{_FUNC}: minkowski needs p >= 1 (a metric), received p={p}.")
         # Parallel scans pay one fork/join per step: only worth it for large steps.
-        nt = threads if X.shape[0] >= 16384 * threads else 1
+        nt = threads if X.shape[0] >= 8192 * threads else 1
         return dense_prim(X, METRIC_CODES[metric], p, nt)
     return _prim_cdist(X, metric, kwargs)
 
@@ -270,7 +270,18 @@ def _check_metric(metric, X, kwargs):
         raise TypeError(f"{_FUNC}: metric must be a string, received {type(metric).__name__} "
                         f"{metric!r}; expected 'euclidean', 'great-circle' or another name "
                         f"scipy.spatial.distance.cdist accepts.")
-    if metric == "great-circle" or (metric in METRIC_CODES and not kwargs):
+    if metric == "great-circle":
+        extra = set(kwargs) - {"radius"}
+        if extra:
+            raise ValueError(f"{_FUNC}: metric 'great-circle' takes only metric_kwargs="
+                             f"{{'radius': metres}}, received keys {sorted(extra)}.")
+        r = kwargs.get("radius", EARTH_RADIUS_M)
+        if isinstance(r, bool) or not isinstance(r, (int, float, np.integer, np.floating)) \
+                or not np.isfinite(r) or r <= 0:
+            raise ValueError(f"{_FUNC}: radius must be a positive finite number of metres, "
+                             f"received {r!r}.")
+        return
+    if metric in METRIC_CODES and not kwargs:
         return
     from scipy.spatial.distance import cdist
     probe = X[:2] if X.shape[0] >= 2 else np.zeros((2, X.shape[1]))
@@ -303,9 +314,12 @@ def point_spanning_tree(points, *, metric: str = "euclidean", max_length=None,
         forest of the "within reach" graph: its components are the single-linkage clusters at
         that distance.
     metric_kwargs : dict, optional
-        Extra arguments of the metric, as ``cdist`` takes them (e.g. ``{"p": 3}``).
+        Extra arguments of the metric, as ``cdist`` takes them (e.g. ``{"p": 3}``); for
+        great-circle only ``{"radius": metres}`` (default: the IUGG mean Earth radius).
     threads : int, optional
-        Threads for the dense Prim scan; None means every available core.
+        Threads for the dense Prim scan.  None (default) runs it on one thread: the scan
+        synchronises its threads once per point, which pays off only on otherwise idle cores
+        and for large n; pass ``threads=k`` (or <= 0 for every core) to split it.
 
     Returns
     -------
@@ -369,11 +383,12 @@ def point_spanning_tree(points, *, metric: str = "euclidean", max_length=None,
                         f"{type(metric_kwargs).__name__}.")
     _check_metric(metric, X, kwargs)
     limit = validation.check_max_length(max_length, _FUNC)
-    threads = validation.check_threads(threads, _FUNC)
+    threads = 1 if threads is None else validation.check_threads(threads, _FUNC)
     n, d = X.shape
 
     route = None
-    if metric == "great-circle" and not kwargs:
+    if metric == "great-circle":
+        radius = float(kwargs.get("radius", EARTH_RADIUS_M))
         X = _normalise_lonlat(X)
         if n >= 2:
             U, reps, zt, zh = _group_duplicates(X)
@@ -382,7 +397,8 @@ def point_spanning_tree(points, *, metric: str = "euclidean", max_length=None,
                 t, h = _canonical(np.concatenate([zt, reps[got[0]]]),
                                   np.concatenate([zh, reps[got[1]]]), n)
                 route = got[2]
-        length = lambda t, h: haversine_m(X[t, 0], X[t, 1], X[h, 0], X[h, 1])  # noqa: E731
+        length = lambda t, h: haversine_m(X[t, 0], X[t, 1], X[h, 0], X[h, 1],  # noqa: E731
+                                          radius=radius)
     elif metric in ("euclidean", "sqeuclidean") and not kwargs and d <= 3:
         if n >= 2:
             U, reps, zt, zh = _group_duplicates(X + 0.0)

@@ -33,7 +33,7 @@ def scipy_total(X, metric="euclidean", **kw):
 
 
 def brute_tie_rule(X, dist):
-    """Kruskal over every pair sorted by (length, i, j): the stated tie rule, from its definition."""
+    """Kruskal over every pair sorted by (length, i, j): the tie rule, from its definition."""
     n = len(X)
     pairs = sorted((dist(X[i], X[j]), i, j) for i in range(n) for j in range(i + 1, n))
     parent = list(range(n))
@@ -107,7 +107,7 @@ def test_euclidean_total_matches_scipy(name, X):
 
 
 def test_positions_and_lengths_are_pdist_entries():
-    """edges index scipy.spatial.distance.pdist's condensed vector, whose entries are the weights."""
+    """edges index the condensed pdist vector, whose entries are the weights."""
     X = RNG.random((400, 2))
     t = fastmst.point_spanning_tree(X)
     # reference: scipy.spatial.distance.pdist (condensed order (0,1), (0,2), ...)
@@ -300,7 +300,7 @@ def sphere_sets():
 
 @pytest.mark.parametrize("name,LL", sphere_sets())
 def test_great_circle_matches_brute_force(name, LL):
-    """Great-circle tree total equals networkx's MST of the complete graph under `math` haversine."""
+    """Great-circle total equals networkx's MST of all pairs under a `math` haversine."""
     t = fastmst.point_spanning_tree(LL, metric="great-circle")
     assert_spanning_tree(t, len(LL))
     if name in ("equator", "meridian", "parallel"):
@@ -378,7 +378,7 @@ def test_small_integer_sets_follow_tie_rule(rows):
 @given(st.lists(st.tuples(st.integers(-4, 4).map(lambda v: 45.0 * v),
                           st.integers(-2, 2).map(lambda v: 45.0 * v)), min_size=2, max_size=20))
 def test_great_circle_coarse_grid(rows):
-    """Coarse lon/lat grids (poles, antimeridian, circles, duplicates) match the math brute force."""
+    """Coarse lon/lat grids (poles, antimeridian, circles, duplicates) match brute force."""
     LL = np.asarray(rows, dtype=float)
     t = fastmst.point_spanning_tree(LL, metric="great-circle")
     assert_spanning_tree(t, len(LL))
@@ -402,3 +402,18 @@ def test_near_coincident_points_stay_on_fast_route():
     assert s.method == "sphere-hull"
     # reference: networkx MST of all pairs under the `math` haversine
     assert s.weight == pytest.approx(nx_total(LL, hav_math), rel=1e-11)
+
+
+def test_great_circle_radius_and_kwargs():
+    """radius= scales lengths (the tree is unchanged); other keys are refused."""
+    LL = np.column_stack([np.linspace(0, 40, 30), np.linspace(-20, 35, 30) ** 2 / 40])
+    a = fastmst.point_spanning_tree(LL, metric="great-circle")
+    b = fastmst.point_spanning_tree(LL, metric="great-circle", metric_kwargs={"radius": 1.0})
+    assert np.array_equal(a.edges, b.edges)
+    # reference: the `math` haversine above on the unit sphere
+    np.testing.assert_allclose(b.weights, [hav_math(LL[i], LL[j], r=1.0)
+                                           for i, j in zip(b.tail, b.head)], rtol=1e-12)
+    with pytest.raises(ValueError, match="radius"):
+        fastmst.point_spanning_tree(LL, metric="great-circle", metric_kwargs={"p": 2})
+    with pytest.raises(ValueError, match="positive finite"):
+        fastmst.point_spanning_tree(LL, metric="great-circle", metric_kwargs={"radius": -1})
