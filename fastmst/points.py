@@ -13,6 +13,8 @@ Three routes, all exact (the same tree the complete graph of all pairs gives):
 """
 from __future__ import annotations
 
+import warnings
+
 import numpy as np
 
 from fastmst import validation
@@ -86,6 +88,21 @@ def _principal(Y: np.ndarray):
     return C, vt, rank
 
 
+def _flat_enough(C, Y, vt_k, t, h, cyclic_order=None):
+    """May the pairs (t, h) found for the projection Y = C @ vt_k.T stand for the points C?
+
+    Each point lies within ``eps`` of the line or plane (the largest residual).  Lengths then
+    move by at most 2 eps; when every candidate length (every gap along a chain) exceeds 1e9
+    eps, that is below float64 resolution, so ranking by the projection is ranking by the
+    points.  Otherwise the caller falls back to the exact dense route.
+    """
+    eps = float(np.sqrt(((C - Y @ vt_k) ** 2).sum(axis=1)).max())
+    if eps == 0.0:
+        return True
+    d = np.sqrt(((Y[t] - Y[h]) ** 2).sum(axis=1))
+    return bool(d.size) and float(d.min()) > 1e9 * eps
+
+
 def _attach_orphans(P: np.ndarray, t: np.ndarray, h: np.ndarray):
     """Link points Qhull left out of every simplex (nearly coincident with another point, within
     its precision) to their nearest triangulated point and to that point's neighbours."""
@@ -132,9 +149,13 @@ def _delaunay_pairs(U: np.ndarray):
         if rank >= d:
             return None
         if rank <= 1:
-            return (*_chain_pairs(C @ vt[0]), "chain")
-        got = _delaunay_pairs(C @ vt[:rank].T)
-        if got is None:
+            Y = C @ vt[:1].T
+            t, h = _chain_pairs(Y[:, 0])
+            return (t, h, "chain") if _flat_enough(C, Y, vt[:1], t[:m - 1], h[:m - 1]) \
+                else None
+        Y = C @ vt[:rank].T
+        got = _delaunay_pairs(Y)
+        if got is None or not _flat_enough(C, Y, vt[:rank], got[0], got[1]):
             return None
         return got[0], got[1], got[2] + "-projected"
     simp = tri.simplices.astype(np.int64)
@@ -170,7 +191,9 @@ def _sphere_pairs(U: np.ndarray):
             # position, so their angular order around the centroid is their order on the circle,
             # and chord length grows with the angle between neighbours along it.
             Y = C @ vt[:2].T
-            return (*_chain_pairs(np.arctan2(Y[:, 1], Y[:, 0]), cyclic=True), "circle-chain")
+            t, h = _chain_pairs(np.arctan2(Y[:, 1], Y[:, 0]), cyclic=True)
+            if _flat_enough(C, Y, vt[:2], t[:m], h[:m]):
+                return t, h, "circle-chain"
         return None
     simp = hull.simplices.astype(np.int64)
     ts = [simp[:, 0], simp[:, 0], simp[:, 1]]
@@ -386,7 +409,20 @@ def point_spanning_tree(points, *, metric: str = "euclidean", max_length=None,
     threads = 1 if threads is None else validation.check_threads(threads, _FUNC)
     n, d = X.shape
 
+    with np.errstate(over="ignore", invalid="ignore"):
+        return _build(X, n, d, metric, kwargs, limit, threads)
+
+
+def _too_far(w, metric):
+    if w.size and np.isinf(w).any():
+        raise ValueError(f"{_FUNC}: a {metric} length of the tree overflows float64; rescale "
+                         f"the coordinates (e.g. divide them by 1e100) and scale the lengths "
+                         f"back.")
+
+
+def _build(X, n, d, metric, kwargs, limit, threads):
     route = None
+    length = None
     if metric == "great-circle":
         radius = float(kwargs.get("radius", EARTH_RADIUS_M))
         X = _normalise_lonlat(X)
@@ -409,8 +445,6 @@ def point_spanning_tree(points, *, metric: str = "euclidean", max_length=None,
                 route = got[2]
         sq = metric == "sqeuclidean"
         length = lambda t, h: _euclid_lengths(X, t, h, sq)  # noqa: E731
-    else:
-        length = None
 
     if n < 2:
         t = h = np.empty(0, dtype=np.int64)
@@ -424,6 +458,10 @@ def point_spanning_tree(points, *, metric: str = "euclidean", max_length=None,
             route = None
     if route is None:
         route = "dense-prim"
+        if length is not None and n > 20000:
+            warnings.warn(f"{_FUNC}: the {metric} candidate set could not be built for these "
+                          f"{n} points (Qhull failed: extreme coordinate ranges?); running "
+                          f"exact dense Prim, O(n^2).", RuntimeWarning, stacklevel=3)
         if metric == "great-circle":     # chord length ranks pairs as arc length does
             t, h, w = _dense_tree(_unit_vectors(X), "euclidean", {}, threads)
         else:
@@ -433,6 +471,7 @@ def point_spanning_tree(points, *, metric: str = "euclidean", max_length=None,
         w = length(t, h) if length is not None else w[order]
         f = minimum_spanning_forest(t, h, w, n_nodes=n)
     tt, hh, ww = t[f.edges], h[f.edges], w[f.edges]
+    _too_far(ww, metric)
     if limit is not None:
         keep = ww <= limit
         tt, hh, ww = tt[keep], hh[keep], ww[keep]

@@ -417,3 +417,16 @@ def test_great_circle_radius_and_kwargs():
         fastmst.point_spanning_tree(LL, metric="great-circle", metric_kwargs={"p": 2})
     with pytest.raises(ValueError, match="positive finite"):
         fastmst.point_spanning_tree(LL, metric="great-circle", metric_kwargs={"radius": -1})
+
+
+def test_extreme_coordinates_are_refused_or_exact():
+    """Overflowing lengths raise; a far outlier that breaks Qhull still gives the exact tree."""
+    X = np.random.default_rng(13).random((40, 2))
+    with pytest.raises(ValueError, match="overflows float64"):
+        fastmst.point_spanning_tree(X * 1e300)
+    Y = np.vstack([X, [[1e100, 1e100]]])
+    t = fastmst.point_spanning_tree(Y)
+    # reference: scipy MST on pdist (the outlier's link dominates; the rest must match too)
+    assert t.weight == pytest.approx(scipy_total(Y), rel=1e-12)
+    assert fastmst.point_spanning_tree(X).weight == pytest.approx(
+        math.fsum(sorted(t.weights.tolist())[:-1]), rel=1e-12)
