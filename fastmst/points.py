@@ -47,6 +47,11 @@ def pair_position(tail, head, n_points: int) -> np.ndarray:
 def _group_duplicates(X: np.ndarray):
     """Distinct rows of X: (unique rows, smallest original index of each, zero-edge tails/heads)."""
     n = X.shape[0]
+    o0 = np.argsort(X[:, 0], kind="stable")
+    x0 = X[o0, 0]
+    if not (x0[1:] == x0[:-1]).any():                   # common case: no repeated coordinate
+        e = np.empty(0, dtype=np.int64)
+        return X, np.arange(n, dtype=np.int64), e, e
     order = np.lexsort(X.T[::-1])                       # stable: equal rows by index
     Xs = X[order]
     new = np.ones(n, dtype=bool)
@@ -131,6 +136,28 @@ def _attach_orphans(P: np.ndarray, t: np.ndarray, h: np.ndarray):
             np.concatenate([h, near, nbr]))
 
 
+def _spatial_order(P: np.ndarray) -> np.ndarray:
+    """A Morton (Z-order) permutation of 2-D or 3-D points: Qhull runs faster on points that
+    arrive in a spatially coherent order (about 20 % less CPU time at 1M points)."""
+    m, d = P.shape
+    lo = P.min(axis=0)
+    span = float((P.max(axis=0) - lo).max()) or 1.0
+    bits = 16 if d == 2 else 10
+    q = ((P - lo) * ((2 ** bits - 1) / span)).astype(np.uint64)
+    if d == 2:
+        masks = ((16, 0x0000FFFF0000FFFF), (8, 0x00FF00FF00FF00FF), (4, 0x0F0F0F0F0F0F0F0F),
+                 (2, 0x3333333333333333), (1, 0x5555555555555555))
+    else:
+        masks = ((16, 0x030000FF), (8, 0x0300F00F), (4, 0x030C30C3), (2, 0x09249249))
+    key = np.zeros(m, dtype=np.uint64)
+    for axis in range(d):
+        v = q[:, axis].copy()
+        for shift, mask in masks:
+            v = (v | (v << np.uint64(shift))) & np.uint64(mask)
+        key |= v << np.uint64(axis)
+    return np.argsort(key, kind="stable")
+
+
 def _delaunay_pairs(U: np.ndarray):
     """Candidate pairs (indices into U) containing the Euclidean MST of distinct points U.
 
@@ -142,8 +169,9 @@ def _delaunay_pairs(U: np.ndarray):
         return (*_all_pairs(m), "all-pairs")
     if d == 1:
         return (*_chain_pairs(U[:, 0]), "chain")
+    order = _spatial_order(U) if m > 20000 else None
     try:
-        tri = Delaunay(U)
+        tri = Delaunay(U if order is None else U[order])
     except QhullError:
         C, vt, rank = _principal(U)
         if rank >= d:
@@ -159,6 +187,8 @@ def _delaunay_pairs(U: np.ndarray):
             return None
         return got[0], got[1], got[2] + "-projected"
     simp = tri.simplices.astype(np.int64)
+    if order is not None:
+        simp = order[simp]
     ts, hs = [], []
     for a in range(d + 1):
         for b in range(a + 1, d + 1):
@@ -182,8 +212,9 @@ def _sphere_pairs(U: np.ndarray):
     if m <= _SMALL:
         return (*_all_pairs(m), "all-pairs")
     P = _unit_vectors(U)
+    order = _spatial_order(P) if m > 20000 else None
     try:
-        hull = ConvexHull(P)
+        hull = ConvexHull(P if order is None else P[order])
     except QhullError:
         C, vt, rank = _principal(P)
         if rank == 2:
@@ -196,6 +227,8 @@ def _sphere_pairs(U: np.ndarray):
                 return t, h, "circle-chain"
         return None
     simp = hull.simplices.astype(np.int64)
+    if order is not None:
+        simp = order[simp]
     ts = [simp[:, 0], simp[:, 0], simp[:, 1]]
     hs = [simp[:, 1], simp[:, 2], simp[:, 2]]
     t, h = _attach_orphans(P, np.concatenate(ts), np.concatenate(hs))

@@ -430,3 +430,24 @@ def test_extreme_coordinates_are_refused_or_exact():
     assert t.weight == pytest.approx(scipy_total(Y), rel=1e-12)
     assert fastmst.point_spanning_tree(X).weight == pytest.approx(
         math.fsum(sorted(t.weights.tolist())[:-1]), rel=1e-12)
+
+
+def test_large_set_matches_scipy_on_delaunay_edges():
+    """25k points (the spatially ordered Qhull route): the total equals scipy's MST of the
+    Delaunay edge graph, and every edge is a Delaunay edge."""
+    from scipy import sparse
+    X = np.random.default_rng(14).random((25000, 2))
+    t = fastmst.point_spanning_tree(X)
+    simp = Delaunay(X).simplices          # reference: scipy.spatial.Delaunay
+    a = np.concatenate([simp[:, 0], simp[:, 0], simp[:, 1]])
+    b = np.concatenate([simp[:, 1], simp[:, 2], simp[:, 2]])
+    g = sparse.csr_array((np.ones(a.shape[0]), (np.minimum(a, b), np.maximum(a, b))),
+                         shape=(25000, 25000))
+    present = set(zip(*g.nonzero()))
+    assert all((i, j) in present for i, j in zip(t.tail.tolist(), t.head.tolist()))
+    key = np.unique(np.minimum(a, b) * 25000 + np.maximum(a, b))
+    i, j = key // 25000, key % 25000
+    gw = sparse.csr_array((np.sqrt(((X[i] - X[j]) ** 2).sum(axis=1)), (i, j)),
+                          shape=(25000, 25000))
+    # reference: scipy.sparse.csgraph.minimum_spanning_tree over the Delaunay edges
+    assert t.weight == pytest.approx(float(minimum_spanning_tree(gw).sum()), rel=1e-12)
