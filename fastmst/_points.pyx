@@ -55,78 +55,107 @@ cdef inline bint _less(double d1, int64_t a1, int64_t b1,
     return b1 < b2
 
 
-cdef inline bint _better_point(int64_t v, int64_t w, const double* best_d,
-                               const int64_t* best_u) noexcept nogil:
-    """Is v's best link to the tree smaller than w's under the tie rule?"""
-    cdef int64_t bv = best_u[v], bw = best_u[w]
-    if bv < 0:
+cdef inline bint _slot_better(Py_ssize_t k, Py_ssize_t j, const int64_t* ids, const double* bd,
+                              const int64_t* bu) noexcept nogil:
+    """Is slot k's best link to the tree smaller than slot j's under the tie rule?"""
+    cdef int64_t vk = ids[k], vj = ids[j], uk = bu[k], uj = bu[j]
+    if uk < 0:
         return False
-    if bw < 0:
+    if uj < 0:
         return True
-    return _less(best_d[v], min(bv, v), max(bv, v), best_d[w], min(bw, w), max(bw, w))
+    return _less(bd[k], min(uk, vk), max(uk, vk), bd[j], min(uj, vj), max(uj, vj))
 
 
-cdef void _scan_block(const double[:, ::1] X, int metric, double p, int64_t u,
-                      const int64_t* rest, Py_ssize_t lo, Py_ssize_t hi,
-                      double* best_d, int64_t* best_u, int64_t* blk_pos,
+cdef void _scan_block(const double* xu, int64_t u, Py_ssize_t d, int metric, double p,
+                      const double* Xs, const int64_t* ids, double* bd, double* thr,
+                      int64_t* bu, Py_ssize_t lo, Py_ssize_t hi, int64_t* blk_pos,
                       uint8_t* blk_nan, Py_ssize_t b) noexcept nogil:
-    """Relax rest[lo:hi] with the new tree point u; OUT: blk_pos[b], the block's best."""
-    cdef Py_ssize_t k, d = X.shape[1], pos = -1
-    cdef int64_t v, bu, a, c
-    cdef double dist
-    cdef const double* xu = &X[u, 0]
+    """Relax slots lo..hi-1 with the new tree point u; OUT: blk_pos[b], the block's best slot.
+
+    For euclidean, the square root is skipped when the squared distance already exceeds
+    ``thr`` (the square of the slot's best length, widened by 1e-15): the rounded root would
+    then be strictly longer, so the comparison result is the same.
+    """
+    cdef Py_ssize_t k, j, pos = -1
+    cdef int64_t v, cur
+    cdef double dist, s, t
+    cdef const double* y
     for k in range(lo, hi):
-        v = rest[k]
-        dist = _dist(xu, &X[v, 0], d, metric, p)
+        v = ids[k]
+        cur = bu[k]
+        y = Xs + k * d
+        if metric == 0:
+            s = 0.0
+            for j in range(d):
+                t = xu[j] - y[j]
+                s += t * t
+            if cur >= 0 and s > thr[k]:
+                dist = -1.0
+            else:
+                dist = sqrt(s)
+        else:
+            dist = _dist(xu, y, d, metric, p)
         if dist != dist:
             blk_nan[b] = 1
             continue
-        a = min(u, v)
-        c = max(u, v)
-        bu = best_u[v]
-        if bu < 0 or _less(dist, a, c, best_d[v], min(bu, v), max(bu, v)):
-            best_d[v] = dist
-            best_u[v] = u
-        if pos < 0 or _better_point(v, rest[pos], best_d, best_u):
+        if dist >= 0.0 and (cur < 0 or _less(dist, min(u, v), max(u, v),
+                                             bd[k], min(cur, v), max(cur, v))):
+            bd[k] = dist
+            bu[k] = u
+            thr[k] = dist * dist * (1.0 + 1e-15)
+        if pos < 0 or _slot_better(k, pos, ids, bd, bu):
             pos = k
     blk_pos[b] = pos
 
 
-cdef int _prim(const double[:, ::1] X, int metric, double p, int n_threads, Py_ssize_t block,
-               int64_t[::1] rest, double[::1] best_d, int64_t[::1] best_u,
-               int64_t[::1] added, int64_t[::1] blk_pos, uint8_t[::1] blk_nan) noexcept nogil:
+cdef int _prim(double[:, ::1] Xs, int metric, double p, int n_threads, Py_ssize_t block,
+               int64_t[::1] ids, double[::1] bd, double[::1] thr, int64_t[::1] bu,
+               double[::1] xu, int64_t[::1] added, int64_t[::1] out_u, double[::1] out_d,
+               int64_t[::1] blk_pos, uint8_t[::1] blk_nan) noexcept nogil:
     """Grow the tree from point 0.
 
-    SCRATCH: rest (points outside the tree, first n_rest valid), blk_pos, blk_nan.
-    OUT: best_u[v]/best_d[v] (tree neighbour and length of v's tree edge), added (points in the
-    order they joined).  Returns 1 when a distance was NaN, else 0.
+    The points outside the tree live in "slots" 0..n_rest-1: their coordinates (Xs, a copy),
+    ids, best length bd, its threshold thr and tree neighbour bu.  A point joining the tree
+    frees its slot, which the last slot fills, so every scan streams through memory.
+    OUT: added (points in the order they joined), out_u/out_d (their tree neighbour and edge
+    length).  Returns 1 when a distance was NaN, else 0.
     """
-    cdef Py_ssize_t n = X.shape[0], n_rest = n - 1, step, nb, b, k, pos
-    cdef int64_t u = 0, v
-    for k in range(n_rest):
-        rest[k] = k + 1
+    cdef Py_ssize_t n = Xs.shape[0] + 1, d = Xs.shape[1], n_rest = n - 1, step, nb, b, k
+    cdef Py_ssize_t pos, last, j
+    cdef int64_t u = 0
+    cdef double* xs = &Xs[0, 0]
     for step in range(n - 1):
         nb = (n_rest + block - 1) // block
         if n_threads > 1 and nb > 1:
             for b in prange(nb, num_threads=n_threads, schedule="static"):
-                _scan_block(X, metric, p, u, &rest[0], b * block, min((b + 1) * block, n_rest),
-                            &best_d[0], &best_u[0], &blk_pos[0], &blk_nan[0], b)
+                _scan_block(&xu[0], u, d, metric, p, xs, &ids[0], &bd[0], &thr[0], &bu[0],
+                            b * block, min((b + 1) * block, n_rest), &blk_pos[0], &blk_nan[0],
+                            b)
         else:
             for b in range(nb):
-                _scan_block(X, metric, p, u, &rest[0], b * block, min((b + 1) * block, n_rest),
-                            &best_d[0], &best_u[0], &blk_pos[0], &blk_nan[0], b)
+                _scan_block(&xu[0], u, d, metric, p, xs, &ids[0], &bd[0], &thr[0], &bu[0],
+                            b * block, min((b + 1) * block, n_rest), &blk_pos[0], &blk_nan[0],
+                            b)
         pos = -1
         for b in range(nb):
             if blk_nan[b]:
                 return 1
             k = blk_pos[b]
-            if k >= 0 and (pos < 0 or _better_point(rest[k], rest[pos], &best_d[0], &best_u[0])):
+            if k >= 0 and (pos < 0 or _slot_better(k, pos, &ids[0], &bd[0], &bu[0])):
                 pos = k
-        v = rest[pos]
-        added[step] = v
-        rest[pos] = rest[n_rest - 1]
+        u = ids[pos]
+        added[step] = u
+        out_u[step] = bu[pos]
+        out_d[step] = bd[pos]
+        last = n_rest - 1
+        for j in range(d):
+            xu[j] = Xs[pos, j]
+            Xs[pos, j] = Xs[last, j]
+        ids[pos] = ids[last]
+        bd[pos] = bd[last]
+        thr[pos] = thr[last]
+        bu[pos] = bu[last]
         n_rest -= 1
-        u = v
     return 0
 
 
@@ -161,24 +190,28 @@ def dense_prim(const double[:, ::1] X, int metric, double p=2.0, int n_threads=1
         return e, e.copy(), np.empty(0, dtype=np.float64)
     if X.shape[1] < 1:
         raise ValueError("dense_prim: points need at least one coordinate.")
-    rest = np.empty(n, dtype=np.int64)
-    best_d = np.full(n, INFINITY, dtype=np.float64)
-    best_u = np.full(n, -1, dtype=np.int64)
+    Xs_arr = np.array(X[1:], dtype=np.float64, order="C")      # slots: every point but 0
+    ids = np.arange(1, n, dtype=np.int64)
+    bd = np.full(n - 1, INFINITY, dtype=np.float64)
+    thr = np.full(n - 1, INFINITY, dtype=np.float64)
+    bu = np.full(n - 1, -1, dtype=np.int64)
+    xu = np.array(X[0], dtype=np.float64)
     added = np.empty(n - 1, dtype=np.int64)
+    out_u = np.empty(n - 1, dtype=np.int64)
+    out_d = np.empty(n - 1, dtype=np.float64)
     nb = (n + block - 1) // block
     blk_pos = np.empty(nb, dtype=np.int64)
     blk_nan = np.zeros(nb, dtype=np.uint8)
-    cdef int64_t[::1] rest_v = rest, best_u_v = best_u, added_v = added, blk_pos_v = blk_pos
-    cdef double[::1] best_d_v = best_d
+    cdef double[:, ::1] Xs_v = Xs_arr
+    cdef int64_t[::1] ids_v = ids, bu_v = bu, added_v = added, out_u_v = out_u
+    cdef int64_t[::1] blk_pos_v = blk_pos
+    cdef double[::1] bd_v = bd, thr_v = thr, xu_v = xu, out_d_v = out_d
     cdef uint8_t[::1] blk_nan_v = blk_nan
     cdef int bad
     with nogil:
-        bad = _prim(X, metric, p, max(1, n_threads), block, rest_v, best_d_v, best_u_v, added_v,
-                    blk_pos_v, blk_nan_v)
+        bad = _prim(Xs_v, metric, p, max(1, n_threads), block, ids_v, bd_v, thr_v, bu_v, xu_v,
+                    added_v, out_u_v, out_d_v, blk_pos_v, blk_nan_v)
     if bad:
         raise ValueError("dense_prim: a distance evaluated to NaN; every pair of points needs a "
                          "comparable distance.")
-    other = best_u[added]
-    tail = np.minimum(other, added)
-    head = np.maximum(other, added)
-    return tail, head, best_d[added]
+    return np.minimum(out_u, added), np.maximum(out_u, added), out_d
