@@ -451,3 +451,18 @@ def test_large_set_matches_scipy_on_delaunay_edges():
                           shape=(25000, 25000))
     # reference: scipy.sparse.csgraph.minimum_spanning_tree over the Delaunay edges
     assert t.weight == pytest.approx(float(minimum_spanning_tree(gw).sum()), rel=1e-12)
+
+
+@settings(deadline=None, derandomize=True, max_examples=40)
+@given(st.integers(2, 3).flatmap(lambda d: st.lists(
+    st.lists(st.floats(-1e6, 1e6, allow_nan=False) | st.sampled_from([0.0, 1.0, -1.0, 1e-9]),
+             min_size=d, max_size=d), min_size=0, max_size=40)))
+def test_wild_float_sets_match_scipy(rows):
+    """Arbitrary float sets (wide ranges, repeats, near-degenerate): a spanning tree whose total
+    equals networkx's MST of all pairs (scipy's dense route would drop lengths below 1e-8)."""
+    d = len(rows[0]) if rows else 2
+    X = np.asarray(rows, dtype=float).reshape(-1, d)
+    t = fastmst.point_spanning_tree(X)
+    assert_spanning_tree(t, len(X))
+    # reference: networkx.minimum_spanning_tree over every pair
+    assert t.weight == pytest.approx(nx_total(X, euclid), rel=1e-9, abs=1e-12)
