@@ -321,6 +321,22 @@ def _dense_tree(X, metric, kwargs, threads):
     return _prim_cdist(X, metric, kwargs)
 
 
+def _metric_defaults(metric, X, kwargs):
+    """cdist derives VI / V from its two inputs when absent; fix them once from every point, as
+    pdist would, so every step of dense Prim measures with the same metric."""
+    kwargs = dict(kwargs)
+    if metric == "mahalanobis" and "VI" not in kwargs and X.shape[0] >= 2:
+        try:
+            kwargs["VI"] = np.linalg.inv(np.atleast_2d(np.cov(X.T))).T
+        except np.linalg.LinAlgError:
+            raise ValueError(f"{_FUNC}: the covariance of these {X.shape[0]} points is singular,"
+                             f" so 'mahalanobis' is undefined; pass metric_kwargs={{'VI': ...}} "
+                             f"or use more (or less degenerate) points.") from None
+    if metric == "seuclidean" and "V" not in kwargs and X.shape[0] >= 2:
+        kwargs["V"] = np.var(X, axis=0, ddof=1)
+    return kwargs
+
+
 def _check_metric(metric, X, kwargs):
     if not isinstance(metric, str):
         raise TypeError(f"{_FUNC}: metric must be a string, received {type(metric).__name__} "
@@ -437,6 +453,8 @@ def point_spanning_tree(points, *, metric: str = "euclidean", max_length=None,
     if not isinstance(kwargs, dict):
         raise TypeError(f"{_FUNC}: metric_kwargs must be a dict or None, received "
                         f"{type(metric_kwargs).__name__}.")
+    if isinstance(metric, str):
+        kwargs = _metric_defaults(metric, X, kwargs)
     _check_metric(metric, X, kwargs)
     limit = validation.check_max_length(max_length, _FUNC)
     threads = 1 if threads is None else validation.check_threads(threads, _FUNC)

@@ -21,6 +21,8 @@ from scipy.spatial.distance import pdist, squareform
 import fastmst
 from fastmst.points import pair_position
 
+METRIC_NATIVE = ("euclidean", "cityblock", "chebyshev", "minkowski")
+
 RNG = np.random.default_rng(20261201)
 
 
@@ -207,10 +209,11 @@ def test_sqeuclidean_uses_delaunay():
 @pytest.mark.parametrize("metric,kw,d", [
     ("euclidean", {}, 8), ("cityblock", {}, 4), ("chebyshev", {}, 3),
     ("minkowski", {"p": 3.0}, 5), ("cosine", {}, 6), ("canberra", {}, 3),
+    ("seuclidean", {}, 3), ("mahalanobis", {}, 3),
 ])
 def test_dense_metrics_match_scipy(metric, kw, d):
     """Dense Prim equals scipy's MST on pdist for the same metric."""
-    n = 600 if metric in ("cosine", "canberra") else 1200
+    n = 1200 if metric in METRIC_NATIVE else 400
     X = RNG.random((n, d)) + 0.1
     t = fastmst.point_spanning_tree(X, metric=metric, metric_kwargs=kw or None)
     assert t.method == "dense-prim"
