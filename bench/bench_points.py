@@ -117,8 +117,8 @@ def case_dense(n, brute_n, threads):
 
 
 def road_grid(side, rng):
-    """A perturbed side x side grid: 3 % of streets missing, 7 % of blocks with a diagonal shortcut, lengths
-    from jittered coordinates (a road-like network; random, not real data)."""
+    """A perturbed side x side grid: 3 % of streets missing, 7 % of blocks with a diagonal
+    shortcut, lengths from jittered coordinates (a road-like network; random, not real data)."""
     idx = np.arange(side * side).reshape(side, side)
     t = np.concatenate([idx[:, :-1].ravel(), idx[:-1, :].ravel(), idx[:-1, :-1].ravel()])
     h = np.concatenate([idx[:, 1:].ravel(), idx[1:, :].ravel(), idx[1:, 1:].ravel()])
