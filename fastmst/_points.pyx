@@ -111,8 +111,8 @@ cdef void _scan_block(const double* xu, int64_t u, Py_ssize_t d, int metric, dou
 cdef int _prim(double[:, ::1] Xs, int metric, double p, int n_threads, Py_ssize_t block,
                int64_t[::1] ids, double[::1] bd, double[::1] thr, int64_t[::1] bu,
                double[::1] xu, int64_t[::1] added, int64_t[::1] out_u, double[::1] out_d,
-               int64_t[::1] blk_pos, uint8_t[::1] blk_nan) noexcept nogil:
-    """Grow the tree from point 0.
+               int64_t[::1] blk_pos, uint8_t[::1] blk_nan, Py_ssize_t par_min) noexcept nogil:
+    """Grow the tree from point 0 (steps with fewer than par_min points left run serially).
 
     The points outside the tree live in "slots" 0..n_rest-1: their coordinates (Xs, a copy),
     ids, best length bd, its threshold thr and tree neighbour bu.  A point joining the tree
@@ -126,7 +126,7 @@ cdef int _prim(double[:, ::1] Xs, int metric, double p, int n_threads, Py_ssize_
     cdef double* xs = &Xs[0, 0]
     for step in range(n - 1):
         nb = (n_rest + block - 1) // block
-        if n_threads > 1 and nb > 1:
+        if n_threads > 1 and nb > 1 and n_rest >= par_min:
             for b in prange(nb, num_threads=n_threads, schedule="static"):
                 _scan_block(&xu[0], u, d, metric, p, xs, &ids[0], &bd[0], &thr[0], &bu[0],
                             b * block, min((b + 1) * block, n_rest), &blk_pos[0], &blk_nan[0],
@@ -160,7 +160,7 @@ cdef int _prim(double[:, ::1] Xs, int metric, double p, int n_threads, Py_ssize_
 
 
 def dense_prim(const double[:, ::1] X, int metric, double p=2.0, int n_threads=1,
-               Py_ssize_t block=DEF_BLOCK):
+               Py_ssize_t block=DEF_BLOCK, Py_ssize_t par_min=16384):
     """Minimum spanning tree of the complete graph on the rows of X (native metrics).
 
     Parameters
@@ -173,6 +173,9 @@ def dense_prim(const double[:, ::1] X, int metric, double p=2.0, int n_threads=1
     n_threads : int
     block : int
         Points per block of the parallel scan.
+    par_min : int
+        Steps with fewer points left than this scan serially (a parallel step costs one
+        fork/join, worth it only for long scans).
 
     Returns
     -------
@@ -210,7 +213,7 @@ def dense_prim(const double[:, ::1] X, int metric, double p=2.0, int n_threads=1
     cdef int bad
     with nogil:
         bad = _prim(Xs_v, metric, p, max(1, n_threads), block, ids_v, bd_v, thr_v, bu_v, xu_v,
-                    added_v, out_u_v, out_d_v, blk_pos_v, blk_nan_v)
+                    added_v, out_u_v, out_d_v, blk_pos_v, blk_nan_v, par_min)
     if bad:
         raise ValueError("dense_prim: a distance evaluated to NaN; every pair of points needs a "
                          "comparable distance.")

@@ -315,9 +315,8 @@ def _dense_tree(X, metric, kwargs, threads):
         p = float(kwargs.get("p", 2.0)) if metric == "minkowski" else 2.0
         if metric == "minkowski" and not p >= 1.0:
             raise ValueError(f"{_FUNC}: minkowski needs p >= 1 (a metric), received p={p}.")
-        # Parallel scans pay one fork/join per step: only worth it for large steps.
-        nt = threads if X.shape[0] >= 8192 * threads else 1
-        return dense_prim(X, METRIC_CODES[metric], p, nt)
+        # A parallel step pays one fork/join: the kernel splits only scans of >= 16384 points.
+        return dense_prim(X, METRIC_CODES[metric], p, threads, 1024, 16384)
     return _prim_cdist(X, metric, kwargs)
 
 

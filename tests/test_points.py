@@ -239,7 +239,7 @@ def test_dense_kernel_parallel_blocks_agree():
     X = np.random.default_rng(8).integers(0, 4, (1500, 3)).astype(float)
     ref = dense_prim(X, 0, 2.0, 1, 1024)
     for threads, block in ((2, 64), (2, 1000), (1, 7)):
-        got = dense_prim(X, 0, 2.0, threads, block)
+        got = dense_prim(X, 0, 2.0, threads, block, 0)
         assert all(np.array_equal(a, b) for a, b in zip(ref, got))
 
 
