@@ -469,3 +469,38 @@ def test_wild_float_sets_match_scipy(rows):
     assert_spanning_tree(t, len(X))
     # reference: networkx.minimum_spanning_tree over every pair
     assert t.weight == pytest.approx(nx_total(X, euclid), rel=1e-9, abs=1e-12)
+
+
+def test_kernels_from_several_threads_at_once():
+    """The nogil kernels give the same answers when called from four threads concurrently."""
+    from concurrent.futures import ThreadPoolExecutor
+    r = np.random.default_rng(15)
+    X8 = r.integers(0, 4, (600, 8)).astype(float)
+    X2 = r.random((3000, 2))
+    t, h, w = (np.arange(999), np.arange(1, 1000), r.random(999))
+    jobs = [lambda: fastmst.point_spanning_tree(X8).edges,
+            lambda: fastmst.point_spanning_tree(X2).edges,
+            lambda: fastmst.steiner_tree(t, h, w, [0, 500, 999]).edges] * 4
+    with ThreadPoolExecutor(4) as pool:
+        got = list(pool.map(lambda f: f(), jobs))
+    for a, b in zip(got[:3], got[3:6]):
+        assert np.array_equal(a, b)
+    assert all(np.array_equal(got[i], got[i % 3]) for i in range(12))
+
+
+def test_bench_smoke():
+    """bench/bench_points.py runs its four cases at toy sizes and reports agreeing totals."""
+    import importlib.util
+    import pathlib
+    path = pathlib.Path(__file__).resolve().parents[1] / "bench" / "bench_points.py"
+    spec = importlib.util.spec_from_file_location("bench_points", path)
+    bench = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(bench)
+    import re
+    for name, (n, brute_n) in {"planar": (3000, 200), "sphere": (3000, 200),
+                               "dense": (400, 200)}.items():
+        row = bench.CASES[name](n, brute_n, 1)
+        assert row["fastmst_s"] >= 0 and "ratio" in row["brute"]
+        assert float(re.search(r"\|dW\|/W=([0-9.e+-]+)", row["brute"]).group(1)) < 1e-12
+    row = bench.case_steiner(40, 12, 1, k=20)
+    assert float(re.search(r"W ours/nx=([0-9.]+)", row["brute"]).group(1)) < 1.5
