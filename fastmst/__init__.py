@@ -9,9 +9,12 @@ from fastmst.io import EdgeList, read_edges, read_nodes, write_forest
 from fastmst.certify import ForestCheck, check_forest
 from fastmst.edge_sensitivity import sensitivity
 from fastmst.linkage import single_linkage
+from fastmst.points import point_spanning_tree
+from fastmst.steiner import SteinerTree, steiner_tree
 
 __version__ = "0.1.0"
 
 __all__ = ["DisjointSet", "METHODS", "SpanningForest", "minimum_spanning_forest", "__version__"]
 __all__ += ["EdgeList", "read_edges", "read_nodes", "write_forest"]
 __all__ += ["ForestCheck", "check_forest", "sensitivity", "single_linkage"]
+__all__ += ["point_spanning_tree", "SteinerTree", "steiner_tree"]
