@@ -1128,14 +1128,30 @@ def write_table(path, table, *, format=None, compression=None):
     return _atomic(path, write)
 
 
-def write_forest(path, forest, edges: EdgeList, *, format=None):
+def write_forest(path, forest, edges: EdgeList | None = None, *, format=None, coords=None,
+                 geographic=True):
     """Write the forest to ``path`` in the format of its suffix, atomically.
 
     CSV/TSV/Parquet/.npz get columns tail, head, weight (named as in the input, with the user's
     labels) and ``position`` (the edge's row in the input, from 0).  ``.geojson`` gets RFC 7946
     LineStrings and needs (longitude, latitude) node coordinates.
+
+    ``edges`` is the EdgeList the forest was solved from.  Without one (for example the result
+    of ``point_spanning_tree``), node ids are written as they are and ``coords`` of shape
+    (n_nodes, 2) may give the node coordinates; ``geographic`` says whether they are
+    (longitude, latitude) degrees.
     """
     fmt, _ = detect_format(path, format, valid=WRITE_FORMATS, func="write_forest")
+    if edges is None:
+        xy = None
+        if coords is not None:
+            xy = np.asarray(coords, dtype=np.float64)
+            if xy.ndim != 2 or xy.shape != (forest.n_nodes, 2):
+                raise ValueError(f"write_forest: coords must have shape ({forest.n_nodes}, 2), "
+                                 f"one (x, y) or (longitude, latitude) row per node; received "
+                                 f"shape {xy.shape}.")
+        edges = EdgeList(forest.tail, forest.head, forest.weights, forest.n_nodes, coords=xy,
+                         geographic=bool(geographic) and xy is not None, source="the forest")
     if fmt == "geojson":
         return write_geojson(path, forest, edges)
     return write_table(path, forest_table(forest, edges), format=fmt)

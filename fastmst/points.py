@@ -399,8 +399,8 @@ def point_spanning_tree(points, *, metric: str = "euclidean", max_length=None,
         metres for great-circle), ``edges`` the position of each pair in
         ``scipy.spatial.distance.pdist`` order (int64), ``n_edges = n(n-1)/2``, ``labels`` and
         ``n_components`` the clusters, ``method`` the route taken, and ``metric``.
-        Edges are ordered by (length, smaller index, larger index).  The result can be written
-        to files with fastmst's forest writers (GeoJSON included) like any other forest.
+        Edges are ordered by (length, smaller index, larger index).  Write it to CSV, Parquet,
+        .npz or GeoJSON with ``fastmst.io.write_forest(path, tree, coords=points)``.
 
     Raises
     ------

@@ -504,3 +504,26 @@ def test_bench_smoke():
         assert float(re.search(r"\|dW\|/W=([0-9.e+-]+)", row["brute"]).group(1)) < 1e-12
     row = bench.case_steiner(40, 12, 1, k=20)
     assert float(re.search(r"W ours/nx=([0-9.]+)", row["brute"]).group(1)) < 1.5
+
+
+def test_point_tree_written_as_geojson(tmp_path):
+    """A great-circle point tree goes to GeoJSON (RFC 7946) through fastmst.io.write_forest:
+    one LineString per tree edge, endpoints equal to the input [longitude, latitude]."""
+    import json
+
+    from fastmst import io
+
+    rng = np.random.default_rng(11)
+    lonlat = np.column_stack([rng.uniform(-10, 10, 50), rng.uniform(40, 55, 50)])
+    tree = fastmst.point_spanning_tree(lonlat, metric="great-circle")
+    path = tmp_path / "tree.geojson"
+    io.write_forest(path, tree, coords=lonlat)
+    doc = json.loads(path.read_text())
+    assert doc["type"] == "FeatureCollection" and len(doc["features"]) == 49
+    for feat, t, h in zip(doc["features"], tree.tail.tolist(), tree.head.tolist()):
+        a, b = feat["geometry"]["coordinates"]
+        np.testing.assert_allclose(a, lonlat[t], atol=1e-7)
+        np.testing.assert_allclose(b, lonlat[h], atol=1e-7)
+    with pytest.raises(ValueError, match=r"coords must have shape \(50, 2\)"):
+        io.write_forest(tmp_path / "bad.geojson", tree, coords=lonlat[:10])
+    assert not (tmp_path / "bad.geojson").exists()
