@@ -1,4 +1,5 @@
-"""The README's Python examples run, and every `print(x)  # value` line prints that value."""
+"""The Python examples of README.md and docs/*.md run, and every `print(x)  # value` line prints
+that value."""
 import contextlib
 import io
 import re
@@ -6,15 +7,17 @@ from pathlib import Path
 
 import pytest
 
-README = Path(__file__).resolve().parents[1] / "README.md"
-BLOCKS = re.findall(r"```python\n(.*?)```", README.read_text(encoding="utf-8"), flags=re.S)
+ROOT = Path(__file__).resolve().parents[1]
+DOCS = [ROOT / "README.md"] + sorted((ROOT / "docs").glob("*.md"))
+BLOCKS = [(f"{doc.name}#{i}", code) for doc in DOCS
+          for i, code in enumerate(re.findall(r"```python\n(.*?)```",
+                                              doc.read_text(encoding="utf-8"), flags=re.S))]
 
 
-@pytest.mark.parametrize("index", range(len(BLOCKS)))
-def test_readme_python_block(index, tmp_path, monkeypatch):
+@pytest.mark.parametrize("name,code", BLOCKS, ids=[b[0] for b in BLOCKS])
+def test_documented_python_block(name, code, tmp_path, monkeypatch):
     """Run one block; compare each commented print with what it printed (first token run)."""
     monkeypatch.chdir(tmp_path)
-    code = BLOCKS[index]
     expected = []
     for line in code.splitlines():
         m = re.match(r"\s*print\(.*\)\s+#\s*(.+)$", line)
@@ -23,7 +26,7 @@ def test_readme_python_block(index, tmp_path, monkeypatch):
             expected.append(m.group(1))
     out = io.StringIO()
     with contextlib.redirect_stdout(out):
-        exec(compile(code, f"README block {index}", "exec"), {"__name__": "__readme__"})
+        exec(compile(code, name, "exec"), {"__name__": "__readme__"})
     printed = [ln for ln in out.getvalue().splitlines() if ln.strip()]
     assert len(printed) >= len(expected)
     for got, want in zip(printed, expected):
