@@ -8,10 +8,10 @@ import numpy as np
 from fastmst import validation
 from fastmst._boruvka import boruvka
 from fastmst._dsu import labels_from_parent
-from fastmst._kruskal import forest_size, kruskal
-from fastmst._sort import edge_order, first_unsorted
+from fastmst._kruskal import filter_kruskal, forest_bound, forest_size, kruskal, kruskal_radix
+from fastmst._sort import MAX_RECORDS, edge_order, first_unsorted
 
-METHODS = ("auto", "kruskal", "boruvka")
+METHODS = ("auto", "kruskal", "filter-kruskal", "boruvka")
 
 _FUNC = "minimum_spanning_forest"
 
@@ -137,8 +137,9 @@ def minimum_spanning_forest(tail, head, weight, n_nodes=None, *, method="auto",
     n_nodes : int, optional
         Number of nodes; defaults to the largest id + 1.  Nodes without edges are isolated
         components.
-    method : {"auto", "kruskal", "boruvka"}
-        Algorithm.  Every method returns the identical forest.
+    method : {"auto", "kruskal", "filter-kruskal", "boruvka"}
+        Algorithm.  Every method returns the identical forest; "auto" picks by the rule of
+        ``choose_method`` (see docs/performance.md).
     presorted : bool
         The caller promises the weights are already non-decreasing (non-increasing with
         ``maximize``); the sort is skipped after an O(E) check.
@@ -187,8 +188,18 @@ def minimum_spanning_forest(tail, head, weight, n_nodes=None, *, method="auto",
                              f"presorted=False.")
     if method == "auto":
         method = choose_method(g, presorted, threads)
+    return _run_method(g, method, presorted, maximize, threads)
 
-    if method == "kruskal":
+
+def _run_method(g: validation.EdgeArrays, method: str, presorted: bool, maximize: bool,
+                threads: int) -> SpanningForest:
+    """Dispatch validated edges to a kernel (every kernel returns the identical forest)."""
+    if method == "boruvka":
+        edges, labels, n_components = boruvka(g.ktail, g.khead, g.kweight, g.n_nodes,
+                                              maximize, threads)
+        return build_forest(g, edges, labels, n_components, maximize, method, False)
+    if g.n_edges >= MAX_RECORDS:
+        # Beyond 32-bit record positions: stable argsort, then the plain Kruskal scan.
         target, parent = forest_size(g.ktail, g.khead, g.n_nodes)
         labels, n_components = labels_from_parent(parent)
         del parent
@@ -196,7 +207,14 @@ def minimum_spanning_forest(tail, head, weight, n_nodes=None, *, method="auto",
                  else edge_order(g.kweight, maximize))
         edges, _ = kruskal(order, g.ktail, g.khead, g.n_nodes, target)
         return build_forest(g, edges, labels, n_components, maximize, method, True)
-
-    edges, parent = boruvka(g.ktail, g.khead, g.kweight, g.n_nodes, maximize)
+    # Stop at (nodes with an edge) - 1 accepted edges: exact for a connected graph with
+    # isolated nodes; a graph split further is scanned to the end (see docs/performance.md).
+    target = forest_bound(g.ktail, g.khead, g.n_nodes)
+    if method == "filter-kruskal" and not presorted:
+        edges, parent = filter_kruskal(g.ktail, g.khead, g.kweight, g.n_nodes, maximize,
+                                       target, threads)
+    else:
+        edges, parent = kruskal_radix(g.ktail, g.khead, g.kweight, g.n_nodes, maximize,
+                                      target, threads, presorted)
     labels, n_components = labels_from_parent(parent)
-    return build_forest(g, edges, labels, n_components, maximize, method, False)
+    return build_forest(g, edges, labels, n_components, maximize, method, True)
