@@ -30,7 +30,13 @@ cdef extern from *:
     static inline int64_t fastmst_load64(const int64_t* p) {
         return __atomic_load_n(p, __ATOMIC_RELAXED);
     }
+    #define FASTMST_LOAD_RELAXED(p, out) __atomic_load((p), (out), __ATOMIC_RELAXED)
+    #define FASTMST_STORE_RELAXED(p, v) __atomic_store((p), (v), __ATOMIC_RELAXED)
+    #define FASTMST_PREFETCH_W(p) __builtin_prefetch((const void*)(p), 1)
     #else
+    #define FASTMST_LOAD_RELAXED(p, out) (*(out) = *(p))
+    #define FASTMST_STORE_RELAXED(p, v) (*(p) = *(v))
+    #define FASTMST_PREFETCH_W(p) ((void)0)
     /* No atomics known: only correct single-threaded (the build without OpenMP). */
     static inline int fastmst_cas64(int64_t* p, int64_t expected, int64_t desired) {
         if (*p != expected) return 0; *p = desired; return 1;
@@ -40,6 +46,9 @@ cdef extern from *:
     """
     bint cas64 "fastmst_cas64"(int64_t* p, int64_t expected, int64_t desired) noexcept nogil
     int64_t load64 "fastmst_load64"(const int64_t* p) noexcept nogil
+    void load_relaxed "FASTMST_LOAD_RELAXED"(...) noexcept nogil
+    void store_relaxed "FASTMST_STORE_RELAXED"(...) noexcept nogil
+    void prefetch_w "FASTMST_PREFETCH_W"(const void* p) noexcept nogil
 
 
 cdef inline bint _lighter(weight_t wa, int64_t a, weight_t wb, int64_t b,
@@ -50,23 +59,34 @@ cdef inline bint _lighter(weight_t wa, int64_t a, weight_t wb, int64_t b,
     return wa > wb if maximize else wa < wb
 
 
-cdef inline void _offer(int64_t* best, Py_ssize_t c, int64_t i, weight_t wi,
+cdef inline void _offer(int64_t* best, weight_t* hint, Py_ssize_t c, int64_t i, weight_t wi,
                         const weight_t* weight, const int64_t* pos, bint maximize) noexcept nogil:
-    """Atomically lower best[c] to edge index i when i is lighter."""
-    cdef int64_t cur = load64(&best[c])
+    """Atomically lower best[c] to edge index i when i is lighter.
+
+    ``hint[c]`` is the weight of some edge that was best[c] at some moment; best[c] only gets
+    lighter, so an edge strictly heavier than the hint is rejected without touching best[c] or
+    gathering its weight (one random read instead of three dependent ones).
+    """
+    cdef int64_t cur
     cdef weight_t wc
+    load_relaxed(&hint[c], &wc)
+    if (wi < wc) if maximize else (wi > wc):
+        return
+    cur = load64(&best[c])
     while True:
         if cur >= 0:
             wc = weight[pos[cur] if pos != NULL else cur]
             if not _lighter(wi, i, wc, cur, maximize):
                 return
         if cas64(&best[c], cur, i):
+            store_relaxed(&hint[c], &wi)
             return
         cur = load64(&best[c])
 
 
 cdef Py_ssize_t _boruvka(const index_t* tail, const index_t* head, const weight_t* weight,
                          Py_ssize_t n, Py_ssize_t m, bint maximize, int threads,
+                         weight_t* hint, weight_t worst,
                          int64_t* out, index_t* final_label, Py_ssize_t* n_final) noexcept nogil:
     """Parallel Borůvka.
 
@@ -102,11 +122,15 @@ cdef Py_ssize_t _boruvka(const index_t* tail, const index_t* head, const weight_
         # 1. lightest incident edge of every component (order-independent CAS minimum)
         for c in prange(nc, num_threads=threads, schedule="static"):
             best[c] = -1
+            hint[c] = worst
         for i in prange(ne, num_threads=threads, schedule="static"):
+            if i + 16 < ne:
+                prefetch_w(&hint[cu[i + 16]])
+                prefetch_w(&hint[cv[i + 16]])
             if cu[i] != cv[i]:
-                _offer(best, cu[i], i, weight[pos[i] if pos != NULL else i], weight, pos,
+                _offer(best, hint, cu[i], i, weight[pos[i] if pos != NULL else i], weight, pos,
                        maximize)
-                _offer(best, cv[i], i, weight[pos[i] if pos != NULL else i], weight, pos,
+                _offer(best, hint, cv[i], i, weight[pos[i] if pos != NULL else i], weight, pos,
                        maximize)
         # 2. hook: c -> the other end of its pick; a mutual pair keeps the smaller id as root
         for c in range(nc):
@@ -275,13 +299,18 @@ def boruvka(const index_t[::1] tail, const index_t[::1] head, const weight_t[::1
     cdef index_t[::1] lb = lab
     cdef int64_t[::1] lbl = labels
     cdef int64_t[::1] tbl
+    # the hint starts at the worst weight of the graph (every edge is at least as light)
+    hint_a = np.empty(n + 1, dtype=np.asarray(weight).dtype)
+    cdef weight_t[::1] hint = hint_a
+    cdef weight_t worst
     if n == 0:
         return out[:0], labels, 0
     if m == 0 or n == 1:
         return out[:0], np.arange(n, dtype=np.int64), n
+    worst = np.asarray(weight).min() if maximize else np.asarray(weight).max()
     with nogil:
-        count = _boruvka(&tail[0], &head[0], &weight[0], n, m, maximize, nt, &o[0], &lb[0],
-                         &nfin)
+        count = _boruvka(&tail[0], &head[0], &weight[0], n, m, maximize, nt, &hint[0], worst,
+                         &o[0], &lb[0], &nfin)
     if count < 0:
         raise MemoryError("boruvka: out of memory for the per-round edge arrays; use "
                           "method='kruskal', which needs less extra memory.")

@@ -360,35 +360,92 @@ cdef Py_ssize_t _filter_kruskal(Rec* a, Py_ssize_t n, int top_bits, const index_
         depth += 1
 
 
+cdef Py_ssize_t _filter_kruskal_buckets(Rec* a, const Py_ssize_t* bounds, int shift,
+                                        int top_bits, const index_t* tail, const index_t* head,
+                                        index_t* parent, uint8_t* rank, int64_t* out,
+                                        Py_ssize_t target, Py_ssize_t threshold) noexcept nogil:
+    """Filter-Kruskal whose first partition is the 2048-way radix split.
+
+    The split is a partition around 2047 pivots (the digit boundaries) at the cost of one
+    scatter.  Buckets are then taken lightest first, as the light side of each partition is in
+    Filter-Kruskal: a bucket is first filtered (records whose endpoints the lighter buckets
+    already joined are dropped) once the scans have started rejecting most edges, then the
+    survivors are radix sorted in cache and scanned; a bucket above ``threshold`` records goes
+    through the pivot recursion instead.  Filtering early buckets, where almost every edge is
+    accepted, would only double the finds, hence the rejection-rate switch; either way the
+    result is plain Kruskal's.
+    """
+    cdef Py_ssize_t b, lo, nb, count = 0, before, scanned = 0, accepted = 0
+    cdef bint filtering = False
+    for b in range(2048):
+        lo = bounds[b]
+        nb = bounds[b + 1] - lo
+        if nb == 0:
+            continue
+        if filtering:
+            nb = _filter(a + lo, nb, tail, head, parent)
+        before = count
+        if nb > threshold:
+            count = _filter_kruskal(a + lo, nb, top_bits, tail, head, parent, rank, out, count,
+                                    target, threshold, 0)
+        else:
+            if nb > 1:
+                sort_bucket(a + lo, nb, shift)
+            count = _scan(a + lo, nb, tail, head, parent, rank, out, count, target)
+        if count >= target:
+            break
+        scanned += nb
+        accepted += count - before
+        # switch the filter on once fewer than half of the recently scanned edges joined trees
+        if not filtering and scanned >= 4096:
+            filtering = 2 * accepted < scanned
+            scanned = 0
+            accepted = 0
+    return count
+
+
 def filter_kruskal(const index_t[::1] tail, const index_t[::1] head, weight,
                    Py_ssize_t n_nodes, bint maximize=False, Py_ssize_t target=-1,
                    int threads=1, Py_ssize_t threshold=0):
     """Filter-Kruskal minimum spanning forest (same parameters and result as kruskal_radix).
 
-    ``threshold`` is the base-case size (0 picks ``max(4096, n_nodes // 2)``, see
-    docs/performance.md).  ``threads`` only speeds up the record fill.
+    ``threshold`` is the size above which a bucket goes through the pivot recursion (0 picks
+    ``max(1 << 16, n_nodes // 2)``).  ``threads`` only speeds up the radix split; the scan is
+    serial.
     """
     cdef Py_ssize_t m = tail.shape[0]
     if target < 0:
         target = max(0, n_nodes - 1)
     if threshold <= 0:
-        threshold = max(4096, n_nodes // 2)
+        threshold = max(1 << 16, n_nodes // 2)
     parent_a, rank_a, out_a = _trivial(np.asarray(tail), np.asarray(head), n_nodes, target)
     cdef index_t[::1] parent = parent_a
     cdef uint8_t[::1] rank = rank_a
     cdef int64_t[::1] out = out_a
     cdef Py_ssize_t count = 0
     cdef uint8_t[::1] r
-    cdef int tb
+    cdef Py_ssize_t[::1] bd
+    cdef int shift, tb
     if m == 0 or n_nodes < 2 or target == 0:
         return out_a[:0], parent_a
-    raw, top_bits = make_records(weight, maximize, threads)
+    if m == 1:
+        return kruskal_radix(tail, head, weight, n_nodes, maximize, target, 1, True)
+    raw, bounds, shift = split_records(weight, maximize, threads)
     r = raw
-    tb = top_bits
+    bd = bounds
+    tb = _top_bits(weight, maximize)
     with nogil:
-        count = _filter_kruskal(<Rec*>&r[0], m, tb, &tail[0], &head[0], &parent[0], &rank[0],
-                                &out[0], 0, target, threshold, 0)
+        count = _filter_kruskal_buckets(<Rec*>&r[0], &bd[0], shift, tb, &tail[0], &head[0],
+                                        &parent[0], &rank[0], &out[0], target, threshold)
     return out_a[:count], parent_a
+
+
+def _top_bits(weight, bint maximize):
+    from fastmst._sort import _scalar_keys
+    kmin, kmax = _scalar_keys(weight, maximize)
+    span = kmax - kmin
+    m = weight.shape[0]
+    return 32 + span.bit_length() if span > 0 else max(1, (m - 1).bit_length())
 
 
 cdef Py_ssize_t _count_touched(const index_t* tail, const index_t* head, Py_ssize_t m,
