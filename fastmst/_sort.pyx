@@ -140,8 +140,8 @@ def make_records(weight, bint maximize=False, int threads=1):
     cdef Rec* out = <Rec*>&r[0]
     cdef uint64_t lo = kmin
     cdef int kind = code
-    cdef uint32_t[::1] b32
-    cdef uint64_t[::1] b64
+    cdef const uint32_t[::1] b32
+    cdef const uint64_t[::1] b64
     if ubits is np.uint32:
         b32 = weight.view(np.uint32)
         with nogil:
@@ -538,8 +538,8 @@ def split_records(weight, bint maximize=False, int threads=1):
     cdef Rec* out = <Rec*>&r[0]
     cdef uint64_t lo = kmin
     cdef int kind = code, tb = top_bits, nt = threads
-    cdef uint32_t[::1] b32
-    cdef uint64_t[::1] b64
+    cdef const uint32_t[::1] b32
+    cdef const uint64_t[::1] b64
     if ubits is np.uint32:
         b32 = weight.view(np.uint32)
         with nogil:

@@ -118,9 +118,20 @@ def build_forest(g: validation.EdgeArrays, edges: np.ndarray, labels: np.ndarray
 
 
 def choose_method(g: validation.EdgeArrays, presorted: bool, threads: int) -> str:
-    """The rule behind ``method="auto"``: Kruskal (sorting dominates and is the fastest route
-    on one machine for every family measured so far)."""
-    return "kruskal"
+    """The rule behind ``method="auto"`` (measurements in docs/performance.md).
+
+    * ``presorted=True``: "kruskal", which then scans the edges in input order with no sort;
+    * more than 2**32 - 1 edges: "boruvka" (the radix records hold 32-bit positions; beyond
+      them Kruskal falls back to a comparison sort, while Borůvka needs no sort at all);
+    * otherwise "filter-kruskal": fastest on every graph family and size measured, with one or
+      two threads (its serial scan skips the sort of most edges that close cycles, which beats
+      running the sort of plain Kruskal on a second core on a shared 2-core machine).
+    """
+    if presorted:
+        return "kruskal"
+    if g.n_edges >= MAX_RECORDS:
+        return "boruvka"
+    return "filter-kruskal"
 
 
 def minimum_spanning_forest(tail, head, weight, n_nodes=None, *, method="auto",
