@@ -19,6 +19,10 @@ from fastmst._typedefs cimport index_t, weight_t
 
 cnp.import_array()
 
+#: Edges per thread below which fewer threads are used (each round enters several parallel
+#: regions; on a busy machine each costs a wake-up).  Tests lower it.
+MIN_EDGES_PER_THREAD = 1 << 20
+
 cdef extern from *:
     """
     #include <stdint.h>
@@ -290,7 +294,7 @@ def boruvka(const index_t[::1] tail, const index_t[::1] head, const weight_t[::1
     n_components : int
     """
     cdef Py_ssize_t m = tail.shape[0], n = n_nodes, count = 0, nfin = 0, k = 0
-    cdef int nt = max(1, min(threads, m // 50000 + 1))
+    cdef int nt = max(1, min(threads, m // MIN_EDGES_PER_THREAD + 1))
     dtype = np.int32 if index_t is int32_t else np.int64
     out = np.empty(max(0, n - 1), dtype=np.int64)
     lab = np.empty(n, dtype=dtype)

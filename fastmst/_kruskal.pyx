@@ -104,6 +104,10 @@ from libc.stdint cimport uint32_t
 from fastmst._sort cimport Rec, rec_less, prefetch, sort_bucket, sort_records
 from fastmst._sort import MAX_RECORDS, make_records, split_records
 
+#: Below this many edges the sort/scan pipeline of kruskal_radix runs on one thread (too short
+#: to pay for waking a second one).  Tests lower it to run the parallel code on small graphs.
+MIN_EDGES_PIPELINE = 1 << 22
+
 
 cdef Py_ssize_t _scan(const Rec* a, Py_ssize_t n, const index_t* tail, const index_t* head,
                       index_t* parent, uint8_t* rank, int64_t* out, Py_ssize_t count,
@@ -267,6 +271,8 @@ def kruskal_radix(const index_t[::1] tail, const index_t[::1] head, weight,
     r = raw
     bd = bounds
     wave = max(1 << 16, m // 64)
+    if m < MIN_EDGES_PIPELINE:
+        threads = 1
     with nogil:
         count = _kruskal_buckets(<Rec*>&r[0], &bd[0], shift, &tail[0], &head[0], &parent[0],
                                  &rank[0], &out[0], target, wave, threads)

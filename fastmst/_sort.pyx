@@ -37,6 +37,10 @@ cnp.import_array()
 RECORD_DTYPE = np.dtype([("key", "<u8"), ("pos", "<u4")], align=False)
 #: Largest edge count the 32-bit record positions can hold.
 MAX_RECORDS = 2 ** 32
+#: Edges per extra thread in the fill and split passes: below it, waking a thread (which on a
+#: busy shared machine can wait for a scheduler slice) costs more than it saves.  Tests lower it
+#: to run the parallel code on small graphs.
+MIN_EDGES_PER_THREAD = 1 << 21
 
 ctypedef fused ukey_t:
     uint32_t
@@ -134,6 +138,7 @@ def make_records(weight, bint maximize=False, int threads=1):
     raw = np.empty(12 * m, dtype=np.uint8)
     if m == 0:
         return raw, 0
+    threads = max(1, min(threads, m // MIN_EDGES_PER_THREAD + 1))
     code, ubits = _kind_and_bits(weight)
     kmin, kmax = _scalar_keys(weight, maximize)
     cdef uint8_t[::1] r = raw
@@ -528,7 +533,7 @@ def split_records(weight, bint maximize=False, int threads=1):
     kmin, kmax = _scalar_keys(weight, maximize)
     span = kmax - kmin
     top_bits = 32 + span.bit_length() if span > 0 else max(1, (m - 1).bit_length())
-    threads = max(1, min(threads, m // 65536 + 1))
+    threads = max(1, min(threads, m // MIN_EDGES_PER_THREAD + 1))
     raw = np.empty(12 * m, dtype=np.uint8)
     bounds = np.empty(2049, dtype=np.intp)
     hist = np.empty(threads * 2048, dtype=np.intp)

@@ -18,6 +18,18 @@ METHODS = ["kruskal", "filter-kruskal", "boruvka"]
 THREADS = [1, 2, 3, 4]
 
 
+@pytest.fixture(autouse=True)
+def parallel_on_small_graphs(monkeypatch):
+    """Run the parallel code paths even on the small graphs of these tests (the kernels
+    normally keep one thread below a few million edges)."""
+    import fastmst._boruvka
+    import fastmst._kruskal
+    import fastmst._sort
+    monkeypatch.setattr(fastmst._sort, "MIN_EDGES_PER_THREAD", 1)
+    monkeypatch.setattr(fastmst._kruskal, "MIN_EDGES_PIPELINE", 1)
+    monkeypatch.setattr(fastmst._boruvka, "MIN_EDGES_PER_THREAD", 1)
+
+
 def rule_rank(weight):
     """Rank of every edge in the (weight, position) order, by NumPy's stable sort.
 
