@@ -344,7 +344,8 @@ cdef Py_ssize_t _filter_kruskal(Rec* a, Py_ssize_t n, int top_bits, const index_
     """Filter-Kruskal (Osipov, Sanders and Singler, ALENEX 2009) on records ``a[:n]``.
 
     Partition around a pivot; recurse on the light side; drop heavy records whose endpoints
-    the light side already joined; recurse on the survivors.  Below ``threshold`` records (or
+    the light side already joined; recurse on the survivors (the paper's scheme, used here
+    for buckets too large for the cache-resident base case).  Below ``threshold`` records (or
     past a recursion depth of 64, against adversarial pivots) radix sort and scan.  The
     composite (key, position) order is total, so the result is exactly plain Kruskal's.
     """
@@ -377,8 +378,8 @@ cdef Py_ssize_t _filter_kruskal_buckets(Rec* a, const Py_ssize_t* bounds, int sh
     Filter-Kruskal: a bucket is first filtered (records whose endpoints the lighter buckets
     already joined are dropped) once the scans have started rejecting most edges, then the
     survivors are radix sorted in cache and scanned; a bucket above ``threshold`` records goes
-    through the pivot recursion instead.  Filtering early buckets, where almost every edge is
-    accepted, would only double the finds, hence the rejection-rate switch; either way the
+    through the pivot recursion instead.  Filtering buckets where many edges are still
+    accepted would only double the finds, hence the acceptance-rate switch; either way the
     result is plain Kruskal's.
     """
     cdef Py_ssize_t b, lo, nb, count = 0, before, scanned = 0, accepted = 0
@@ -402,9 +403,12 @@ cdef Py_ssize_t _filter_kruskal_buckets(Rec* a, const Py_ssize_t* bounds, int sh
             break
         scanned += nb
         accepted += count - before
-        # switch the filter on once fewer than half of the recently scanned edges joined trees
-        if not filtering and scanned >= 4096:
-            filtering = 2 * accepted < scanned
+        # Filter while fewer than a quarter of the recently scanned edges join two trees: the
+        # filter costs about one scan, a scanned edge about a scan plus a sort, and the sort
+        # of a bucket in cache is cheaper than the scattered finds (measured; see
+        # docs/performance.md), so the filter pays below roughly that rate.
+        if scanned >= 8192:
+            filtering = 4 * accepted < scanned
             scanned = 0
             accepted = 0
     return count
