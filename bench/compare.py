@@ -122,7 +122,7 @@ def run(sizes: str, threads, reps_override=None, only=None):
     rows = []
     run_fns = runners(threads)
     for name, family, kw, pre, reps in cases(sizes):
-        if only and only not in name:
+        if only and not any(part.strip() in name for part in only.split(",")):
             continue
         reps = reps_override or reps
         tail, head, weight, n = gen.FAMILIES[family](**kw)
@@ -237,7 +237,7 @@ def main(argv=None):
     p.add_argument("--sizes", choices=("quick", "full"), default="quick")
     p.add_argument("--reps", type=int, default=None, help="repetitions per case")
     p.add_argument("--threads", type=int, default=None, help="fastmst threads (default all)")
-    p.add_argument("--only", default=None, help="run only cases whose name contains this")
+    p.add_argument("--only", default=None, help="run only cases whose name contains one of these comma-separated strings")
     p.add_argument("--plot", default=None, metavar="FILE.png")
     p.add_argument("--json", default=None, metavar="FILE.json")
     a = p.parse_args(argv)
