@@ -41,6 +41,8 @@ MAX_RECORDS = 2 ** 32
 #: busy shared machine can wait for a scheduler slice) costs more than it saves.  Tests lower it
 #: to run the parallel code on small graphs.
 MIN_EDGES_PER_THREAD = 1 << 21
+_RADIX_DTYPES = {np.dtype(t) for t in (np.float32, np.float64, np.int32, np.int64, np.uint32,
+                                       np.uint64)}
 
 ctypedef fused ukey_t:
     uint32_t
@@ -430,16 +432,20 @@ def first_unsorted(const weight_t[::1] weight, bint descending=False):
 def edge_order(weight, bint descending=False, int threads=1):
     """Positions sorted by (weight, position); weight descending when ``descending``.
 
-    ``weight`` is a validated kernel array (contiguous, native, a kernel dtype, no NaN).
-    ``-0.0`` and ``+0.0`` tie.  Radix sorted (see the module notes); beyond 2**32 edges the
-    stable NumPy sort is used instead.
+    ``weight`` holds no NaN.  ``-0.0`` and ``+0.0`` tie.  Kernel dtypes (float32/64,
+    int32/64, uint32/64) are radix sorted (see the module notes; non-contiguous or
+    byte-swapped input is copied first); other dtypes, and more than 2**32 - 1 edges, use the
+    stable NumPy sort.
 
     Returns
     -------
     order : ndarray of shape (E,), dtype=int64
     """
+    weight = np.asarray(weight)
     cdef Py_ssize_t m = weight.shape[0]
-    if m >= MAX_RECORDS:
+    if weight.dtype.newbyteorder("=") in _RADIX_DTYPES:
+        weight = np.ascontiguousarray(weight, dtype=weight.dtype.newbyteorder("="))
+    if m >= MAX_RECORDS or weight.dtype not in _RADIX_DTYPES:
         w = weight + 0 if weight.dtype.kind == "f" else weight  # -0.0 + 0 is +0.0
         if not descending:
             return np.argsort(w, kind="stable").astype(np.int64, copy=False)
