@@ -40,10 +40,16 @@ class SpanningForest:
         True for a maximum spanning forest.
     method : str
         The algorithm that ran ("kruskal", "boruvka", ...).
+    required_excess : float
+        What the ``required`` edges of ``minimum_spanning_forest`` cost: this forest's weight
+        minus that of the optimal forest without the requirement (the reverse when maximizing),
+        so always >= 0; 0.0 when nothing was required.
     """
 
     __slots__ = ("edges", "tail", "head", "weights", "n_nodes", "n_edges", "n_components",
                  "labels", "maximize", "method", "_weight", "__dict__")
+
+    required_excess = 0.0
 
     def __init__(self, edges, tail, head, weights, n_nodes, n_edges, n_components, labels,
                  maximize=False, method=""):
@@ -101,6 +107,98 @@ class SpanningForest:
         return g
 
 
+    def bottleneck(self, a, b, *, threads=None):
+        """Heaviest edge on the forest path between nodes ``a`` and ``b`` (minimax queries).
+
+        Parameters
+        ----------
+        a, b : int or array_like of int
+            Node ids in ``[0, n_nodes)``; arrays of one shape (or broadcastable) give many pairs.
+        threads : int, optional
+            Worker threads; None or <= 0 means every available core (same answer either way).
+
+        Returns
+        -------
+        weight : ndarray of float64, shape of the broadcast pairs
+            The heaviest edge weight on the tree path: the minimax path value between the two
+            nodes over the whole graph.  inf for nodes in different components, -inf for a node
+            with itself.  For a maximum forest, the lightest edge on the path (the maximin, or
+            widest-path, value); then -inf across components and inf for a node with itself.
+        position : ndarray of int64, same shape
+            Input position of that edge (the tie-rule-heaviest among equal weights); -1 when
+            there is none.  For a forest solved with ``required``/``excluded`` edges the values
+            are those of its own tree paths, not minimax values of the whole graph.
+
+        Notes
+        -----
+        The lowest common ancestor of the two nodes in the forest's merge tree, by range maxima
+        over its leaf order: O(V) to build once (cached on the forest), then O(1) per pair.
+
+        Examples
+        --------
+        >>> import fastmst
+        >>> f = fastmst.minimum_spanning_forest([0, 1, 2, 0], [1, 2, 3, 3], [1.0, 4.0, 2.0, 3.0])
+        >>> w, p = f.bottleneck([0, 1, 0], [2, 3, 0])
+        >>> w.tolist(), p.tolist()
+        ([3.0, 3.0, -inf], [3, 3, -1])
+        """
+        from fastmst.bottleneck import bottleneck
+        return bottleneck(self, a, b, threads)
+
+    def add_edges(self, tail, head, weight, n_nodes=None) -> "SpanningForest":
+        """Optimal forest of the old graph plus new edges, from this forest and the new edges.
+
+        The new edges get positions ``n_edges, n_edges + 1, ...``; node ids may extend past
+        ``n_nodes`` (or pass ``n_nodes``).  By the cycle property an edge left out of this
+        forest stays out, so only the F forest edges and the K new ones are solved: O((F + K)
+        log(F + K)).  The result is identical to a full solve of the combined graph, tie rule
+        included, and keeps ``maximize`` and any ``required`` edges of this forest (the
+        excluded ones are not in it to begin with).
+
+        Examples
+        --------
+        >>> import fastmst
+        >>> f = fastmst.minimum_spanning_forest([0, 1], [1, 2], [1.0, 5.0])
+        >>> g = f.add_edges([0], [2], [2.0])
+        >>> g.edges.tolist(), g.weight
+        ([0, 2], 3.0)
+        """
+        from fastmst.update import add_edges
+        return add_edges(self, tail, head, weight, n_nodes)
+
+    def clusters(self, k=None, threshold=None):
+        """Single-linkage flat clusters: labels after cutting the heaviest forest edges.
+
+        Parameters
+        ----------
+        k : int, optional
+            Number of clusters, ``n_components <= k <= n_nodes``: the ``k - n_components``
+            heaviest forest edges are cut (``k - 1`` for a connected graph), in tie-rule order.
+        threshold : float, optional
+            Cut every forest edge heavier than ``threshold`` (like ``fcluster(...,
+            criterion="distance")``).  Pass exactly one of ``k`` and ``threshold``.
+
+        Returns
+        -------
+        labels : ndarray of shape (n_nodes,), dtype=int64
+            Cluster ids 0..k-1 in order of first appearance.
+
+        Notes
+        -----
+        For a maximum forest (weights are similarities) the lightest edges are cut instead, and
+        ``threshold`` cuts every edge lighter than it.
+
+        Examples
+        --------
+        >>> import fastmst
+        >>> f = fastmst.minimum_spanning_forest([0, 1, 2], [1, 2, 3], [0.5, 9.0, 1.0])
+        >>> f.clusters(k=2).tolist(), f.clusters(threshold=0.7).tolist()
+        ([0, 0, 1, 1], [0, 0, 1, 2])
+        """
+        from fastmst.linkage import clusters
+        return clusters(self, k, threshold)
+
+
 def _rule_order(weights: np.ndarray, maximize: bool) -> np.ndarray:
     """Order of ``weights`` by the tie rule (the array must already be in position order)."""
     return edge_order(weights, maximize)
@@ -135,7 +233,8 @@ def choose_method(g: validation.EdgeArrays, presorted: bool, threads: int) -> st
 
 
 def minimum_spanning_forest(tail, head, weight, n_nodes=None, *, method="auto",
-                            presorted=False, maximize=False, threads=None) -> SpanningForest:
+                            presorted=False, maximize=False, threads=None, required=None,
+                            excluded=None) -> SpanningForest:
     """Minimum (or maximum) spanning forest of an undirected edge list.
 
     Parameters
@@ -158,6 +257,10 @@ def minimum_spanning_forest(tail, head, weight, n_nodes=None, *, method="auto",
         Return the maximum spanning forest instead.
     threads : int, optional
         Worker threads for the parallel methods; None or <= 0 means every available core.
+    required, excluded : array_like of int or boolean mask of shape (E,), optional
+        Positions that must be in the forest (joined first; a cycle among them is a ValueError
+        naming its edges) and positions that may not be.  The result is the optimal forest that
+        respects both, and its ``required_excess`` says what the requirement cost.
 
     Returns
     -------
@@ -184,6 +287,11 @@ def minimum_spanning_forest(tail, head, weight, n_nodes=None, *, method="auto",
     >>> f.edges.tolist(), f.weight, f.n_components
     ([0, 2, 3], 7.0, 1)
     """
+    if required is not None or excluded is not None:
+        from fastmst.constraints import constrained_forest
+        return constrained_forest(tail, head, weight, n_nodes, required=required,
+                                  excluded=excluded, method=method, presorted=presorted,
+                                  maximize=maximize, threads=threads)
     g = validation.validate_edges(tail, head, weight, n_nodes, func=_FUNC)
     method = validation.check_choice(method, METHODS, "method", _FUNC)
     presorted = validation.check_bool(presorted, "presorted", _FUNC)

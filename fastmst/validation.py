@@ -250,3 +250,119 @@ def check_positions(positions, n_edges: int, name: str, func: str) -> np.ndarray
         raise ValueError(f"{func}: {name}[{bad[0]}] = {arr[bad[0]]} is not an edge position; "
                          f"expected positions in [0, {n_edges}).")
     return arr.astype(np.int64)
+
+
+# --- Files and tables (used by fastmst.io and the command line) -------------------------------
+
+class FileFormatError(ValueError):
+    """A malformed input file or table; the message names the source and the line or row."""
+
+
+def check_column(name, present, source: str, role: str, func: str) -> str:
+    """``name`` must be one of the ``present`` column names of ``source``."""
+    if not isinstance(name, str):
+        raise TypeError(f"{func}: the {role} column must be given by name (a string), received "
+                        f"{type(name).__name__} {name!r}.")
+    if name not in present:
+        listed = ", ".join(map(repr, present)) or "none"
+        raise FileFormatError(f"{source}: no column {name!r} for the {role}; the columns present "
+                              f"are {listed}. Pick one of them (CLI: --{role} COLUMN).")
+    return name
+
+
+def check_no_missing(missing: np.ndarray, column: str, source: str, where, func: str) -> None:
+    """Raise naming the first True entry of the boolean ``missing`` (``where(i)`` words it)."""
+    if missing.size and missing.any():
+        first = int(np.flatnonzero(missing)[0])
+        raise FileFormatError(f"{source}: {where(first)}: column {column!r} is empty or missing "
+                              f"({int(missing.sum())} such rows in all); every edge needs a "
+                              f"value there. Fill or drop those rows.")
+
+
+def check_unique_labels(labels: np.ndarray, column: str, source: str, where) -> None:
+    """Node labels of a node table must be unique."""
+    order = np.argsort(labels, kind="stable")
+    s = labels[order]
+    dup = np.flatnonzero(s[1:] == s[:-1])
+    if dup.size:
+        a, b = sorted((int(order[dup[0]]), int(order[dup[0] + 1])))
+        raise FileFormatError(f"{source}: node {s[dup[0]]!r} in column {column!r} appears twice "
+                              f"({where(a)} and {where(b)}); node ids must be unique. Remove the "
+                              f"duplicate rows.")
+
+
+# --- checks of the network-design toolkit (check_forest, sensitivity, bottleneck, clusters) ---
+
+def check_unique_positions(pos: np.ndarray, n_edges: int, name: str, func: str) -> np.ndarray:
+    """Reject repeated positions in an edge set (``pos`` from check_positions); return the
+    boolean membership mask of shape (n_edges,)."""
+    mask = np.zeros(n_edges, dtype=bool)
+    mask[pos] = True
+    if np.count_nonzero(mask) != pos.size:
+        order = np.argsort(pos, kind="stable")
+        s = pos[order]
+        dup = np.flatnonzero(s[1:] == s[:-1])
+        i, j = sorted((int(order[dup[0]]), int(order[dup[0] + 1])))
+        raise ValueError(f"{func}: {name}[{j}] = {pos[j]} repeats {name}[{i}]; an edge set "
+                         f"lists each edge position once. Deduplicate with np.unique({name}).")
+    return mask
+
+
+def check_node_pairs(a, b, n_nodes: int, func: str):
+    """Node ids of query pairs: two broadcastable integer arrays with ids in [0, n_nodes).
+
+    Returns (a, b, shape) with a and b flattened to contiguous int64 arrays.
+    """
+    arrs = []
+    for name, x in (("a", a), ("b", b)):
+        if x is None:
+            raise TypeError(f"{func}: {name} is None; expected node ids (an integer or an array "
+                            f"of integers).")
+        arr = np.asarray(x)
+        if arr.dtype.kind not in "iu" and not (arr.size == 0 and arr.dtype.kind == "f"):
+            raise TypeError(f"{func}: {name} has dtype {arr.dtype}; expected integer node ids "
+                            f"0..n_nodes-1. Convert with np.asarray({name}).astype(np.int64).")
+        arrs.append(arr)
+    try:
+        a2, b2 = np.broadcast_arrays(*arrs)
+    except ValueError:
+        raise ValueError(f"{func}: a and b must have one shape (or broadcast to one), received "
+                         f"shapes {arrs[0].shape} and {arrs[1].shape}.") from None
+    shape = a2.shape
+    out = []
+    for name, arr in (("a", a2), ("b", b2)):
+        flat = np.ascontiguousarray(arr.reshape(-1), dtype=np.int64)
+        if flat.size:
+            bad = np.flatnonzero((flat < 0) | (flat >= n_nodes))
+            if bad.size:
+                raise ValueError(f"{func}: {name} holds node id {flat[bad[0]]} (at flat index "
+                                 f"{bad[0]}); expected ids in [0, {n_nodes}) for this forest of "
+                                 f"{n_nodes} nodes.")
+        out.append(flat)
+    return out[0], out[1], shape
+
+
+def check_cluster_count(k, low: int, high: int, func: str) -> int:
+    """Number of clusters k, an integer in [low, high]."""
+    if isinstance(k, (bool, np.bool_)) or not isinstance(k, (int, np.integer)):
+        raise TypeError(f"{func}: k must be an integer number of clusters, received "
+                        f"{type(k).__name__} {k!r}.")
+    k = int(k)
+    if not low <= k <= high:
+        why = (f" (the graph already has {low} connected components, and each is at least one "
+               f"cluster)" if low > 1 else "")
+        raise ValueError(f"{func}: k = {k} is out of range; expected {low} <= k <= {high}, the "
+                         f"number of nodes{why}.")
+    return k
+
+
+def check_real(value, name: str, func: str) -> float:
+    """A real number (not NaN), e.g. a cut threshold."""
+    if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, float, np.integer,
+                                                                   np.floating)):
+        raise TypeError(f"{func}: {name} must be a real number, received "
+                        f"{type(value).__name__} {value!r}.")
+    v = float(value)
+    if v != v:
+        raise ValueError(f"{func}: {name} is NaN; expected a real number.")
+    return v

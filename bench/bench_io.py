@@ -1,0 +1,126 @@
+"""Edge-list CSV reading: fastmst.io.read_edges against a bare pyarrow.csv.read_csv.
+
+Writes a random edge list (default 10M edges over 1M nodes, float weights) as CSV, then times,
+alternating and best of ``--repeat``:
+
+* ``pyarrow.csv.read_csv(path)``: parsing only, the floor for any CSV reader built on pyarrow;
+* ``fastmst.io.read_edges(path)``: parsing plus everything a solver needs (columns chosen,
+  nulls and NaN checked, node labels mapped to compact ids, NumPy arrays out).
+
+Goal: read_edges within 1.3x of the bare read.  Speed is a ratio measured side by side in one
+process; the machines are shared and noisy, so compare ratios, not seconds.
+
+    python bench/bench_io.py                       # 10M edges, integer ids
+    python bench/bench_io.py --labels str          # text labels ("n123456")
+    python bench/bench_io.py --edges 1000000 --json
+"""
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import sys
+import tempfile
+import time
+
+import numpy as np
+
+
+def make_csv(path, n_edges, n_nodes, labels, seed=0):
+    import pyarrow as pa
+    import pyarrow.csv as pcsv
+    rng = np.random.default_rng(seed)
+    t = rng.integers(0, n_nodes, n_edges)
+    h = rng.integers(0, n_nodes, n_edges)
+    w = np.round(rng.random(n_edges) * 1000, 3)
+    if labels == "sparse":   # map-style 64-bit ids, far apart
+        ids = np.int64(2**40) + np.arange(n_nodes, dtype=np.int64) * 1_000_003
+        cols = {"tail": pa.array(ids[t]), "head": pa.array(ids[h])}
+    elif labels == "str":
+        names = np.char.add("n", np.arange(n_nodes).astype(str))
+        cols = {"tail": pa.array(names[t]), "head": pa.array(names[h])}
+    else:
+        cols = {"tail": pa.array(t), "head": pa.array(h)}
+    cols["weight"] = pa.array(w)
+    pcsv.write_csv(pa.table(cols), path)
+
+
+def timed(fn):
+    """(wall seconds, CPU seconds of this process, all threads) of one call."""
+    c0, t0 = time.process_time(), time.perf_counter()
+    fn()
+    return time.perf_counter() - t0, time.process_time() - c0
+
+
+def main(argv=None):
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--edges", type=int, default=10_000_000)
+    ap.add_argument("--nodes", type=int, default=1_000_000)
+    ap.add_argument("--labels", choices=("int", "sparse", "str"), default="int")
+    ap.add_argument("--repeat", type=int, default=3)
+    ap.add_argument("--file", help="use (or create) this CSV instead of a temporary one")
+    ap.add_argument("--json", action="store_true")
+    args = ap.parse_args(argv)
+
+    import pyarrow as pa
+    import pyarrow.csv as pcsv
+
+    from fastmst import io
+
+    tmpdir = None
+    path = args.file
+    if path is None:
+        tmpdir = tempfile.mkdtemp(prefix="fastmst-bench-io-")
+        path = os.path.join(tmpdir, "edges.csv")
+    try:
+        if not os.path.exists(path):
+            t0 = time.perf_counter()
+            make_csv(path, args.edges, args.nodes, args.labels)
+            print(f"wrote {path} ({os.path.getsize(path) / 1e6:.0f} MB) in "
+                  f"{time.perf_counter() - t0:.1f} s", file=sys.stderr)
+        same = pcsv.ReadOptions(block_size=io.CSV_BLOCK_SIZE)
+        runs = {"bare": [], "same": [], "ours": []}
+        for _ in range(args.repeat):   # alternate the three so drift hits all alike
+            runs["bare"].append(timed(lambda: pcsv.read_csv(path)))
+            runs["same"].append(timed(lambda: pcsv.read_csv(path, read_options=same)))
+            runs["ours"].append(timed(lambda: io.read_edges(path)))
+        bare, tuned, ours = ([w for w, _ in runs[k]] for k in ("bare", "same", "ours"))
+        cbare, cours = ([c for _, c in runs[k]] for k in ("bare", "ours"))
+        el = io.read_edges(path)
+        res = {"file": path, "bytes": os.path.getsize(path), "edges": el.n_edges,
+               "nodes": el.n_nodes, "labels": args.labels, "repeat": args.repeat,
+               "pyarrow_read_csv_s": min(bare), "read_edges_s": min(ours),
+               "pyarrow_read_csv_same_block_size_s": min(tuned),
+               "ratio": min(ours) / min(bare),
+               "ratio_same_block_size": min(ours) / min(tuned), "goal_ratio": 1.3,
+               "cpu_pyarrow_read_csv_s": min(cbare), "cpu_read_edges_s": min(cours),
+               "cpu_ratio": min(cours) / min(cbare),
+               "loadavg_1min": os.getloadavg()[0],
+               "pyarrow": pa.__version__, "cpus": len(os.sched_getaffinity(0))
+               if hasattr(os, "sched_getaffinity") else os.cpu_count(),
+               "all_pyarrow_s": bare, "all_pyarrow_same_block_size_s": tuned,
+               "all_read_edges_s": ours}
+    finally:
+        if tmpdir is not None:
+            for f in os.listdir(tmpdir):
+                os.unlink(os.path.join(tmpdir, f))
+            os.rmdir(tmpdir)
+    if args.json:
+        print(json.dumps(res, indent=2))
+    else:
+        print(f"{res['edges']:,} edges, {res['nodes']:,} nodes, {args.labels} labels, "
+              f"{res['bytes'] / 1e6:.0f} MB, best of {args.repeat}")
+        print(f"  pyarrow.csv.read_csv   {res['pyarrow_read_csv_s']:.3f} s")
+        print(f"  pyarrow, same blocks   {res['pyarrow_read_csv_same_block_size_s']:.3f} s "
+              f"(block_size={io.CSV_BLOCK_SIZE >> 20} MiB, as read_edges uses)")
+        print(f"  fastmst.io.read_edges  {res['read_edges_s']:.3f} s")
+        print(f"  ratio                  {res['ratio']:.2f}x vs the bare default read "
+              f"(goal <= 1.3x), {res['ratio_same_block_size']:.2f}x vs the same block size")
+        print(f"  CPU time (all threads) {res['cpu_read_edges_s']:.3f} s vs "
+              f"{res['cpu_pyarrow_read_csv_s']:.3f} s: {res['cpu_ratio']:.2f}x "
+              f"(load average {res['loadavg_1min']:.1f} on {res['cpus']} cores)")
+    return res
+
+
+if __name__ == "__main__":
+    main()

@@ -1,0 +1,64 @@
+"""Progress display for the command line: rich bars on a terminal, nothing otherwise.
+
+``Reporter(enabled=False)`` is a no-op with the same interface, so library code can report
+progress without caring whether anyone watches.  Every phase is also timed, for the summary.
+"""
+from __future__ import annotations
+
+import sys
+import time
+from contextlib import contextmanager
+
+
+class Reporter:
+    """Timed phases, shown as progress bars on stderr when ``enabled``."""
+
+    def __init__(self, enabled: bool):
+        self.enabled = bool(enabled)
+        self.times: dict[str, float] = {}
+        self._progress = None
+        if self.enabled:
+            try:
+                from rich.console import Console
+                from rich.progress import (BarColumn, DownloadColumn, Progress, SpinnerColumn,
+                                           TextColumn, TimeElapsedColumn)
+            except ImportError:  # rich is in the "cli" extra; without it, no bars
+                self.enabled = False
+            else:
+                self._progress = Progress(SpinnerColumn(), TextColumn("{task.description}"),
+                                          BarColumn(), DownloadColumn(), TimeElapsedColumn(),
+                                          console=Console(file=sys.stderr), transient=True)
+
+    @classmethod
+    def for_terminal(cls, quiet: bool) -> "Reporter":
+        """Bars only when stderr is a terminal and ``quiet`` is off."""
+        return cls(not quiet and sys.stderr.isatty())
+
+    def __enter__(self):
+        if self._progress is not None:
+            self._progress.start()
+        return self
+
+    def __exit__(self, *exc):
+        if self._progress is not None:
+            self._progress.stop()
+        return False
+
+    @contextmanager
+    def phase(self, name: str, total: int | None = None):
+        """Time a phase; yields ``update(done, total)`` for a bar (a spinner without totals)."""
+        task = None
+        if self._progress is not None:
+            task = self._progress.add_task(name, total=total)
+
+        def update(done, total=None):
+            if task is not None:
+                self._progress.update(task, completed=done, total=total)
+
+        start = time.perf_counter()
+        try:
+            yield update
+        finally:
+            self.times[name] = self.times.get(name, 0.0) + time.perf_counter() - start
+            if task is not None:
+                self._progress.remove_task(task)

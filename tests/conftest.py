@@ -1,0 +1,77 @@
+"""Shared test configuration: a deterministic hypothesis profile and small graph helpers."""
+import numpy as np
+from hypothesis import HealthCheck, settings
+
+# Deterministic profile: the same examples on every run and machine, no wall-clock deadline
+# (the machines are shared and noisy; speed is measured in bench/, never asserted here).
+settings.register_profile(
+    "fastmst",
+    deadline=None,
+    derandomize=True,
+    max_examples=60,
+    suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large],
+    print_blob=True,
+)
+settings.load_profile("fastmst")
+
+
+def reference_kruskal(tail, head, weight, n_nodes, maximize=False):
+    """The tie rule written out directly: scan edges by (weight, position) with a plain dict DSU.
+
+    Used only to state the tie rule in the simplest possible code; outside references (SciPy,
+    networkx) check the optimality itself.
+    """
+    parent = list(range(n_nodes))
+
+    def find(x):
+        while parent[x] != x:
+            parent[x] = parent[parent[x]]
+            x = parent[x]
+        return x
+
+    sign = -1 if maximize else 1
+    order = sorted(range(len(weight)), key=lambda i: (sign * weight[i], i))
+    chosen = []
+    for i in order:
+        a, b = find(int(tail[i])), find(int(head[i]))
+        if a != b:
+            parent[a] = b
+            chosen.append(i)
+    return chosen
+
+
+def assert_is_spanning_forest(f, tail, head, n_nodes):
+    """Invariants of every result: acyclic, n_nodes - n_components edges, labels match SciPy."""
+    from scipy.sparse import coo_array
+    from scipy.sparse.csgraph import connected_components
+
+    tail = np.asarray(tail, dtype=np.int64)
+    head = np.asarray(head, dtype=np.int64)
+    edges = f.edges
+    assert edges.dtype == np.int64
+    assert len(set(edges.tolist())) == len(edges)
+    assert len(edges) == n_nodes - f.n_components
+    # Acyclic: adding the forest edges one by one never closes a cycle.
+    parent = list(range(n_nodes))
+
+    def find(x):
+        while parent[x] != x:
+            parent[x] = parent[parent[x]]
+            x = parent[x]
+        return x
+
+    for e in edges.tolist():
+        a, b = find(int(tail[e])), find(int(head[e]))
+        assert a != b, f"forest edge {e} closes a cycle"
+        parent[a] = b
+    # Components: scipy.sparse.csgraph.connected_components on the whole graph (reference).
+    if n_nodes:
+        g = coo_array((np.ones(len(tail)), (tail, head)), shape=(n_nodes, n_nodes))
+        k, ref = connected_components(g, directed=False)
+        assert f.n_components == k
+        # Same partition up to relabelling: labels map one-to-one onto SciPy's.
+        pairs = set(zip(f.labels.tolist(), ref.tolist()))
+        assert len(pairs) == k
+        # Ours are numbered by first appearance.
+        first = np.unique(f.labels, return_index=True)[1]
+        assert np.all(np.diff(first) > 0)

@@ -1,0 +1,444 @@
+"""Files, tables and adapters: round trips, label mapping, geometry weights, malformed input.
+
+References are named beside each check.  The small graphs here are test fixtures, not demo data.
+"""
+from __future__ import annotations
+
+import json
+import math
+import os
+
+import networkx as nx
+import numpy as np
+import pyarrow as pa
+import pytest
+import scipy.io
+from scipy import sparse
+
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from fastmst import io
+from fastmst.geodesy import EARTH_RADIUS_M, haversine_m
+from fastmst.validation import FileFormatError
+
+# A labelled test graph: two components, a zero weight, a negative weight, parallel edges.
+LINKS = [("alpha", "bravo", 4.0), ("bravo", "charlie", 0.0), ("charlie", "alpha", 2.5),
+         ("alpha", "bravo", 1.0), ("delta", "echo", -3.0), ("echo", "foxtrot", 7.0),
+         ("foxtrot", "delta", 7.0), ("charlie", "golf", 5.5)]
+
+
+def _write_csv(path, header, rows, sep=","):
+    with open(path, "w", encoding="utf-8") as fh:
+        fh.write(sep.join(header) + "\n")
+        for r in rows:
+            fh.write(sep.join(str(x) for x in r) + "\n")
+    return path
+
+
+def _nx_mst_weight(triples):
+    """Reference: networkx minimum spanning forest weight of a labelled (multi)graph."""
+    g = nx.MultiGraph()
+    for u, v, w in triples:
+        g.add_edge(u, v, weight=w)
+    return sum(e[-1]["weight"] for e in nx.minimum_spanning_edges(g, data=True))
+
+
+def _triples(el: io.EdgeList):
+    t, h = el.label(el.tail).tolist(), el.label(el.head).tolist()
+    return list(zip(t, h, el.weight.tolist()))
+
+
+# --- reading and round trips ----------------------------------------------------------------------
+
+@pytest.mark.parametrize("name", ["g.csv", "g.tsv", "g.csv.gz", "g.csv.zst", "g.parquet", "g.npz"])
+def test_edge_table_round_trip(tmp_path, name):
+    """Writing a labelled edge table and reading it back gives the same labelled edges, and the
+    forest weight matches networkx's minimum spanning forest (reference library)."""
+    table = pa.table({"from": [a for a, _, _ in LINKS], "to": [b for _, b, _ in LINKS],
+                      "cost": [w for _, _, w in LINKS]})
+    path = io.write_table(tmp_path / name, table)
+    el = io.read_edges(path)
+    assert el.columns == ("from", "to", "cost")
+    assert _triples(el) == LINKS
+    assert el.n_nodes == 7
+    assert el.labels.tolist() == sorted({x for a, b, _ in LINKS for x in (a, b)})
+    f = el.solve()
+    # networkx.minimum_spanning_edges (Kruskal) as the reference
+    assert f.weight == pytest.approx(_nx_mst_weight(LINKS))
+    assert f.n_components == 2
+
+
+@pytest.mark.parametrize("name", ["f.csv", "f.tsv", "f.csv.gz", "f.parquet", "f.npz"])
+def test_forest_round_trip(tmp_path, name):
+    """A written forest reads back with the user's labels, weights and input positions."""
+    el = io.from_table(pa.table({"a": [x for x, _, _ in LINKS], "b": [y for _, y, _ in LINKS],
+                                 "w": [w for _, _, w in LINKS]}))
+    f = el.solve()
+    out = io.write_forest(tmp_path / name, f, el)
+    back = pa.table(io._load_table(out, None, "t")[0]) if not name.endswith(".npz") else None
+    again = io.read_edges(out)
+    assert _triples(again) == [(el.label([a])[0], el.label([b])[0], w) for a, b, w in
+                               zip(f.tail, f.head, f.weights.tolist())]
+    if back is not None:
+        assert back.column("position").to_pylist() == f.edges.tolist()
+    else:
+        with np.load(out) as z:
+            assert z["position"].tolist() == f.edges.tolist()
+
+
+def test_geojson_rfc7946(tmp_path):
+    """GeoJSON output is an RFC 7946 FeatureCollection of [lon, lat] LineStrings with labels."""
+    nodes = pa.table({"id": ["p", "q", "r"], "lon": [10.0, 10.5, 11.0], "lat": [50.0, 50.1, 50.0]})
+    el = io.from_table(pa.table({"t": ["p", "q", "p"], "h": ["q", "r", "r"],
+                                 "w": [1.0, 2.0, math.inf]}), nodes=nodes)
+    f = el.solve()
+    io.write_forest(tmp_path / "f.geojson", f, el)
+    doc = json.loads((tmp_path / "f.geojson").read_text())
+    assert doc["type"] == "FeatureCollection"
+    feats = doc["features"]
+    assert [x["geometry"]["type"] for x in feats] == ["LineString"] * 2
+    assert feats[0]["geometry"]["coordinates"] == [[10.0, 50.0], [10.5, 50.1]]
+    assert {(x["properties"]["tail"], x["properties"]["head"]) for x in feats} == \
+        {("p", "q"), ("q", "r")}
+    # A link across the antimeridian is cut at +-180 (RFC 7946, section 3.1.9).
+    fiji = io.from_table(pa.table({"t": ["w"], "h": ["e"], "w": [1.0]}),
+                         nodes=pa.table({"id": ["w", "e"], "lon": [179.0, -179.0],
+                                         "lat": [-17.0, -18.0]}))
+    io.write_forest(tmp_path / "fj.geojson", fiji.solve(), fiji)
+    geom = json.loads((tmp_path / "fj.geojson").read_text())["features"][0]["geometry"]
+    assert geom == {"type": "MultiLineString",
+                    "coordinates": [[[179.0, -17.0], [180.0, -17.5]],
+                                    [[-180.0, -17.5], [-179.0, -18.0]]]}
+    planar = io.from_table(pa.table({"t": [0], "h": [1], "w": [1.0]}),
+                           nodes=pa.table({"id": [0, 1], "x": [0.0, 1.0], "y": [0.0, 0.0]}))
+    with pytest.raises(ValueError, match="RFC 7946.* needs longitude/latitude"):
+        io.write_geojson(tmp_path / "p.geojson", planar.solve(), planar)
+    assert not (tmp_path / "p.geojson").exists()
+
+
+def test_integer_labels_noncontiguous_and_big(tmp_path):
+    """Map-style int64 ids and 1-based ids are compacted in sorted order and mapped back."""
+    big = [2**40 + 7, 3, 2**40 + 7, 912_345_678_901]
+    p = _write_csv(tmp_path / "ids.csv", ["u", "v", "weight"],
+                   [(big[0], big[1], 1), (big[1], big[3], 2), (big[2], big[3], 3)])
+    el = io.read_edges(p)
+    assert el.labels.tolist() == sorted({big[0], big[1], big[3]})
+    assert el.label(el.tail).tolist() == [big[0], big[1], big[2]]
+    assert el.weight.dtype == np.int64
+    one = _write_csv(tmp_path / "one.csv", ["u", "v", "w"], [(1, 2, 1), (2, 3, 1), (5, 3, 2)])
+    el = io.read_edges(one)
+    assert el.labels.tolist() == [1, 2, 3, 5] and el.n_nodes == 4
+    assert el.solve().n_components == 1  # no phantom nodes 0 or 4
+    dense = _write_csv(tmp_path / "d.csv", ["u", "v", "w"], [(0, 1, 1), (1, 2, 1)])
+    assert io.read_edges(dense).labels is None
+    mixed = io.from_table(pa.table({"u": pa.array([5, 9], pa.int32()),
+                                    "v": pa.array([9, 2**40], pa.int64()), "w": [1, 2]}))
+    assert mixed.labels.tolist() == [5, 9, 2**40]  # int32 and int64 columns stay integers
+
+
+def test_default_and_chosen_columns(tmp_path):
+    """Endpoints default to the first two columns, the weight to 'weight', else the third."""
+    p = _write_csv(tmp_path / "c.csv", ["src", "dst", "note", "weight"],
+                   [("a", "b", "x", 5), ("b", "c", "y", 1)])
+    el = io.read_edges(p)
+    assert el.columns == ("src", "dst", "weight") and el.weight.tolist() == [5, 1]
+    el = io.read_edges(p, tail="dst", head="src", weight="weight")
+    assert el.label(el.tail).tolist() == ["b", "c"]
+
+
+def test_weight_length_from_coordinates(tmp_path):
+    """weight='length' gives Euclidean lengths for x/y and great-circle metres for lon/lat,
+    checked against an independent computation with math (spherical law of cosines)."""
+    e = _write_csv(tmp_path / "e.csv", ["a", "b"], [(1, 2), (2, 3)])
+    xy = _write_csv(tmp_path / "xy.csv", ["id", "x", "y"], [(1, 0, 0), (2, 3, 4), (3, 3, 5)])
+    el = io.read_edges(e, weight="length", nodes=xy)
+    assert el.weight.tolist() == [5.0, 1.0]
+    ll = _write_csv(tmp_path / "ll.csv", ["id", "lon", "lat"],
+                    [(1, -0.1276, 51.5072), (2, 2.3522, 48.8566), (3, 13.405, 52.52)])
+    el = io.read_edges(e, weight="length", nodes=ll)
+    assert el.geographic
+
+    def law_of_cosines(lon1, lat1, lon2, lat2):
+        p1, p2, dl = math.radians(lat1), math.radians(lat2), math.radians(lon2 - lon1)
+        c = math.sin(p1) * math.sin(p2) + math.cos(p1) * math.cos(p2) * math.cos(dl)
+        return EARTH_RADIUS_M * math.acos(max(-1.0, min(1.0, c)))
+    expect = [law_of_cosines(-0.1276, 51.5072, 2.3522, 48.8566),
+              law_of_cosines(2.3522, 48.8566, 13.405, 52.52)]
+    assert el.weight == pytest.approx(expect, rel=1e-9)
+
+
+def test_haversine_published_example():
+    """Great-circle distance of the BNA-LAX worked example.
+
+    Source: Rosetta Code, "Haversine formula" task (the example from the Wikipedia article
+    "Great-circle distance"): Nashville BNA (36.12 N, 86.67 W) to Los Angeles LAX (33.94 N,
+    118.40 W) on a sphere of radius 6372.8 km is 2887.2599506 km.  Values recalled from memory.
+    """
+    d = float(haversine_m(-86.67, 36.12, -118.40, 33.94, radius=6_372_800.0))
+    assert d == pytest.approx(2_887_259.9506, abs=0.5)
+    # With the IUGG mean radius the distance scales with the radius (same central angle).
+    d_iugg = float(haversine_m(-86.67, 36.12, -118.40, 33.94))
+    assert d_iugg == pytest.approx(d * EARTH_RADIUS_M / 6_372_800.0, rel=1e-12)
+    # One degree of the equator is 2*pi*R/360 (independent computation with math).
+    assert float(haversine_m(0, 0, 1, 0)) == pytest.approx(2 * math.pi * EARTH_RADIUS_M / 360,
+                                                          rel=1e-12)
+
+
+def test_node_table_keeps_isolated_nodes(tmp_path):
+    """With a node table, compact ids follow its rows, so nodes without edges are isolated."""
+    e = _write_csv(tmp_path / "e.csv", ["a", "b", "w"], [("n2", "n1", 1.0)])
+    n = _write_csv(tmp_path / "n.csv", ["id", "x", "y"], [("n1", 0, 0), ("n2", 1, 0),
+                                                          ("n3", 2, 2)])
+    el = io.read_edges(e, nodes=n)
+    assert el.labels.tolist() == ["n1", "n2", "n3"]
+    assert el.tail.tolist() == [1] and el.head.tolist() == [0]
+    assert el.solve().n_components == 2
+
+
+def test_matrix_market_keeps_explicit_zeros(tmp_path):
+    """.mtx entries are edges, explicit zeros kept; one triangle of a symmetric file is read.
+    Reference: scipy.io.mmread of the same file stores the zero entry."""
+    p = tmp_path / "s.mtx"
+    p.write_text("%%MatrixMarket matrix coordinate real symmetric\n4 4 4\n2 1 0.0\n3 1 2.5\n"
+                 "3 2 1.0\n4 4 9.0\n")
+    ref = scipy.io.mmread(str(p))
+    assert (ref.data == 0).sum() == 2  # stored zero, mirrored
+    el = io.read_edges(p)
+    assert el.n_edges == 4 and el.n_nodes == 4
+    assert sorted(zip(el.label(el.tail).tolist(), el.label(el.head).tolist(),
+                      el.weight.tolist())) == [(2, 1, 0.0), (3, 1, 2.5), (3, 2, 1.0), (4, 4, 9.0)]
+    f = el.solve()
+    assert f.weight == 1.0 and len(f) == 2  # the zero-weight edge is in the forest
+    g = tmp_path / "g.mtx"
+    scipy.io.mmwrite(str(g), sparse.coo_array(([0.0, 3.0], ([0, 1], [1, 2])), shape=(3, 3)))
+    el = io.read_edges(g)
+    assert el.weight.tolist() == [0.0, 3.0] and el.labels.tolist() == [1, 2, 3]
+
+
+def test_dimacs_gr(tmp_path):
+    """DIMACS .gr: 'p sp n m' header, 'a u v w' arcs with 1-based ids, comments skipped."""
+    p = tmp_path / "r.gr"
+    p.write_text("c invented test graph\nc\np sp 4 5\na 1 2 7\na 2 1 7\na 2 3 1\nc mid\n"
+                 "a 3 4 2\na 4 1 3\n")
+    el = io.read_edges(p)
+    assert el.n_nodes == 4 and el.n_edges == 5
+    assert el.tail.tolist() == [0, 1, 1, 2, 3] and el.weight.tolist() == [7, 7, 1, 2, 3]
+    assert el.label([0, 3]).tolist() == [1, 4]
+    triples = _triples(el)
+    assert el.solve().weight == _nx_mst_weight(triples)  # networkx reference
+
+
+_LABELS = st.one_of(
+    st.lists(st.integers(-2**62, 2**62), min_size=1, max_size=8, unique=True),
+    st.lists(st.integers(0, 30), min_size=1, max_size=8, unique=True),
+    st.lists(st.text(min_size=1, max_size=4), min_size=1, max_size=8, unique=True))
+
+
+@settings(deadline=None, derandomize=True, max_examples=40)
+@given(labels=_LABELS, data=st.data())
+def test_labels_map_and_back_property(labels, data):
+    """Any labels (wide or dense integers, text) map to compact ids and back unchanged, and the
+    forest weight equals networkx's on the labelled graph (reference library)."""
+    m = data.draw(st.integers(1, 12))
+    picks = data.draw(st.lists(st.tuples(st.sampled_from(labels), st.sampled_from(labels),
+                                         st.integers(-5, 5)), min_size=m, max_size=m))
+    table = pa.table({"a": [p[0] for p in picks], "b": [p[1] for p in picks],
+                      "w": [float(p[2]) for p in picks]})
+    el = io.from_table(table)
+    assert el.label(el.tail).tolist() == [p[0] for p in picks]
+    assert el.label(el.head).tolist() == [p[1] for p in picks]
+    used = {x for p in picks for x in p[:2]}
+    assert el.n_nodes == len(used)
+    assert el.solve().weight == _nx_mst_weight([(a, b, float(w)) for a, b, w in picks])
+
+
+# --- adapters --------------------------------------------------------------------------------------
+
+def test_from_scipy_symmetric_and_zeros():
+    """Stored entries are edges (explicit zeros kept); symmetric reads one triangle.  Reference:
+    networkx minimum spanning forest of the same edges."""
+    m = sparse.csr_array((np.array([0.0, 0.0, 2.0, 2.0, 5.0, 5.0]),
+                          (np.array([0, 1, 1, 2, 0, 2]), np.array([1, 0, 2, 1, 2, 0]))),
+                         shape=(4, 4))
+    before = m.data.copy()
+    el = io.from_scipy(m)  # auto: the matrix equals its transpose
+    assert el.n_edges == 3 and el.n_nodes == 4
+    assert sorted(el.weight.tolist()) == [0.0, 2.0, 5.0]
+    f = el.solve()
+    assert f.weight == _nx_mst_weight(_triples(el)) == 2.0
+    assert f.n_components == 2
+    assert io.from_scipy(m, symmetric=False).n_edges == 6
+    np.testing.assert_array_equal(m.data, before)  # input not mutated
+    asym = sparse.csr_array(([1.0], ([0], [1])), shape=(2, 2))
+    with pytest.raises(ValueError, match="differs from its transpose"):
+        io.from_scipy(asym, symmetric=True)
+    assert io.from_scipy(asym).n_edges == 1
+    with pytest.raises(TypeError, match="scipy.sparse"):
+        io.from_scipy(np.eye(2))
+
+
+def test_from_table_pandas_and_arrow():
+    """pandas and pyarrow tables give the same EdgeList; the DataFrame is not modified."""
+    import pandas as pd
+    df = pd.DataFrame({"a": [x for x, _, _ in LINKS], "b": [y for _, y, _ in LINKS],
+                       "weight": [w for _, _, w in LINKS]})
+    copy = df.copy()
+    e1 = io.from_table(df)
+    e2 = io.from_table(pa.Table.from_pandas(df))
+    assert _triples(e1) == _triples(e2) == LINKS
+    pd.testing.assert_frame_equal(df, copy)
+    cat = df.astype({"a": "category", "b": "category"})
+    assert _triples(io.from_table(cat)) == LINKS  # pandas categoricals
+    with pytest.raises(TypeError, match="DataFrame or a pyarrow Table"):
+        io.from_table([1, 2, 3])
+
+
+def test_networkx_round_trip():
+    """from_networkx/to_networkx keep labels and isolated nodes; the forest weight equals
+    networkx.minimum_spanning_tree's (reference library)."""
+    g = nx.Graph()
+    for u, v, w in LINKS:
+        if not g.has_edge(u, v) or g[u][v]["weight"] > w:
+            g.add_edge(u, v, weight=w)
+    g.add_node("hotel")
+    el = io.from_networkx(g)
+    assert el.n_nodes == 8
+    f = el.solve()
+    t = io.to_networkx(f, el)
+    ref = nx.minimum_spanning_tree(g)
+    assert set(t.nodes) == set(g.nodes)
+    assert t.size(weight="weight") == pytest.approx(ref.size(weight="weight"))
+    g.add_edge("hotel", "india")
+    with pytest.raises(ValueError, match="no 'weight' attribute"):
+        io.from_networkx(g)
+    assert io.from_networkx(g, default=1.0).n_edges == g.number_of_edges()
+    with pytest.raises(ValueError, match="directed"):
+        io.from_networkx(nx.DiGraph([(0, 1)]))
+
+
+# --- malformed input --------------------------------------------------------------------------------
+
+MALFORMED = {
+    # name: (file name, content, expected message fragment)
+    "missing column": ("m.csv", "a,b,cost\n1,2,3\n", None),
+    "unparsable number": ("u.csv", "a,b,weight\n1,2,3\n2,3,4,5x\n".replace("4,5x", "4.5x"),
+                          r"line 3\): weight '4.5x' in column 'weight' is not a number"),
+    "nan weight": ("n.csv", "a,b,weight\n1,2,3\n2,3,nan\n", r"line 3\).*NaN"),
+    "missing value": ("v.csv", "a,b,weight\n1,2,3\n2,,4\n", r"line 3\).*'b' is empty"),
+    "empty text label": ("t.csv", "a,b,weight\nx,y,3\ny,\"\",4\n", r"line 3\).*'b' is empty"),
+    "empty file": ("e.csv", "", "the file is empty"),
+    "header only": ("h.csv", "a,b,weight\n", "no edges"),
+    "field count": ("f.csv", "a,b,weight\n1,2,3\n2,3\n", "line 3 has 2 fields"),
+    "gr header count": ("c.gr", "p sp 3 3\na 1 2 1\na 2 3 1\n", "says 3 arcs but the file has 2"),
+    "gr arc before header": ("b.gr", "a 1 2 1\np sp 3 1\n", "line 1: an arc before"),
+    "gr id out of range": ("o.gr", "p sp 2 1\na 1 3 1\n", r"line 2: node 3 is outside 1...2"),
+    "gr bad weight": ("w.gr", "p sp 2 1\na 1 2 x\n", "line 2: weight 'x' is not a number"),
+    "npz missing array": ("z.npz", None, "no weight column; the columns present are 'tail', "
+                                         "'head'"),
+    "not parquet": ("p.parquet", "hello", "not a readable Parquet file"),
+    "not gzip": ("g.csv.gz", "a,b,weight\n1,2,3\n", "could not be read .* gzip-compressed"),
+}
+
+
+def _make(tmp_path, name):
+    fname, content, _ = MALFORMED[name]
+    p = tmp_path / fname
+    if content is None:
+        np.savez(p, tail=np.array([0]), head=np.array([1]))
+    else:
+        p.write_text(content)
+    return p
+
+
+@pytest.mark.parametrize("name", sorted(MALFORMED))
+def test_malformed_files(tmp_path, name):
+    """Each malformed file raises FileFormatError naming the file and, where there is one, the
+    line or row and what to fix."""
+    p = _make(tmp_path, name)
+    frag = MALFORMED[name][2]
+    with pytest.raises(FileFormatError) as info:
+        io.read_edges(p, weight="weight" if name == "missing column" else None)
+    msg = str(info.value)
+    assert str(p) in msg
+    if name == "missing column":
+        assert "no column 'weight'" in msg and "'a', 'b', 'cost'" in msg
+    else:
+        assert __import__("re").search(frag, msg), msg
+
+
+def test_bad_number_after_the_first_block(tmp_path):
+    """A bad number far into a large file (beyond pyarrow's type-inference block) is still
+    reported with its line."""
+    p = tmp_path / "big.csv"
+    n = 400_000
+    body = "\n".join(f"{i},{i + 1},1.5" for i in range(n))
+    p.write_text("a,b,weight\n" + body + "\n7,8,oops\n")
+    with pytest.raises(FileFormatError, match=f"line {n + 2}\\): .*'oops' in column 'weight' is "
+                                              f"not a number"):
+        io.read_edges(p)
+
+
+def test_ids_not_in_node_table(tmp_path):
+    """An endpoint missing from the node table is named with its line and the node file."""
+    e = _write_csv(tmp_path / "e.csv", ["a", "b", "w"], [("x", "y", 1), ("y", "zz", 2)])
+    n = _write_csv(tmp_path / "n.csv", ["id", "x", "y"], [("x", 0, 0), ("y", 1, 1)])
+    with pytest.raises(FileFormatError, match=r"line 3\): node 'zz' in column 'b' is not in "
+                                              r"the node table"):
+        io.read_edges(e, nodes=n)
+
+
+def test_bad_node_tables(tmp_path):
+    """Duplicate node ids, swapped lon/lat and missing coordinate columns are named."""
+    dup = _write_csv(tmp_path / "d.csv", ["id", "lon", "lat"], [("a", 0, 0), ("a", 1, 1)])
+    with pytest.raises(FileFormatError, match="appears twice"):
+        io.read_nodes(dup)
+    swapped = _write_csv(tmp_path / "s.csv", ["id", "lon", "lat"], [("a", 45, 120)])
+    with pytest.raises(FileFormatError, match="outside \\[-90, 90\\]"):
+        io.read_nodes(swapped)
+    nocoord = _write_csv(tmp_path / "c.csv", ["id", "p", "q"], [("a", 0, 0)])
+    with pytest.raises(FileFormatError, match="cannot find coordinate columns"):
+        io.read_nodes(nocoord)
+
+
+def test_decimal_ids_and_unknown_suffix(tmp_path):
+    """Decimal node ids and files of unknown format get errors that say what to do."""
+    p = _write_csv(tmp_path / "f.csv", ["a", "b", "w"], [(1.5, 2, 1)])
+    with pytest.raises(FileFormatError, match="decimal numbers"):
+        io.read_edges(p)
+    q = tmp_path / "x.dat"
+    q.write_text("a,b,w\n1,2,3\n")
+    with pytest.raises(ValueError, match="cannot tell the format"):
+        io.read_edges(q)
+    assert io.read_edges(q, format="csv").n_edges == 1
+    with pytest.raises(FileNotFoundError, match="no such file"):
+        io.read_edges(tmp_path / "nope.csv")
+
+
+def test_atomic_write_keeps_old_file(tmp_path):
+    """A failing writer leaves an existing output untouched and no temporary file behind."""
+    out = tmp_path / "forest.csv"
+    out.write_text("old content\n")
+
+    def failing(tmp):
+        with open(tmp, "w") as fh:
+            fh.write("half a fil")
+        raise RuntimeError("disk full (simulated)")
+    with pytest.raises(RuntimeError):
+        io._atomic(out, failing)
+    assert out.read_text() == "old content\n"
+    assert os.listdir(tmp_path) == ["forest.csv"]
+    el = io.from_table(pa.table({"a": [0], "b": [1], "w": [1.0]}))
+    io.write_forest(out, el.solve(), el)
+    assert out.read_text().splitlines()[0] == '"a","b","w","position"'
+    with pytest.raises(FileNotFoundError, match="does not exist"):
+        io.write_forest(tmp_path / "nodir" / "f.csv", el.solve(), el)
+
+
+def test_progress_callback_reports_bytes(tmp_path):
+    """read_edges(progress=...) is called with bytes read up to the file size."""
+    p = _write_csv(tmp_path / "e.csv", ["a", "b", "w"], [(i, i + 1, i) for i in range(2000)])
+    seen = []
+    el = io.read_edges(p, progress=lambda done, total: seen.append((done, total)))
+    assert el.n_edges == 2000
+    assert seen and seen[-1][0] == seen[-1][1] == p.stat().st_size
