@@ -174,6 +174,7 @@ cdef Py_ssize_t _kruskal_buckets(Rec* a, const Py_ssize_t* bounds, int shift,
     """
     cdef Py_ssize_t b, count = 0, w0, w1, n0, n1, lo, hi, nb = 2048
     cdef Py_ssize_t[1] shared_count
+    cdef uint8_t[2048] done
     cdef int tid, nt
     if threads <= 1:
         for b in range(nb):
@@ -186,6 +187,8 @@ cdef Py_ssize_t _kruskal_buckets(Rec* a, const Py_ssize_t* bounds, int shift,
                 break
         return count
     # wave [w0, w1) is sorted and waits to be scanned; [w1, n1) is the next one.
+    for b in range(nb):
+        done[b] = 0
     w0 = 0
     w1 = 0
     shared_count[0] = 0
@@ -207,7 +210,14 @@ cdef Py_ssize_t _kruskal_buckets(Rec* a, const Py_ssize_t* bounds, int shift,
                 while b < n1:
                     if bounds[b + 1] - bounds[b] > 1:
                         sort_bucket(a + bounds[b], bounds[b + 1] - bounds[b], shift)
+                    done[b] = 1
                     b = b + nt - 1
+        # a team smaller than asked for (no OpenMP, or a thread limit) leaves buckets unsorted
+        for b in range(w1, n1):
+            if not done[b]:
+                if bounds[b + 1] - bounds[b] > 1:
+                    sort_bucket(a + bounds[b], bounds[b + 1] - bounds[b], shift)
+                done[b] = 1
         w0 = w1
         w1 = n1
     return shared_count[0]
