@@ -200,19 +200,21 @@ def plot(rows, path):
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
     fig, ax = plt.subplots(figsize=(7, 5))
+    families = sorted({r["family"] for r in rows})
+    colors = {f: plt.cm.tab10(i % 10) for i, f in enumerate(families)}
     for runner, style in (("scipy", "o--"), ("auto", "s-")):
-        for fam in sorted({r["family"] for r in rows}):
+        for fam in families:
             pts = sorted((r["n_edges"], r["seconds"]) for r in rows
                          if r["runner"] == runner and r["family"] == fam)
             if pts:
                 x, y = zip(*pts)
-                ax.plot(x, y, style, label=f"{'SciPy' if runner == 'scipy' else 'fastmst'} "
-                                           f"{fam}")
+                ax.plot(x, y, style, color=colors[fam],
+                        label=f"{'SciPy' if runner == 'scipy' else 'fastmst'} {fam}")
     ax.set_xscale("log")
     ax.set_yscale("log")
     ax.set_xlabel("edges")
     ax.set_ylabel("seconds (median)")
-    ax.set_title("Minimum spanning forest from edge arrays")
+    ax.set_title("Minimum spanning forest from edge arrays (circles SciPy, squares fastmst)")
     ax.legend(fontsize=7, ncol=2)
     ax.grid(True, which="both", alpha=0.3)
     fig.tight_layout()
