@@ -228,7 +228,9 @@ def _exec_with_exact_malloc():
     freed blocks of up to 32 MB resident and reuses them, hiding them from the probe)."""
     if os.environ.get("MALLOC_MMAP_THRESHOLD_") or not sys.platform.startswith("linux"):
         return
-    env = dict(os.environ, MALLOC_MMAP_THRESHOLD_="131072", MALLOC_TRIM_THRESHOLD_="131072")
+    # One OpenBLAS thread: its idle pool spins otherwise (neither side calls BLAS here).
+    env = dict(os.environ, MALLOC_MMAP_THRESHOLD_="131072", MALLOC_TRIM_THRESHOLD_="131072",
+               OPENBLAS_NUM_THREADS=os.environ.get("OPENBLAS_NUM_THREADS", "1"))
     os.execve(sys.executable, [sys.executable] + sys.argv, env)
 
 
