@@ -1,91 +1,325 @@
-"""Borůvka's algorithm under the (weight, position) order."""
+"""Borůvka's algorithm under the (weight, position) order, parallel with OpenMP.
+
+Each round every component picks its lightest incident edge under the total order
+(weight, position) -- an atomic compare-and-swap minimum, so the pick does not depend on which
+thread offers first -- then the picks are hooked into stars, the components are renumbered in
+increasing id order (contraction by relabelling), and the surviving edges (between different new
+components) are compacted, keeping their position order.  Every step is either order-independent
+or serial, so the forest and the labels are identical for every thread count.  The GIL is
+released throughout.  Without OpenMP the same code runs serially.
+"""
 import numpy as np
 cimport numpy as cnp
+from cython.parallel cimport parallel, prange, threadid
 from libc.stdint cimport int32_t, int64_t, uint8_t
+from libc.stdlib cimport free, malloc
+from libc.string cimport memmove
 
 from fastmst._typedefs cimport index_t, weight_t
-from fastmst._dsu cimport dsu_find, dsu_link
 
 cnp.import_array()
 
+#: Edges per thread below which fewer threads are used (each round enters several parallel
+#: regions; on a busy machine each costs a wake-up).  Tests lower it.
+MIN_EDGES_PER_THREAD = 1 << 20
 
-cdef Py_ssize_t _boruvka(const index_t[::1] tail, const index_t[::1] head,
-                         const weight_t[::1] weight, bint maximize,
-                         index_t[::1] parent, uint8_t[::1] rank, int64_t[::1] best,
-                         int64_t[::1] alive, int64_t[::1] out) noexcept nogil:
-    """Serial Borůvka rounds.
-
-    IN: tail, head, weight, maximize.  SCRATCH: best (per root, -1 when empty), alive.
-    OUT: parent/rank (final components), out (accepted positions); returns how many.
-    Edges in ``alive`` stay in increasing position, so a later candidate of equal weight never
-    replaces an earlier one: that is the position tie rule.
+cdef extern from *:
     """
-    cdef Py_ssize_t n = parent.shape[0]
-    cdef Py_ssize_t m = tail.shape[0]
-    cdef Py_ssize_t i, k, n_alive = m, count = 0, merged
-    cdef int64_t e, b
-    cdef index_t ru, rv, v
-    for i in range(m):
-        alive[i] = i
-    while n_alive > 0:
-        k = 0
-        for i in range(n_alive):
-            e = alive[i]
-            ru = dsu_find(&parent[0], tail[e])
-            rv = dsu_find(&parent[0], head[e])
-            if ru == rv:
-                continue
-            alive[k] = e
-            k += 1
-            b = best[ru]
-            if b < 0 or (weight[e] > weight[b] if maximize else weight[e] < weight[b]):
-                best[ru] = e
-            b = best[rv]
-            if b < 0 or (weight[e] > weight[b] if maximize else weight[e] < weight[b]):
-                best[rv] = e
-        n_alive = k
-        merged = 0
-        for i in range(n):
-            e = best[i]
-            if e < 0:
-                continue
-            best[i] = -1
-            ru = dsu_find(&parent[0], tail[e])
-            rv = dsu_find(&parent[0], head[e])
-            if ru != rv:
-                dsu_link(&parent[0], &rank[0], ru, rv)
-                out[count] = e
+    #include <stdint.h>
+    #if defined(__GNUC__) || defined(__clang__)
+    static inline int fastmst_cas64(int64_t* p, int64_t expected, int64_t desired) {
+        return __atomic_compare_exchange_n(p, &expected, desired, 0, __ATOMIC_RELAXED,
+                                           __ATOMIC_RELAXED);
+    }
+    static inline int64_t fastmst_load64(const int64_t* p) {
+        return __atomic_load_n(p, __ATOMIC_RELAXED);
+    }
+    #define FASTMST_LOAD_RELAXED(p, out) __atomic_load((p), (out), __ATOMIC_RELAXED)
+    #define FASTMST_STORE_RELAXED(p, v) __atomic_store((p), (v), __ATOMIC_RELAXED)
+    #define FASTMST_PREFETCH_W(p) __builtin_prefetch((const void*)(p), 1)
+    #else
+    #define FASTMST_LOAD_RELAXED(p, out) (*(out) = *(p))
+    #define FASTMST_STORE_RELAXED(p, v) (*(p) = *(v))
+    #define FASTMST_PREFETCH_W(p) ((void)0)
+    /* No atomics known: only correct single-threaded (the build without OpenMP). */
+    static inline int fastmst_cas64(int64_t* p, int64_t expected, int64_t desired) {
+        if (*p != expected) return 0; *p = desired; return 1;
+    }
+    static inline int64_t fastmst_load64(const int64_t* p) { return *p; }
+    #endif
+    """
+    bint cas64 "fastmst_cas64"(int64_t* p, int64_t expected, int64_t desired) noexcept nogil
+    int64_t load64 "fastmst_load64"(const int64_t* p) noexcept nogil
+    void load_relaxed "FASTMST_LOAD_RELAXED"(...) noexcept nogil
+    void store_relaxed "FASTMST_STORE_RELAXED"(...) noexcept nogil
+    void prefetch_w "FASTMST_PREFETCH_W"(const void* p) noexcept nogil
+
+
+cdef inline bint _lighter(weight_t wa, int64_t a, weight_t wb, int64_t b,
+                          bint maximize) noexcept nogil:
+    """Edge a comes before edge b in the tie-rule order (a, b: indices in position order)."""
+    if wa == wb:
+        return a < b
+    return wa > wb if maximize else wa < wb
+
+
+cdef inline void _offer(int64_t* best, weight_t* hint, Py_ssize_t c, int64_t i, weight_t wi,
+                        const weight_t* weight, const int64_t* pos, bint maximize) noexcept nogil:
+    """Atomically lower best[c] to edge index i when i is lighter.
+
+    ``hint[c]`` is the weight of some edge that was best[c] at some moment; best[c] only gets
+    lighter, so an edge strictly heavier than the hint is rejected without touching best[c] or
+    gathering its weight (one random read instead of three dependent ones).
+    """
+    cdef int64_t cur
+    cdef weight_t wc
+    load_relaxed(&hint[c], &wc)
+    if (wi < wc) if maximize else (wi > wc):
+        return
+    cur = load64(&best[c])
+    while True:
+        if cur >= 0:
+            wc = weight[pos[cur] if pos != NULL else cur]
+            if not _lighter(wi, i, wc, cur, maximize):
+                return
+        if cas64(&best[c], cur, i):
+            store_relaxed(&hint[c], &wi)
+            return
+        cur = load64(&best[c])
+
+
+cdef Py_ssize_t _boruvka(const index_t* tail, const index_t* head, const weight_t* weight,
+                         Py_ssize_t n, Py_ssize_t m, bint maximize, int threads,
+                         weight_t* hint, weight_t worst,
+                         int64_t* out, index_t* final_label, Py_ssize_t* n_final) noexcept nogil:
+    """Parallel Borůvka.
+
+    IN: tail, head, weight (m edges, read in place), n, maximize, threads.
+    OUT: out (accepted positions, returns how many), final_label (n: component of each node,
+    numbered arbitrarily but deterministically), n_final (number of components).
+    Returns -1 when memory runs out.
+    """
+    cdef Py_ssize_t nc = n, ne = m, r_off = 0, count = 0, nfin = 0
+    cdef Py_ssize_t c, d, i, k, t, lo, hi, nnew, level, nlev = 0
+    cdef int64_t b
+    cdef index_t* cu = <index_t*>tail
+    cdef index_t* cv = <index_t*>head
+    cdef int64_t* pos = NULL
+    cdef index_t* ncu
+    cdef index_t* ncv
+    cdef int64_t* npos
+    cdef index_t nu, nv
+    cdef Py_ssize_t cap = 2 * n + 64
+    cdef int64_t* best = <int64_t*>malloc((n + 1) * sizeof(int64_t))
+    cdef index_t* to = <index_t*>malloc((n + 1) * sizeof(index_t))
+    cdef index_t* maps = <index_t*>malloc(cap * sizeof(index_t))
+    cdef Py_ssize_t lev_off[130]
+    cdef Py_ssize_t lev_n[130]
+    cdef Py_ssize_t* chunk = <Py_ssize_t*>malloc((threads + 1) * sizeof(Py_ssize_t))
+    cdef index_t* mp
+    cdef index_t x, root, nxt
+    cdef bint owned = False
+    if best == NULL or to == NULL or maps == NULL or chunk == NULL:
+        free(best); free(to); free(maps); free(chunk)
+        return -1
+    while True:
+        # 1. lightest incident edge of every component (order-independent CAS minimum)
+        for c in prange(nc, num_threads=threads, schedule="static"):
+            best[c] = -1
+            hint[c] = worst
+        for i in prange(ne, num_threads=threads, schedule="static"):
+            if i + 16 < ne:
+                prefetch_w(&hint[cu[i + 16]])
+                prefetch_w(&hint[cv[i + 16]])
+            if cu[i] != cv[i]:
+                _offer(best, hint, cu[i], i, weight[pos[i] if pos != NULL else i], weight, pos,
+                       maximize)
+                _offer(best, hint, cv[i], i, weight[pos[i] if pos != NULL else i], weight, pos,
+                       maximize)
+        # 2. hook: c -> the other end of its pick; a mutual pair keeps the smaller id as root
+        for c in range(nc):
+            b = best[c]
+            if b < 0:
+                to[c] = <index_t>c
+            else:
+                to[c] = cv[b] if cu[b] == c else cu[b]
+        for c in range(nc):
+            d = to[c]
+            if d != c and to[d] == c and c < d:
+                to[c] = <index_t>c
+        for c in range(nc):
+            if to[c] != c:
+                out[count] = pos[best[c]] if pos != NULL else best[c]
                 count += 1
-                merged += 1
-        if merged == 0:
+        # 3. roots (path compression on the hook forest) and new ids in increasing root order
+        mp = maps + r_off
+        nnew = 0
+        for c in range(nc):
+            if to[c] == c:
+                if best[c] < 0:
+                    mp[c] = <index_t>(-(nfin + 1))   # no edges left: a finished component
+                    nfin += 1
+                else:
+                    mp[c] = <index_t>nnew
+                    nnew += 1
+        for c in range(nc):
+            root = to[c]
+            while to[root] != root:
+                root = to[root]
+            x = <index_t>c
+            while to[x] != root:
+                nxt = to[x]
+                to[x] = root
+                x = nxt
+            mp[c] = mp[root]
+        lev_off[nlev] = r_off
+        lev_n[nlev] = nc
+        nlev += 1
+        r_off += nc
+        # 4. compact the surviving edges (between different new components), in order
+        for t in prange(threads, num_threads=threads, schedule="static"):
+            lo = ne * t // threads
+            hi = ne * (t + 1) // threads
+            k = 0
+            for i in range(lo, hi):
+                if cu[i] != cv[i] and mp[cu[i]] != mp[cv[i]]:
+                    k = k + 1
+            chunk[t + 1] = k
+        chunk[0] = 0
+        for t in range(threads):
+            chunk[t + 1] += chunk[t]
+        k = chunk[threads]
+        if k == 0 or nnew == 0 or nlev >= 128:
             break
+        if not owned:
+            ncu = <index_t*>malloc(k * sizeof(index_t))
+            ncv = <index_t*>malloc(k * sizeof(index_t))
+            npos = <int64_t*>malloc(k * sizeof(int64_t))
+            if ncu == NULL or ncv == NULL or npos == NULL:
+                free(ncu); free(ncv); free(npos); free(best); free(to); free(maps); free(chunk)
+                return -1
+        else:
+            ncu = cu
+            ncv = cv
+            npos = pos
+        for t in prange(threads, num_threads=threads, schedule="static"):
+            lo = ne * t // threads
+            hi = ne * (t + 1) // threads
+            # owned arrays compact in place inside the thread's own slice first
+            d = chunk[t] if not owned else lo
+            for i in range(lo, hi):
+                if cu[i] != cv[i]:
+                    nu = mp[cu[i]]
+                    nv = mp[cv[i]]
+                    if nu != nv:
+                        ncu[d] = nu
+                        ncv[d] = nv
+                        npos[d] = (pos[i] if pos != NULL else i)
+                        d = d + 1
+        if owned:
+            for t in range(1, threads):
+                lo = ne * t // threads
+                hi = chunk[t + 1] - chunk[t]
+                if hi > 0 and lo != chunk[t]:
+                    memmove(ncu + chunk[t], ncu + lo, hi * sizeof(index_t))
+                    memmove(ncv + chunk[t], ncv + lo, hi * sizeof(index_t))
+                    memmove(npos + chunk[t], npos + lo, hi * sizeof(int64_t))
+        cu = ncu
+        cv = ncv
+        pos = npos
+        owned = True
+        ne = k
+        nc = nnew
+    # components still open after the last round are finished now
+    for c in range(nnew):
+        maps[r_off + c] = <index_t>(-(nfin + 1))
+        nfin += 1
+    lev_off[nlev] = r_off
+    lev_n[nlev] = nnew
+    # compose the per-round maps backwards into final ids
+    mp = maps + r_off
+    for c in range(nnew):
+        mp[c] = -(mp[c] + 1)
+    level = nlev - 1
+    while level >= 0:
+        mp = maps + lev_off[level]
+        for c in prange(lev_n[level], num_threads=threads, schedule="static"):
+            x = mp[c]
+            if x < 0:
+                mp[c] = -(x + 1)
+            else:
+                mp[c] = maps[lev_off[level + 1] + x]
+        level -= 1
+    for i in prange(n, num_threads=threads, schedule="static"):
+        final_label[i] = maps[i]
+    n_final[0] = nfin
+    if owned:
+        free(cu); free(cv); free(pos)
+    free(best); free(to); free(maps); free(chunk)
     return count
 
 
+cdef Py_ssize_t _first_appearance(const index_t* lab, Py_ssize_t n, int64_t* table,
+                                  int64_t* out) noexcept nogil:
+    cdef Py_ssize_t i, k = 0
+    for i in range(n):
+        if table[lab[i]] < 0:
+            table[lab[i]] = k
+            k += 1
+        out[i] = table[lab[i]]
+    return k
+
+
 def boruvka(const index_t[::1] tail, const index_t[::1] head, const weight_t[::1] weight,
-            Py_ssize_t n_nodes, bint maximize=False):
-    """Minimum (or maximum) spanning forest by Borůvka rounds.
+            Py_ssize_t n_nodes, bint maximize=False, int threads=1):
+    """Minimum (or maximum) spanning forest by parallel Borůvka rounds.
+
+    Parameters
+    ----------
+    tail, head : ndarray of shape (E,), dtype=int32 or int64
+        Validated endpoint ids (read in place).
+    weight : ndarray of shape (E,)
+        Validated kernel weights (read in place).
+    n_nodes : int
+    maximize : bool
+    threads : int
+        OpenMP threads (capped by the work); the result does not depend on it.
 
     Returns
     -------
     edges : ndarray of shape (F,), dtype=int64
         Accepted positions, in round order (the caller sorts them).
-    parent : ndarray of shape (n_nodes,)
-        Union-find parents of the final forest.
+    labels : ndarray of shape (n_nodes,), dtype=int64
+        Component ids 0..k-1 in order of first appearance.
+    n_components : int
     """
+    cdef Py_ssize_t m = tail.shape[0], n = n_nodes, count = 0, nfin = 0, k = 0
+    cdef int nt = max(1, min(threads, m // MIN_EDGES_PER_THREAD + 1))
     dtype = np.int32 if index_t is int32_t else np.int64
-    parent = np.arange(n_nodes, dtype=dtype)
-    rank = np.zeros(n_nodes, dtype=np.uint8)
-    best = np.full(n_nodes, -1, dtype=np.int64)
-    alive = np.empty(tail.shape[0], dtype=np.int64)
-    out = np.empty(max(0, n_nodes - 1), dtype=np.int64)
-    cdef index_t[::1] p = parent
-    cdef uint8_t[::1] r = rank
-    cdef int64_t[::1] bst = best
-    cdef int64_t[::1] alv = alive
+    out = np.empty(max(0, n - 1), dtype=np.int64)
+    lab = np.empty(n, dtype=dtype)
+    labels = np.empty(n, dtype=np.int64)
     cdef int64_t[::1] o = out
-    cdef Py_ssize_t count = 0
-    if n_nodes > 1 and tail.shape[0] > 0:
-        with nogil:
-            count = _boruvka(tail, head, weight, maximize, p, r, bst, alv, o)
-    return out[:count], parent
+    cdef index_t[::1] lb = lab
+    cdef int64_t[::1] lbl = labels
+    cdef int64_t[::1] tbl
+    # the hint starts at the worst weight of the graph (every edge is at least as light)
+    hint_a = np.empty(n + 1, dtype=np.asarray(weight).dtype)
+    cdef weight_t[::1] hint = hint_a
+    cdef weight_t worst
+    if n == 0:
+        return out[:0], labels, 0
+    if m == 0 or n == 1:
+        return out[:0], np.arange(n, dtype=np.int64), n
+    worst = np.asarray(weight).min() if maximize else np.asarray(weight).max()
+    with nogil:
+        count = _boruvka(&tail[0], &head[0], &weight[0], n, m, maximize, nt, &hint[0], worst,
+                         &o[0], &lb[0], &nfin)
+    if count < 0:
+        raise MemoryError("boruvka: out of memory for the per-round edge arrays; use "
+                          "method='kruskal', which needs less extra memory.")
+    table = np.full(nfin, -1, dtype=np.int64)
+    tbl = table
+    with nogil:
+        k = _first_appearance(&lb[0], n, &tbl[0], &lbl[0])
+    return out[:count], labels, k

@@ -8,10 +8,10 @@ import numpy as np
 from fastmst import validation
 from fastmst._boruvka import boruvka
 from fastmst._dsu import labels_from_parent
-from fastmst._kruskal import forest_size, kruskal
-from fastmst._sort import edge_order, first_unsorted
+from fastmst._kruskal import filter_kruskal, forest_bound, forest_size, kruskal, kruskal_radix
+from fastmst._sort import MAX_RECORDS, edge_order, first_unsorted
 
-METHODS = ("auto", "kruskal", "boruvka")
+METHODS = ("auto", "kruskal", "filter-kruskal", "boruvka")
 
 _FUNC = "minimum_spanning_forest"
 
@@ -216,9 +216,20 @@ def build_forest(g: validation.EdgeArrays, edges: np.ndarray, labels: np.ndarray
 
 
 def choose_method(g: validation.EdgeArrays, presorted: bool, threads: int) -> str:
-    """The rule behind ``method="auto"``: Kruskal (sorting dominates and is the fastest route
-    on one machine for every family measured so far)."""
-    return "kruskal"
+    """The rule behind ``method="auto"`` (measurements in docs/performance.md).
+
+    * ``presorted=True``: "kruskal", which then scans the edges in input order with no sort;
+    * more than 2**32 - 1 edges: "boruvka" (the radix records hold 32-bit positions; beyond
+      them Kruskal falls back to a comparison sort, while Borůvka needs no sort at all);
+    * otherwise "filter-kruskal": fastest on every graph family and size measured, with one or
+      two threads (its serial scan skips the sort of most edges that close cycles, which beats
+      running the sort of plain Kruskal on a second core on a shared 2-core machine).
+    """
+    if presorted:
+        return "kruskal"
+    if g.n_edges >= MAX_RECORDS:
+        return "boruvka"
+    return "filter-kruskal"
 
 
 def minimum_spanning_forest(tail, head, weight, n_nodes=None, *, method="auto",
@@ -236,8 +247,9 @@ def minimum_spanning_forest(tail, head, weight, n_nodes=None, *, method="auto",
     n_nodes : int, optional
         Number of nodes; defaults to the largest id + 1.  Nodes without edges are isolated
         components.
-    method : {"auto", "kruskal", "boruvka"}
-        Algorithm.  Every method returns the identical forest.
+    method : {"auto", "kruskal", "filter-kruskal", "boruvka"}
+        Algorithm.  Every method returns the identical forest; "auto" picks by the rule of
+        ``choose_method`` (see docs/performance.md).
     presorted : bool
         The caller promises the weights are already non-decreasing (non-increasing with
         ``maximize``); the sort is skipped after an O(E) check.
@@ -295,8 +307,18 @@ def minimum_spanning_forest(tail, head, weight, n_nodes=None, *, method="auto",
                              f"presorted=False.")
     if method == "auto":
         method = choose_method(g, presorted, threads)
+    return _run_method(g, method, presorted, maximize, threads)
 
-    if method == "kruskal":
+
+def _run_method(g: validation.EdgeArrays, method: str, presorted: bool, maximize: bool,
+                threads: int) -> SpanningForest:
+    """Dispatch validated edges to a kernel (every kernel returns the identical forest)."""
+    if method == "boruvka":
+        edges, labels, n_components = boruvka(g.ktail, g.khead, g.kweight, g.n_nodes,
+                                              maximize, threads)
+        return build_forest(g, edges, labels, n_components, maximize, method, False)
+    if g.n_edges >= MAX_RECORDS:
+        # Beyond 32-bit record positions: stable argsort, then the plain Kruskal scan.
         target, parent = forest_size(g.ktail, g.khead, g.n_nodes)
         labels, n_components = labels_from_parent(parent)
         del parent
@@ -304,7 +326,14 @@ def minimum_spanning_forest(tail, head, weight, n_nodes=None, *, method="auto",
                  else edge_order(g.kweight, maximize))
         edges, _ = kruskal(order, g.ktail, g.khead, g.n_nodes, target)
         return build_forest(g, edges, labels, n_components, maximize, method, True)
-
-    edges, parent = boruvka(g.ktail, g.khead, g.kweight, g.n_nodes, maximize)
+    # Stop at (nodes with an edge) - 1 accepted edges: exact for a connected graph with
+    # isolated nodes; a graph split further is scanned to the end (see docs/performance.md).
+    target = forest_bound(g.ktail, g.khead, g.n_nodes)
+    if method == "filter-kruskal" and not presorted:
+        edges, parent = filter_kruskal(g.ktail, g.khead, g.kweight, g.n_nodes, maximize,
+                                       target, threads)
+    else:
+        edges, parent = kruskal_radix(g.ktail, g.khead, g.kweight, g.n_nodes, maximize,
+                                      target, threads, presorted)
     labels, n_components = labels_from_parent(parent)
-    return build_forest(g, edges, labels, n_components, maximize, method, False)
+    return build_forest(g, edges, labels, n_components, maximize, method, True)

@@ -1,0 +1,5 @@
+"""pytest-benchmark suite settings: ``-m smoke`` selects the small CI subset."""
+import os
+import sys
+
+sys.path.insert(0, os.path.dirname(os.path.dirname(os.path.abspath(__file__))))

@@ -1,0 +1,287 @@
+"""The performance methods (radix-sorted Kruskal, Filter-Kruskal, parallel Borůvka) return the
+one forest of the (weight, position) rule, checked against outside references."""
+import numpy as np
+import pytest
+from hypothesis import given, settings, strategies as st
+
+import fastmst
+from fastmst import validation
+from fastmst._kruskal import filter_kruskal, kruskal_radix
+from fastmst._sort import edge_order
+from fastmst.forest import choose_method
+
+nx = pytest.importorskip("networkx")
+sparse = pytest.importorskip("scipy.sparse")
+csgraph = pytest.importorskip("scipy.sparse.csgraph")
+
+METHODS = ["kruskal", "filter-kruskal", "boruvka"]
+THREADS = [1, 2, 3, 4]
+
+
+@pytest.fixture(autouse=True)
+def parallel_on_small_graphs(monkeypatch):
+    """Run the parallel code paths even on the small graphs of these tests (the kernels
+    normally keep one thread below a few million edges)."""
+    import fastmst._boruvka
+    import fastmst._kruskal
+    import fastmst._sort
+    monkeypatch.setattr(fastmst._sort, "MIN_EDGES_PER_THREAD", 1)
+    monkeypatch.setattr(fastmst._kruskal, "MIN_EDGES_PIPELINE", 1)
+    monkeypatch.setattr(fastmst._boruvka, "MIN_EDGES_PER_THREAD", 1)
+
+
+def rule_rank(weight):
+    """Rank of every edge in the (weight, position) order, by NumPy's stable sort.
+
+    -0.0 is made +0.0 first: they compare equal, so they tie (IEEE 754).
+    """
+    w = np.asarray(weight)
+    if w.dtype.kind == "f":
+        w = w + 0  # -0.0 + 0 == +0.0
+    order = np.argsort(w, kind="stable")
+    rank = np.empty(len(w), dtype=np.int64)
+    rank[order] = np.arange(len(w))
+    return rank
+
+
+def networkx_forest(tail, head, weight, n, maximize=False):
+    """Reference forest from networkx's Kruskal on a MultiGraph, with each edge weighted by its
+    rank in the (weight, position) order, which makes the forest unique (networkx,
+    ``minimum_spanning_edges`` / ``maximum_spanning_edges``)."""
+    w = np.asarray(weight)
+    # every test weight converts to float64 exactly enough to keep its order
+    rank = rule_rank(-w.astype(np.float64) if maximize else w)
+    g = nx.MultiGraph()
+    g.add_nodes_from(range(n))
+    for p, (u, v) in enumerate(zip(np.asarray(tail).tolist(), np.asarray(head).tolist())):
+        g.add_edge(u, v, key=p, r=int(rank[p]))
+    found = nx.minimum_spanning_edges(g, algorithm="kruskal", weight="r", keys=True, data=False)
+    return sorted(k for _, _, k in found)
+
+
+def all_forests(tail, head, weight, n=None, **kw):
+    """Every method at every thread count."""
+    out = {}
+    for method in METHODS:
+        for threads in THREADS:
+            out[method, threads] = fastmst.minimum_spanning_forest(
+                tail, head, weight, n, method=method, threads=threads, **kw)
+    return out
+
+
+def assert_identical(forests):
+    ref = forests["kruskal", 1]
+    for key, f in forests.items():
+        np.testing.assert_array_equal(f.edges, ref.edges, err_msg=str(key))
+        np.testing.assert_array_equal(f.labels, ref.labels, err_msg=str(key))
+        assert f.n_components == ref.n_components, key
+    return ref
+
+
+def first_appearance(labels):
+    _, first, inv = np.unique(labels, return_index=True, return_inverse=True)
+    order = np.argsort(first)
+    remap = np.empty_like(order)
+    remap[order] = np.arange(len(order))
+    return remap[inv]
+
+
+def random_multigraph(rng, n, m, weights):
+    tail = rng.integers(0, n, m)
+    head = rng.integers(0, n, m)
+    return tail, head, weights(m)
+
+
+def test_ties_and_parallel_edges_match_networkx():
+    """Heavy ties and parallel edges: every method and thread count returns the forest that
+    networkx's Kruskal finds under the (weight, position) order."""
+    rng = np.random.default_rng(0)
+    for trial in range(12):
+        n = int(rng.integers(2, 60))
+        tail, head, w = random_multigraph(rng, n, int(rng.integers(1, 300)),
+                                          lambda m: rng.integers(0, 3, m).astype(float))
+        f = assert_identical(all_forests(tail, head, w, n))
+        assert sorted(f.edges.tolist()) == networkx_forest(tail, head, w, n)
+
+
+def test_total_weight_matches_scipy_on_simple_graphs():
+    """Simple graphs with distinct positive weights: the forest weight equals SciPy's
+    (scipy.sparse.csgraph.minimum_spanning_tree, which needs no duplicates and no zeros)."""
+    rng = np.random.default_rng(1)
+    for n in (5, 50, 400):
+        g = nx.gnm_random_graph(n, 3 * n, seed=int(rng.integers(1 << 30)))
+        tail, head = np.array(list(g.edges())).T
+        w = rng.permutation(len(tail)).astype(float) + 1.0
+        ref = csgraph.minimum_spanning_tree(
+            sparse.coo_array((w, (tail, head)), shape=(n, n)).tocsr())
+        for f in all_forests(tail, head, w, n).values():
+            assert f.weight == pytest.approx(float(ref.sum()), rel=1e-12)
+            assert len(f) == ref.nnz
+
+
+def test_components_match_scipy_connected_components():
+    """Many components: labels equal scipy.sparse.csgraph.connected_components up to the
+    first-appearance numbering, for every method."""
+    rng = np.random.default_rng(2)
+    n, parts = 3000, 300
+    block = rng.integers(0, parts, 4000)
+    tail = block * 10 + rng.integers(0, 10, 4000)
+    head = block * 10 + rng.integers(0, 10, 4000)
+    w = rng.random(4000)
+    k, lab = csgraph.connected_components(
+        sparse.coo_array((np.ones(4000), (tail, head)), shape=(n, n)), directed=False)
+    f = assert_identical(all_forests(tail, head, w, n))
+    assert f.n_components == k
+    np.testing.assert_array_equal(f.labels, first_appearance(lab))
+    assert len(f) == n - k
+
+
+@pytest.mark.parametrize("dtype", [np.float32, np.float64, np.int32, np.int64, np.uint32,
+                                   np.uint64, np.int16, np.uint8, np.float16])
+@pytest.mark.parametrize("maximize", [False, True])
+def test_every_weight_dtype(dtype, maximize):
+    """All weight dtypes, signed values (and -0.0/+0.0 ties, +-inf for floats), both
+    directions: identical edges everywhere and equal to the networkx reference."""
+    rng = np.random.default_rng(3)
+    n, m = 40, 400
+    tail, head = rng.integers(0, n, m), rng.integers(0, n, m)
+    kind = np.dtype(dtype).kind
+    if kind == "f":
+        w = rng.integers(-3, 4, m).astype(dtype)
+        w[rng.random(m) < 0.2] = -0.0
+        w[0], w[1] = np.inf, -np.inf
+    elif kind == "u":
+        w = rng.integers(0, 5, m).astype(dtype)
+        w[:3] = np.iinfo(dtype).max
+    else:
+        w = rng.integers(-3, 4, m).astype(dtype)
+        w[:2] = np.iinfo(dtype).min, np.iinfo(dtype).max
+    f = assert_identical(all_forests(tail, head, w, n, maximize=maximize))
+    assert sorted(f.edges.tolist()) == networkx_forest(tail, head, w, n, maximize)
+
+
+def test_negative_zero_ties_with_positive_zero():
+    """-0.0 and +0.0 are equal weights (IEEE 754), so the earlier position wins either way."""
+    for w in ([0.0, -0.0], [-0.0, 0.0]):
+        for method in METHODS:
+            f = fastmst.minimum_spanning_forest([0, 0], [1, 1], np.array(w), method=method)
+            assert f.edges.tolist() == [0]
+
+
+def test_presorted_input_all_methods():
+    """presorted=True gives the same forest as sorting (ascending, and descending with
+    maximize)."""
+    rng = np.random.default_rng(4)
+    tail, head = rng.integers(0, 300, 3000), rng.integers(0, 300, 3000)
+    w = np.sort(rng.integers(0, 50, 3000)).astype(np.float64)
+    for maximize, ww in ((False, w), (True, w[::-1].copy())):
+        ref = fastmst.minimum_spanning_forest(tail, head, ww, maximize=maximize)
+        pre = all_forests(tail, head, ww, presorted=True, maximize=maximize)
+        for f in pre.values():
+            np.testing.assert_array_equal(f.edges, ref.edges)
+
+
+def test_filter_kruskal_pivot_recursion_and_bucket_paths():
+    """With a tiny base-case threshold the pivot recursion and the filter run on every bucket;
+    the forest stays plain Kruskal's (and networkx's)."""
+    rng = np.random.default_rng(5)
+    n, m = 500, 20000
+    tail = rng.integers(0, n, m).astype(np.int32)
+    head = rng.integers(0, n, m).astype(np.int32)
+    for w in (rng.random(m), rng.integers(0, 4, m).astype(np.int64), np.zeros(m)):
+        ref, _ = kruskal_radix(tail, head, w, n)
+        for threshold in (9, 64, 1000):
+            got, _ = filter_kruskal(tail, head, w, n, False, -1, 1, threshold)
+            np.testing.assert_array_equal(got, ref)
+    w = rng.integers(0, 4, m).astype(float)
+    assert sorted(ref.tolist()) != [] and sorted(
+        kruskal_radix(tail, head, w, n)[0].tolist()) == networkx_forest(tail, head, w, n)
+
+
+@pytest.mark.parametrize("dtype", [np.float32, np.float64, np.int32, np.int64, np.uint32,
+                                   np.uint64])
+def test_radix_order_equals_stable_argsort(dtype):
+    """The radix order is NumPy's stable argsort order (ascending), and for descending the
+    (-weight, position) lexsort order (numpy.lexsort)."""
+    rng = np.random.default_rng(6)
+    m = 50000
+    if np.dtype(dtype).kind == "f":
+        w = (rng.standard_normal(m) * 1e3).astype(dtype)
+        w[::5] = 0.0
+        w[::7] = -0.0
+        w[:4] = [np.inf, -np.inf, np.finfo(dtype).tiny, -np.finfo(dtype).max]
+    else:
+        info = np.iinfo(dtype)
+        w = rng.integers(info.min, info.max, m, dtype=dtype, endpoint=True)
+        w[::3] = w[1]
+    np.testing.assert_array_equal(edge_order(w), rule_rank(w).argsort())
+    _, inv = np.unique(w + 0 if w.dtype.kind == "f" else w, return_inverse=True)
+    np.testing.assert_array_equal(edge_order(w, True), np.lexsort((np.arange(m), -inv)))
+    np.testing.assert_array_equal(edge_order(w, False, 2), edge_order(w, False, 1))
+
+
+def test_large_graph_thread_counts_identical():
+    """A 200k-edge random graph: every method and thread count 1..4 returns the same edges and
+    the forest weight of SciPy (distinct weights, duplicates removed first)."""
+    rng = np.random.default_rng(7)
+    n, m = 20000, 200000
+    tail, head = rng.integers(0, n, m), rng.integers(0, n, m)
+    key = np.unique(np.minimum(tail, head) * n + np.maximum(tail, head))
+    tail, head = key // n, key % n
+    keep = tail != head
+    tail, head = tail[keep], head[keep]
+    w = rng.permutation(len(tail)).astype(np.float64) + 1
+    f = assert_identical(all_forests(tail, head, w, n))
+    ref = csgraph.minimum_spanning_tree(
+        sparse.coo_array((w, (tail, head)), shape=(n, n)).tocsr())
+    assert f.weight == pytest.approx(float(ref.sum()), rel=1e-12)
+
+
+def test_inputs_not_mutated_and_read_only_ok():
+    """Read-only inputs are accepted and no input changes."""
+    rng = np.random.default_rng(8)
+    tail, head = rng.integers(0, 50, 500), rng.integers(0, 50, 500)
+    w = rng.standard_normal(500)
+    copies = [a.copy() for a in (tail, head, w)]
+    for a in (tail, head, w):
+        a.setflags(write=False)
+    all_forests(tail, head, w)
+    for a, c in zip((tail, head, w), copies):
+        np.testing.assert_array_equal(a, c)
+
+
+def test_edge_cases():
+    """Empty graphs, one node, only self-loops, isolated nodes beyond the last id."""
+    for method in METHODS:
+        f = fastmst.minimum_spanning_forest([], [], [], 3, method=method)
+        assert len(f) == 0 and f.n_components == 3
+        f = fastmst.minimum_spanning_forest([0, 1], [0, 1], [1.0, 2.0], method=method)
+        assert len(f) == 0 and f.n_components == 2
+        f = fastmst.minimum_spanning_forest([0], [1], [5], 10, method=method)
+        assert f.edges.tolist() == [0] and f.n_components == 9
+
+
+def test_auto_rule():
+    """The documented auto rule: presorted -> kruskal, otherwise filter-kruskal."""
+    g = validation.validate_edges([0, 1], [1, 2], [1.0, 2.0])
+    assert choose_method(g, True, 2) == "kruskal"
+    assert choose_method(g, False, 1) == "filter-kruskal"
+    assert fastmst.minimum_spanning_forest([0, 1], [1, 2], [1.0, 2.0]).method == "filter-kruskal"
+    assert "filter-kruskal" in fastmst.METHODS
+
+
+@settings(deadline=None, derandomize=True, max_examples=60)
+@given(st.integers(1, 25).flatmap(lambda n: st.tuples(
+    st.just(n),
+    st.lists(st.tuples(st.integers(0, n - 1), st.integers(0, n - 1),
+                       st.sampled_from([-1.0, -0.0, 0.0, 0.5, 2.0, np.inf])),
+             max_size=80))), st.booleans())
+def test_hypothesis_methods_equal_networkx(graph, maximize):
+    """Random small multigraphs with ties, zeros, negatives and inf: all methods and thread
+    counts agree with each other and with networkx's Kruskal under the tie rule."""
+    n, edges = graph
+    tail = np.array([e[0] for e in edges], dtype=np.int64)
+    head = np.array([e[1] for e in edges], dtype=np.int64)
+    w = np.array([e[2] for e in edges], dtype=np.float64)
+    f = assert_identical(all_forests(tail, head, w, n, maximize=maximize))
+    assert sorted(f.edges.tolist()) == networkx_forest(tail, head, w, n, maximize)
