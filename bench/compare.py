@@ -26,10 +26,12 @@ import time
 
 import numpy as np
 
-sys.path.insert(0, os.path.dirname(os.path.dirname(os.path.abspath(__file__))))
+# The sibling generators module; fastmst itself comes from the installed package (or from
+# PYTHONPATH when benchmarking an in-place build).
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 
 import fastmst  # noqa: E402
-from bench import generators as gen  # noqa: E402
+import generators as gen  # noqa: E402
 
 
 # ----------------------------------------------------------------------------- memory probes

@@ -1,5 +1,6 @@
-"""pytest-benchmark suite settings: ``-m smoke`` selects the small CI subset."""
-import os
-import sys
+"""pytest-benchmark suite settings: ``-m smoke`` selects the small CI subset.
 
-sys.path.insert(0, os.path.dirname(os.path.dirname(os.path.abspath(__file__))))
+bench/ is not a package: pytest puts this folder on sys.path, so the benchmarks import their
+sibling ``generators`` module, and ``import fastmst`` finds the installed package (never the
+uncompiled source tree).
+"""

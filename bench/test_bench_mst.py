@@ -11,7 +11,7 @@ import numpy as np
 import pytest
 
 import fastmst
-from bench import generators as gen
+import generators as gen
 
 pytest.importorskip("pytest_benchmark")
 
@@ -71,6 +71,6 @@ def test_large(benchmark, case, method):
 @pytest.mark.smoke
 def test_scipy_reference_smoke(benchmark):
     """The SciPy route on the smoke graph, for a same-run ratio."""
-    from bench.compare import scipy_mst
+    from compare import scipy_mst
     tail, head, weight, n = _graph(*SMOKE[0])
     benchmark(scipy_mst, tail, head, weight, n)
