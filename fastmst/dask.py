@@ -297,6 +297,8 @@ def _numpy_dtype(dtype):
 
 
 def _get_client(client):
+    if client is False:
+        return None
     if client is not None:
         return client
     try:
@@ -384,8 +386,9 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
         The most edges one merge or final solve may hold.  Defaults to the smallest worker
         memory limit divided by ``BYTES_PER_EDGE`` (at most 2**24 = 16.8M), or 2**24 without
         a limit.  Map tasks hold one partition each: keep partitions below this size too.
-    client : distributed.Client, optional
-        Defaults to the current client; without one, Dask's local scheduler runs the tasks.
+    client : distributed.Client or False, optional
+        Defaults to the current client; without one (or with ``False``), Dask's configured
+        local scheduler runs the tasks.
     progress : bool
         Show Dask's progress bar for every pass (the dashboard of a distributed cluster shows
         the same tasks live).
