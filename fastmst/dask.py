@@ -134,16 +134,22 @@ def _empty_record(wdtype):
 def _relabelled(chunk, names, offset, labels, wdtype):
     """The chunk's edges with global ids and current component ids, self-loops dropped."""
     t, h, w = _chunk_arrays(chunk, names, "a partition")
-    t = t.astype(np.int64, copy=False)
-    h = h.astype(np.int64, copy=False)
+    if t.size == 0:
+        t = h = np.empty(0, np.int64)  # empty float columns of an all-empty chunk
+    # int32/int64 ids are used as they are; others become int64 so chunks concatenate exactly
+    t, h = (x if x.dtype in (np.dtype(np.int32), np.dtype(np.int64)) else x.astype(np.int64)
+            for x in (t, h))
     w = w.astype(wdtype, copy=False)
     if labels is None:
         ct, ch = t, h
     else:
         ct, ch = labels[t], labels[h]
     keep = np.flatnonzero(ct != ch)
-    rec = {"id": keep + offset, "t": t[keep], "h": h[keep], "w": w[keep],
-           "ct": ct[keep], "ch": ch[keep]}
+    if keep.shape[0] == t.shape[0]:  # no self-loop: skip the copies
+        rec = {"id": keep + offset, "t": t, "h": h, "w": w, "ct": ct, "ch": ch}
+    else:
+        rec = {"id": keep + offset, "t": t[keep], "h": h[keep], "w": w[keep],
+               "ct": ct[keep], "ch": ch[keep]}
     return rec, int(t.shape[0])
 
 
@@ -219,9 +225,14 @@ def _candidates(chunk, names, offset, labels, n_comp, wdtype, maximize):
     ids = np.concatenate([rec["id"], rec["id"]])
     comps, best = _select(comp, w2, ids, n_comp, maximize)
     row = np.searchsorted(rec["id"], best)
-    out = _take(rec, row)
-    out["comp"] = comps
+    # 28 bytes per candidate (int32 ids): the client recomputes the components from labels.
+    out = {k: rec[k][row] for k in ("id", "t", "h", "w")}
+    out["comp"] = comps.astype(_label_dtype(n_comp))
     return out, m
+
+
+def _label_dtype(n):
+    return np.int32 if n < validation.INT32_LIMIT else np.int64
 
 
 def _merge_candidates(parts, n_comp, maximize, wdtype):
@@ -229,15 +240,14 @@ def _merge_candidates(parts, n_comp, maximize, wdtype):
     recs = [p[0] for p in parts if p[0]["id"].shape[0]]
     survivors = sum(p[1] for p in parts)
     if not recs:
-        rec = _empty_record(wdtype)
-        rec["comp"] = np.empty(0, np.int64)
-        return rec, survivors
+        z = np.empty(0, np.int64)
+        return {"id": z, "t": z, "h": z, "w": np.empty(0, wdtype), "comp": z}, survivors
     rec = {k: np.concatenate([r[k] for r in recs]) for k in recs[0]}
     comps, best = _select(rec["comp"], rec["w"], rec["id"], n_comp, maximize)
     # One edge may be the candidate of both its components: any of its rows will do.
     uniq, first = np.unique(rec["id"], return_index=True)
     out = _take(rec, first[np.searchsorted(uniq, best)])
-    out["comp"] = comps
+    out["comp"] = comps.astype(_label_dtype(n_comp))
     return out, survivors
 
 
@@ -517,15 +527,14 @@ def _contract(cand, labels, n_comp, n):
     """Union the components joined by the chosen edges; return the new labels."""
     uniq, first = np.unique(cand["id"], return_index=True)
     rec = {k: cand[k][first] for k in ("id", "t", "h", "w")}
-    ct, ch = cand["ct"][first], cand["ch"][first]
+    ct, ch = (rec["t"], rec["h"]) if labels is None else (labels[rec["t"]], labels[rec["h"]])
     ds = fastmst.DisjointSet(n_comp)
     merged = ds.union_pairs(ct, ch)
     if int(np.count_nonzero(merged)) != uniq.shape[0]:  # pragma: no cover - a broken invariant
         raise RuntimeError(f"{_FUNC}: internal error: the Borůvka candidates closed a cycle; "
                            f"please report this with the input that caused it.")
     new = ds.labels()
-    small = np.int32 if n < validation.INT32_LIMIT else np.int64
-    labels = (new if labels is None else new[labels]).astype(small)
+    labels = (new if labels is None else new[labels]).astype(_label_dtype(n))
     return labels, int(ds.n_sets), rec
 
 
