@@ -159,7 +159,7 @@ def _local_forest(rec, n_comp, maximize):
     if m == 0:
         return np.empty(0, np.int64)
     ct, ch = rec["ct"], rec["ch"]
-    if n_comp > 4 * m + 64:  # compact the ids so the kernel's work arrays stay O(m)
+    if n_comp > 8 * m + 1024:  # compact the ids so the kernel's work arrays stay O(m)
         uniq, inv = np.unique(np.concatenate([ct, ch]), return_inverse=True)
         ct, ch, n_comp = inv[:m], inv[m:], uniq.shape[0]
     f = fastmst.minimum_spanning_forest(ct, ch, rec["w"], n_comp, maximize=maximize,
@@ -203,17 +203,24 @@ _NO_EDGE = np.iinfo(np.int64).max
 
 
 def _select(comp, w, ids, n_comp, maximize):
-    """For every component in ``comp``, the index of its lightest entry by (weight, id).
+    """For every component in ``comp``, the row of its lightest entry by (weight, id).
 
-    Dense scatter over the ``n_comp`` components: O(len(comp) + n_comp) time, no sort.
+    Dense scatter over the ``n_comp`` components: O(len(comp) + n_comp) time, no sort and no
+    search (both are bound by memory latency at this size).  Returns ``(components, rows)``.
     """
     best_w = np.full(n_comp, _extreme(w.dtype, maximize), dtype=w.dtype)
     (np.maximum if maximize else np.minimum).at(best_w, comp, w)
     tied = np.flatnonzero(w == best_w[comp])
+    del best_w
+    tc, ti = comp[tied], ids[tied]
     best_id = np.full(n_comp, _NO_EDGE, dtype=np.int64)
-    np.minimum.at(best_id, comp[tied], ids[tied])
+    np.minimum.at(best_id, tc, ti)
+    win = ti == best_id[tc]
     comps = np.flatnonzero(best_id != _NO_EDGE)
-    return comps, best_id[comps]
+    del best_id
+    row = np.empty(n_comp, dtype=np.int64)
+    row[tc[win]] = tied[win]  # copies of one edge (same id) are interchangeable
+    return comps, row[comps]
 
 
 def _candidates(chunk, names, offset, labels, n_comp, wdtype, maximize):
@@ -223,16 +230,13 @@ def _candidates(chunk, names, offset, labels, n_comp, wdtype, maximize):
     comp = np.concatenate([rec["ct"], rec["ch"]])
     w2 = np.concatenate([rec["w"], rec["w"]])
     ids = np.concatenate([rec["id"], rec["id"]])
-    comps, best = _select(comp, w2, ids, n_comp, maximize)
-    row = np.searchsorted(rec["id"], best)
+    comps, rows = _select(comp, w2, ids, n_comp, maximize)
+    del comp, w2, ids
+    rows[rows >= m] -= m
     # 28 bytes per candidate (int32 ids): the client recomputes the components from labels.
-    out = {k: rec[k][row] for k in ("id", "t", "h", "w")}
+    out = {k: rec[k][rows] for k in ("id", "t", "h", "w")}
     out["comp"] = comps.astype(_label_dtype(n_comp))
     return out, m
-
-
-def _label_dtype(n):
-    return np.int32 if n < validation.INT32_LIMIT else np.int64
 
 
 def _merge_candidates(parts, n_comp, maximize, wdtype):
@@ -243,12 +247,14 @@ def _merge_candidates(parts, n_comp, maximize, wdtype):
         z = np.empty(0, np.int64)
         return {"id": z, "t": z, "h": z, "w": np.empty(0, wdtype), "comp": z}, survivors
     rec = {k: np.concatenate([r[k] for r in recs]) for k in recs[0]}
-    comps, best = _select(rec["comp"], rec["w"], rec["id"], n_comp, maximize)
-    # One edge may be the candidate of both its components: any of its rows will do.
-    uniq, first = np.unique(rec["id"], return_index=True)
-    out = _take(rec, first[np.searchsorted(uniq, best)])
+    comps, rows = _select(rec["comp"], rec["w"], rec["id"], n_comp, maximize)
+    out = _take(rec, rows)
     out["comp"] = comps.astype(_label_dtype(n_comp))
     return out, survivors
+
+
+def _label_dtype(n):
+    return np.int32 if n < validation.INT32_LIMIT else np.int64
 
 
 # ---------------------------------------------------------------------------------------------
