@@ -426,7 +426,9 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
     1. ``R <= B``: one task merges all the local forests: a final local solve.  Done.
     2. ``split_every * (n - 1) <= B``: filter (local forests merged ``split_every`` at a time,
        each merge at most ``split_every * (n - 1) <= B`` edges).  Done.
-    3. Otherwise one Borůvka round, which at least halves ``n``; repeat.
+    3. Otherwise one Borůvka round, which at least halves ``n``; repeat.  Its candidate sets
+       (at most ``min(n, 2 * rows)`` entries per partition) are min-reduced with a fan-in of
+       at most ``split_every`` chosen so that no reduction holds more than ``B`` entries.
 
     Memory per task is therefore bounded by one partition plus ``B`` edges plus O(n) for the
     component labels (4 bytes per node, 8 beyond 2**31 nodes) and the per-component minima
@@ -498,7 +500,11 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
         maps = [dask.delayed(_candidates, pure=True)(p, names, int(offsets[i]), shared, n_comp,
                                                      kdt, maximize)
                 for i, p in enumerate(parts)]
-        root = _tree(maps, _merge_candidates, split_every, n_comp, maximize, kdt,
+        # A candidate set holds at most min(n, 2 * partition rows) entries: the fan-in keeps
+        # each min-reduction under max_task_edges entries (and at most split_every).
+        per_input = max(1, min(n_comp, 2 * int(lengths.max())))
+        fan = int(min(split_every, max(2, max_task_edges // per_input)))
+        root = _tree(maps, _merge_candidates, fan, n_comp, maximize, kdt,
                      name=f"fastmst-boruvka-{run_id}-{round_no}")
         ((cand, survivors),) = runner.run([root], f"Borůvka round {round_no + 1}")
         del shared
@@ -509,7 +515,8 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
         chosen.append(rec)
         info["rounds"].append({"n_components_before": int(info["rounds"][-1][
             "n_components_after"] if info["rounds"] else n), "n_components_after": n_comp,
-            "edges_not_self_loops": survivors, "forest_edges": int(rec["id"].shape[0])})
+            "edges_not_self_loops": survivors, "forest_edges": int(rec["id"].shape[0]),
+            "fan_in": fan})
         round_no += 1
     info["phases"] = runner.phases
     return _assemble(chosen, n, n_edges, maximize, (tdt, hdt, wdt, kdt), info)
