@@ -52,6 +52,8 @@ PLANS = ("auto", "filter", "boruvka")
 BYTES_PER_EDGE = 96
 
 _DEFAULT_TASK_EDGES = 1 << 24
+_MAX_RANGES = 256
+_MIN_RANGE = 1 << 16  # components per range at least (smaller ranges only add tasks)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -223,8 +225,13 @@ def _select(comp, w, ids, n_comp, maximize):
     return comps, row[comps]
 
 
-def _candidates(chunk, names, offset, labels, n_comp, wdtype, maximize):
-    """Map task of a Borůvka round: per touched component, its lightest incident edge."""
+def _candidates(chunk, names, offset, labels, n_comp, wdtype, maximize, bounds):
+    """Map task of a Borůvka round: per touched component, its lightest incident edge.
+
+    Returns one piece per component range ``[bounds[r], bounds[r+1])`` (so that each range is
+    min-reduced by its own tasks), each a ``(candidates, rows)`` pair; ``rows`` (the edges not
+    yet self-loops) is counted in the first piece only.
+    """
     rec, _ = _relabelled(chunk, names, offset, labels, wdtype)
     m = rec["id"].shape[0]
     comp = np.concatenate([rec["ct"], rec["ch"]])
@@ -236,20 +243,23 @@ def _candidates(chunk, names, offset, labels, n_comp, wdtype, maximize):
     # 28 bytes per candidate (int32 ids): the client recomputes the components from labels.
     out = {k: rec[k][rows] for k in ("id", "t", "h", "w")}
     out["comp"] = comps.astype(_label_dtype(n_comp))
-    return out, m
+    cut = np.searchsorted(comps, bounds)  # comps are ascending
+    return tuple(({k: v[cut[r]:cut[r + 1]] for k, v in out.items()}, m if r == 0 else 0)
+                 for r in range(len(bounds) - 1))
 
 
-def _merge_candidates(parts, n_comp, maximize, wdtype):
-    """Reduce task of a Borůvka round: keep the lightest candidate of every component."""
+def _merge_candidates(parts, lo, size, maximize, wdtype):
+    """Reduce task of a Borůvka round: the lightest candidate of every component of one
+    range ``[lo, lo + size)``."""
     recs = [p[0] for p in parts if p[0]["id"].shape[0]]
     survivors = sum(p[1] for p in parts)
     if not recs:
         z = np.empty(0, np.int64)
         return {"id": z, "t": z, "h": z, "w": np.empty(0, wdtype), "comp": z}, survivors
     rec = {k: np.concatenate([r[k] for r in recs]) for k in recs[0]}
-    comps, rows = _select(rec["comp"], rec["w"], rec["id"], n_comp, maximize)
+    comps, rows = _select(rec["comp"] - lo, rec["w"], rec["id"], size, maximize)
     out = _take(rec, rows)
-    out["comp"] = comps.astype(_label_dtype(n_comp))
+    out["comp"] = (comps + lo).astype(rec["comp"].dtype)
     return out, survivors
 
 
@@ -426,9 +436,11 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
     1. ``R <= B``: one task merges all the local forests: a final local solve.  Done.
     2. ``split_every * (n - 1) <= B``: filter (local forests merged ``split_every`` at a time,
        each merge at most ``split_every * (n - 1) <= B`` edges).  Done.
-    3. Otherwise one Borůvka round, which at least halves ``n``; repeat.  Its candidate sets
-       (at most ``min(n, 2 * rows)`` entries per partition) are min-reduced with a fan-in of
-       at most ``split_every`` chosen so that no reduction holds more than ``B`` entries.
+    3. Otherwise one Borůvka round, which at least halves ``n``; repeat.  The components are
+       cut into ranges of ``max(B // split_every, 65536)`` components (at most 256 ranges)
+       and the candidates of each range are min-reduced by their own tree, ``split_every``
+       at a time, so that no reduction holds more than ``max(B, 65536 * split_every)``
+       candidates.
 
     Memory per task is therefore bounded by one partition plus ``B`` edges plus O(n) for the
     component labels (4 bytes per node, 8 beyond 2**31 nodes) and the per-component minima
@@ -497,16 +509,21 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
                              "fan_in": fan}
             break
         shared = runner.share(labels, round_no)
-        maps = [dask.delayed(_candidates, pure=True)(p, names, int(offsets[i]), shared, n_comp,
-                                                     kdt, maximize)
+        # Components are split into ranges, each min-reduced by its own tree, so that no
+        # reduction holds more than split_every * range entries (<= max_task_edges).
+        span = max(_MIN_RANGE, max_task_edges // split_every)
+        n_ranges = int(min(_MAX_RANGES, -(-n_comp // span)))
+        bounds = np.linspace(0, n_comp, n_ranges + 1).round().astype(np.int64)
+        maps = [dask.delayed(_candidates, pure=True, nout=n_ranges)(
+                    p, names, int(offsets[i]), shared, n_comp, kdt, maximize, bounds)
                 for i, p in enumerate(parts)]
-        # A candidate set holds at most min(n, 2 * partition rows) entries: the fan-in keeps
-        # each min-reduction under max_task_edges entries (and at most split_every).
-        per_input = max(1, min(n_comp, 2 * int(lengths.max())))
-        fan = int(min(split_every, max(2, max_task_edges // per_input)))
-        root = _tree(maps, _merge_candidates, fan, n_comp, maximize, kdt,
-                     name=f"fastmst-boruvka-{run_id}-{round_no}")
-        ((cand, survivors),) = runner.run([root], f"Borůvka round {round_no + 1}")
+        roots = [_tree([mp[r] for mp in maps], _merge_candidates, split_every,
+                       int(bounds[r]), int(bounds[r + 1] - bounds[r]), maximize, kdt,
+                       name=f"fastmst-boruvka-{run_id}-{round_no}-{r}")
+                 for r in range(n_ranges)]
+        pieces = runner.run(roots, f"Borůvka round {round_no + 1}")
+        survivors = sum(p[1] for p in pieces)
+        cand = {k: np.concatenate([p[0][k] for p in pieces]) for k in pieces[0][0]}
         del shared
         remaining = survivors
         if cand["id"].shape[0] == 0:
@@ -516,7 +533,7 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
         info["rounds"].append({"n_components_before": int(info["rounds"][-1][
             "n_components_after"] if info["rounds"] else n), "n_components_after": n_comp,
             "edges_not_self_loops": survivors, "forest_edges": int(rec["id"].shape[0]),
-            "fan_in": fan})
+            "component_ranges": n_ranges})
         round_no += 1
     info["phases"] = runner.phases
     return _assemble(chosen, n, n_edges, maximize, (tdt, hdt, wdt, kdt), info)
