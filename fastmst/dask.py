@@ -63,15 +63,14 @@ def _column(values, name, where):
     """One column of a table chunk as a NumPy array, refusing missing values."""
     import pandas as pd
     if isinstance(values, pd.Series):
-        if values.hasnans if values.dtype.kind in "iub" else (
-                not isinstance(values.dtype, np.dtype) and bool(values.isna().any())):
-            validation.check_no_missing(values.to_numpy(), name, _FUNC, where)
-        if not isinstance(values.dtype, np.dtype):
-            values = values.to_numpy(dtype=getattr(values.dtype, "numpy_dtype", None))
-        return values.to_numpy() if isinstance(values, pd.Series) else values
-    if hasattr(values, "to_numpy") and hasattr(values, "null_count"):  # pyarrow
+        if isinstance(values.dtype, np.dtype):  # NaN in float columns is checked later
+            return values.to_numpy()
+        # an extension dtype (nullable Int64, pyarrow-backed, ...): refuse NA, then unwrap
+        validation.check_no_missing(values, name, _FUNC, where)
+        return values.to_numpy(dtype=_numpy_dtype(values.dtype))
+    if hasattr(values, "null_count") and hasattr(values, "to_numpy"):  # a pyarrow column
         if values.null_count:
-            validation.check_no_missing(values.to_pandas().to_numpy(), name, _FUNC, where)
+            validation.check_no_missing(values.to_pandas(), name, _FUNC, where)
         return values.to_numpy()
     return np.asarray(values)
 
@@ -524,7 +523,7 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
         pieces = runner.run(roots, f"Borůvka round {round_no + 1}")
         survivors = sum(p[1] for p in pieces)
         cand = {k: np.concatenate([p[0][k] for p in pieces]) for k in pieces[0][0]}
-        del shared
+        del shared, pieces
         remaining = survivors
         if cand["id"].shape[0] == 0:
             break
@@ -557,6 +556,8 @@ def _contract(cand, labels, n_comp, n):
     """Union the components joined by the chosen edges; return the new labels."""
     uniq, first = np.unique(cand["id"], return_index=True)
     rec = {k: cand[k][first] for k in ("id", "t", "h", "w")}
+    cand.clear()  # the client holds O(n): free the candidates as soon as possible
+    del first
     ct, ch = (rec["t"], rec["h"]) if labels is None else (labels[rec["t"]], labels[rec["h"]])
     ds = fastmst.DisjointSet(n_comp)
     merged = ds.union_pairs(ct, ch)
@@ -575,9 +576,11 @@ def _assemble(chosen, n, n_edges, maximize, dtypes, info):
         rec = {k: np.concatenate([c[k] for c in chosen]) for k in keys}
     else:
         rec = {k: np.empty(0, np.int64) for k in keys}
+    chosen.clear()
     order = np.argsort(rec["id"], kind="stable")
-    ids, t, h = rec["id"][order], rec["t"][order], rec["h"][order]
-    w = rec["w"][order].astype(kdt, copy=False)
+    ids, t, h = rec.pop("id")[order], rec.pop("t")[order], rec.pop("h")[order]
+    w = rec.pop("w")[order].astype(kdt, copy=False)
+    del order
     # The union of the chosen edges is a forest; solving it once more orders it by the tie
     # rule and yields the component labels exactly as the in-memory function numbers them.
     f = fastmst.minimum_spanning_forest(t, h, w, n, maximize=maximize, threads=1)
