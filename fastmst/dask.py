@@ -26,7 +26,6 @@ Two reductions are combined (see ``plan`` in :func:`minimum_spanning_forest`):
 """
 from __future__ import annotations
 
-import math
 import time
 import uuid
 from collections.abc import Mapping, Sequence
