@@ -526,7 +526,10 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
         remaining = survivors
         if cand["id"].shape[0] == 0:
             break
+        start = time.perf_counter()
         labels, n_comp, rec = _contract(cand, labels, n_comp, n)
+        runner.phases.append((f"contraction {round_no + 1} (client)",
+                              time.perf_counter() - start))
         chosen.append(rec)
         info["rounds"].append({"n_components_before": int(info["rounds"][-1][
             "n_components_after"] if info["rounds"] else n), "n_components_after": n_comp,
@@ -534,7 +537,10 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
             "component_ranges": n_ranges})
         round_no += 1
     info["phases"] = runner.phases
-    return _assemble(chosen, n, n_edges, maximize, (tdt, hdt, wdt, kdt), info)
+    start = time.perf_counter()
+    forest = _assemble(chosen, n, n_edges, maximize, (tdt, hdt, wdt, kdt), info)
+    runner.phases.append(("assembling the forest (client)", time.perf_counter() - start))
+    return forest
 
 
 def _default_task_edges(client):
