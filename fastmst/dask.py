@@ -45,9 +45,10 @@ _FUNC = "fastmst.dask.minimum_spanning_forest"
 
 PLANS = ("auto", "filter", "boruvka")
 
-#: Working-set bytes per edge held by one task (ids, endpoints, weight, kernel sort buffers);
-#: measured with bench/bench_dask.py, rounded up.  Used to turn a worker memory limit into the
-#: default ``max_task_edges``.
+#: Working-set bytes per edge held by one merge task (ids, endpoints, weight, the sorted copy
+#: and the kernel's buffers), estimated from the arrays it allocates; with it the 100M- and
+#: 200M-edge runs of bench/bench_dask.py stayed under 2.3 GiB per 3 GiB worker.  Used to turn
+#: a worker memory limit into the default ``max_task_edges``.
 BYTES_PER_EDGE = 96
 
 _DEFAULT_TASK_EDGES = 1 << 24
