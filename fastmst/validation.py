@@ -467,3 +467,67 @@ def check_nonnegative_finite(weight: np.ndarray, func: str, name: str = "weight"
         raise ValueError(f"{func}: {name}[{i}] = {weight[i].item()!r}; Steiner trees need "
                          f"finite, non-negative weights (lengths or costs along the network). Drop "
                          f"the edge, or shift costs so they are >= 0.")
+# ---------------------------------------------------------------------------------------------
+# Checks of the distributed path (fastmst.dask): column names, chunk arrays, tuning knobs.
+
+def check_column_name(value, name: str, func: str) -> str:
+    """A column name given as ``tail=``/``head=``/``weight=`` must be a non-empty string."""
+    if not isinstance(value, str) or not value:
+        raise TypeError(f"{func}: {name} must be a column name (a non-empty string), received "
+                        f"{type(value).__name__} {value!r}; e.g. {name}={name!r}.")
+    return value
+
+
+def check_columns(present, wanted: dict, func: str, where: str = "") -> None:
+    """Every wanted column (role -> name) must be among ``present``; list the present ones."""
+    present = [str(c) for c in present]
+    missing = [f"{role}={col!r}" for role, col in wanted.items() if col not in present]
+    if missing:
+        at = f" in {where}" if where else ""
+        raise ValueError(f"{func}: column{'s' if len(missing) > 1 else ''} "
+                         f"{', '.join(missing)} not found{at}; the columns present are "
+                         f"{present!r}. Pass the right names, e.g. "
+                         f"minimum_spanning_forest(edges, tail='src', head='dst', "
+                         f"weight='cost').")
+
+
+def check_chunk_no_missing(values, name: str, func: str, where: str = "") -> None:
+    """A column read from a table must not hold missing values (NA/None)."""
+    import pandas as pd
+    mask = pd.isna(values)
+    if mask.any():
+        first = int(np.flatnonzero(np.asarray(mask))[0])
+        at = f" of {where}" if where else ""
+        raise ValueError(f"{func}: {name}[{first}]{at} is missing (NA); every edge needs two "
+                         f"endpoints and a weight. Drop the incomplete rows first, e.g. "
+                         f"edges.dropna(subset=[...]).")
+
+
+def check_chunk_ids(arr: np.ndarray, name: str, n_nodes, func: str, where: str) -> None:
+    """Ids of one chunk of a distributed edge list: integers in [0, n_nodes)."""
+    check_ids(arr, f"{name} ({where})", func)
+    if arr.size == 0:
+        return
+    if arr.dtype.kind == "i" and int(arr.min()) < 0:
+        first = int(np.flatnonzero(arr < 0)[0])
+        raise ValueError(f"{func}: {name}[{first}] = {arr[first]} of {where} is negative; node "
+                         f"ids must be global integers in [0, n_nodes). Map labels to compact "
+                         f"ids first.")
+    if n_nodes is not None and int(arr.max()) >= n_nodes:
+        first = int(np.flatnonzero(arr >= n_nodes)[0])
+        raise ValueError(f"{func}: {name}[{first}] = {arr[first]} of {where} is out of range; "
+                         f"expected ids in [0, {n_nodes}) for n_nodes={n_nodes}; pass "
+                         f"n_nodes >= {int(arr.max()) + 1} or fix the id.")
+
+
+def check_count(value, name: str, func: str, minimum: int = 1, allow_none: bool = False):
+    """An integer knob such as ``split_every`` or ``max_task_edges`` (>= minimum)."""
+    if value is None and allow_none:
+        return None
+    if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, np.integer)):
+        none = " or None" if allow_none else ""
+        raise TypeError(f"{func}: {name} must be an integer{none}, received "
+                        f"{type(value).__name__} {value!r}.")
+    if int(value) < minimum:
+        raise ValueError(f"{func}: {name} must be >= {minimum}, received {int(value)}.")
+    return int(value)

@@ -1,5 +1,9 @@
 """The Python examples of README.md and docs/*.md run, and every `print(x)  # value` line prints
-that value."""
+that value.
+
+Blocks fenced as ```python are run; blocks fenced as ```py are sketches that need something the
+test machine does not have (a remote Dask cluster) and are shown, not run.
+"""
 import contextlib
 import io
 import re

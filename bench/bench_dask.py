@@ -1,0 +1,201 @@
+"""Benchmark of the distributed path (fastmst.dask) against the in-memory solve.
+
+Sub-commands (each prints one JSON line per measurement):
+
+    generate   write a random multigraph as Parquet files, one file (one chunk) at a time
+    dask       solve the files on a LocalCluster with a memory limit per worker; report the
+               wall time, the peak resident memory of every worker process and of the client
+    inmemory   load the first files into one process and run fastmst.minimum_spanning_forest;
+               report load and solve time (peak memory: run under /usr/bin/time -v)
+    smoke      a small end-to-end check for CI: generate, solve both ways, compare the edges
+
+Example (the figures in docs/dask.md)::
+
+    python bench/bench_dask.py generate --out /tmp/fastmst-200m --edges 200_000_000 \\
+        --nodes 25_000_000 --files 100
+    python bench/bench_dask.py dask --data /tmp/fastmst-200m --workers 2 --memory-limit 3GiB
+    /usr/bin/time -v python bench/bench_dask.py inmemory --data /tmp/fastmst-200m --files 50
+
+The data are random (uniform endpoints, uniform float64 weights in [0, 1)), generated for the
+benchmark only.
+"""
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import resource
+import sys
+import tempfile
+import time
+
+import numpy as np
+
+
+def _peak_rss_self():
+    """Peak resident set size of this process in bytes (VmHWM)."""
+    with open("/proc/self/status") as fh:
+        for line in fh:
+            if line.startswith("VmHWM:"):
+                return int(line.split()[1]) * 1024
+    return resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024
+
+
+def _files(path, limit=None):
+    names = sorted(f for f in os.listdir(path) if f.endswith(".parquet"))
+    return [os.path.join(path, f) for f in names[:limit]]
+
+
+def generate(out, edges, nodes, files, seed=0):
+    """Write ``files`` Parquet files of about edges/files rows each (int32 ids, float64
+    weights); only one file's arrays are in memory at a time."""
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+    os.makedirs(out, exist_ok=True)
+    per = -(-edges // files)
+    start = time.perf_counter()
+    written = 0
+    for i in range(files):
+        m = min(per, edges - written)
+        if m <= 0:
+            break
+        rng = np.random.default_rng([seed, i])
+        id_type = np.int32 if nodes < 2**31 else np.int64
+        table = pa.table({"tail": rng.integers(0, nodes, m, dtype=id_type),
+                          "head": rng.integers(0, nodes, m, dtype=id_type),
+                          "weight": rng.random(m)})
+        pq.write_table(table, os.path.join(out, f"part-{i:04d}.parquet"),
+                       row_group_size=1 << 20)
+        written += m
+        del table
+    print(json.dumps({"step": "generate", "out": out, "edges": written, "nodes": nodes,
+                      "files": files, "seconds": round(time.perf_counter() - start, 1)}),
+          flush=True)
+
+
+def solve_dask(data, workers, memory_limit, n_files=None, n_nodes=None, plan="auto",
+               split_every=8, max_task_edges=None, progress=False, check=False):
+    import dask.dataframe as dd
+    from distributed import Client, LocalCluster
+
+    import fastmst.dask
+
+    files = _files(data, n_files)
+    with LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
+                      memory_limit=memory_limit, dashboard_address=None) as cluster, \
+            Client(cluster) as client:
+        ddf = dd.read_parquet(files)
+        start = time.perf_counter()
+        forest = fastmst.dask.minimum_spanning_forest(
+            ddf, n_nodes, plan=plan, split_every=split_every, max_task_edges=max_task_edges,
+            progress=progress)
+        seconds = time.perf_counter() - start
+        peaks = client.run(_peak_rss_self)
+        restarts = len(client.scheduler_info()["workers"])
+    info = forest.dask_plan
+    result = {"step": "dask", "files": len(files), "edges": forest.n_edges,
+              "nodes": forest.n_nodes, "workers": workers, "memory_limit": memory_limit,
+              "seconds": round(seconds, 1),
+              "peak_rss_per_worker_GiB": sorted(round(v / 2**30, 2) for v in peaks.values()),
+              "peak_rss_client_GiB": round(_peak_rss_self() / 2**30, 2),
+              "workers_at_end": restarts, "method": forest.method,
+              "n_partitions": info["n_partitions"], "max_task_edges": info["max_task_edges"],
+              "rounds": info["rounds"], "final": info["final"],
+              "phases": [(label, round(s, 1)) for label, s in info["phases"]],
+              "forest_edges": len(forest), "n_components": forest.n_components,
+              "weight": forest.weight}
+    if check:
+        import fastmst
+        t, h, w = _load(files)
+        want = fastmst.minimum_spanning_forest(t, h, w, n_nodes)
+        result["identical_to_in_memory"] = bool(np.array_equal(want.edges, forest.edges)
+                                                and np.array_equal(want.labels, forest.labels))
+    print(json.dumps(result), flush=True)
+    return result
+
+
+def _load(files):
+    import pyarrow.parquet as pq
+    tables = [pq.read_table(f) for f in files]
+    cols = [np.concatenate([tb.column(c).to_numpy() for tb in tables])
+            for c in ("tail", "head", "weight")]
+    return cols
+
+
+def solve_in_memory(data, n_files=None, with_scipy=False):
+    import fastmst
+    files = _files(data, n_files)
+    start = time.perf_counter()
+    t, h, w = _load(files)
+    load = time.perf_counter() - start
+    start = time.perf_counter()
+    forest = fastmst.minimum_spanning_forest(t, h, w)
+    seconds = time.perf_counter() - start
+    result = {"step": "inmemory", "files": len(files), "edges": int(t.shape[0]),
+              "nodes": forest.n_nodes, "load_seconds": round(load, 1),
+              "solve_seconds": round(seconds, 1), "forest_edges": len(forest),
+              "n_components": forest.n_components, "weight": forest.weight,
+              "peak_rss_GiB": round(_peak_rss_self() / 2**30, 2)}
+    if with_scipy:
+        from scipy.sparse import coo_array
+        from scipy.sparse.csgraph import minimum_spanning_tree
+        start = time.perf_counter()
+        # SciPy sums parallel edges and drops zero weights; the random weights are in (0, 1)
+        # almost surely, and the total is compared only when no (tail, head) pair repeats.
+        g = coo_array((w, (t, h)), shape=(forest.n_nodes,) * 2).tocsr()
+        tree = minimum_spanning_tree(g)
+        result["scipy_seconds"] = round(time.perf_counter() - start, 1)
+        result["scipy_weight"] = float(tree.sum())
+        result["ratio_scipy_over_fastmst"] = round(result["scipy_seconds"] / seconds, 2)
+    print(json.dumps(result), flush=True)
+    return result
+
+
+def smoke():
+    """Small end-to-end run for CI: 2M edges in 8 files, both plans forced, identical edges."""
+    with tempfile.TemporaryDirectory(dir="/tmp") as out:
+        generate(out, 2_000_000, 300_000, 8)
+        res = solve_dask(out, 2, "2GiB", max_task_edges=400_000, check=True)
+        if not res["identical_to_in_memory"]:
+            sys.exit("smoke: the distributed forest differs from the in-memory one")
+
+
+def main(argv=None):
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    sub = ap.add_subparsers(dest="cmd", required=True)
+    g = sub.add_parser("generate")
+    g.add_argument("--out", required=True)
+    g.add_argument("--edges", type=lambda s: int(s.replace("_", "")), required=True)
+    g.add_argument("--nodes", type=lambda s: int(s.replace("_", "")), required=True)
+    g.add_argument("--files", type=int, required=True)
+    g.add_argument("--seed", type=int, default=0)
+    d = sub.add_parser("dask")
+    d.add_argument("--data", required=True)
+    d.add_argument("--workers", type=int, default=2)
+    d.add_argument("--memory-limit", default="3GiB")
+    d.add_argument("--files", type=int, default=None, help="use only the first N files")
+    d.add_argument("--plan", default="auto")
+    d.add_argument("--split-every", type=int, default=8)
+    d.add_argument("--max-task-edges", type=int, default=None)
+    d.add_argument("--progress", action="store_true")
+    d.add_argument("--check", action="store_true", help="compare with the in-memory solve")
+    m = sub.add_parser("inmemory")
+    m.add_argument("--data", required=True)
+    m.add_argument("--files", type=int, default=None)
+    m.add_argument("--scipy", action="store_true")
+    sub.add_parser("smoke")
+    a = ap.parse_args(argv)
+    if a.cmd == "generate":
+        generate(a.out, a.edges, a.nodes, a.files, a.seed)
+    elif a.cmd == "dask":
+        solve_dask(a.data, a.workers, a.memory_limit, a.files, plan=a.plan,
+                   split_every=a.split_every, max_task_edges=a.max_task_edges,
+                   progress=a.progress, check=a.check)
+    elif a.cmd == "inmemory":
+        solve_in_memory(a.data, a.files, a.scipy)
+    else:
+        smoke()
+
+
+if __name__ == "__main__":
+    main()
