@@ -101,23 +101,10 @@ def check_forest(tail, head, weight, edges, n_nodes=None, *, maximize=None,
     >>> c.is_minimum, c.violations.tolist(), c.replaces.tolist(), c.excess
     (False, [2], [1], 0.5)
     """
-    from fastmst.forest import SpanningForest, minimum_spanning_forest
-    expected_edges = None
-    if isinstance(edges, SpanningForest):
-        expected_edges = edges.n_edges
-        if maximize is None:
-            maximize = edges.maximize
-        if n_nodes is None:
-            n_nodes = edges.n_nodes
-        edges = edges.edges
-    maximize = False if maximize is None else validation.check_bool(maximize, "maximize", _FUNC)
-    threads = validation.check_threads(threads, _FUNC)
-    g = validation.validate_edges(tail, head, weight, n_nodes, func=_FUNC)
-    if expected_edges is not None and expected_edges != g.n_edges:
-        raise ValueError(f"{_FUNC}: the forest was computed on a graph of {expected_edges} "
-                         f"edges, received {g.n_edges}; pass the same edge list.")
-    pos = validation.check_positions(edges, g.n_edges, "edges", _FUNC)
-    in_forest = validation.check_unique_positions(pos, g.n_edges, "edges", _FUNC)
+    from fastmst.forest import minimum_spanning_forest
+    g, pos, in_forest, maximize, threads = validation.validate_graph_with_forest(
+        tail, head, weight, edges, n_nodes, maximize, threads, name="edges", func=_FUNC,
+        strict_maximize=False)
     order = rule_sorted(pos, g.kweight, maximize)
     tree, cycle = merge_tree(g.ktail[order], g.khead[order], order, g.n_nodes)
     if tree is None:

@@ -83,28 +83,9 @@ def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None,
     >>> fastmst.sensitivity(t, h, w, f).tolist()
     [3.0, 2.0, 2.0, inf]
     """
-    from fastmst.forest import SpanningForest
-    n_nodes = None
-    if isinstance(forest, SpanningForest):
-        if maximize is None:
-            maximize = forest.maximize
-        elif bool(maximize) != forest.maximize:
-            raise ValueError(f"{_FUNC}: maximize={maximize!r} contradicts the forest, which is a "
-                             f"{'maximum' if forest.maximize else 'minimum'} spanning forest; "
-                             f"leave maximize out.")
-        n_nodes = forest.n_nodes
-        expected_edges = forest.n_edges
-        forest = forest.edges
-    else:
-        expected_edges = None
-    maximize = False if maximize is None else validation.check_bool(maximize, "maximize", _FUNC)
-    threads = validation.check_threads(threads, _FUNC)
-    g = validation.validate_edges(tail, head, weight, n_nodes, func=_FUNC)
-    if expected_edges is not None and expected_edges != g.n_edges:
-        raise ValueError(f"{_FUNC}: the forest was computed on a graph of {expected_edges} "
-                         f"edges, received {g.n_edges}; pass the same edge list.")
-    pos = validation.check_positions(forest, g.n_edges, "forest", _FUNC)
-    in_forest = validation.check_unique_positions(pos, g.n_edges, "forest", _FUNC)
+    g, pos, in_forest, maximize, threads = validation.validate_graph_with_forest(
+        tail, head, weight, forest, None, maximize, threads, name="forest", func=_FUNC,
+        strict_maximize=True)
     fedges = rule_sorted(pos, g.kweight, maximize)
     ftail, fhead = g.ktail[fedges], g.khead[fedges]
     tree, cycle = merge_tree(ftail, fhead, fedges, g.n_nodes)

@@ -293,6 +293,47 @@ def check_unique_labels(labels: np.ndarray, column: str, source: str, where) -> 
 
 # --- checks of the network-design toolkit (check_forest, sensitivity, bottleneck, clusters) ---
 
+def validate_graph_with_forest(tail, head, weight, forest, n_nodes, maximize, threads, *,
+                               name: str, func: str, strict_maximize: bool):
+    """Shared checks of the functions that take a graph and a forest of it.
+
+    ``forest`` is a SpanningForest (its ``maximize``, ``n_nodes`` and edge count are used and
+    checked against the graph), an array of edge positions or a boolean mask.  With
+    ``strict_maximize`` an explicit ``maximize`` that contradicts a SpanningForest is an error.
+
+    Returns
+    -------
+    g : EdgeArrays
+    pos : ndarray of shape (F,), dtype=int64
+        The forest's positions.
+    in_forest : ndarray of shape (E,), dtype=bool
+    maximize : bool
+    threads : int
+    """
+    from fastmst.forest import SpanningForest
+    expected_edges = None
+    if isinstance(forest, SpanningForest):
+        if maximize is None:
+            maximize = forest.maximize
+        elif strict_maximize and bool(maximize) != forest.maximize:
+            raise ValueError(f"{func}: maximize={maximize!r} contradicts the forest, which is a "
+                             f"{'maximum' if forest.maximize else 'minimum'} spanning forest; "
+                             f"leave maximize out.")
+        if n_nodes is None:
+            n_nodes = forest.n_nodes
+        expected_edges = forest.n_edges
+        forest = forest.edges
+    maximize = False if maximize is None else check_bool(maximize, "maximize", func)
+    threads = check_threads(threads, func)
+    g = validate_edges(tail, head, weight, n_nodes, func=func)
+    if expected_edges is not None and expected_edges != g.n_edges:
+        raise ValueError(f"{func}: the forest was computed on a graph of {expected_edges} "
+                         f"edges, received {g.n_edges}; pass the same edge list.")
+    pos = check_positions(forest, g.n_edges, name, func)
+    in_forest = check_unique_positions(pos, g.n_edges, name, func)
+    return g, pos, in_forest, maximize, threads
+
+
 def check_unique_positions(pos: np.ndarray, n_edges: int, name: str, func: str) -> np.ndarray:
     """Reject repeated positions in an edge set (``pos`` from check_positions); return the
     boolean membership mask of shape (n_edges,)."""

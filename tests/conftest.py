@@ -15,25 +15,26 @@ settings.register_profile(
 settings.load_profile("fastmst")
 
 
+def list_find(parent, x):
+    """Root of x in a plain-list union-find, halving the path on the way."""
+    while parent[x] != x:
+        parent[x] = parent[parent[x]]
+        x = parent[x]
+    return x
+
+
 def reference_kruskal(tail, head, weight, n_nodes, maximize=False):
-    """The tie rule written out directly: scan edges by (weight, position) with a plain dict DSU.
+    """The tie rule written out directly: scan edges by (weight, position) with a plain-list union-find.
 
     Used only to state the tie rule in the simplest possible code; outside references (SciPy,
     networkx) check the optimality itself.
     """
     parent = list(range(n_nodes))
-
-    def find(x):
-        while parent[x] != x:
-            parent[x] = parent[parent[x]]
-            x = parent[x]
-        return x
-
     sign = -1 if maximize else 1
     order = sorted(range(len(weight)), key=lambda i: (sign * weight[i], i))
     chosen = []
     for i in order:
-        a, b = find(int(tail[i])), find(int(head[i]))
+        a, b = list_find(parent, int(tail[i])), list_find(parent, int(head[i]))
         if a != b:
             parent[a] = b
             chosen.append(i)
@@ -53,15 +54,8 @@ def assert_is_spanning_forest(f, tail, head, n_nodes):
     assert len(edges) == n_nodes - f.n_components
     # Acyclic: adding the forest edges one by one never closes a cycle.
     parent = list(range(n_nodes))
-
-    def find(x):
-        while parent[x] != x:
-            parent[x] = parent[parent[x]]
-            x = parent[x]
-        return x
-
     for e in edges.tolist():
-        a, b = find(int(tail[e])), find(int(head[e]))
+        a, b = list_find(parent, int(tail[e])), list_find(parent, int(head[e]))
         assert a != b, f"forest edge {e} closes a cycle"
         parent[a] = b
     # Components: scipy.sparse.csgraph.connected_components on the whole graph (reference).

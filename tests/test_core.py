@@ -95,7 +95,7 @@ def test_total_matches_networkx_on_multigraphs(g):
 
 @given(multigraphs(), st.booleans())
 def test_edges_follow_the_position_tie_rule(g, maximize):
-    """Edges equal a direct transcription of the rule: Kruskal over (weight, position)."""
+    """Edges equal the rule written out directly: Kruskal over (weight, position)."""
     tail, head, weight, n = g
     ref = reference_kruskal(tail, head, weight, n, maximize=maximize)
     for f in solve_all(tail, head, weight, n, maximize=maximize):
