@@ -10,18 +10,28 @@ _FUNC = "SpanningForest.add_edges"
 
 def add_edges(forest, tail, head, weight, n_nodes=None):
     """Optimal forest of the old graph plus new edges; see ``SpanningForest.add_edges``."""
+    from fastmst._sort import edge_order
     from fastmst.forest import SpanningForest, minimum_spanning_forest
     new = validation.validate_edges(tail, head, weight, n_nodes, func=_FUNC)
     n = max(forest.n_nodes, new.n_nodes)
     k = new.n_edges
-    order = np.argsort(forest.edges, kind="stable")
+    required = forest.__dict__.get("_required")
+    if required is None:
+        # The old forest is already in rule order and every new edge comes after every old
+        # one by position, so the combined rule order is a merge: no sort of the old edges.
+        order = np.arange(len(forest), dtype=np.int64)
+        new_order = edge_order(new.kweight, forest.maximize)
+    else:
+        order = np.argsort(forest.edges, kind="stable")
+        new_order = np.arange(k, dtype=np.int64)
     old_pos = forest.edges[order]
-    ids = [np.asarray(forest.tail)[order], new.tail, np.asarray(forest.head)[order], new.head]
+    ids = [np.asarray(forest.tail)[order], new.tail[new_order], np.asarray(forest.head)[order],
+           new.head[new_order]]
     if len({a.dtype for a in ids}) > 1:
         ids = [a.astype(np.int64) for a in ids]     # e.g. uint64 with int64 would give floats
-    t = np.concatenate(ids[:2])
-    h = np.concatenate(ids[2:])
-    w = np.concatenate([np.asarray(forest.weights)[order], new.weight])
+    old_w = np.asarray(forest.weights)[order]
+    new_w = new.weight[new_order]
+    w = np.concatenate([old_w, new_w])
     if w.dtype.kind == "f" and (forest.weights.dtype.kind in "iu" or new.weight.dtype.kind in "iu"):
         # Mixed integer and float weights meet in float64; refuse if that rounds a weight.
         for part in (forest.weights, new.weight):
@@ -30,20 +40,40 @@ def add_edges(forest, tail, head, weight, n_nodes=None):
                 raise ValueError(f"{_FUNC}: integer weights above 2**53 cannot be compared "
                                  f"exactly with float weights; pass the new weights as "
                                  f"integers too (dtype {part.dtype}).")
-    position = np.concatenate([old_pos, forest.n_edges + np.arange(k, dtype=np.int64)])
-    required = forest.__dict__.get("_required")
-    extra = {}
-    if required is not None:
-        extra["required"] = np.searchsorted(old_pos, required)
-    sub = minimum_spanning_forest(t, h, w, n, maximize=forest.maximize, **extra)
+    new_pos = forest.n_edges + new_order
+    if required is None:
+        # Slot of each new edge after every old edge of equal weight (old positions are smaller).
+        if forest.maximize:
+            at = len(old_w) - np.searchsorted(old_w[::-1], new_w, side="left")
+        else:
+            at = np.searchsorted(old_w, new_w, side="right")
+        slot = at + np.arange(k, dtype=np.int64)
+        is_new = np.zeros(len(old_w) + k, dtype=bool)
+        is_new[slot] = True
+        t, h = np.empty(is_new.size, ids[0].dtype), np.empty(is_new.size, ids[0].dtype)
+        position = np.empty(is_new.size, np.int64)
+        merged_w = np.empty(is_new.size, w.dtype)
+        for dst, a, b in ((t, ids[0], ids[1]), (h, ids[2], ids[3]), (position, old_pos, new_pos),
+                          (merged_w, old_w, new_w)):
+            dst[~is_new] = a
+            dst[is_new] = b
+        sub = minimum_spanning_forest(t, h, merged_w, n, maximize=forest.maximize,
+                                      presorted=True)
+        return SpanningForest(position[sub.edges], sub.tail, sub.head, sub.weights, n,
+                              forest.n_edges + k, sub.n_components, sub.labels,
+                              forest.maximize, "add_edges")
+    t = np.concatenate(ids[:2])
+    h = np.concatenate(ids[2:])
+    position = np.concatenate([old_pos, new_pos])
+    sub = minimum_spanning_forest(t, h, w, n, maximize=forest.maximize,
+                                  required=np.searchsorted(old_pos, required))
     out = SpanningForest(position[sub.edges], sub.tail, sub.head, sub.weights, n,
                          forest.n_edges + k, sub.n_components, sub.labels, forest.maximize,
                          "add_edges")
-    if required is not None:
-        # What the requirement costs is measured against the free optimum, updated alongside.
-        free = add_edges(forest.__dict__["_free"], tail, head, weight, n_nodes)
-        out.required_excess = ((free.weight - out.weight) if forest.maximize
-                               else (out.weight - free.weight))
-        out.__dict__["_required"] = required
-        out.__dict__["_free"] = free
+    # What the requirement costs is measured against the free optimum, updated alongside.
+    free = add_edges(forest.__dict__["_free"], tail, head, weight, n_nodes)
+    out.required_excess = ((free.weight - out.weight) if forest.maximize
+                           else (out.weight - free.weight))
+    out.__dict__["_required"] = required
+    out.__dict__["_free"] = free
     return out

@@ -198,3 +198,33 @@ def test_toolkit_input_contract_and_threads():
     with ThreadPoolExecutor(4) as ex:
         outs = list(ex.map(lambda _: fastmst.sensitivity(t, h, w, f), range(8)))
     assert all(np.array_equal(o, ref_s) for o in outs)
+
+
+@pytest.mark.parametrize("maximize", [False, True])
+@pytest.mark.parametrize("new_dtype", [np.float64, np.int64, np.float32])
+def test_add_edges_ties_between_old_and_new_edges(maximize, new_dtype):
+    """New edges whose weights tie with old forest edges lose the tie (their positions are
+    later): add_edges equals the full re-solve of the concatenated graph, whose own tie rule is
+    checked against networkx's total (reference: networkx.minimum/maximum_spanning_edges)."""
+    rng = np.random.default_rng(99)
+    n, m, k = 300, 1500, 400
+    t, h = rng.integers(0, n, m), rng.integers(0, n, m)
+    w = rng.integers(-3, 4, m).astype(np.float64)
+    w[::7] = -0.0
+    t2, h2 = rng.integers(0, n, k), rng.integers(0, n, k)
+    w2 = rng.integers(-3, 4, k).astype(new_dtype)
+    f = fastmst.minimum_spanning_forest(t, h, w, n, maximize=maximize)
+    g = f.add_edges(t2, h2, w2)
+    full = fastmst.minimum_spanning_forest(np.concatenate([t, t2]), np.concatenate([h, h2]),
+                                           np.concatenate([w, w2.astype(np.float64)]), n,
+                                           maximize=maximize)
+    np.testing.assert_array_equal(g.edges, full.edges)
+    np.testing.assert_array_equal(g.labels, full.labels)
+    assert g.n_edges == m + k and g.weight == full.weight
+    mg = nx.MultiGraph()
+    mg.add_nodes_from(range(n))
+    mg.add_weighted_edges_from(zip(np.concatenate([t, t2]).tolist(),
+                                   np.concatenate([h, h2]).tolist(),
+                                   np.concatenate([w, w2.astype(np.float64)]).tolist()))
+    span = nx.maximum_spanning_edges if maximize else nx.minimum_spanning_edges
+    assert g.weight == sum(d["weight"] for *_, d in span(mg, data=True))
