@@ -328,7 +328,7 @@ def _run_method(g: validation.EdgeArrays, method: str, presorted: bool, maximize
         return build_forest(g, edges, labels, n_components, maximize, method, True)
     # Stop at (nodes with an edge) - 1 accepted edges: exact for a connected graph with
     # isolated nodes; a graph split further is scanned to the end (see docs/performance.md).
-    target = forest_bound(g.ktail, g.khead, g.n_nodes)
+    target = forest_bound(g.ktail, g.khead, g.n_nodes, threads)
     if method == "filter-kruskal" and not presorted:
         edges, parent = filter_kruskal(g.ktail, g.khead, g.kweight, g.n_nodes, maximize,
                                        target, threads)
