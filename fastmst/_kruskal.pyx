@@ -102,7 +102,7 @@ def kruskal(const int64_t[::1] order, const index_t[::1] tail, const index_t[::1
 from cython.parallel cimport parallel, prange, threadid
 from libc.stdint cimport uint32_t
 from fastmst._sort cimport Rec, rec_less, prefetch, sort_bucket, sort_records
-from fastmst._sort import MAX_RECORDS, make_records, split_records
+from fastmst._sort import MAX_RECORDS, make_records, split_records, split_records_bits
 
 #: Below this many edges the sort/scan pipeline of kruskal_radix runs on one thread (too short
 #: to pay for waking a second one).  Tests lower it to run the parallel code on small graphs.
@@ -450,46 +450,58 @@ def filter_kruskal(const index_t[::1] tail, const index_t[::1] head, weight,
         return out_a[:0], parent_a
     if m == 1:
         return kruskal_radix(tail, head, weight, n_nodes, maximize, target, 1, True)
-    raw, bounds, shift = split_records(weight, maximize, threads)
+    raw, bounds, shift, tb = split_records_bits(weight, maximize, threads)
     r = raw
     bd = bounds
-    tb = _top_bits(weight, maximize)
     with nogil:
         count = _filter_kruskal_buckets(<Rec*>&r[0], &bd[0], shift, tb, &tail[0], &head[0],
                                         &parent[0], &rank[0], &out[0], target, threshold)
     return out_a[:count], parent_a
 
 
-def _top_bits(weight, bint maximize):
-    from fastmst._sort import _scalar_keys
-    kmin, kmax = _scalar_keys(weight, maximize)
-    span = kmax - kmin
-    m = weight.shape[0]
-    return 32 + span.bit_length() if span > 0 else max(1, (m - 1).bit_length())
-
-
 cdef Py_ssize_t _count_touched(const index_t* tail, const index_t* head, Py_ssize_t m,
-                               uint8_t* seen, Py_ssize_t n) noexcept nogil:
-    cdef Py_ssize_t i, k = 0
-    for i in range(m):
-        seen[tail[i]] = 1
-        seen[head[i]] = 1
+                               uint8_t* seen, Py_ssize_t n, int threads) noexcept nogil:
+    """Number of nodes that are an endpoint of some edge.
+
+    Each thread marks the endpoints of a static slice of the edges in its own row of ``seen``
+    (``threads`` zeroed rows of ``n`` bytes), so no byte is written by two threads; the rows
+    are then OR-ed node by node.  The count does not depend on the thread count.
+    """
+    cdef Py_ssize_t i, t, lo, hi, k = 0
+    cdef uint8_t* row
+    cdef uint8_t v
+    for t in prange(threads, num_threads=threads, schedule="static"):
+        lo = m * t // threads
+        hi = m * (t + 1) // threads
+        row = seen + t * n
+        for i in range(lo, hi):
+            row[tail[i]] = 1
+            row[head[i]] = 1
     for i in range(n):
-        k += seen[i]
+        v = seen[i]
+        for t in range(1, threads):
+            v = v | seen[t * n + i]
+        k += v
     return k
 
 
-def forest_bound(const index_t[::1] tail, const index_t[::1] head, Py_ssize_t n_nodes):
+def forest_bound(const index_t[::1] tail, const index_t[::1] head, Py_ssize_t n_nodes,
+                 int threads=1):
     """An upper bound on the forest size that is exact when the non-isolated nodes are connected.
 
     ``(nodes with an edge) - 1``: lets Kruskal stop early on graphs with isolated nodes at the
     cost of one streaming pass (much cheaper than the union pass of ``forest_size``).
+    ``threads`` split the pass (one more ``n_nodes`` bytes of scratch per extra thread, and
+    one thread per ``fastmst._sort.MIN_EDGES_PER_THREAD`` edges at most); the result does not
+    depend on it.
     """
     cdef Py_ssize_t m = tail.shape[0], k = 0
     if m == 0 or n_nodes == 0:
         return 0
-    seen_a = np.zeros(n_nodes, dtype=np.uint8)
+    from fastmst import _sort
+    cdef int nt = max(1, min(threads, m // _sort.MIN_EDGES_PER_THREAD + 1))
+    seen_a = np.zeros(nt * n_nodes, dtype=np.uint8)
     cdef uint8_t[::1] seen = seen_a
     with nogil:
-        k = _count_touched(&tail[0], &head[0], m, &seen[0], n_nodes)
+        k = _count_touched(&tail[0], &head[0], m, &seen[0], n_nodes, nt)
     return max(0, k - 1)

@@ -514,6 +514,15 @@ cdef void _fill_split(const ukey_t[::1] bits, int kind, bint complement, uint64_
 def split_records(weight, bint maximize=False, int threads=1):
     """Records of validated weights, already split into 2048 top-digit buckets in key order.
 
+    The same as ``split_records_bits`` without its last value.
+    """
+    raw, bounds, next_shift, _ = split_records_bits(weight, maximize, threads)
+    return raw, bounds, next_shift
+
+
+def split_records_bits(weight, bint maximize=False, int threads=1):
+    """Records of validated weights, already split into 2048 top-digit buckets in key order.
+
     Parameters
     ----------
     weight : ndarray of shape (E,)
@@ -531,6 +540,9 @@ def split_records(weight, bint maximize=False, int threads=1):
     bounds : ndarray of shape (2049,), dtype=intp
     next_shift : int
         The shift to pass to the bucket sort.
+    top_bits : int
+        Number of significant bits of the 96-bit composite ``key * 2**32 + position`` (what
+        ``sort_records`` needs), from the same single min/max of the weights.
     """
     cdef Py_ssize_t m = weight.shape[0]
     if m >= MAX_RECORDS or m < 2:
@@ -560,7 +572,7 @@ def split_records(weight, bint maximize=False, int threads=1):
         with nogil:
             _fill_split(b64, kind, maximize, lo, tb, out, &hs[0], &bd[0], nt)
     s = top_bits - 11 if top_bits > 11 else 0
-    return raw, bounds, _next_shift(s)
+    return raw, bounds, _next_shift(s), top_bits
 
 
 def sort_buckets(raw, bounds, int next_shift, Py_ssize_t first, Py_ssize_t last, int threads=1):

@@ -285,3 +285,18 @@ def test_hypothesis_methods_equal_networkx(graph, maximize):
     w = np.array([e[2] for e in edges], dtype=np.float64)
     f = assert_identical(all_forests(tail, head, w, n, maximize=maximize))
     assert sorted(f.edges.tolist()) == networkx_forest(tail, head, w, n, maximize)
+
+
+@pytest.mark.parametrize("index_dtype", [np.int32, np.int64])
+def test_forest_bound_same_for_every_thread_count(index_dtype):
+    """forest_bound is (nodes with an edge) - 1 for every thread count; the reference count of
+    touched nodes is numpy.unique over both endpoint arrays."""
+    from fastmst._kruskal import forest_bound
+    rng = np.random.default_rng(11)
+    n = 3000
+    for m in (1, 2, 7, 500, 4000):
+        tail = rng.integers(0, n, m).astype(index_dtype)
+        head = rng.integers(0, n // 3, m).astype(index_dtype)
+        want = max(0, np.unique(np.concatenate([tail, head])).shape[0] - 1)
+        for threads in THREADS:
+            assert forest_bound(tail, head, n, threads) == want
