@@ -291,7 +291,11 @@ def kruskal_radix(const index_t[::1] tail, const index_t[::1] head, weight,
 
 cdef Py_ssize_t _filter(Rec* a, Py_ssize_t n, const index_t* tail, const index_t* head,
                         index_t* parent) noexcept nogil:
-    """Keep (stably, in place) the records whose endpoints are in different trees."""
+    """Keep (stably, in place) the records whose endpoints are in different trees.
+
+    The prefetch block is written out here and in _scan on purpose: moving it into a shared
+    inline helper measured about 30 % slower at 10M edges (2026-12-02, compare.py A/B).
+    """
     cdef Py_ssize_t i, k = 0
     cdef uint32_t e
     for i in range(n):

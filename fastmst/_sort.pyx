@@ -68,15 +68,22 @@ cdef inline uint64_t _key(ukey_t bits, int kind) noexcept nogil:
     return <uint64_t>bits
 
 
+cdef inline uint64_t _rank_key(ukey_t bits, int kind, bint complement,
+                               uint64_t mask) noexcept nogil:
+    """The order-preserving key, complemented (within ``mask``) for a maximum forest."""
+    cdef uint64_t k = _key(bits, kind)
+    if complement:
+        k = (~k) & mask
+    return k
+
+
 cdef void _fill(const ukey_t[::1] bits, int kind, bint complement, uint64_t kmin,
                 Rec* out, int threads) noexcept nogil:
     cdef Py_ssize_t i, m = bits.shape[0]
     cdef uint64_t k, full = (<uint64_t>0) - 1
     cdef uint64_t mask = full if ukey_t is uint64_t else <uint64_t>0xFFFFFFFF
     for i in prange(m, num_threads=threads, schedule="static"):
-        k = _key(bits[i], kind)
-        if complement:
-            k = (~k) & mask
+        k = _rank_key(bits[i], kind, complement, mask)
         out[i].key = k - kmin
         out[i].pos = <uint32_t>i
 
@@ -483,9 +490,7 @@ cdef void _fill_split(const ukey_t[::1] bits, int kind, bint complement, uint64_
         hi = m * (t + 1) // threads
         h = hist + t * 2048
         for i in range(lo, hi):
-            k = _key(bits[i], kind)
-            if complement:
-                k = (~k) & mask
+            k = _rank_key(bits[i], kind, complement, mask)
             h[_digit_kp(k - kmin, <uint32_t>i, s, 0x7FF)] += 1
     acc = 0
     for d in range(2048):
@@ -500,9 +505,7 @@ cdef void _fill_split(const ukey_t[::1] bits, int kind, bint complement, uint64_
         hi = m * (t + 1) // threads
         h = hist + t * 2048
         for i in range(lo, hi):
-            k = _key(bits[i], kind)
-            if complement:
-                k = (~k) & mask
+            k = _rank_key(bits[i], kind, complement, mask)
             k = k - kmin
             d = _digit_kp(k, <uint32_t>i, s, 0x7FF)
             j = h[d]
