@@ -100,9 +100,12 @@ def kruskal(const int64_t[::1] order, const index_t[::1] tail, const index_t[::1
 # Cache-aware Kruskal over radix-sorted records, and Filter-Kruskal.
 
 from cython.parallel cimport parallel, prange, threadid
-from libc.stdint cimport uint32_t
-from fastmst._sort cimport Rec, rec_less, prefetch, sort_bucket, sort_records
-from fastmst._sort import MAX_RECORDS, make_records, split_records, split_records_bits
+from libc.stdint cimport uint32_t, uint64_t
+from fastmst._sort cimport (Rec, rec_less, prefetch, sort_bucket, sort_records, ukey_t,
+                            _rank_key, _digit_kp, digit_hist, KIND_SIGNED, KIND_FLOAT)
+from fastmst import _sort
+from fastmst._sort import (MAX_RECORDS, make_records, split_records, _kind_and_bits,
+                           _scalar_keys)
 
 #: Below this many edges the sort/scan pipeline of kruskal_radix runs on one thread (too short
 #: to pay for waking a second one).  Tests lower it to run the parallel code on small graphs.
@@ -289,26 +292,150 @@ def kruskal_radix(const index_t[::1] tail, const index_t[::1] head, weight,
     return out_a[:count], parent_a
 
 
-cdef Py_ssize_t _filter(Rec* a, Py_ssize_t n, const index_t* tail, const index_t* head,
-                        index_t* parent) noexcept nogil:
-    """Keep (stably, in place) the records whose endpoints are in different trees.
+# ---------------------------------------------------------------------------------------------
+# Filter-Kruskal over streamed chunks of the key order.
+#
+# The 2048 top-digit buckets of the (key, position) order are the partition of Filter-Kruskal
+# (Osipov, Sanders and Singler, ALENEX 2009) with 2047 pivots.  Instead of writing a record
+# for every edge up front, the buckets are taken in key order a chunk at a time:
+#
+# * one pass counts the edges of every bucket (per thread, over static position slices);
+# * a chunk is a run of consecutive buckets.  Its edges are copied, straight from the input
+#   arrays in position order, into slots: a 12-byte sort record (key, slot) plus the slot's
+#   position, endpoints and weight bits, so the scan never gathers from the input arrays;
+# * once the scans reject most edges, a chunk is *filtered while it is collected*: the pass in
+#   position order keeps only the edges whose endpoints are in different trees (read-only
+#   finds, sequential reads of the endpoint arrays), and only the survivors get slots;
+# * each bucket of the chunk is then filtered again when rejections dominate, sorted in cache
+#   and scanned, as in the paper's base case; a bucket too large for that goes through the
+#   paper's pivot recursion.
+#
+# Edges heavier than the last one the forest needs are never copied, and edges that close a
+# cycle with lighter ones are dropped before they cost a record.  Dropping such an edge never
+# changes the forest, and within a bucket the slots are in position order, so sorting by
+# (key, slot) is sorting by (key, position): the result is exactly plain Kruskal's, for any
+# chunking and any thread count.
 
-    The prefetch block is written out here and in _scan on purpose: moving it into a shared
-    inline helper measured about 30 % slower at 10M edges (2026-12-02, compare.py A/B).
+ctypedef struct Rate:
+    Py_ssize_t scanned
+    Py_ssize_t accepted
+    bint filtering
+
+
+# The union-find of this kernel keeps each root's rank in its own parent word, as -1 - rank,
+# so a find and the link after it read nothing but the parent array (a separate rank array
+# costs two more scattered reads per accepted edge).  ``_standard_parents`` turns it back into
+# the parent[root] == root form that the rest of the library uses.
+
+cdef inline index_t _root(const index_t* parent, index_t x) noexcept nogil:
+    """Root of x without path compression (read only: safe for several threads at once)."""
+    while parent[x] >= 0:
+        x = parent[x]
+    return x
+
+
+cdef inline index_t _find(index_t* parent, index_t x) noexcept nogil:
+    """Root of x, with full path compression."""
+    cdef index_t root = x, nxt
+    while parent[root] >= 0:
+        root = parent[root]
+    while x != root:
+        nxt = parent[x]
+        parent[x] = root
+        x = nxt
+    return root
+
+
+cdef inline void _link(index_t* parent, index_t ra, index_t rb) noexcept nogil:
+    """Link two distinct roots by rank (stored as -1 - rank in the root's word)."""
+    if parent[ra] > parent[rb]:
+        parent[ra] = rb
+    else:
+        if parent[ra] == parent[rb]:
+            parent[ra] -= 1
+        parent[rb] = ra
+
+
+cdef void _standard_parents(index_t* parent, Py_ssize_t n) noexcept nogil:
+    cdef Py_ssize_t x
+    for x in range(n):
+        if parent[x] < 0:
+            parent[x] = <index_t>x
+
+
+cdef inline bint _both_giant(const uint64_t* giant, index_t u, index_t v) noexcept nogil:
+    """Are u and v both marked members of the largest tree (``giant``: one bit per node)?"""
+    return ((giant[u >> 6] >> (u & 63)) & (giant[v >> 6] >> (v & 63)) & 1) != 0
+
+
+cdef void _mark_giant(const index_t* parent, Py_ssize_t n, index_t g, uint64_t* giant,
+                      int threads) noexcept nogil:
+    """OUT: ``giant``, one bit per node, set for the members of the tree rooted at ``g``.
+
+    The trees only grow, so a marked pair stays joined: an edge between two marked nodes
+    closes a cycle, and the bitmap (n / 8 bytes, in cache where the parents are not) answers
+    that without a find.  Threads own whole words and only read ``parent``.
     """
-    cdef Py_ssize_t i, k = 0
-    cdef uint32_t e
+    cdef Py_ssize_t w, b, x, nw = (n + 63) // 64
+    cdef uint64_t word
+    for w in prange(nw, num_threads=threads, schedule="static"):
+        word = 0
+        for b in range(64):
+            x = w * 64 + b
+            if x < n and _root(parent, <index_t>x) == g:
+                word = word | ((<uint64_t>1) << b)
+        giant[w] = word
+
+
+cdef Py_ssize_t _scan_slots(const Rec* a, Py_ssize_t n, const index_t* side,
+                            index_t* parent, uint8_t* rank, int64_t* op, index_t* ot,
+                            index_t* oh, uint64_t* ow, Py_ssize_t count,
+                            Py_ssize_t target, const uint64_t* giant) noexcept nogil:
+    """Kruskal scan of sorted slot records ``a[:n]``; accepted edges are appended to the
+    output arrays (position, endpoints, shifted key) from ``count`` on.  Returns the new count
+    (stops at ``target``).  The slots of a bucket sit in cache, so only the parents are
+    scattered reads; they are prefetched 8 records ahead."""
+    cdef Py_ssize_t i
+    cdef uint32_t s
+    cdef index_t u, v, ru, rv
     for i in range(n):
-        if i + 16 < n:
-            e = a[i + 16].pos
-            prefetch(&tail[e])
-            prefetch(&head[e])
-        if i + 6 < n:
-            e = a[i + 6].pos
-            prefetch(&parent[tail[e]])
-            prefetch(&parent[head[e]])
-        e = a[i].pos
-        if dsu_find(parent, tail[e]) != dsu_find(parent, head[e]):
+        if i + 8 < n:
+            s = a[i + 8].pos
+            prefetch(&parent[side[3 * s + 1]])
+            prefetch(&parent[side[3 * s + 2]])
+        s = a[i].pos
+        u = side[3 * s + 1]
+        v = side[3 * s + 2]
+        if _both_giant(giant, u, v):
+            continue
+        ru = _find(parent, u)
+        rv = _find(parent, v)
+        if ru != rv:
+            _link(parent, ru, rv)
+            op[count] = <uint32_t>side[3 * s]
+            ot[count] = u
+            oh[count] = v
+            ow[count] = a[i].key
+            count += 1
+            if count >= target:
+                return count
+    return count
+
+
+cdef Py_ssize_t _filter_slots(Rec* a, Py_ssize_t n, const index_t* side, index_t* parent,
+                              const uint64_t* giant) noexcept nogil:
+    """Keep (stably, in place) the slot records whose endpoints are in different trees."""
+    cdef Py_ssize_t i, k = 0
+    cdef uint32_t s
+    for i in range(n):
+        if i + 8 < n:
+            s = a[i + 8].pos
+            prefetch(&parent[side[3 * s + 1]])
+            prefetch(&parent[side[3 * s + 2]])
+        s = a[i].pos
+        if _both_giant(giant, side[3 * s + 1], side[3 * s + 2]):
+            continue
+        if _find(parent, side[3 * s + 1]) != _find(parent, side[3 * s + 2]):
             a[k] = a[i]
             k += 1
     return k
@@ -351,17 +478,15 @@ cdef Py_ssize_t _partition(Rec* a, Py_ssize_t n) noexcept nogil:
         j -= 1
 
 
-cdef Py_ssize_t _filter_kruskal(Rec* a, Py_ssize_t n, int top_bits, const index_t* tail,
-                                const index_t* head, index_t* parent, uint8_t* rank,
-                                int64_t* out, Py_ssize_t count, Py_ssize_t target,
-                                Py_ssize_t threshold, int depth) noexcept nogil:
-    """Filter-Kruskal (Osipov, Sanders and Singler, ALENEX 2009) on records ``a[:n]``.
+cdef Py_ssize_t _fk_recurse(Rec* a, Py_ssize_t n, int top_bits, const index_t* side,
+                            index_t* parent, uint8_t* rank, int64_t* op, index_t* ot,
+                            index_t* oh, uint64_t* ow, Py_ssize_t count, Py_ssize_t target,
+                            Py_ssize_t threshold, int depth, const uint64_t* giant) noexcept nogil:
+    """The paper's recursion on slot records ``a[:n]`` (one bucket too large for the cache).
 
     Partition around a pivot; recurse on the light side; drop heavy records whose endpoints
-    the light side already joined; recurse on the survivors (the paper's scheme, used here
-    for buckets too large for the cache-resident base case).  Below ``threshold`` records (or
-    past a recursion depth of 64, against adversarial pivots) radix sort and scan.  The
-    composite (key, position) order is total, so the result is exactly plain Kruskal's.
+    the light side already joined; recurse on the survivors.  Below ``threshold`` records (or
+    past a recursion depth of 64, against adversarial pivots) radix sort and scan.
     """
     cdef Py_ssize_t nl, nh
     while True:
@@ -369,73 +494,352 @@ cdef Py_ssize_t _filter_kruskal(Rec* a, Py_ssize_t n, int top_bits, const index_
             return count
         if n <= threshold or depth > 64:
             sort_records(a, n, top_bits)
-            return _scan(a, n, tail, head, parent, rank, out, count, target)
+            return _scan_slots(a, n, side, parent, rank, op, ot, oh, ow, count,
+                               target, giant)
         nl = _partition(a, n)
-        count = _filter_kruskal(a, nl, top_bits, tail, head, parent, rank, out, count, target,
-                                threshold, depth + 1)
+        count = _fk_recurse(a, nl, top_bits, side, parent, rank, op, ot, oh, ow,
+                            count, target, threshold, depth + 1, giant)
         if count >= target:
             return count
-        nh = _filter(a + nl, n - nl, tail, head, parent)
+        nh = _filter_slots(a + nl, n - nl, side, parent, giant)
         a = a + nl
         n = nh
         depth += 1
 
 
-cdef Py_ssize_t _filter_kruskal_buckets(Rec* a, const Py_ssize_t* bounds, int shift,
-                                        int top_bits, const index_t* tail, const index_t* head,
-                                        index_t* parent, uint8_t* rank, int64_t* out,
-                                        Py_ssize_t target, Py_ssize_t threshold) noexcept nogil:
-    """Filter-Kruskal whose first partition is the 2048-way radix split.
+cdef Py_ssize_t _chunk_buckets(Rec* a, const Py_ssize_t* bounds, Py_ssize_t nbk, int shift,
+                               int top_bits, const index_t* side, index_t* parent,
+                               uint8_t* rank, int64_t* op, index_t* ot, index_t* oh,
+                               uint64_t* ow, Py_ssize_t count, Py_ssize_t target,
+                               Py_ssize_t threshold, Rate* rate,
+                               const uint64_t* giant) noexcept nogil:
+    """Filter, sort and scan the ``nbk`` buckets ``a[bounds[b]:bounds[b+1]]`` in key order.
 
-    The split is a partition around 2047 pivots (the digit boundaries) at the cost of one
-    scatter.  Buckets are then taken lightest first, as the light side of each partition is in
-    Filter-Kruskal: a bucket is first filtered (records whose endpoints the lighter buckets
-    already joined are dropped) once the scans have started rejecting most edges, then the
-    survivors are radix sorted in cache and scanned; a bucket above ``threshold`` records goes
-    through the pivot recursion instead.  Filtering buckets where many edges are still
-    accepted would only double the finds, hence the acceptance-rate switch; either way the
-    result is plain Kruskal's.
+    ``shift < 0`` means every bucket holds a single key in slot order (already sorted).  A
+    bucket is filtered first while fewer than a quarter of the recently scanned edges join two
+    trees: the filter costs about one scan, a scanned edge about a scan plus a sort, so the
+    filter pays below roughly that rate (measured; see docs/performance.md).
     """
-    cdef Py_ssize_t b, lo, nb, count = 0, before, scanned = 0, accepted = 0
-    cdef bint filtering = False
-    for b in range(2048):
+    cdef Py_ssize_t b, lo, nb, before
+    for b in range(nbk):
         lo = bounds[b]
         nb = bounds[b + 1] - lo
         if nb == 0:
             continue
-        if filtering:
-            nb = _filter(a + lo, nb, tail, head, parent)
+        if rate.filtering:
+            nb = _filter_slots(a + lo, nb, side, parent, giant)
         before = count
-        if nb > threshold:
-            count = _filter_kruskal(a + lo, nb, top_bits, tail, head, parent, rank, out, count,
-                                    target, threshold, 0)
+        if nb > threshold and shift >= 0:
+            count = _fk_recurse(a + lo, nb, top_bits, side, parent, rank, op, ot,
+                                oh, ow, count, target, threshold, 0, giant)
         else:
-            if nb > 1:
+            if nb > 1 and shift >= 0:
                 sort_bucket(a + lo, nb, shift)
-            count = _scan(a + lo, nb, tail, head, parent, rank, out, count, target)
+            count = _scan_slots(a + lo, nb, side, parent, rank, op, ot, oh, ow,
+                                count, target, giant)
         if count >= target:
             break
-        scanned += nb
-        accepted += count - before
-        # Filter while fewer than a quarter of the recently scanned edges join two trees: the
-        # filter costs about one scan, a scanned edge about a scan plus a sort, and the sort
-        # of a bucket in cache is cheaper than the scattered finds (measured; see
-        # docs/performance.md), so the filter pays below roughly that rate.
-        if scanned >= 8192:
-            filtering = 4 * accepted < scanned
-            scanned = 0
-            accepted = 0
+        rate.scanned += nb
+        rate.accepted += count - before
+        if rate.scanned >= 8192:
+            rate.filtering = 4 * rate.accepted < rate.scanned
+            rate.scanned = 0
+            rate.accepted = 0
     return count
+
+
+cdef void _scatter(const ukey_t* bits, const index_t* tail, const index_t* head, Py_ssize_t m,
+                   int kind, bint comp, uint64_t kmin, int s, Py_ssize_t d0, Py_ssize_t d1,
+                   Py_ssize_t* off, Rec* rec, index_t* side, int threads) noexcept nogil:
+    """Copy every edge of buckets [d0, d1) into its slot (no filter).
+
+    IN/OUT: ``off[t * 2048 + d]``, the next slot of thread t in bucket d (thread slices are in
+    position order and their slots in thread order, so every bucket's slots are in position
+    order for any thread count).
+    """
+    cdef uint64_t mask = (<uint64_t>0) - 1 if ukey_t is uint64_t else <uint64_t>0xFFFFFFFF
+    cdef Py_ssize_t t, i, lo, hi, d, j
+    cdef Py_ssize_t* h
+    cdef uint64_t k
+    for t in prange(threads, num_threads=threads, schedule="static"):
+        lo = m * t // threads
+        hi = m * (t + 1) // threads
+        h = off + t * 2048
+        for i in range(lo, hi):
+            k = _rank_key(bits[i], kind, comp, mask) - kmin
+            d = _digit_kp(k, <uint32_t>i, s, 0x7FF)
+            if d >= d0 and d < d1:
+                j = h[d]
+                h[d] = j + 1
+                rec[j].key = k
+                rec[j].pos = <uint32_t>j
+                side[3 * j] = <index_t><uint32_t>i
+                side[3 * j + 1] = tail[i]
+                side[3 * j + 2] = head[i]
+
+
+cdef void _collect(const ukey_t* bits, const index_t* tail, const index_t* head, Py_ssize_t m,
+                   int kind, bint comp, uint64_t kmin, int s, Py_ssize_t d0, Py_ssize_t d1,
+                   const index_t* parent, const uint64_t* giant, Rec* buf, Py_ssize_t* fill,
+                   Py_ssize_t* hist2, int threads) noexcept nogil:
+    """Append (key, position) of every edge of buckets [d0, d1) whose endpoints are in
+    different trees to thread t's part of ``buf``, in position order.
+
+    IN/OUT: ``fill[t]``, thread t's next free record (its part is sized by the unfiltered
+    count, so it cannot overflow).  OUT: ``hist2[t * 2048 + d]`` (zeroed by the caller), the
+    survivors per thread and bucket.  The finds only read ``parent``.
+    """
+    cdef uint64_t mask = (<uint64_t>0) - 1 if ukey_t is uint64_t else <uint64_t>0xFFFFFFFF
+    cdef Py_ssize_t t, i, lo, hi, d, j, keep
+    cdef Py_ssize_t* h
+    cdef uint64_t k
+    for t in prange(threads, num_threads=threads, schedule="static"):
+        lo = m * t // threads
+        hi = m * (t + 1) // threads
+        h = hist2 + t * 2048
+        j = fill[t]
+        for i in range(lo, hi):
+            k = _rank_key(bits[i], kind, comp, mask) - kmin
+            d = _digit_kp(k, <uint32_t>i, s, 0x7FF)
+            # the common cases (outside the range, or both ends in the largest tree) take no
+            # branch on the random key; only the rest go to the finds
+            if ((d >= d0) & (d < d1) & (not _both_giant(giant, tail[i], head[i]))):
+                keep = _root(parent, tail[i]) != _root(parent, head[i])
+                buf[j].key = k
+                buf[j].pos = <uint32_t>i
+                j = j + keep
+                h[d] += keep
+        fill[t] = j
+
+
+cdef void _distribute(const Rec* buf, const Py_ssize_t* start, const Py_ssize_t* fill,
+                      const ukey_t* bits, const index_t* tail, const index_t* head, int s,
+                      Py_ssize_t d_end, Py_ssize_t* off, Rec* rec, index_t* side,
+                      int threads) noexcept nogil:
+    """Move the collected survivors of buckets below ``d_end`` into their slots (``off`` as in
+    ``_scatter``); survivors of later buckets are dropped (collected again later)."""
+    cdef Py_ssize_t t, r, d, j
+    cdef uint32_t i
+    cdef uint64_t k
+    cdef Py_ssize_t* h
+    for t in prange(threads, num_threads=threads, schedule="static"):
+        h = off + t * 2048
+        for r in range(start[t], fill[t]):
+            k = buf[r].key
+            i = buf[r].pos
+            d = _digit_kp(k, i, s, 0x7FF)
+            if d < d_end:
+                j = h[d]
+                h[d] = j + 1
+                rec[j].key = k
+                rec[j].pos = <uint32_t>j
+                side[3 * j] = <index_t>i
+                side[3 * j + 1] = tail[i]
+                side[3 * j + 2] = head[i]
+
+
+cdef index_t _largest_root(index_t[::1] parent):
+    """The root of the most frequent tree among 1023 evenly spaced nodes (deterministic)."""
+    cdef Py_ssize_t n = parent.shape[0], k
+    sample = np.linspace(0, n - 1, min(n, 1023)).astype(np.int64)
+    roots = np.empty(sample.shape[0], dtype=np.int64)
+    cdef int64_t[::1] sv = sample
+    cdef int64_t[::1] rv = roots
+    for k in range(sv.shape[0]):
+        rv[k] = _root(&parent[0], <index_t>sv[k])
+    values, counts = np.unique(roots, return_counts=True)
+    return <index_t>values[int(np.argmax(counts))]
+
+
+def _slot_offsets(hist, Py_ssize_t d0, Py_ssize_t d1):
+    """Slot offsets of buckets [d0, d1) from per-thread counts ``hist`` (threads x 2048).
+
+    Returns ``off`` (threads x 2048, the first slot of thread t in bucket d; buckets in order,
+    threads in order within a bucket) and ``bounds`` (d1 - d0 + 1 bucket boundaries).
+    """
+    sub = hist[:, d0:d1]
+    flat = sub.T.ravel()
+    starts = np.cumsum(flat) - flat
+    off = np.zeros_like(hist)
+    off[:, d0:d1] = starts.reshape(d1 - d0, hist.shape[0]).T
+    bounds = np.zeros(d1 - d0 + 1, dtype=np.intp)
+    np.cumsum(sub.sum(axis=0), out=bounds[1:])
+    return np.ascontiguousarray(off), bounds
+
+
+def _last_bucket(cum, Py_ssize_t d0, Py_ssize_t cap):
+    """The largest d1 > d0 with ``cum[d1] - cum[d0] <= cap`` (at least d0 + 1)."""
+    d1 = int(np.searchsorted(cum, cum[d0] + cap, side="right")) - 1
+    return max(d1, d0 + 1)
+
+
+cdef class _Slots:
+    """The slots of one chunk: sort records (key, slot) and, per slot, (position, tail, head)
+    in the id dtype (a position above 2**31 is stored bit-cast in an int32 word)."""
+    cdef public object rec, side
+    cdef public Py_ssize_t cap
+
+    def __init__(self, Py_ssize_t cap, dtype):
+        self.cap = cap
+        self.rec = np.empty(12 * cap, dtype=np.uint8)
+        self.side = np.empty(3 * cap, dtype=dtype)
+
+
+cdef Py_ssize_t _fk_stream(const ukey_t[::1] bits, const index_t[::1] tail,
+                           const index_t[::1] head, int kind, bint comp, uint64_t kmin,
+                           int top_bits, index_t[::1] parent, uint8_t[::1] rank,
+                           int64_t[::1] op, index_t[::1] ot, index_t[::1] oh, uint64_t[::1] ow,
+                           Py_ssize_t target, int threads, Py_ssize_t threshold,
+                           Py_ssize_t chunk) except -1:
+    """Driver of the streamed Filter-Kruskal (see the section comment).  Returns the number
+    of accepted edges written to ``op``, ``ot``, ``oh``, ``ow``."""
+    dtype = np.int32 if index_t is int32_t else np.int64
+    cdef Py_ssize_t m = tail.shape[0], count = 0, d0 = 0, d1, d_end, n_range, t
+    cdef int s = top_bits - 11 if top_bits > 11 else 0
+    # s < 32: the top digit holds the whole key, so every bucket is one key in slot order
+    cdef int shift = s - 8 if s >= 32 else -1
+    cdef Rate rate
+    cdef Py_ssize_t[::1] hs, offv, bdv, fillv, startv, h2v
+    cdef uint8_t[::1] recv, bufv
+    cdef index_t[::1] sidev
+    cdef uint64_t[::1] gv
+    cdef Py_ssize_t n_nodes = parent.shape[0]
+    cdef index_t g
+    rate.scanned = 0
+    rate.accepted = 0
+    rate.filtering = False
+    giant_a = np.zeros((n_nodes + 63) // 64 + 1, dtype=np.uint64)
+    gv = giant_a
+    hist_a = np.empty(threads * 2048, dtype=np.intp)
+    hs = hist_a
+    with nogil:
+        digit_hist(&bits[0], m, kind, comp, kmin, s, &hs[0], threads)
+    hist = hist_a.reshape(threads, 2048)
+    cum = np.zeros(2049, dtype=np.intp)
+    np.cumsum(hist.sum(axis=0), out=cum[1:])
+    slots = None
+    buf = None
+    buf_cap = 0
+    fill_a = np.empty(threads, dtype=np.intp)
+    start_a = np.empty(threads, dtype=np.intp)
+    fillv = fill_a
+    startv = start_a
+    while d0 < 2048 and count < target:
+        if cum[2048] - cum[d0] == 0:
+            break
+        if not rate.filtering:
+            d1 = _last_bucket(cum, d0, chunk)
+            n_range = cum[d1] - cum[d0]
+            if slots is None or slots.cap < n_range:
+                slots = None
+                slots = _Slots(max(n_range, chunk), dtype)
+            off, bounds = _slot_offsets(hist, d0, d1)
+            offv = off.reshape(-1)
+            recv = slots.rec
+            sidev = slots.side
+            with nogil:
+                _scatter(&bits[0], &tail[0], &head[0], m, kind, comp, kmin, s, d0, d1,
+                         &offv[0], <Rec*>&recv[0], &sidev[0], threads)
+            d_end = d1
+        else:
+            # mark the largest tree, then collect up to 4 chunks' worth of unfiltered edges
+            g = _largest_root(parent)
+            with nogil:
+                _mark_giant(&parent[0], n_nodes, g, &gv[0], threads)
+            d1 = _last_bucket(cum, d0, 4 * chunk)
+            counts = hist[:, d0:d1].sum(axis=1)
+            n_range = int(counts.sum())
+            if n_range > buf_cap:
+                buf = None
+                buf_cap = n_range
+                buf = np.empty(12 * buf_cap, dtype=np.uint8)
+            bufv = buf
+            start_a[:] = np.cumsum(counts) - counts
+            fill_a[:] = start_a
+            h2 = np.zeros((threads, 2048), dtype=np.intp)
+            h2v = h2.reshape(-1)
+            with nogil:
+                _collect(&bits[0], &tail[0], &head[0], m, kind, comp, kmin, s, d0, d1,
+                         &parent[0], &gv[0], <Rec*>&bufv[0], &fillv[0], &h2v[0], threads)
+            cum2 = np.zeros(2049, dtype=np.intp)
+            np.cumsum(h2.sum(axis=0), out=cum2[1:])
+            if slots is None:
+                slots = _Slots(chunk, dtype)
+            d_end = min(d1, _last_bucket(cum2, d0, slots.cap))
+            n_range = cum2[d_end] - cum2[d0]
+            if slots.cap < n_range:
+                slots = None
+                slots = _Slots(n_range, dtype)
+            off, bounds = _slot_offsets(h2, d0, d_end)
+            offv = off.reshape(-1)
+            recv = slots.rec
+            sidev = slots.side
+            with nogil:
+                _distribute(<Rec*>&bufv[0], &startv[0], &fillv[0], &bits[0], &tail[0],
+                            &head[0], s, d_end, &offv[0], <Rec*>&recv[0], &sidev[0],
+                            threads)
+        bdv = bounds
+        if n_range > 0:
+            with nogil:
+                count = _chunk_buckets(<Rec*>&recv[0], &bdv[0], d_end - d0, shift, top_bits,
+                                       &sidev[0], &parent[0],
+                                       &rank[0], &op[0], &ot[0], &oh[0], &ow[0], count, target,
+                                       threshold, &rate, &gv[0])
+        d0 = d_end
+    return count
+
+
+cdef void _keys_to_bits(uint64_t* k, Py_ssize_t n, int kind, bint comp, uint64_t kmin,
+                        int width) noexcept nogil:
+    """Invert the order-preserving key map in place: shifted keys back to weight bits (a
+    ``-0.0`` weight comes back as ``+0.0``; the caller restores it from the input)."""
+    cdef uint64_t mask = (<uint64_t>0) - 1 if width == 64 else ((<uint64_t>1) << width) - 1
+    cdef uint64_t top = (<uint64_t>1) << (width - 1)
+    cdef uint64_t x
+    cdef Py_ssize_t i
+    for i in range(n):
+        x = k[i] + kmin
+        if comp:
+            x = (~x) & mask
+        if kind == KIND_SIGNED:
+            x = x ^ top
+        elif kind == KIND_FLOAT:
+            if x & top:
+                x = x ^ top
+            else:
+                x = (~x) & mask
+        k[i] = x
 
 
 def filter_kruskal(const index_t[::1] tail, const index_t[::1] head, weight,
                    Py_ssize_t n_nodes, bint maximize=False, Py_ssize_t target=-1,
-                   int threads=1, Py_ssize_t threshold=0):
-    """Filter-Kruskal minimum spanning forest (same parameters and result as kruskal_radix).
+                   int threads=1, Py_ssize_t threshold=0, Py_ssize_t chunk=0):
+    """Filter-Kruskal minimum spanning forest over streamed chunks (see the section comment).
 
-    ``threshold`` is the size above which a bucket goes through the pivot recursion (0 picks
-    ``max(1 << 16, n_nodes // 2)``).  ``threads`` only speeds up the radix split; the scan is
-    serial.
+    Parameters
+    ----------
+    tail, head, weight, n_nodes, maximize, target
+        As for ``kruskal_radix``.
+    threads : int
+        Threads for the counting, copying and filtering passes; the scan is serial and the
+        result does not depend on it.
+    threshold : int
+        Size above which a bucket goes through the pivot recursion (0 picks
+        ``max(1 << 16, n_nodes // 2)``).
+    chunk : int
+        Slots of a chunk (0 picks ``max(1 << 16, 1.5 * target)``, at most a quarter of the
+        edges from 2**24 edges on).  The result does not depend on it.
+
+    Returns
+    -------
+    edges : ndarray of shape (F,), dtype=int64
+        Accepted positions in tie-rule order.
+    parent : ndarray of shape (n_nodes,)
+        Union-find parents of the forest.
+    tail, head : ndarray of shape (F,)
+        Endpoints of the accepted edges (the dtype of ``tail``).
+    weights : ndarray of shape (F,)
+        Their weights (the dtype of ``weight``).
     """
     cdef Py_ssize_t m = tail.shape[0]
     if target < 0:
@@ -443,24 +847,67 @@ def filter_kruskal(const index_t[::1] tail, const index_t[::1] head, weight,
     if threshold <= 0:
         threshold = max(1 << 16, n_nodes // 2)
     parent_a, rank_a, out_a = _trivial(np.asarray(tail), np.asarray(head), n_nodes, target)
-    cdef index_t[::1] parent = parent_a
-    cdef uint8_t[::1] rank = rank_a
-    cdef int64_t[::1] out = out_a
+    cap = out_a.shape[0]
+    dtype = np.int32 if index_t is int32_t else np.int64
+    ot_a = np.empty(cap, dtype=dtype)
+    oh_a = np.empty(cap, dtype=dtype)
+    ow_a = np.empty(cap, dtype=np.uint64)
     cdef Py_ssize_t count = 0
-    cdef uint8_t[::1] r
-    cdef Py_ssize_t[::1] bd
-    cdef int shift, tb
+    cdef uint64_t lo
+    cdef int kind, tb, width
+    cdef const uint32_t[::1] b32
+    cdef const uint64_t[::1] b64
+    cdef index_t[::1] pv = parent_a
+    cdef uint8_t[::1] rv = rank_a
+    cdef int64_t[::1] opv = out_a
+    cdef index_t[::1] otv = ot_a
+    cdef index_t[::1] ohv = oh_a
+    cdef uint64_t[::1] owv = ow_a
     if m == 0 or n_nodes < 2 or target == 0:
-        return out_a[:0], parent_a
-    if m == 1:
-        return kruskal_radix(tail, head, weight, n_nodes, maximize, target, 1, True)
-    raw, bounds, shift, tb = split_records_bits(weight, maximize, threads)
-    r = raw
-    bd = bounds
-    with nogil:
-        count = _filter_kruskal_buckets(<Rec*>&r[0], &bd[0], shift, tb, &tail[0], &head[0],
-                                        &parent[0], &rank[0], &out[0], target, threshold)
-    return out_a[:count], parent_a
+        count = 0
+    elif m == 1:
+        edges, parent_a = kruskal_radix(tail, head, weight, n_nodes, maximize, target, 1, True)
+        return (edges, parent_a, np.take(np.asarray(tail), edges),
+                np.take(np.asarray(head), edges), np.take(weight, edges))
+    else:
+        if m >= MAX_RECORDS:
+            raise ValueError(f"filter_kruskal: needs E < 2**32 edges, received {m}.")
+        if chunk <= 0:
+            chunk = max(1 << 16, target + target // 2)
+            if m >= (1 << 24):
+                chunk = min(chunk, m // 4)
+        chunk = max(1, min(chunk, m))
+        code, ubits = _kind_and_bits(weight)
+        kmin, kmax = _scalar_keys(weight, maximize)
+        span = kmax - kmin
+        tb = 32 + span.bit_length() if span > 0 else max(1, (m - 1).bit_length())
+        threads = max(1, min(threads, m // _sort.MIN_EDGES_PER_THREAD + 1))
+        lo = kmin
+        kind = code
+        parent_a.fill(-1)
+        if ubits is np.uint32:
+            b32 = weight.view(np.uint32)
+            count = _fk_stream(b32, tail, head, kind, maximize, lo, tb, pv, rv, opv,
+                               otv, ohv, owv, target, threads, threshold, chunk)
+        else:
+            b64 = weight.view(np.uint64)
+            count = _fk_stream(b64, tail, head, kind, maximize, lo, tb, pv, rv, opv,
+                               otv, ohv, owv, target, threads, threshold, chunk)
+        width = 8 * weight.dtype.itemsize
+        with nogil:
+            _standard_parents(&pv[0], n_nodes)
+            if count > 0:
+                _keys_to_bits(&owv[0], count, kind, maximize, lo, width)
+    edges = out_a[:count]
+    ow_a = ow_a[:count]
+    if weight.dtype.itemsize == 4:
+        ow_a = ow_a.astype(np.uint32)
+    weights = ow_a.view(weight.dtype)
+    if weight.dtype.kind == "f" and count > 0:
+        zero = np.flatnonzero(weights == 0)
+        if zero.shape[0]:
+            weights[zero] = np.take(weight, edges[zero])  # keeps the sign of -0.0
+    return edges, parent_a, ot_a[:count], oh_a[:count], weights
 
 
 cdef Py_ssize_t _count_touched(const index_t* tail, const index_t* head, Py_ssize_t m,

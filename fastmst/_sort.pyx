@@ -44,39 +44,6 @@ MIN_EDGES_PER_THREAD = 1 << 21
 _RADIX_DTYPES = {np.dtype(t) for t in (np.float32, np.float64, np.int32, np.int64, np.uint32,
                                        np.uint64)}
 
-ctypedef fused ukey_t:
-    uint32_t
-    uint64_t
-
-# Key kinds.
-cdef enum:
-    KIND_UNSIGNED = 0
-    KIND_SIGNED = 1
-    KIND_FLOAT = 2
-
-
-cdef inline uint64_t _key(ukey_t bits, int kind) noexcept nogil:
-    cdef ukey_t top = (<ukey_t>1) << (sizeof(ukey_t) * 8 - 1)
-    if kind == KIND_SIGNED:
-        return <uint64_t>(bits ^ top)
-    if kind == KIND_FLOAT:
-        if bits == top:  # -0.0 ties with +0.0
-            bits = 0
-        if bits & top:
-            return <uint64_t>(<ukey_t>~bits)
-        return <uint64_t>(bits | top)
-    return <uint64_t>bits
-
-
-cdef inline uint64_t _rank_key(ukey_t bits, int kind, bint complement,
-                               uint64_t mask) noexcept nogil:
-    """The order-preserving key, complemented (within ``mask``) for a maximum forest."""
-    cdef uint64_t k = _key(bits, kind)
-    if complement:
-        k = (~k) & mask
-    return k
-
-
 cdef void _fill(const ukey_t[::1] bits, int kind, bint complement, uint64_t kmin,
                 Rec* out, int threads) noexcept nogil:
     cdef Py_ssize_t i, m = bits.shape[0]
@@ -176,12 +143,6 @@ cdef inline Py_ssize_t _digit(const Rec* r, int s, uint64_t mask) noexcept nogil
     if s >= 32:
         return <Py_ssize_t>((r.key >> (s - 32)) & mask)
     return <Py_ssize_t>(((r.key << (32 - s)) | (<uint64_t>r.pos >> s)) & mask)
-
-
-cdef inline Py_ssize_t _digit_kp(uint64_t key, uint32_t pos, int s, uint64_t mask) noexcept nogil:
-    if s >= 32:
-        return <Py_ssize_t>((key >> (s - 32)) & mask)
-    return <Py_ssize_t>(((key << (32 - s)) | (<uint64_t>pos >> s)) & mask)
 
 
 cdef inline int _next_shift(int s) noexcept nogil:
@@ -483,15 +444,7 @@ cdef void _fill_split(const ukey_t[::1] bits, int kind, bint complement, uint64_
     cdef Py_ssize_t t, i, j, d, lo, hi, acc
     cdef Py_ssize_t* h
     cdef uint64_t k
-    for i in range(threads * 2048):
-        hist[i] = 0
-    for t in prange(threads, num_threads=threads, schedule="static"):
-        lo = m * t // threads
-        hi = m * (t + 1) // threads
-        h = hist + t * 2048
-        for i in range(lo, hi):
-            k = _rank_key(bits[i], kind, complement, mask)
-            h[_digit_kp(k - kmin, <uint32_t>i, s, 0x7FF)] += 1
+    digit_hist(&bits[0], m, kind, complement, kmin, s, hist, threads)
     acc = 0
     for d in range(2048):
         bounds[d] = acc

@@ -181,6 +181,42 @@ def test_presorted_input_all_methods():
             np.testing.assert_array_equal(f.edges, ref.edges)
 
 
+@pytest.mark.parametrize("ids", [np.int32, np.int64])
+def test_filter_kruskal_streamed_chunks(ids):
+    """Chunks of 1, 7 and 300 slots force every streaming path (copy, filtered collect, range
+    cut when the survivors overflow the slots, the largest-tree bitmap) on 1 to 3 threads; the
+    forest, its endpoints, its weights (bit for bit, -0.0 included) and the components stay
+    those of the reference (networkx Kruskal; scipy.sparse.csgraph.connected_components)."""
+    rng = np.random.default_rng(11)
+    n, m = 300, 4000
+    tail = rng.integers(0, n, m).astype(ids)
+    head = rng.integers(0, n, m).astype(ids)
+    signed_zero = np.where(rng.random(m) < 0.5, -0.0, 0.0)
+    weights = (rng.random(m), rng.random(m).astype(np.float32) - 0.5, signed_zero,
+               rng.integers(-3, 3, m).astype(np.int32), rng.integers(0, 2**62, m).astype(np.uint64))
+    adj = sparse.coo_matrix((np.ones(m), (tail, head)), shape=(n, n))
+    n_comp, comp = csgraph.connected_components(adj, directed=False)
+    for w in weights:
+        want = networkx_forest(tail, head, w, n)
+        for maximize in (False, True):
+            ref, _ = kruskal_radix(tail, head, w, n, maximize)
+            for chunk in (1, 7, 300):
+                for threads in (1, 2, 3):
+                    edges, parent, ft, fh, fw = filter_kruskal(tail, head, w, n, maximize, -1,
+                                                               threads, 0, chunk)
+                    np.testing.assert_array_equal(edges, ref)
+                    np.testing.assert_array_equal(ft, tail[edges])
+                    np.testing.assert_array_equal(fh, head[edges])
+                    assert fw.dtype == w.dtype
+                    np.testing.assert_array_equal(fw.view(np.uint8), w[edges].view(np.uint8))
+                    root = parent.copy()
+                    for _ in range(20):
+                        root = root[root]
+                    assert len(set(zip(comp.tolist(), root.tolist()))) == n_comp
+            if not maximize:
+                assert sorted(ref.tolist()) == want
+
+
 def test_filter_kruskal_pivot_recursion_and_bucket_paths():
     """With a tiny base-case threshold the pivot recursion and the filter run on every bucket;
     the forest stays plain Kruskal's (and networkx's)."""
@@ -191,7 +227,7 @@ def test_filter_kruskal_pivot_recursion_and_bucket_paths():
     for w in (rng.random(m), rng.integers(0, 4, m).astype(np.int64), np.zeros(m)):
         ref, _ = kruskal_radix(tail, head, w, n)
         for threshold in (9, 64, 1000):
-            got, _ = filter_kruskal(tail, head, w, n, False, -1, 1, threshold)
+            got = filter_kruskal(tail, head, w, n, False, -1, 1, threshold)[0]
             np.testing.assert_array_equal(got, ref)
     w = rng.integers(0, 4, m).astype(float)
     assert sorted(ref.tolist()) != [] and sorted(
