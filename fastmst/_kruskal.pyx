@@ -393,14 +393,16 @@ cdef Py_ssize_t _scan_slots(const Rec* a, Py_ssize_t n, const index_t* side,
                             Py_ssize_t target, const uint64_t* giant) noexcept nogil:
     """Kruskal scan of sorted slot records ``a[:n]``; accepted edges are appended to the
     output arrays (position, endpoints, shifted key) from ``count`` on.  Returns the new count
-    (stops at ``target``).  The slots of a bucket sit in cache, so only the parents are
-    scattered reads; they are prefetched 8 records ahead."""
+    (stops at ``target``).  The slot of record i + 32 and the parents of record i + 12 are
+    prefetched."""
     cdef Py_ssize_t i
     cdef uint32_t s
     cdef index_t u, v, ru, rv
     for i in range(n):
-        if i + 8 < n:
-            s = a[i + 8].pos
+        if i + 32 < n:
+            prefetch(&side[3 * a[i + 32].pos])
+        if i + 12 < n:
+            s = a[i + 12].pos
             prefetch(&parent[side[3 * s + 1]])
             prefetch(&parent[side[3 * s + 2]])
         s = a[i].pos
@@ -428,8 +430,10 @@ cdef Py_ssize_t _filter_slots(Rec* a, Py_ssize_t n, const index_t* side, index_t
     cdef Py_ssize_t i, k = 0
     cdef uint32_t s
     for i in range(n):
-        if i + 8 < n:
-            s = a[i + 8].pos
+        if i + 32 < n:
+            prefetch(&side[3 * a[i + 32].pos])
+        if i + 12 < n:
+            s = a[i + 12].pos
             prefetch(&parent[side[3 * s + 1]])
             prefetch(&parent[side[3 * s + 2]])
         s = a[i].pos
@@ -507,21 +511,22 @@ cdef Py_ssize_t _fk_recurse(Rec* a, Py_ssize_t n, int top_bits, const index_t* s
         depth += 1
 
 
-cdef Py_ssize_t _chunk_buckets(Rec* a, const Py_ssize_t* bounds, Py_ssize_t nbk, int shift,
-                               int top_bits, const index_t* side, index_t* parent,
-                               uint8_t* rank, int64_t* op, index_t* ot, index_t* oh,
-                               uint64_t* ow, Py_ssize_t count, Py_ssize_t target,
-                               Py_ssize_t threshold, Rate* rate,
-                               const uint64_t* giant) noexcept nogil:
-    """Filter, sort and scan the ``nbk`` buckets ``a[bounds[b]:bounds[b+1]]`` in key order.
+cdef Py_ssize_t _bucket_run(Rec* a, const Py_ssize_t* bounds, Py_ssize_t b0, Py_ssize_t b1,
+                            const uint8_t* is_sorted, int shift, int top_bits,
+                            const index_t* side, index_t* parent, uint8_t* rank, int64_t* op,
+                            index_t* ot, index_t* oh, uint64_t* ow, Py_ssize_t count,
+                            Py_ssize_t target, Py_ssize_t threshold, Rate* rate,
+                            const uint64_t* giant) noexcept nogil:
+    """Filter, sort and scan buckets ``b0 .. b1-1`` (``a[bounds[b]:bounds[b+1]]``) in order.
 
-    ``shift < 0`` means every bucket holds a single key in slot order (already sorted).  A
-    bucket is filtered first while fewer than a quarter of the recently scanned edges join two
-    trees: the filter costs about one scan, a scanned edge about a scan plus a sort, so the
-    filter pays below roughly that rate (measured; see docs/performance.md).
+    ``shift < 0`` means every bucket holds a single key in slot order (already sorted), and so
+    does ``is_sorted[b]`` for bucket b (sorted ahead by another thread; the filter keeps the
+    order).  A bucket is filtered first while fewer than a quarter of the recently scanned edges
+    join two trees: the filter costs about one scan, a scanned edge about a scan plus a sort,
+    so the filter pays below roughly that rate (measured; see docs/performance.md).
     """
     cdef Py_ssize_t b, lo, nb, before
-    for b in range(nbk):
+    for b in range(b0, b1):
         lo = bounds[b]
         nb = bounds[b + 1] - lo
         if nb == 0:
@@ -529,11 +534,11 @@ cdef Py_ssize_t _chunk_buckets(Rec* a, const Py_ssize_t* bounds, Py_ssize_t nbk,
         if rate.filtering:
             nb = _filter_slots(a + lo, nb, side, parent, giant)
         before = count
-        if nb > threshold and shift >= 0:
+        if nb > threshold and shift >= 0 and not is_sorted[b]:
             count = _fk_recurse(a + lo, nb, top_bits, side, parent, rank, op, ot,
                                 oh, ow, count, target, threshold, 0, giant)
         else:
-            if nb > 1 and shift >= 0:
+            if nb > 1 and shift >= 0 and not is_sorted[b]:
                 sort_bucket(a + lo, nb, shift)
             count = _scan_slots(a + lo, nb, side, parent, rank, op, ot, oh, ow,
                                 count, target, giant)
@@ -546,6 +551,58 @@ cdef Py_ssize_t _chunk_buckets(Rec* a, const Py_ssize_t* bounds, Py_ssize_t nbk,
             rate.scanned = 0
             rate.accepted = 0
     return count
+
+
+cdef Py_ssize_t _chunk_buckets(Rec* a, const Py_ssize_t* bounds, Py_ssize_t nbk, int shift,
+                               int top_bits, const index_t* side, index_t* parent,
+                               uint8_t* rank, int64_t* op, index_t* ot, index_t* oh,
+                               uint64_t* ow, Py_ssize_t count, Py_ssize_t target,
+                               Py_ssize_t threshold, Rate* rate, const uint64_t* giant,
+                               uint8_t* is_sorted, int threads) noexcept nogil:
+    """Process the ``nbk`` buckets of a chunk in key order (``_bucket_run``).
+
+    With several threads and while the scans still accept many edges (no filtering), buckets
+    go in waves of about a 64th of the chunk: thread 0 scans wave k while the others sort
+    wave k+1 (the result does not depend on who sorts).  Once filtering starts, the rest runs
+    on thread 0 alone, so that buckets are sorted after the filter has shrunk them.
+    SCRATCH: ``is_sorted`` (nbk bytes).
+    """
+    cdef Py_ssize_t b, w0 = 0, w1 = 0, n1, n0, wave
+    cdef Py_ssize_t[1] shared
+    cdef int tid
+    for b in range(nbk):
+        is_sorted[b] = 0
+    if threads <= 1 or shift < 0 or rate.filtering:
+        return _bucket_run(a, bounds, 0, nbk, is_sorted, shift, top_bits, side, parent, rank,
+                           op, ot, oh, ow, count, target, threshold, rate, giant)
+    wave = max(1 << 14, bounds[nbk] // 64)
+    shared[0] = count
+    while w0 < nbk and shared[0] < target and not rate.filtering:
+        n1 = w1
+        n0 = 0
+        while n1 < nbk and (n0 < wave or n1 == w1):
+            n0 += bounds[n1 + 1] - bounds[n1]
+            n1 += 1
+        with parallel(num_threads=threads):
+            tid = threadid()
+            if tid == 0:
+                if w1 > w0:
+                    shared[0] = _bucket_run(a, bounds, w0, w1, is_sorted, shift, top_bits, side,
+                                            parent, rank, op, ot, oh, ow, shared[0], target,
+                                            threshold, rate, giant)
+            else:
+                b = w1 + tid - 1
+                while b < n1:
+                    if 1 < bounds[b + 1] - bounds[b] <= threshold:
+                        sort_bucket(a + bounds[b], bounds[b + 1] - bounds[b], shift)
+                        is_sorted[b] = 1
+                    b = b + threads - 1
+        w0 = w1
+        w1 = n1
+    if w0 < nbk and shared[0] < target:
+        shared[0] = _bucket_run(a, bounds, w0, nbk, is_sorted, shift, top_bits, side, parent,
+                                rank, op, ot, oh, ow, shared[0], target, threshold, rate, giant)
+    return shared[0]
 
 
 cdef void _scatter(const ukey_t* bits, const index_t* tail, const index_t* head, Py_ssize_t m,
@@ -703,6 +760,7 @@ cdef Py_ssize_t _fk_stream(const ukey_t[::1] bits, const index_t[::1] tail,
     cdef uint8_t[::1] recv, bufv
     cdef index_t[::1] sidev
     cdef uint64_t[::1] gv
+    cdef uint8_t[::1] sortv
     cdef Py_ssize_t n_nodes = parent.shape[0]
     cdef index_t g
     rate.scanned = 0
@@ -710,6 +768,8 @@ cdef Py_ssize_t _fk_stream(const ukey_t[::1] bits, const index_t[::1] tail,
     rate.filtering = False
     giant_a = np.zeros((n_nodes + 63) // 64 + 1, dtype=np.uint64)
     gv = giant_a
+    sorted_a = np.zeros(2049, dtype=np.uint8)
+    sortv = sorted_a
     hist_a = np.empty(threads * 2048, dtype=np.intp)
     hs = hist_a
     with nogil:
@@ -784,7 +844,7 @@ cdef Py_ssize_t _fk_stream(const ukey_t[::1] bits, const index_t[::1] tail,
                 count = _chunk_buckets(<Rec*>&recv[0], &bdv[0], d_end - d0, shift, top_bits,
                                        &sidev[0], &parent[0],
                                        &rank[0], &op[0], &ot[0], &oh[0], &ow[0], count, target,
-                                       threshold, &rate, &gv[0])
+                                       threshold, &rate, &gv[0], &sortv[0], threads)
         d0 = d_end
     return count
 
