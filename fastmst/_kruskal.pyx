@@ -104,7 +104,7 @@ from libc.stdint cimport uint32_t, uint64_t
 from fastmst._sort cimport (Rec, rec_less, prefetch, sort_bucket, sort_records, ukey_t,
                             _rank_key, _digit_kp, digit_hist, KIND_SIGNED, KIND_FLOAT)
 from fastmst import _sort
-from fastmst._sort import (MAX_RECORDS, make_records, split_records, _kind_and_bits,
+from fastmst._sort import (MAX_RECORDS, split_records, _kind_and_bits,
                            _scalar_keys)
 
 #: Below this many edges the sort/scan pipeline of kruskal_radix runs on one thread (too short
@@ -388,7 +388,7 @@ cdef void _mark_giant(const index_t* parent, Py_ssize_t n, index_t g, uint64_t* 
 
 
 cdef Py_ssize_t _scan_slots(const Rec* a, Py_ssize_t n, const index_t* side,
-                            index_t* parent, uint8_t* rank, int64_t* op, index_t* ot,
+                            index_t* parent, int64_t* op, index_t* ot,
                             index_t* oh, uint64_t* ow, Py_ssize_t count,
                             Py_ssize_t target, const uint64_t* giant) noexcept nogil:
     """Kruskal scan of sorted slot records ``a[:n]``; accepted edges are appended to the
@@ -483,7 +483,7 @@ cdef Py_ssize_t _partition(Rec* a, Py_ssize_t n) noexcept nogil:
 
 
 cdef Py_ssize_t _fk_recurse(Rec* a, Py_ssize_t n, int top_bits, const index_t* side,
-                            index_t* parent, uint8_t* rank, int64_t* op, index_t* ot,
+                            index_t* parent, int64_t* op, index_t* ot,
                             index_t* oh, uint64_t* ow, Py_ssize_t count, Py_ssize_t target,
                             Py_ssize_t threshold, int depth, const uint64_t* giant) noexcept nogil:
     """The paper's recursion on slot records ``a[:n]`` (one bucket too large for the cache).
@@ -498,10 +498,10 @@ cdef Py_ssize_t _fk_recurse(Rec* a, Py_ssize_t n, int top_bits, const index_t* s
             return count
         if n <= threshold or depth > 64:
             sort_records(a, n, top_bits)
-            return _scan_slots(a, n, side, parent, rank, op, ot, oh, ow, count,
+            return _scan_slots(a, n, side, parent, op, ot, oh, ow, count,
                                target, giant)
         nl = _partition(a, n)
-        count = _fk_recurse(a, nl, top_bits, side, parent, rank, op, ot, oh, ow,
+        count = _fk_recurse(a, nl, top_bits, side, parent, op, ot, oh, ow,
                             count, target, threshold, depth + 1, giant)
         if count >= target:
             return count
@@ -513,7 +513,7 @@ cdef Py_ssize_t _fk_recurse(Rec* a, Py_ssize_t n, int top_bits, const index_t* s
 
 cdef Py_ssize_t _bucket_run(Rec* a, const Py_ssize_t* bounds, Py_ssize_t b0, Py_ssize_t b1,
                             const uint8_t* is_sorted, int shift, int top_bits,
-                            const index_t* side, index_t* parent, uint8_t* rank, int64_t* op,
+                            const index_t* side, index_t* parent, int64_t* op,
                             index_t* ot, index_t* oh, uint64_t* ow, Py_ssize_t count,
                             Py_ssize_t target, Py_ssize_t threshold, Rate* rate,
                             const uint64_t* giant) noexcept nogil:
@@ -535,12 +535,12 @@ cdef Py_ssize_t _bucket_run(Rec* a, const Py_ssize_t* bounds, Py_ssize_t b0, Py_
             nb = _filter_slots(a + lo, nb, side, parent, giant)
         before = count
         if nb > threshold and shift >= 0 and not is_sorted[b]:
-            count = _fk_recurse(a + lo, nb, top_bits, side, parent, rank, op, ot,
+            count = _fk_recurse(a + lo, nb, top_bits, side, parent, op, ot,
                                 oh, ow, count, target, threshold, 0, giant)
         else:
             if nb > 1 and shift >= 0 and not is_sorted[b]:
                 sort_bucket(a + lo, nb, shift)
-            count = _scan_slots(a + lo, nb, side, parent, rank, op, ot, oh, ow,
+            count = _scan_slots(a + lo, nb, side, parent, op, ot, oh, ow,
                                 count, target, giant)
         if count >= target:
             break
@@ -555,7 +555,7 @@ cdef Py_ssize_t _bucket_run(Rec* a, const Py_ssize_t* bounds, Py_ssize_t b0, Py_
 
 cdef Py_ssize_t _chunk_buckets(Rec* a, const Py_ssize_t* bounds, Py_ssize_t nbk, int shift,
                                int top_bits, const index_t* side, index_t* parent,
-                               uint8_t* rank, int64_t* op, index_t* ot, index_t* oh,
+                               int64_t* op, index_t* ot, index_t* oh,
                                uint64_t* ow, Py_ssize_t count, Py_ssize_t target,
                                Py_ssize_t threshold, Rate* rate, const uint64_t* giant,
                                uint8_t* is_sorted, int threads) noexcept nogil:
@@ -573,8 +573,8 @@ cdef Py_ssize_t _chunk_buckets(Rec* a, const Py_ssize_t* bounds, Py_ssize_t nbk,
     for b in range(nbk):
         is_sorted[b] = 0
     if threads <= 1 or shift < 0 or rate.filtering:
-        return _bucket_run(a, bounds, 0, nbk, is_sorted, shift, top_bits, side, parent, rank,
-                           op, ot, oh, ow, count, target, threshold, rate, giant)
+        return _bucket_run(a, bounds, 0, nbk, is_sorted, shift, top_bits, side, parent, op, ot,
+                           oh, ow, count, target, threshold, rate, giant)
     wave = max(1 << 14, bounds[nbk] // 64)
     shared[0] = count
     while w0 < nbk and shared[0] < target and not rate.filtering:
@@ -588,7 +588,7 @@ cdef Py_ssize_t _chunk_buckets(Rec* a, const Py_ssize_t* bounds, Py_ssize_t nbk,
             if tid == 0:
                 if w1 > w0:
                     shared[0] = _bucket_run(a, bounds, w0, w1, is_sorted, shift, top_bits, side,
-                                            parent, rank, op, ot, oh, ow, shared[0], target,
+                                            parent, op, ot, oh, ow, shared[0], target,
                                             threshold, rate, giant)
             else:
                 b = w1 + tid - 1
@@ -601,7 +601,7 @@ cdef Py_ssize_t _chunk_buckets(Rec* a, const Py_ssize_t* bounds, Py_ssize_t nbk,
         w1 = n1
     if w0 < nbk and shared[0] < target:
         shared[0] = _bucket_run(a, bounds, w0, nbk, is_sorted, shift, top_bits, side, parent,
-                                rank, op, ot, oh, ow, shared[0], target, threshold, rate, giant)
+                                op, ot, oh, ow, shared[0], target, threshold, rate, giant)
     return shared[0]
 
 
@@ -744,7 +744,7 @@ cdef class _Slots:
 
 cdef Py_ssize_t _fk_stream(const ukey_t[::1] bits, const index_t[::1] tail,
                            const index_t[::1] head, int kind, bint comp, uint64_t kmin,
-                           int top_bits, index_t[::1] parent, uint8_t[::1] rank,
+                           int top_bits, index_t[::1] parent,
                            int64_t[::1] op, index_t[::1] ot, index_t[::1] oh, uint64_t[::1] ow,
                            Py_ssize_t target, int threads, Py_ssize_t threshold,
                            Py_ssize_t chunk) except -1:
@@ -843,7 +843,7 @@ cdef Py_ssize_t _fk_stream(const ukey_t[::1] bits, const index_t[::1] tail,
             with nogil:
                 count = _chunk_buckets(<Rec*>&recv[0], &bdv[0], d_end - d0, shift, top_bits,
                                        &sidev[0], &parent[0],
-                                       &rank[0], &op[0], &ot[0], &oh[0], &ow[0], count, target,
+                                       &op[0], &ot[0], &oh[0], &ow[0], count, target,
                                        threshold, &rate, &gv[0], &sortv[0], threads)
         d0 = d_end
     return count
@@ -906,9 +906,10 @@ def filter_kruskal(const index_t[::1] tail, const index_t[::1] head, weight,
         target = max(0, n_nodes - 1)
     if threshold <= 0:
         threshold = max(1 << 16, n_nodes // 2)
-    parent_a, rank_a, out_a = _trivial(np.asarray(tail), np.asarray(head), n_nodes, target)
-    cap = out_a.shape[0]
     dtype = np.int32 if index_t is int32_t else np.int64
+    parent_a = np.arange(n_nodes, dtype=dtype)
+    out_a = np.empty(max(0, min(target, m)), dtype=np.int64)
+    cap = out_a.shape[0]
     ot_a = np.empty(cap, dtype=dtype)
     oh_a = np.empty(cap, dtype=dtype)
     ow_a = np.empty(cap, dtype=np.uint64)
@@ -918,7 +919,6 @@ def filter_kruskal(const index_t[::1] tail, const index_t[::1] head, weight,
     cdef const uint32_t[::1] b32
     cdef const uint64_t[::1] b64
     cdef index_t[::1] pv = parent_a
-    cdef uint8_t[::1] rv = rank_a
     cdef int64_t[::1] opv = out_a
     cdef index_t[::1] otv = ot_a
     cdef index_t[::1] ohv = oh_a
@@ -947,11 +947,11 @@ def filter_kruskal(const index_t[::1] tail, const index_t[::1] head, weight,
         parent_a.fill(-1)
         if ubits is np.uint32:
             b32 = weight.view(np.uint32)
-            count = _fk_stream(b32, tail, head, kind, maximize, lo, tb, pv, rv, opv,
+            count = _fk_stream(b32, tail, head, kind, maximize, lo, tb, pv, opv,
                                otv, ohv, owv, target, threads, threshold, chunk)
         else:
             b64 = weight.view(np.uint64)
-            count = _fk_stream(b64, tail, head, kind, maximize, lo, tb, pv, rv, opv,
+            count = _fk_stream(b64, tail, head, kind, maximize, lo, tb, pv, opv,
                                otv, ohv, owv, target, threads, threshold, chunk)
         width = 8 * weight.dtype.itemsize
         with nogil:
@@ -1009,7 +1009,6 @@ def forest_bound(const index_t[::1] tail, const index_t[::1] head, Py_ssize_t n_
     cdef Py_ssize_t m = tail.shape[0], k = 0
     if m == 0 or n_nodes == 0:
         return 0
-    from fastmst import _sort
     cdef int nt = max(1, min(threads, m // _sort.MIN_EDGES_PER_THREAD + 1))
     seen_a = np.zeros(nt * n_nodes, dtype=np.uint8)
     cdef uint8_t[::1] seen = seen_a
