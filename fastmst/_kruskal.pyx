@@ -319,7 +319,11 @@ def kruskal_radix(const index_t[::1] tail, const index_t[::1] head, weight,
 ctypedef struct Rate:
     Py_ssize_t scanned
     Py_ssize_t accepted
+    Py_ssize_t window
     bint filtering
+
+#: Scanned edges between two decisions on filtering (tests lower it to filter small graphs).
+FILTER_WINDOW = 8192
 
 
 # The union-find of this kernel keeps each root's rank in its own parent word, as -1 - rank,
@@ -546,7 +550,7 @@ cdef Py_ssize_t _bucket_run(Rec* a, const Py_ssize_t* bounds, Py_ssize_t b0, Py_
             break
         rate.scanned += nb
         rate.accepted += count - before
-        if rate.scanned >= 8192:
+        if rate.scanned >= rate.window:
             rate.filtering = 4 * rate.accepted < rate.scanned
             rate.scanned = 0
             rate.accepted = 0
@@ -765,6 +769,7 @@ cdef Py_ssize_t _fk_stream(const ukey_t[::1] bits, const index_t[::1] tail,
     cdef index_t g
     rate.scanned = 0
     rate.accepted = 0
+    rate.window = max(1, FILTER_WINDOW)
     rate.filtering = False
     giant_a = np.zeros((n_nodes + 63) // 64 + 1, dtype=np.uint64)
     gv = giant_a
@@ -785,7 +790,9 @@ cdef Py_ssize_t _fk_stream(const ukey_t[::1] bits, const index_t[::1] tail,
     fillv = fill_a
     startv = start_a
     while d0 < 2048 and count < target:
-        if cum[2048] - cum[d0] == 0:
+        while d0 < 2048 and cum[d0 + 1] == cum[d0]:
+            d0 += 1  # skip empty buckets: every range then holds at least one edge
+        if d0 == 2048:
             break
         if not rate.filtering:
             d1 = _last_bucket(cum, d0, chunk)

@@ -27,6 +27,7 @@ def parallel_on_small_graphs(monkeypatch):
     import fastmst._sort
     monkeypatch.setattr(fastmst._sort, "MIN_EDGES_PER_THREAD", 1)
     monkeypatch.setattr(fastmst._kruskal, "MIN_EDGES_PIPELINE", 1)
+    monkeypatch.setattr(fastmst._kruskal, "FILTER_WINDOW", 64)
     monkeypatch.setattr(fastmst._boruvka, "MIN_EDGES_PER_THREAD", 1)
 
 
@@ -215,6 +216,25 @@ def test_filter_kruskal_streamed_chunks(ids):
                     assert len(set(zip(comp.tolist(), root.tolist()))) == n_comp
             if not maximize:
                 assert sorted(ref.tolist()) == want
+
+
+def test_filter_kruskal_empty_buckets_between_chunks():
+    """Light weights in [1, 2), a block of equal weights at 1e300 and one heavier edge that
+    alone reaches the last node: the streamed passes meet long runs of empty buckets and a
+    bucket far larger than a chunk; the forest is still networkx's."""
+    rng = np.random.default_rng(3)
+    n = 60
+    w = np.concatenate([rng.random(400) + 1.0, np.full(3000, 1e300), [2.5e300]])
+    m = w.shape[0]
+    tail = rng.integers(0, n, m).astype(np.int32)
+    head = rng.integers(0, n, m).astype(np.int32)
+    head[-1] = n + 5
+    want = networkx_forest(tail, head, w, n + 6)
+    assert m - 1 in want
+    for chunk in (1, 3, 50):
+        for threads in (1, 2):
+            got = filter_kruskal(tail, head, w, n + 6, False, -1, threads, 0, chunk)[0]
+            assert sorted(got.tolist()) == want
 
 
 def test_filter_kruskal_pivot_recursion_and_bucket_paths():
