@@ -232,9 +232,9 @@ def choose_method(g: validation.EdgeArrays, presorted: bool, threads: int) -> st
     * ``presorted=True``: "kruskal", which then scans the edges in input order with no sort;
     * more than 2**32 - 1 edges: "boruvka" (the radix records hold 32-bit positions; beyond
       them Kruskal falls back to a comparison sort, while Borůvka needs no sort at all);
-    * otherwise "filter-kruskal": fastest on every graph family and size measured, with one or
-      two threads (its serial scan skips the sort of most edges that close cycles, which beats
-      running the sort of plain Kruskal on a second core on a shared 2-core machine).
+    * otherwise "filter-kruskal": fastest (or within the noise of the fastest) on every graph
+      family and size measured, with one or two threads: edges heavier than the forest needs
+      are never copied, and most edges that close a cycle are dropped before they are sorted.
     """
     if presorted:
         return "kruskal"
