@@ -302,10 +302,12 @@ def kruskal_radix(const index_t[::1] tail, const index_t[::1] head, weight,
 # * one pass counts the edges of every bucket (per thread, over static position slices);
 # * a chunk is a run of consecutive buckets.  Its edges are copied, straight from the input
 #   arrays in position order, into slots: a 12-byte sort record (key, slot) plus the slot's
-#   position, endpoints and weight bits, so the scan never gathers from the input arrays;
+#   position and endpoints, so the scan never gathers from the input arrays (it writes the
+#   accepted edges' positions, endpoints and keys, and the keys are mapped back to weights);
 # * once the scans reject most edges, a chunk is *filtered while it is collected*: the pass in
 #   position order keeps only the edges whose endpoints are in different trees (read-only
-#   finds, sequential reads of the endpoint arrays), and only the survivors get slots;
+#   finds, sequential reads of the endpoint arrays, a bitmap of the largest tree that spares
+#   most finds), and only the survivors get slots;
 # * each bucket of the chunk is then filtered again when rejections dominate, sorted in cache
 #   and scanned, as in the paper's base case; a bucket too large for that goes through the
 #   paper's pivot recursion.
