@@ -384,7 +384,7 @@ cdef void _mark_giant(const index_t* parent, Py_ssize_t n, index_t g, uint64_t* 
     """
     cdef Py_ssize_t w, b, x, nw = (n + 63) // 64
     cdef uint64_t word
-    for w in prange(nw, num_threads=threads, schedule="static"):
+    for w in prange(nw, num_threads=threads, schedule="dynamic", chunksize=1024):
         word = 0
         for b in range(64):
             x = w * 64 + b
@@ -517,34 +517,94 @@ cdef Py_ssize_t _fk_recurse(Rec* a, Py_ssize_t n, int top_bits, const index_t* s
         depth += 1
 
 
-cdef Py_ssize_t _bucket_run(Rec* a, const Py_ssize_t* bounds, Py_ssize_t b0, Py_ssize_t b1,
-                            const uint8_t* is_sorted, int shift, int top_bits,
+cdef extern from *:
+    """
+    #include <stdint.h>
+    #if defined(__GNUC__) || defined(__clang__)
+    static inline int fastmst_claim8(uint8_t* p, uint8_t expected, uint8_t desired) {
+        return __atomic_compare_exchange_n(p, &expected, desired, 0, __ATOMIC_ACQ_REL,
+                                           __ATOMIC_ACQUIRE);
+    }
+    static inline uint8_t fastmst_get8(const uint8_t* p) {
+        return __atomic_load_n(p, __ATOMIC_ACQUIRE);
+    }
+    static inline void fastmst_put8(uint8_t* p, uint8_t v) {
+        __atomic_store_n(p, v, __ATOMIC_RELEASE);
+    }
+    static inline Py_ssize_t fastmst_getz(const Py_ssize_t* p) {
+        return __atomic_load_n(p, __ATOMIC_RELAXED);
+    }
+    static inline void fastmst_putz(Py_ssize_t* p, Py_ssize_t v) {
+        __atomic_store_n(p, v, __ATOMIC_RELAXED);
+    }
+    #else
+    /* No atomics known: only correct single-threaded (the build without OpenMP). */
+    static inline int fastmst_claim8(uint8_t* p, uint8_t expected, uint8_t desired) {
+        if (*p != expected) return 0; *p = desired; return 1;
+    }
+    static inline uint8_t fastmst_get8(const uint8_t* p) { return *p; }
+    static inline void fastmst_put8(uint8_t* p, uint8_t v) { *p = v; }
+    static inline Py_ssize_t fastmst_getz(const Py_ssize_t* p) { return *p; }
+    static inline void fastmst_putz(Py_ssize_t* p, Py_ssize_t v) { *p = v; }
+    #endif
+    """
+    bint claim8 "fastmst_claim8"(uint8_t* p, uint8_t expected, uint8_t desired) noexcept nogil
+    uint8_t get8 "fastmst_get8"(const uint8_t* p) noexcept nogil
+    void put8 "fastmst_put8"(uint8_t* p, uint8_t v) noexcept nogil
+    Py_ssize_t getz "fastmst_getz"(const Py_ssize_t* p) noexcept nogil
+    void putz "fastmst_putz"(Py_ssize_t* p, Py_ssize_t v) noexcept nogil
+
+#: Records a helper may sort ahead of the scan (kept small enough to stay in the shared cache).
+cdef Py_ssize_t SORT_AHEAD = 1 << 18
+
+# States of a bucket in the sort-ahead pipeline of _chunk_buckets.
+cdef enum:
+    FREE = 0       # nobody has it
+    HELPING = 1    # a helper thread is sorting it
+    OWNED = 2      # the scanning thread took it (sorts it itself if needed)
+    READY = 3      # sorted by a helper
+
+
+cdef Py_ssize_t _bucket_run(Rec* a, const Py_ssize_t* bounds, Py_ssize_t nbk,
+                            uint8_t* state, uint8_t* stop, Py_ssize_t* progress, int shift,
+                            int top_bits,
                             const index_t* side, index_t* parent, int64_t* op,
                             index_t* ot, index_t* oh, uint64_t* ow, Py_ssize_t count,
                             Py_ssize_t target, Py_ssize_t threshold, Rate* rate,
                             const uint64_t* giant) noexcept nogil:
-    """Filter, sort and scan buckets ``b0 .. b1-1`` (``a[bounds[b]:bounds[b+1]]``) in order.
+    """Filter, sort and scan the ``nbk`` buckets ``a[bounds[b]:bounds[b+1]]`` in key order.
 
-    ``shift < 0`` means every bucket holds a single key in slot order (already sorted), and so
-    does ``is_sorted[b]`` for bucket b (sorted ahead by another thread; the filter keeps the
-    order).  A bucket is filtered first while fewer than a quarter of the recently scanned edges
-    join two trees: the filter costs about one scan, a scanned edge about a scan plus a sort,
-    so the filter pays below roughly that rate (measured; see docs/performance.md).
+    ``shift < 0`` means every bucket holds a single key in slot order (already sorted).  With
+    ``state`` (not NULL), helper threads may sort buckets ahead: bucket b is taken with a
+    compare-and-swap FREE -> OWNED, or, when a helper has it, waited for until READY (the
+    filter keeps the order, so a presorted bucket stays sorted); ``stop`` is raised once
+    filtering starts, so that buckets are sorted after the filter has shrunk them.  A bucket
+    is filtered first while fewer than a quarter of the recently scanned edges join two trees:
+    the filter costs about one scan, a scanned edge about a scan plus a sort, so the filter
+    pays below roughly that rate (measured; see docs/performance.md).
     """
     cdef Py_ssize_t b, lo, nb, before
-    for b in range(b0, b1):
+    cdef bint presorted
+    for b in range(nbk):
         lo = bounds[b]
         nb = bounds[b + 1] - lo
         if nb == 0:
             continue
+        presorted = False
+        if progress != NULL:
+            putz(progress, lo)
+        if state != NULL and not claim8(&state[b], FREE, OWNED):
+            while get8(&state[b]) != READY:
+                pass
+            presorted = True
         if rate.filtering:
             nb = _filter_slots(a + lo, nb, side, parent, giant)
         before = count
-        if nb > threshold and shift >= 0 and not is_sorted[b]:
+        if nb > threshold and shift >= 0 and not presorted:
             count = _fk_recurse(a + lo, nb, top_bits, side, parent, op, ot,
                                 oh, ow, count, target, threshold, 0, giant)
         else:
-            if nb > 1 and shift >= 0 and not is_sorted[b]:
+            if nb > 1 and shift >= 0 and not presorted:
                 sort_bucket(a + lo, nb, shift)
             count = _scan_slots(a + lo, nb, side, parent, op, ot, oh, ow,
                                 count, target, giant)
@@ -556,6 +616,8 @@ cdef Py_ssize_t _bucket_run(Rec* a, const Py_ssize_t* bounds, Py_ssize_t b0, Py_
             rate.filtering = 4 * rate.accepted < rate.scanned
             rate.scanned = 0
             rate.accepted = 0
+            if rate.filtering and stop != NULL:
+                put8(stop, 1)
     return count
 
 
@@ -564,69 +626,65 @@ cdef Py_ssize_t _chunk_buckets(Rec* a, const Py_ssize_t* bounds, Py_ssize_t nbk,
                                int64_t* op, index_t* ot, index_t* oh,
                                uint64_t* ow, Py_ssize_t count, Py_ssize_t target,
                                Py_ssize_t threshold, Rate* rate, const uint64_t* giant,
-                               uint8_t* is_sorted, int threads) noexcept nogil:
+                               uint8_t* state, int threads) noexcept nogil:
     """Process the ``nbk`` buckets of a chunk in key order (``_bucket_run``).
 
-    With several threads and while the scans still accept many edges (no filtering), buckets
-    go in waves of about a 64th of the chunk: thread 0 scans wave k while the others sort
-    wave k+1 (the result does not depend on who sorts).  Once filtering starts, the rest runs
-    on thread 0 alone, so that buckets are sorted after the filter has shrunk them.
-    SCRATCH: ``is_sorted`` (nbk bytes).
+    With several threads and while the scans still accept many edges (no filtering), thread 0
+    scans while the others sort buckets ahead of it, each taking a bucket by compare-and-swap;
+    nobody waits for a whole wave, so a helper that the OS deschedules (a busy machine) delays
+    at most the one bucket it holds.  Helpers stay within ``SORT_AHEAD`` records of the scan.
+    Who sorts a bucket does not change the result.
+    SCRATCH: ``state`` (nbk + 1 bytes; the last is the stop flag).
     """
-    cdef Py_ssize_t b, w0 = 0, w1 = 0, n1, n0, wave
+    cdef Py_ssize_t b, nb
     cdef Py_ssize_t[1] shared
+    cdef Py_ssize_t[1] progress
     cdef int tid
-    for b in range(nbk):
-        is_sorted[b] = 0
     if threads <= 1 or shift < 0 or rate.filtering:
-        return _bucket_run(a, bounds, 0, nbk, is_sorted, shift, top_bits, side, parent, op, ot,
-                           oh, ow, count, target, threshold, rate, giant)
-    wave = max(1 << 14, bounds[nbk] // 64)
+        return _bucket_run(a, bounds, nbk, NULL, NULL, NULL, shift, top_bits, side, parent, op,
+                           ot, oh, ow, count, target, threshold, rate, giant)
+    for b in range(nbk + 1):
+        state[b] = FREE
     shared[0] = count
-    while w0 < nbk and shared[0] < target and not rate.filtering:
-        n1 = w1
-        n0 = 0
-        while n1 < nbk and (n0 < wave or n1 == w1):
-            n0 += bounds[n1 + 1] - bounds[n1]
-            n1 += 1
-        with parallel(num_threads=threads):
-            tid = threadid()
-            if tid == 0:
-                if w1 > w0:
-                    shared[0] = _bucket_run(a, bounds, w0, w1, is_sorted, shift, top_bits, side,
-                                            parent, op, ot, oh, ow, shared[0], target,
-                                            threshold, rate, giant)
-            else:
-                b = w1 + tid - 1
-                while b < n1:
-                    if 1 < bounds[b + 1] - bounds[b] <= threshold:
-                        sort_bucket(a + bounds[b], bounds[b + 1] - bounds[b], shift)
-                        is_sorted[b] = 1
-                    b = b + threads - 1
-        w0 = w1
-        w1 = n1
-    if w0 < nbk and shared[0] < target:
-        shared[0] = _bucket_run(a, bounds, w0, nbk, is_sorted, shift, top_bits, side, parent,
-                                op, ot, oh, ow, shared[0], target, threshold, rate, giant)
+    progress[0] = 0
+    with parallel(num_threads=threads):
+        tid = threadid()
+        if tid == 0:
+            shared[0] = _bucket_run(a, bounds, nbk, state, state + nbk, progress, shift,
+                                    top_bits, side, parent, op, ot, oh, ow, shared[0], target,
+                                    threshold, rate, giant)
+            put8(state + nbk, 1)
+        else:
+            b = 0
+            while b < nbk and not get8(state + nbk):
+                if bounds[b] > getz(progress) + SORT_AHEAD:
+                    continue  # far enough ahead of the scan: wait for it
+                nb = bounds[b + 1] - bounds[b]
+                if 1 < nb <= threshold and claim8(&state[b], FREE, HELPING):
+                    sort_bucket(a + bounds[b], nb, shift)
+                    put8(&state[b], READY)
+                b = b + 1
     return shared[0]
 
 
 cdef void _scatter(const ukey_t* bits, const index_t* tail, const index_t* head, Py_ssize_t m,
                    int kind, bint comp, uint64_t kmin, int s, Py_ssize_t d0, Py_ssize_t d1,
-                   Py_ssize_t* off, Rec* rec, index_t* side, int threads) noexcept nogil:
+                   Py_ssize_t* off, Rec* rec, index_t* side, Py_ssize_t nblk,
+                   int threads) noexcept nogil:
     """Copy every edge of buckets [d0, d1) into its slot (no filter).
 
-    IN/OUT: ``off[t * 2048 + d]``, the next slot of thread t in bucket d (thread slices are in
-    position order and their slots in thread order, so every bucket's slots are in position
-    order for any thread count).
+    IN/OUT: ``off[t * 2048 + d]``, the next slot of position block t in bucket d.  The
+    ``nblk`` blocks are contiguous position ranges taken by the threads dynamically (a thread
+    the OS deschedules holds up one block, not half the pass); their slots are in block order,
+    so every bucket's slots are in position order whoever copies which block.
     """
     cdef uint64_t mask = (<uint64_t>0) - 1 if ukey_t is uint64_t else <uint64_t>0xFFFFFFFF
     cdef Py_ssize_t t, i, lo, hi, d, j
     cdef Py_ssize_t* h
     cdef uint64_t k
-    for t in prange(threads, num_threads=threads, schedule="static"):
-        lo = m * t // threads
-        hi = m * (t + 1) // threads
+    for t in prange(nblk, num_threads=threads, schedule="dynamic"):
+        lo = m * t // nblk
+        hi = m * (t + 1) // nblk
         h = off + t * 2048
         for i in range(lo, hi):
             k = _rank_key(bits[i], kind, comp, mask) - kmin
@@ -644,21 +702,22 @@ cdef void _scatter(const ukey_t* bits, const index_t* tail, const index_t* head,
 cdef void _collect(const ukey_t* bits, const index_t* tail, const index_t* head, Py_ssize_t m,
                    int kind, bint comp, uint64_t kmin, int s, Py_ssize_t d0, Py_ssize_t d1,
                    const index_t* parent, const uint64_t* giant, Rec* buf, Py_ssize_t* fill,
-                   Py_ssize_t* hist2, int threads) noexcept nogil:
+                   Py_ssize_t* hist2, Py_ssize_t nblk, int threads) noexcept nogil:
     """Append (key, position) of every edge of buckets [d0, d1) whose endpoints are in
-    different trees to thread t's part of ``buf``, in position order.
+    different trees to position block t's part of ``buf``, in position order (blocks as in
+    ``_scatter``).
 
-    IN/OUT: ``fill[t]``, thread t's next free record (its part is sized by the unfiltered
+    IN/OUT: ``fill[t]``, block t's next free record (its part is sized by the unfiltered
     count, so it cannot overflow).  OUT: ``hist2[t * 2048 + d]`` (zeroed by the caller), the
-    survivors per thread and bucket.  The finds only read ``parent``.
+    survivors per block and bucket.  The finds only read ``parent``.
     """
     cdef uint64_t mask = (<uint64_t>0) - 1 if ukey_t is uint64_t else <uint64_t>0xFFFFFFFF
     cdef Py_ssize_t t, i, lo, hi, d, j, keep
     cdef Py_ssize_t* h
     cdef uint64_t k
-    for t in prange(threads, num_threads=threads, schedule="static"):
-        lo = m * t // threads
-        hi = m * (t + 1) // threads
+    for t in prange(nblk, num_threads=threads, schedule="dynamic"):
+        lo = m * t // nblk
+        hi = m * (t + 1) // nblk
         h = hist2 + t * 2048
         j = fill[t]
         for i in range(lo, hi):
@@ -678,14 +737,14 @@ cdef void _collect(const ukey_t* bits, const index_t* tail, const index_t* head,
 cdef void _distribute(const Rec* buf, const Py_ssize_t* start, const Py_ssize_t* fill,
                       const ukey_t* bits, const index_t* tail, const index_t* head, int s,
                       Py_ssize_t d_end, Py_ssize_t* off, Rec* rec, index_t* side,
-                      int threads) noexcept nogil:
+                      Py_ssize_t nblk, int threads) noexcept nogil:
     """Move the collected survivors of buckets below ``d_end`` into their slots (``off`` as in
     ``_scatter``); survivors of later buckets are dropped (collected again later)."""
     cdef Py_ssize_t t, r, d, j
     cdef uint32_t i
     cdef uint64_t k
     cdef Py_ssize_t* h
-    for t in prange(threads, num_threads=threads, schedule="static"):
+    for t in prange(nblk, num_threads=threads, schedule="dynamic"):
         h = off + t * 2048
         for r in range(start[t], fill[t]):
             k = buf[r].key
@@ -715,10 +774,10 @@ cdef index_t _largest_root(index_t[::1] parent):
 
 
 def _slot_offsets(hist, Py_ssize_t d0, Py_ssize_t d1):
-    """Slot offsets of buckets [d0, d1) from per-thread counts ``hist`` (threads x 2048).
+    """Slot offsets of buckets [d0, d1) from per-block counts ``hist`` (blocks x 2048).
 
-    Returns ``off`` (threads x 2048, the first slot of thread t in bucket d; buckets in order,
-    threads in order within a bucket) and ``bounds`` (d1 - d0 + 1 bucket boundaries).
+    Returns ``off`` (blocks x 2048, the first slot of block t in bucket d; buckets in order,
+    blocks in order within a bucket) and ``bounds`` (d1 - d0 + 1 bucket boundaries).
     """
     sub = hist[:, d0:d1]
     flat = sub.T.ravel()
@@ -777,18 +836,20 @@ cdef Py_ssize_t _fk_stream(const ukey_t[::1] bits, const index_t[::1] tail,
     gv = giant_a
     sorted_a = np.zeros(2049, dtype=np.uint8)
     sortv = sorted_a
-    hist_a = np.empty(threads * 2048, dtype=np.intp)
+    # position blocks, taken by the threads dynamically: 8 per thread
+    cdef Py_ssize_t nblk = 1 if threads <= 1 else min(8 * threads, max(threads, m >> 16))
+    hist_a = np.empty(nblk * 2048, dtype=np.intp)
     hs = hist_a
     with nogil:
-        digit_hist(&bits[0], m, kind, comp, kmin, s, &hs[0], threads)
-    hist = hist_a.reshape(threads, 2048)
+        digit_hist(&bits[0], m, kind, comp, kmin, s, &hs[0], nblk, threads)
+    hist = hist_a.reshape(nblk, 2048)
     cum = np.zeros(2049, dtype=np.intp)
     np.cumsum(hist.sum(axis=0), out=cum[1:])
     slots = None
     buf = None
     buf_cap = 0
-    fill_a = np.empty(threads, dtype=np.intp)
-    start_a = np.empty(threads, dtype=np.intp)
+    fill_a = np.empty(nblk, dtype=np.intp)
+    start_a = np.empty(nblk, dtype=np.intp)
     fillv = fill_a
     startv = start_a
     while d0 < 2048 and count < target:
@@ -808,7 +869,7 @@ cdef Py_ssize_t _fk_stream(const ukey_t[::1] bits, const index_t[::1] tail,
             sidev = slots.side
             with nogil:
                 _scatter(&bits[0], &tail[0], &head[0], m, kind, comp, kmin, s, d0, d1,
-                         &offv[0], <Rec*>&recv[0], &sidev[0], threads)
+                         &offv[0], <Rec*>&recv[0], &sidev[0], nblk, threads)
             d_end = d1
         else:
             # mark the largest tree, then collect up to 4 chunks' worth of unfiltered edges
@@ -825,11 +886,12 @@ cdef Py_ssize_t _fk_stream(const ukey_t[::1] bits, const index_t[::1] tail,
             bufv = buf
             start_a[:] = np.cumsum(counts) - counts
             fill_a[:] = start_a
-            h2 = np.zeros((threads, 2048), dtype=np.intp)
+            h2 = np.zeros((nblk, 2048), dtype=np.intp)
             h2v = h2.reshape(-1)
             with nogil:
                 _collect(&bits[0], &tail[0], &head[0], m, kind, comp, kmin, s, d0, d1,
-                         &parent[0], &gv[0], <Rec*>&bufv[0], &fillv[0], &h2v[0], threads)
+                         &parent[0], &gv[0], <Rec*>&bufv[0], &fillv[0], &h2v[0], nblk,
+                         threads)
             cum2 = np.zeros(2049, dtype=np.intp)
             np.cumsum(h2.sum(axis=0), out=cum2[1:])
             if slots is None:
@@ -845,7 +907,7 @@ cdef Py_ssize_t _fk_stream(const ukey_t[::1] bits, const index_t[::1] tail,
             sidev = slots.side
             with nogil:
                 _distribute(<Rec*>&bufv[0], &startv[0], &fillv[0], &bits[0], &tail[0],
-                            &head[0], s, d_end, &offv[0], <Rec*>&recv[0], &sidev[0],
+                            &head[0], s, d_end, &offv[0], <Rec*>&recv[0], &sidev[0], nblk,
                             threads)
         bdv = bounds
         if n_range > 0:
@@ -983,17 +1045,19 @@ cdef Py_ssize_t _count_touched(const index_t* tail, const index_t* head, Py_ssiz
                                uint8_t* seen, Py_ssize_t n, int threads) noexcept nogil:
     """Number of nodes that are an endpoint of some edge.
 
-    Each thread marks the endpoints of a static slice of the edges in its own row of ``seen``
-    (``threads`` zeroed rows of ``n`` bytes), so no byte is written by two threads; the rows
-    are then OR-ed node by node.  The count does not depend on the thread count.
+    The edges are cut into blocks that the threads take dynamically; each thread marks the
+    endpoints of its blocks in its own row of ``seen`` (``threads`` zeroed rows of ``n``
+    bytes), so no byte is written by two threads; the rows are then OR-ed node by node.  The
+    count does not depend on the thread count or on who took which block.
     """
     cdef Py_ssize_t i, t, lo, hi, k = 0
+    cdef Py_ssize_t nblk = 1 if threads <= 1 else 8 * threads
     cdef uint8_t* row
     cdef uint8_t v
-    for t in prange(threads, num_threads=threads, schedule="static"):
-        lo = m * t // threads
-        hi = m * (t + 1) // threads
-        row = seen + t * n
+    for t in prange(nblk, num_threads=threads, schedule="dynamic"):
+        lo = m * t // nblk
+        hi = m * (t + 1) // nblk
+        row = seen + threadid() * n
         for i in range(lo, hi):
             row[tail[i]] = 1
             row[head[i]] = 1

@@ -75,16 +75,17 @@ cdef inline Py_ssize_t _digit_kp(uint64_t key, uint32_t pos, int s, uint64_t mas
 
 
 cdef inline void digit_hist(const ukey_t* bits, Py_ssize_t m, int kind, bint comp, uint64_t kmin,
-                            int s, Py_ssize_t* hist, int threads) noexcept nogil:
-    """OUT: ``hist[t * 2048 + d]``, the edges of thread t's position slice in bucket d."""
+                            int s, Py_ssize_t* hist, Py_ssize_t nblk, int threads) noexcept nogil:
+    """OUT: ``hist[t * 2048 + d]``, the edges of position block t (positions
+    ``m*t//nblk .. m*(t+1)//nblk - 1``) in bucket d; blocks are taken by the threads dynamically."""
     cdef uint64_t mask = (<uint64_t>0) - 1 if ukey_t is uint64_t else <uint64_t>0xFFFFFFFF
     cdef Py_ssize_t t, i, lo, hi
     cdef Py_ssize_t* h
-    for i in range(threads * 2048):
+    for i in range(nblk * 2048):
         hist[i] = 0
-    for t in prange(threads, num_threads=threads, schedule="static"):
-        lo = m * t // threads
-        hi = m * (t + 1) // threads
+    for t in prange(nblk, num_threads=threads, schedule="dynamic"):
+        lo = m * t // nblk
+        hi = m * (t + 1) // nblk
         h = hist + t * 2048
         for i in range(lo, hi):
             h[_digit_kp(_rank_key(bits[i], kind, comp, mask) - kmin, <uint32_t>i, s, 0x7FF)] += 1

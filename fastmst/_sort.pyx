@@ -446,7 +446,7 @@ cdef void _fill_split(const ukey_t[::1] bits, int kind, bint complement, uint64_
     cdef Py_ssize_t t, i, j, d, lo, hi, acc
     cdef Py_ssize_t* h
     cdef uint64_t k
-    digit_hist(&bits[0], m, kind, complement, kmin, s, hist, threads)
+    digit_hist(&bits[0], m, kind, complement, kmin, s, hist, threads, threads)
     acc = 0
     for d in range(2048):
         bounds[d] = acc
