@@ -520,6 +520,12 @@ cdef Py_ssize_t _fk_recurse(Rec* a, Py_ssize_t n, int top_bits, const index_t* s
 cdef extern from *:
     """
     #include <stdint.h>
+    #if defined(__unix__) || defined(__APPLE__)
+    #include <sched.h>
+    #define FASTMST_YIELD() ((void)sched_yield())
+    #else
+    #define FASTMST_YIELD() ((void)0)
+    #endif
     #if defined(__GNUC__) || defined(__clang__)
     static inline int fastmst_claim8(uint8_t* p, uint8_t expected, uint8_t desired) {
         return __atomic_compare_exchange_n(p, &expected, desired, 0, __ATOMIC_ACQ_REL,
@@ -549,6 +555,7 @@ cdef extern from *:
     #endif
     """
     bint claim8 "fastmst_claim8"(uint8_t* p, uint8_t expected, uint8_t desired) noexcept nogil
+    void yield_cpu "FASTMST_YIELD"() noexcept nogil
     uint8_t get8 "fastmst_get8"(const uint8_t* p) noexcept nogil
     void put8 "fastmst_put8"(uint8_t* p, uint8_t v) noexcept nogil
     Py_ssize_t getz "fastmst_getz"(const Py_ssize_t* p) noexcept nogil
@@ -595,7 +602,7 @@ cdef Py_ssize_t _bucket_run(Rec* a, const Py_ssize_t* bounds, Py_ssize_t nbk,
             putz(progress, lo)
         if state != NULL and not claim8(&state[b], FREE, OWNED):
             while get8(&state[b]) != READY:
-                pass
+                yield_cpu()
             presorted = True
         if rate.filtering:
             nb = _filter_slots(a + lo, nb, side, parent, giant)
@@ -658,7 +665,8 @@ cdef Py_ssize_t _chunk_buckets(Rec* a, const Py_ssize_t* bounds, Py_ssize_t nbk,
             b = 0
             while b < nbk and not get8(state + nbk):
                 if bounds[b] > getz(progress) + SORT_AHEAD:
-                    continue  # far enough ahead of the scan: wait for it
+                    yield_cpu()  # far enough ahead of the scan: let others run meanwhile
+                    continue
                 nb = bounds[b + 1] - bounds[b]
                 if 1 < nb <= threshold and claim8(&state[b], FREE, HELPING):
                     sort_bucket(a + bounds[b], nb, shift)
@@ -1041,31 +1049,48 @@ def filter_kruskal(const index_t[::1] tail, const index_t[::1] head, weight,
     return edges, parent_a, ot_a[:count], oh_a[:count], weights
 
 
+cdef extern from *:
+    """
+    #if defined(__GNUC__) || defined(__clang__)
+    #define FASTMST_POPCOUNT64(x) __builtin_popcountll(x)
+    #else
+    static inline int FASTMST_POPCOUNT64(unsigned long long x) {
+        int c = 0; while (x) { x &= x - 1; c++; } return c;
+    }
+    #endif
+    """
+    int popcount64 "FASTMST_POPCOUNT64"(uint64_t x) noexcept nogil
+
+
 cdef Py_ssize_t _count_touched(const index_t* tail, const index_t* head, Py_ssize_t m,
-                               uint8_t* seen, Py_ssize_t n, int threads) noexcept nogil:
+                               uint64_t* seen, Py_ssize_t nw, int threads) noexcept nogil:
     """Number of nodes that are an endpoint of some edge.
 
-    The edges are cut into blocks that the threads take dynamically; each thread marks the
-    endpoints of its blocks in its own row of ``seen`` (``threads`` zeroed rows of ``n``
-    bytes), so no byte is written by two threads; the rows are then OR-ed node by node.  The
-    count does not depend on the thread count or on who took which block.
+    The edges are cut into blocks that the threads take dynamically; each thread sets the bits
+    of the endpoints of its blocks in its own row of ``seen`` (``threads`` zeroed rows of
+    ``nw`` 64-bit words: one bit per node, small enough for the cache where a byte per node is
+    not), so no word is written by two threads; the rows are then OR-ed and counted.  The count
+    does not depend on the thread count or on who took which block.
     """
     cdef Py_ssize_t i, t, lo, hi, k = 0
     cdef Py_ssize_t nblk = 1 if threads <= 1 else 8 * threads
-    cdef uint8_t* row
-    cdef uint8_t v
+    cdef uint64_t* row
+    cdef uint64_t v
+    cdef index_t x
     for t in prange(nblk, num_threads=threads, schedule="dynamic"):
         lo = m * t // nblk
         hi = m * (t + 1) // nblk
-        row = seen + threadid() * n
+        row = seen + threadid() * nw
         for i in range(lo, hi):
-            row[tail[i]] = 1
-            row[head[i]] = 1
-    for i in range(n):
+            x = tail[i]
+            row[x >> 6] |= (<uint64_t>1) << (x & 63)
+            x = head[i]
+            row[x >> 6] |= (<uint64_t>1) << (x & 63)
+    for i in range(nw):
         v = seen[i]
         for t in range(1, threads):
-            v = v | seen[t * n + i]
-        k += v
+            v = v | seen[t * nw + i]
+        k += popcount64(v)
     return k
 
 
@@ -1075,16 +1100,17 @@ def forest_bound(const index_t[::1] tail, const index_t[::1] head, Py_ssize_t n_
 
     ``(nodes with an edge) - 1``: lets Kruskal stop early on graphs with isolated nodes at the
     cost of one streaming pass (much cheaper than the union pass of ``forest_size``).
-    ``threads`` split the pass (one more ``n_nodes`` bytes of scratch per extra thread, and
-    one thread per ``fastmst._sort.MIN_EDGES_PER_THREAD`` edges at most); the result does not
-    depend on it.
+    ``threads`` split the pass (one more ``n_nodes / 8`` bytes of scratch per extra thread,
+    and one thread per ``fastmst._sort.MIN_EDGES_PER_THREAD`` edges at most); the result does
+    not depend on it.
     """
     cdef Py_ssize_t m = tail.shape[0], k = 0
     if m == 0 or n_nodes == 0:
         return 0
     cdef int nt = max(1, min(threads, m // _sort.MIN_EDGES_PER_THREAD + 1))
-    seen_a = np.zeros(nt * n_nodes, dtype=np.uint8)
-    cdef uint8_t[::1] seen = seen_a
+    cdef Py_ssize_t nw = (n_nodes + 63) // 64
+    seen_a = np.zeros(nt * nw, dtype=np.uint64)
+    cdef uint64_t[::1] seen = seen_a
     with nogil:
-        k = _count_touched(&tail[0], &head[0], m, &seen[0], n_nodes, nt)
+        k = _count_touched(&tail[0], &head[0], m, &seen[0], nw, nt)
     return max(0, k - 1)
