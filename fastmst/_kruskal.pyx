@@ -299,7 +299,9 @@ def kruskal_radix(const index_t[::1] tail, const index_t[::1] head, weight,
 # (Osipov, Sanders and Singler, ALENEX 2009) with 2047 pivots.  Instead of writing a record
 # for every edge up front, the buckets are taken in key order a chunk at a time:
 #
-# * one pass counts the edges of every bucket (per thread, over static position slices);
+# * one pass counts the edges of every bucket in every position block (blocks of positions
+#   taken by the threads dynamically; counts and slots are laid out per block, in block
+#   order, so nothing depends on which thread took which block);
 # * a chunk is a run of consecutive buckets.  Its edges are copied, straight from the input
 #   arrays in position order, into slots: a 12-byte sort record (key, slot) plus the slot's
 #   position and endpoints, so the scan never gathers from the input arrays (it writes the
