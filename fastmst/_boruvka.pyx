@@ -15,6 +15,7 @@ from libc.stdint cimport int32_t, int64_t, uint8_t
 from libc.stdlib cimport free, malloc
 from libc.string cimport memmove
 
+from fastmst._atomics cimport cas64, load64, load_relaxed, store_relaxed, prefetch_w
 from fastmst._typedefs cimport index_t, weight_t
 
 cnp.import_array()
@@ -22,37 +23,6 @@ cnp.import_array()
 #: Edges per thread below which fewer threads are used (each round enters several parallel
 #: regions; on a busy machine each costs a wake-up).  Tests lower it.
 MIN_EDGES_PER_THREAD = 1 << 20
-
-cdef extern from *:
-    """
-    #include <stdint.h>
-    #if defined(__GNUC__) || defined(__clang__)
-    static inline int fastmst_cas64(int64_t* p, int64_t expected, int64_t desired) {
-        return __atomic_compare_exchange_n(p, &expected, desired, 0, __ATOMIC_RELAXED,
-                                           __ATOMIC_RELAXED);
-    }
-    static inline int64_t fastmst_load64(const int64_t* p) {
-        return __atomic_load_n(p, __ATOMIC_RELAXED);
-    }
-    #define FASTMST_LOAD_RELAXED(p, out) __atomic_load((p), (out), __ATOMIC_RELAXED)
-    #define FASTMST_STORE_RELAXED(p, v) __atomic_store((p), (v), __ATOMIC_RELAXED)
-    #define FASTMST_PREFETCH_W(p) __builtin_prefetch((const void*)(p), 1)
-    #else
-    #define FASTMST_LOAD_RELAXED(p, out) (*(out) = *(p))
-    #define FASTMST_STORE_RELAXED(p, v) (*(p) = *(v))
-    #define FASTMST_PREFETCH_W(p) ((void)0)
-    /* No atomics known: only correct single-threaded (the build without OpenMP). */
-    static inline int fastmst_cas64(int64_t* p, int64_t expected, int64_t desired) {
-        if (*p != expected) return 0; *p = desired; return 1;
-    }
-    static inline int64_t fastmst_load64(const int64_t* p) { return *p; }
-    #endif
-    """
-    bint cas64 "fastmst_cas64"(int64_t* p, int64_t expected, int64_t desired) noexcept nogil
-    int64_t load64 "fastmst_load64"(const int64_t* p) noexcept nogil
-    void load_relaxed "FASTMST_LOAD_RELAXED"(...) noexcept nogil
-    void store_relaxed "FASTMST_STORE_RELAXED"(...) noexcept nogil
-    void prefetch_w "FASTMST_PREFETCH_W"(const void* p) noexcept nogil
 
 
 cdef inline bint _lighter(weight_t wa, int64_t a, weight_t wb, int64_t b,

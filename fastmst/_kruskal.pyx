@@ -104,8 +104,7 @@ from libc.stdint cimport uint32_t, uint64_t
 from fastmst._sort cimport (Rec, rec_less, prefetch, sort_bucket, sort_records, ukey_t,
                             _rank_key, _digit_kp, digit_hist, KIND_SIGNED, KIND_FLOAT)
 from fastmst import _sort
-from fastmst._sort import (MAX_RECORDS, split_records, _kind_and_bits,
-                           _scalar_keys)
+from fastmst._sort import MAX_RECORDS, key_range, split_records
 
 #: Below this many edges the sort/scan pipeline of kruskal_radix runs on one thread (too short
 #: to pay for waking a second one).  Tests lower it to run the parallel code on small graphs.
@@ -519,49 +518,7 @@ cdef Py_ssize_t _fk_recurse(Rec* a, Py_ssize_t n, int top_bits, const index_t* s
         depth += 1
 
 
-cdef extern from *:
-    """
-    #include <stdint.h>
-    #if defined(__unix__) || defined(__APPLE__)
-    #include <sched.h>
-    #define FASTMST_YIELD() ((void)sched_yield())
-    #else
-    #define FASTMST_YIELD() ((void)0)
-    #endif
-    #if defined(__GNUC__) || defined(__clang__)
-    static inline int fastmst_claim8(uint8_t* p, uint8_t expected, uint8_t desired) {
-        return __atomic_compare_exchange_n(p, &expected, desired, 0, __ATOMIC_ACQ_REL,
-                                           __ATOMIC_ACQUIRE);
-    }
-    static inline uint8_t fastmst_get8(const uint8_t* p) {
-        return __atomic_load_n(p, __ATOMIC_ACQUIRE);
-    }
-    static inline void fastmst_put8(uint8_t* p, uint8_t v) {
-        __atomic_store_n(p, v, __ATOMIC_RELEASE);
-    }
-    static inline Py_ssize_t fastmst_getz(const Py_ssize_t* p) {
-        return __atomic_load_n(p, __ATOMIC_RELAXED);
-    }
-    static inline void fastmst_putz(Py_ssize_t* p, Py_ssize_t v) {
-        __atomic_store_n(p, v, __ATOMIC_RELAXED);
-    }
-    #else
-    /* No atomics known: only correct single-threaded (the build without OpenMP). */
-    static inline int fastmst_claim8(uint8_t* p, uint8_t expected, uint8_t desired) {
-        if (*p != expected) return 0; *p = desired; return 1;
-    }
-    static inline uint8_t fastmst_get8(const uint8_t* p) { return *p; }
-    static inline void fastmst_put8(uint8_t* p, uint8_t v) { *p = v; }
-    static inline Py_ssize_t fastmst_getz(const Py_ssize_t* p) { return *p; }
-    static inline void fastmst_putz(Py_ssize_t* p, Py_ssize_t v) { *p = v; }
-    #endif
-    """
-    bint claim8 "fastmst_claim8"(uint8_t* p, uint8_t expected, uint8_t desired) noexcept nogil
-    void yield_cpu "FASTMST_YIELD"() noexcept nogil
-    uint8_t get8 "fastmst_get8"(const uint8_t* p) noexcept nogil
-    void put8 "fastmst_put8"(uint8_t* p, uint8_t v) noexcept nogil
-    Py_ssize_t getz "fastmst_getz"(const Py_ssize_t* p) noexcept nogil
-    void putz "fastmst_putz"(Py_ssize_t* p, Py_ssize_t v) noexcept nogil
+from fastmst._atomics cimport claim8, get8, put8, getz, putz, yield_cpu
 
 #: Records a helper may sort ahead of the scan (kept small enough to stay in the shared cache).
 cdef Py_ssize_t SORT_AHEAD = 1 << 18
@@ -1018,10 +975,7 @@ def filter_kruskal(const index_t[::1] tail, const index_t[::1] head, weight,
             if m >= (1 << 24):
                 chunk = min(chunk, m // 4)
         chunk = max(1, min(chunk, m))
-        code, ubits = _kind_and_bits(weight)
-        kmin, kmax = _scalar_keys(weight, maximize)
-        span = kmax - kmin
-        tb = 32 + span.bit_length() if span > 0 else max(1, (m - 1).bit_length())
+        code, ubits, kmin, tb = key_range(weight, maximize)
         threads = max(1, min(threads, m // _sort.MIN_EDGES_PER_THREAD + 1))
         lo = kmin
         kind = code

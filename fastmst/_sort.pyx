@@ -46,17 +46,6 @@ MIN_EDGES_PER_THREAD = 1 << 19
 _RADIX_DTYPES = {np.dtype(t) for t in (np.float32, np.float64, np.int32, np.int64, np.uint32,
                                        np.uint64)}
 
-cdef void _fill(const ukey_t[::1] bits, int kind, bint complement, uint64_t kmin,
-                Rec* out, int threads) noexcept nogil:
-    cdef Py_ssize_t i, m = bits.shape[0]
-    cdef uint64_t k, full = (<uint64_t>0) - 1
-    cdef uint64_t mask = full if ukey_t is uint64_t else <uint64_t>0xFFFFFFFF
-    for i in prange(m, num_threads=threads, schedule="static"):
-        k = _rank_key(bits[i], kind, complement, mask)
-        out[i].key = k - kmin
-        out[i].pos = <uint32_t>i
-
-
 def _kind_and_bits(weight):
     kind = weight.dtype.kind
     if kind == "f":
@@ -88,54 +77,6 @@ def _scalar_keys(weight, bint complement):
             k = ~k & ((1 << (ext.itemsize * 8)) - 1)
         keys.append(k)
     return min(keys), max(keys)
-
-
-def make_records(weight, bint maximize=False, int threads=1):
-    """Sort records of validated weights, in position order.
-
-    Parameters
-    ----------
-    weight : ndarray of shape (E,)
-        Contiguous native weights in a kernel dtype (no NaN), ``E < 2**32``.
-    maximize : bool
-        Complement the keys, so that ascending key order is descending weight order.
-    threads : int
-        Threads for the fill (a static split; the result does not depend on it).
-
-    Returns
-    -------
-    records : ndarray of shape (12 * E,), dtype=uint8
-        Packed ``(key - min_key, position)`` records; view with ``RECORD_DTYPE``.
-    top_bits : int
-        Number of significant bits of the 96-bit composite ``key * 2**32 + position``.
-    """
-    cdef Py_ssize_t m = weight.shape[0]
-    if m >= MAX_RECORDS:
-        raise ValueError(f"make_records: {m} edges exceed the 2**32 records of a 32-bit position; "
-                         f"use the argsort route.")
-    raw = np.empty(12 * m, dtype=np.uint8)
-    if m == 0:
-        return raw, 0
-    threads = max(1, min(threads, m // MIN_EDGES_PER_THREAD + 1))
-    code, ubits = _kind_and_bits(weight)
-    kmin, kmax = _scalar_keys(weight, maximize)
-    cdef uint8_t[::1] r = raw
-    cdef Rec* out = <Rec*>&r[0]
-    cdef uint64_t lo = kmin
-    cdef int kind = code
-    cdef const uint32_t[::1] b32
-    cdef const uint64_t[::1] b64
-    if ubits is np.uint32:
-        b32 = weight.view(np.uint32)
-        with nogil:
-            _fill(b32, kind, maximize, lo, out, threads)
-    else:
-        b64 = weight.view(np.uint64)
-        with nogil:
-            _fill(b64, kind, maximize, lo, out, threads)
-    span = kmax - kmin
-    top_bits = 32 + span.bit_length() if span > 0 else max(1, (m - 1).bit_length())
-    return raw, top_bits
 
 
 # ---------------------------------------------------------------------------------------------
@@ -349,27 +290,6 @@ cdef void sort_records(Rec* a, Py_ssize_t n, int top_bits) noexcept nogil:
         sort_bucket(a + bounds[b], bounds[b + 1] - bounds[b], s)
 
 
-def sort_record_array(raw, int top_bits, int threads=1):
-    """Sort packed records (from ``make_records``) in place, in parallel over top buckets."""
-    cdef uint8_t[::1] r = raw
-    cdef Py_ssize_t n = r.shape[0] // 12
-    cdef Py_ssize_t bounds[2049]
-    cdef int s
-    cdef Py_ssize_t b
-    cdef Rec* a
-    if n < 2:
-        return raw
-    a = <Rec*>&r[0]
-    with nogil:
-        if n <= 4096 or threads <= 1:
-            sort_records(a, n, top_bits)
-        else:
-            split_top(a, n, top_bits, bounds, &s)
-            for b in prange(2048, num_threads=threads, schedule="dynamic"):
-                sort_bucket(a + bounds[b], bounds[b + 1] - bounds[b], s)
-    return raw
-
-
 cdef Py_ssize_t _first_unsorted(const weight_t[::1] w, bint descending) noexcept nogil:
     cdef Py_ssize_t i
     if descending:
@@ -469,16 +389,19 @@ cdef void _fill_split(const ukey_t[::1] bits, int kind, bint complement, uint64_
             out[j].pos = <uint32_t>i
 
 
+def key_range(weight, bint maximize):
+    """``(kind, ubits, kmin, top_bits)`` of validated weights: the key kind code, the unsigned
+    view dtype of the weight bits, the smallest key, and the number of significant bits of the
+    96-bit composite ``(key - kmin) * 2**32 + position`` (one min/max of the weights)."""
+    code, ubits = _kind_and_bits(weight)
+    kmin, kmax = _scalar_keys(weight, maximize)
+    span = kmax - kmin
+    m = weight.shape[0]
+    top_bits = 32 + span.bit_length() if span > 0 else max(1, (m - 1).bit_length())
+    return code, ubits, kmin, top_bits
+
+
 def split_records(weight, bint maximize=False, int threads=1):
-    """Records of validated weights, already split into 2048 top-digit buckets in key order.
-
-    The same as ``split_records_bits`` without its last value.
-    """
-    raw, bounds, next_shift, _ = split_records_bits(weight, maximize, threads)
-    return raw, bounds, next_shift
-
-
-def split_records_bits(weight, bint maximize=False, int threads=1):
     """Records of validated weights, already split into 2048 top-digit buckets in key order.
 
     Parameters
@@ -498,17 +421,11 @@ def split_records_bits(weight, bint maximize=False, int threads=1):
     bounds : ndarray of shape (2049,), dtype=intp
     next_shift : int
         The shift to pass to the bucket sort.
-    top_bits : int
-        Number of significant bits of the 96-bit composite ``key * 2**32 + position`` (what
-        ``sort_records`` needs), from the same single min/max of the weights.
     """
     cdef Py_ssize_t m = weight.shape[0]
     if m >= MAX_RECORDS or m < 2:
         raise ValueError(f"split_records: needs 2 <= E < 2**32 edges, received {m}.")
-    code, ubits = _kind_and_bits(weight)
-    kmin, kmax = _scalar_keys(weight, maximize)
-    span = kmax - kmin
-    top_bits = 32 + span.bit_length() if span > 0 else max(1, (m - 1).bit_length())
+    code, ubits, kmin, top_bits = key_range(weight, maximize)
     threads = max(1, min(threads, m // MIN_EDGES_PER_THREAD + 1))
     raw = np.empty(12 * m, dtype=np.uint8)
     bounds = np.empty(2049, dtype=np.intp)
@@ -530,7 +447,7 @@ def split_records_bits(weight, bint maximize=False, int threads=1):
         with nogil:
             _fill_split(b64, kind, maximize, lo, tb, out, &hs[0], &bd[0], nt)
     s = top_bits - 11 if top_bits > 11 else 0
-    return raw, bounds, _next_shift(s), top_bits
+    return raw, bounds, _next_shift(s)
 
 
 def sort_buckets(raw, bounds, int next_shift, Py_ssize_t first, Py_ssize_t last, int threads=1):
