@@ -356,3 +356,29 @@ def test_forest_bound_same_for_every_thread_count(index_dtype):
         want = max(0, np.unique(np.concatenate([tail, head])).shape[0] - 1)
         for threads in THREADS:
             assert forest_bound(tail, head, n, threads) == want
+
+
+@pytest.mark.parametrize("method", METHODS)
+def test_result_arrays_keep_input_dtypes(method):
+    """Narrow, unsigned and big-endian inputs: the forest's tail, head and weights are the
+    input's own values in the input's dtypes, bit for bit (-0.0 in float16 included), and the
+    edges are the same for every method (identity against the input arrays themselves)."""
+    rng = np.random.default_rng(8)
+    n, m = 500, 5000
+    t = rng.integers(0, n, m)
+    h = rng.integers(0, n, m)
+    cases = [(np.uint16, rng.random(m).astype(np.float16)),
+             (">i8", rng.integers(-9, 9, m).astype(np.int8)),
+             (np.uint32, np.where(rng.random(m) < 0.5, -0.0, 0.0).astype(np.float16)),
+             (np.int64, rng.random(m).astype(">f8"))]
+    for ids, w in cases:
+        tail, head = t.astype(ids), h.astype(ids)
+        f = fastmst.minimum_spanning_forest(tail, head, w, n, method=method)
+        ref = fastmst.minimum_spanning_forest(t, h, w.astype(w.dtype.newbyteorder("=")), n,
+                                              method="kruskal")
+        np.testing.assert_array_equal(f.edges, ref.edges)
+        assert f.tail.dtype == tail.dtype and f.head.dtype == head.dtype
+        assert f.weights.dtype == w.dtype
+        np.testing.assert_array_equal(f.tail, tail[f.edges])
+        np.testing.assert_array_equal(f.head, head[f.edges])
+        np.testing.assert_array_equal(f.weights.view(np.uint8), w[f.edges].view(np.uint8))
