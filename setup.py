@@ -61,14 +61,14 @@ directives = {
 
 extensions = [
     Extension(
-        "fastmst." + os.path.splitext(os.path.basename(path))[0],
+        os.path.splitext(path)[0].replace(os.sep, "."),
         [path],
         include_dirs=[np.get_include()],
         define_macros=[("NPY_NO_DEPRECATED_API", "NPY_1_7_API_VERSION")],
         extra_compile_args=compile_args,
         extra_link_args=link_args,
     )
-    for path in sorted(glob.glob(os.path.join("fastmst", "*.pyx")))
+    for path in sorted(glob.glob(os.path.join("fastmst", "**", "*.pyx"), recursive=True))
 ]
 
 setup(

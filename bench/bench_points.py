@@ -48,7 +48,7 @@ def _brute_euclid(X, metric="euclidean"):
 
 
 def _brute_sphere(LL):
-    from fastmst.geodesy import haversine_m
+    from fastmst.geometry.geodesy import haversine_m
     n = LL.shape[0]
     D = np.empty((n, n))
     for s in range(0, n, 1000):

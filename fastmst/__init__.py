@@ -3,14 +3,14 @@
 The public API is re-exported here; see ``minimum_spanning_forest`` for the semantics and the
 tie rule shared by every function.
 """
-from fastmst._dsu import DisjointSet
-from fastmst.forest import METHODS, SpanningForest, minimum_spanning_forest
+from fastmst._kernels.dsu import DisjointSet
+from fastmst.solve.solve import METHODS, SpanningForest, minimum_spanning_forest
 from fastmst.io import EdgeList, read_edges, read_nodes, write_forest
-from fastmst.certify import ForestCheck, check_forest
-from fastmst.edge_sensitivity import sensitivity
-from fastmst.linkage import single_linkage
-from fastmst.points import point_spanning_tree
-from fastmst.steiner import SteinerTree, steiner_tree
+from fastmst.toolkit.certify import ForestCheck, check_forest
+from fastmst.toolkit.sensitivity import sensitivity
+from fastmst.toolkit.linkage import single_linkage
+from fastmst.geometry.points import point_spanning_tree
+from fastmst.geometry.steiner import SteinerTree, steiner_tree
 
 __version__ = "0.1.0"
 

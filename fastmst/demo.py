@@ -45,7 +45,7 @@ def generate(n_sites: int = 30_000, seed: int = 2024):
     """
     from scipy.spatial import Delaunay
 
-    from fastmst.geodesy import haversine_m
+    from fastmst.geometry.geodesy import haversine_m
     rng = np.random.default_rng(seed)
     n_villages = max(3, n_sites // 1500)
     centres = np.column_stack([_LON0 + rng.uniform(0.05, 0.95, n_villages) * _DLON,

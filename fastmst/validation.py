@@ -310,7 +310,7 @@ def validate_graph_with_forest(tail, head, weight, forest, n_nodes, maximize, th
     maximize : bool
     threads : int
     """
-    from fastmst.forest import SpanningForest
+    from fastmst.solve.solve import SpanningForest
     expected_edges = None
     if isinstance(forest, SpanningForest):
         if maximize is None:

@@ -208,7 +208,7 @@ def test_usage_errors_exit_2(workdir, capsys):
 
 def test_progress_only_on_a_terminal(monkeypatch, capsys):
     """Progress bars are on for a terminal and off for pipes or with --quiet."""
-    from fastmst.progress import Reporter
+    from fastmst.cli.progress import Reporter
     monkeypatch.setattr(sys.stderr, "isatty", lambda: True, raising=False)
     assert Reporter.for_terminal(quiet=False).enabled
     assert not Reporter.for_terminal(quiet=True).enabled

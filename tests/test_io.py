@@ -19,7 +19,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from fastmst import io
-from fastmst.geodesy import EARTH_RADIUS_M, haversine_m
+from fastmst.geometry.geodesy import EARTH_RADIUS_M, haversine_m
 from fastmst.validation import FileFormatError
 
 # A labelled test graph: two components, a zero weight, a negative weight, parallel edges.

@@ -6,9 +6,9 @@ from hypothesis import given, settings, strategies as st
 
 import fastmst
 from fastmst import validation
-from fastmst._kruskal import filter_kruskal, kruskal_radix
-from fastmst._sort import edge_order
-from fastmst.forest import choose_method
+from fastmst._kernels.kruskal import filter_kruskal, kruskal_radix
+from fastmst._kernels.radix import edge_order
+from fastmst.solve.solve import choose_method
 
 nx = pytest.importorskip("networkx")
 sparse = pytest.importorskip("scipy.sparse")
@@ -22,13 +22,13 @@ THREADS = [1, 2, 3, 4]
 def parallel_on_small_graphs(monkeypatch):
     """Run the parallel code paths even on the small graphs of these tests (the kernels
     normally keep one thread below a few million edges)."""
-    import fastmst._boruvka
-    import fastmst._kruskal
-    import fastmst._sort
-    monkeypatch.setattr(fastmst._sort, "MIN_EDGES_PER_THREAD", 1)
-    monkeypatch.setattr(fastmst._kruskal, "MIN_EDGES_PIPELINE", 1)
-    monkeypatch.setattr(fastmst._kruskal, "FILTER_WINDOW", 64)
-    monkeypatch.setattr(fastmst._boruvka, "MIN_EDGES_PER_THREAD", 1)
+    import fastmst._kernels.boruvka
+    import fastmst._kernels.kruskal
+    import fastmst._kernels.radix
+    monkeypatch.setattr(fastmst._kernels.radix, "MIN_EDGES_PER_THREAD", 1)
+    monkeypatch.setattr(fastmst._kernels.kruskal, "MIN_EDGES_PIPELINE", 1)
+    monkeypatch.setattr(fastmst._kernels.kruskal, "FILTER_WINDOW", 64)
+    monkeypatch.setattr(fastmst._kernels.boruvka, "MIN_EDGES_PER_THREAD", 1)
 
 
 def rule_rank(weight):
@@ -347,7 +347,7 @@ def test_hypothesis_methods_equal_networkx(graph, maximize):
 def test_forest_bound_same_for_every_thread_count(index_dtype):
     """forest_bound is (nodes with an edge) - 1 for every thread count; the reference count of
     touched nodes is numpy.unique over both endpoint arrays."""
-    from fastmst._kruskal import forest_bound
+    from fastmst._kernels.kruskal import forest_bound
     rng = np.random.default_rng(11)
     n = 3000
     for m in (1, 2, 7, 500, 4000):

@@ -19,7 +19,7 @@ from scipy.spatial import Delaunay
 from scipy.spatial.distance import pdist, squareform
 
 import fastmst
-from fastmst.points import pair_position
+from fastmst.geometry.points import pair_position
 
 METRIC_NATIVE = ("euclidean", "cityblock", "chebyshev", "minkowski")
 
@@ -235,7 +235,7 @@ def test_dense_ties_follow_rule_and_threads_agree():
 
 def test_dense_kernel_parallel_blocks_agree():
     """The blocked parallel scan returns the same tree for any block size and thread count."""
-    from fastmst._points import dense_prim
+    from fastmst._kernels.points import dense_prim
     X = np.random.default_rng(8).integers(0, 4, (1500, 3)).astype(float)
     ref = dense_prim(X, 0, 2.0, 1, 1024)
     for threads, block in ((2, 64), (2, 1000), (1, 7)):

@@ -205,7 +205,7 @@ def test_bottleneck_long_paths_many_blocks():
         assert p == max(on, key=lambda q: weight[q]) and w == weight[p]
     assert longest > 20
     # The pairs lie far apart in the index's leaf order, so the sparse table over blocks is used.
-    from fastmst.pathmax import forest_merge_tree
+    from fastmst.toolkit.pathmax import forest_merge_tree
     pos = forest_merge_tree(f).index.pos
     assert (np.abs(pos[a] - pos[b]) > 3 * 32).sum() > 50
 

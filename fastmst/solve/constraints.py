@@ -4,8 +4,8 @@ from __future__ import annotations
 import numpy as np
 
 from fastmst import validation
-from fastmst._dsu import labels_from_parent
-from fastmst._paths import kruskal_tree, root_forest, union_parent
+from fastmst._kernels.dsu import labels_from_parent
+from fastmst._kernels.paths import kruskal_tree, root_forest, union_parent
 
 _FUNC = "minimum_spanning_forest"
 
@@ -52,7 +52,7 @@ def constrained_forest(tail, head, weight, n_nodes=None, *, required=None, exclu
     ``required_excess`` is its weight minus the weight of the optimal forest of the graph without
     the excluded edges (that one minus this one when maximizing): what the requirement costs.
     """
-    from fastmst.forest import build_forest, minimum_spanning_forest, METHODS
+    from fastmst.solve.solve import build_forest, minimum_spanning_forest, METHODS
     g = validation.validate_edges(tail, head, weight, n_nodes, func=_FUNC)
     validation.check_choice(method, METHODS, "method", _FUNC)
     maximize = validation.check_bool(maximize, "maximize", _FUNC)

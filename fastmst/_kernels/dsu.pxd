@@ -5,7 +5,7 @@
 # least 2**r members).  The primitives work on raw pointers into arrays that the calling kernel
 # owns, so they add no memoryview reference counting inside hot loops.
 from libc.stdint cimport int32_t, int64_t, uint8_t
-from fastmst._typedefs cimport index_t
+from fastmst._kernels._typedefs cimport index_t
 
 
 cdef inline index_t dsu_find(index_t* parent, index_t x) noexcept nogil:

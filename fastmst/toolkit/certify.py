@@ -7,7 +7,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from fastmst import validation
-from fastmst.pathmax import heaviest_on_paths, merge_tree, rule_sorted
+from fastmst.toolkit.pathmax import heaviest_on_paths, merge_tree, rule_sorted
 
 _FUNC = "check_forest"
 
@@ -101,7 +101,7 @@ def check_forest(tail, head, weight, edges, n_nodes=None, *, maximize=None,
     >>> c.is_minimum, c.violations.tolist(), c.replaces.tolist(), c.excess
     (False, [2], [1], 0.5)
     """
-    from fastmst.forest import minimum_spanning_forest
+    from fastmst.solve.solve import minimum_spanning_forest
     g, pos, in_forest, maximize, threads = validation.validate_graph_with_forest(
         tail, head, weight, edges, n_nodes, maximize, threads, name="edges", func=_FUNC,
         strict_maximize=False)

@@ -2,9 +2,9 @@
 bottleneck and single_linkage.
 
 A forest's edges taken in the tie-rule order and joined one by one form its merge tree (see
-``fastmst._paths.kruskal_tree``); the heaviest edge on the tree path between two nodes is their
+``fastmst._kernels.paths.kruskal_tree``); the heaviest edge on the tree path between two nodes is their
 lowest common ancestor there, found by range maxima over the tree's leaf order
-(``fastmst._paths.PathMaxIndex``).  "Heaviest" is in the tie-rule order: largest weight, and among equal
+(``fastmst._kernels.paths.PathMaxIndex``).  "Heaviest" is in the tie-rule order: largest weight, and among equal
 weights the latest position (for a maximum forest: smallest weight, then latest position).
 """
 from __future__ import annotations
@@ -13,8 +13,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from fastmst._paths import PathMaxIndex, kruskal_tree
-from fastmst._sort import edge_order
+from fastmst._kernels.paths import PathMaxIndex, kruskal_tree
+from fastmst._kernels.radix import edge_order
 
 
 @dataclass(frozen=True)

@@ -10,8 +10,8 @@ _FUNC = "SpanningForest.add_edges"
 
 def add_edges(forest, tail, head, weight, n_nodes=None):
     """Optimal forest of the old graph plus new edges; see ``SpanningForest.add_edges``."""
-    from fastmst._sort import edge_order
-    from fastmst.forest import SpanningForest, minimum_spanning_forest
+    from fastmst._kernels.radix import edge_order
+    from fastmst.solve.solve import SpanningForest, minimum_spanning_forest
     new = validation.validate_edges(tail, head, weight, n_nodes, func=_FUNC)
     n = max(forest.n_nodes, new.n_nodes)
     k = new.n_edges

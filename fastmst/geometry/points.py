@@ -18,9 +18,9 @@ import warnings
 import numpy as np
 
 from fastmst import validation
-from fastmst._points import METRIC_CODES, dense_prim
-from fastmst.forest import SpanningForest, minimum_spanning_forest
-from fastmst.geodesy import EARTH_RADIUS_M, haversine_m
+from fastmst._kernels.points import METRIC_CODES, dense_prim
+from fastmst.solve.solve import SpanningForest, minimum_spanning_forest
+from fastmst.geometry.geodesy import EARTH_RADIUS_M, haversine_m
 
 __all__ = ["point_spanning_tree", "EARTH_RADIUS_M"]
 
@@ -427,7 +427,7 @@ def point_spanning_tree(points, *, metric: str = "euclidean", max_length=None,
     float64, so two pairs whose lengths differ only in the last bits may be ranked by rounding.
 
     *Great-circle lengths* are haversine distances on a sphere of the IUGG mean Earth radius,
-    6 371 008.8 m (``fastmst.geodesy``): a spherical approximation of the ellipsoid, within
+    6 371 008.8 m (``fastmst.geometry.geodesy``): a spherical approximation of the ellipsoid, within
     about 0.5 %.  Longitudes may be any value (a link across the antimeridian gets its short
     length); a pole is one point whatever its longitude.
 

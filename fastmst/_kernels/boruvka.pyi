@@ -1,4 +1,4 @@
-"""Stubs for fastmst._boruvka (parallel Borůvka)."""
+"""Stubs for fastmst._kernels.boruvka (parallel Borůvka)."""
 import numpy as np
 import numpy.typing as npt
 

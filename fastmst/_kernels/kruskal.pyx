@@ -3,8 +3,8 @@ import numpy as np
 cimport numpy as cnp
 from libc.stdint cimport int32_t, int64_t, uint8_t
 
-from fastmst._typedefs cimport index_t
-from fastmst._dsu cimport dsu_find, dsu_link, dsu_union
+from fastmst._kernels._typedefs cimport index_t
+from fastmst._kernels.dsu cimport dsu_find, dsu_link, dsu_union
 
 cnp.import_array()
 
@@ -101,10 +101,10 @@ def kruskal(const int64_t[::1] order, const index_t[::1] tail, const index_t[::1
 
 from cython.parallel cimport parallel, prange, threadid
 from libc.stdint cimport uint32_t, uint64_t
-from fastmst._sort cimport (Rec, rec_less, prefetch, sort_bucket, sort_records, ukey_t,
+from fastmst._kernels.radix cimport (Rec, rec_less, prefetch, sort_bucket, sort_records, ukey_t,
                             _rank_key, _digit_kp, digit_hist, KIND_SIGNED, KIND_FLOAT)
-from fastmst import _sort
-from fastmst._sort import MAX_RECORDS, key_range, split_records
+from fastmst._kernels import radix as _sort
+from fastmst._kernels.radix import MAX_RECORDS, key_range, split_records
 
 #: Below this many edges the sort/scan pipeline of kruskal_radix runs on one thread (too short
 #: to pay for waking a second one).  Tests lower it to run the parallel code on small graphs.
@@ -518,7 +518,7 @@ cdef Py_ssize_t _fk_recurse(Rec* a, Py_ssize_t n, int top_bits, const index_t* s
         depth += 1
 
 
-from fastmst._atomics cimport claim8, get8, put8, getz, putz, yield_cpu
+from fastmst._kernels._atomics cimport claim8, get8, put8, getz, putz, yield_cpu
 
 #: Records a helper may sort ahead of the scan (kept small enough to stay in the shared cache).
 cdef Py_ssize_t SORT_AHEAD = 1 << 18
@@ -1057,7 +1057,7 @@ def forest_bound(const index_t[::1] tail, const index_t[::1] head, Py_ssize_t n_
     ``(nodes with an edge) - 1``: lets Kruskal stop early on graphs with isolated nodes at the
     cost of one streaming pass (much cheaper than the union pass of ``forest_size``).
     ``threads`` split the pass (one more ``n_nodes / 8`` bytes of scratch per extra thread,
-    and one thread per ``fastmst._sort.MIN_EDGES_PER_THREAD`` edges at most); the result does
+    and one thread per ``fastmst._kernels.radix.MIN_EDGES_PER_THREAD`` edges at most); the result does
     not depend on it.
     """
     cdef Py_ssize_t m = tail.shape[0], k = 0

@@ -20,7 +20,7 @@ from pathlib import Path
 import numpy as np
 
 from fastmst import validation
-from fastmst.geodesy import edge_lengths
+from fastmst.geometry.geodesy import edge_lengths
 from fastmst.validation import FileFormatError
 
 FORMATS = ("csv", "tsv", "parquet", "npz", "mtx", "gr")
@@ -80,7 +80,7 @@ class EdgeList:
 
     def solve(self, **kwargs):
         """``minimum_spanning_forest`` of these edges; keyword arguments are passed on."""
-        from fastmst.forest import minimum_spanning_forest
+        from fastmst.solve.solve import minimum_spanning_forest
         return minimum_spanning_forest(self.tail, self.head, self.weight, self.n_nodes, **kwargs)
 
     def __repr__(self) -> str:

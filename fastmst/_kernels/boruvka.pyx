@@ -15,8 +15,8 @@ from libc.stdint cimport int32_t, int64_t, uint8_t
 from libc.stdlib cimport free, malloc
 from libc.string cimport memmove
 
-from fastmst._atomics cimport cas64, load64, load_relaxed, store_relaxed, prefetch_w
-from fastmst._typedefs cimport index_t, weight_t
+from fastmst._kernels._atomics cimport cas64, load64, load_relaxed, store_relaxed, prefetch_w
+from fastmst._kernels._typedefs cimport index_t, weight_t
 
 cnp.import_array()
 

@@ -11,8 +11,8 @@ import math
 import numpy as np
 
 from fastmst import validation
-from fastmst._steiner import mark_paths, prune_leaves, voronoi
-from fastmst.forest import minimum_spanning_forest
+from fastmst._kernels.steiner import mark_paths, prune_leaves, voronoi
+from fastmst.solve.solve import minimum_spanning_forest
 
 __all__ = ["SteinerTree", "steiner_tree"]
 

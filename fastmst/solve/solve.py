@@ -6,10 +6,10 @@ import math
 import numpy as np
 
 from fastmst import validation
-from fastmst._boruvka import boruvka
-from fastmst._dsu import labels_from_parent
-from fastmst._kruskal import filter_kruskal, forest_bound, forest_size, kruskal, kruskal_radix
-from fastmst._sort import MAX_RECORDS, edge_order, first_unsorted
+from fastmst._kernels.boruvka import boruvka
+from fastmst._kernels.dsu import labels_from_parent
+from fastmst._kernels.kruskal import filter_kruskal, forest_bound, forest_size, kruskal, kruskal_radix
+from fastmst._kernels.radix import MAX_RECORDS, edge_order, first_unsorted
 
 METHODS = ("auto", "kruskal", "filter-kruskal", "boruvka")
 
@@ -142,7 +142,7 @@ class SpanningForest:
         >>> w.tolist(), p.tolist()
         ([3.0, 3.0, -inf], [3, 3, -1])
         """
-        from fastmst.bottleneck import bottleneck
+        from fastmst.toolkit.bottleneck import bottleneck
         return bottleneck(self, a, b, threads)
 
     def add_edges(self, tail, head, weight, n_nodes=None) -> "SpanningForest":
@@ -163,7 +163,7 @@ class SpanningForest:
         >>> g.edges.tolist(), g.weight
         ([0, 2], 3.0)
         """
-        from fastmst.update import add_edges
+        from fastmst.toolkit.update import add_edges
         return add_edges(self, tail, head, weight, n_nodes)
 
     def clusters(self, k=None, threshold=None):
@@ -195,7 +195,7 @@ class SpanningForest:
         >>> f.clusters(k=2).tolist(), f.clusters(threshold=0.7).tolist()
         ([0, 0, 1, 1], [0, 0, 1, 2])
         """
-        from fastmst.linkage import clusters
+        from fastmst.toolkit.linkage import clusters
         return clusters(self, k, threshold)
 
 
@@ -300,7 +300,7 @@ def minimum_spanning_forest(tail, head, weight, n_nodes=None, *, method="auto",
     ([0, 2, 3], 7.0, 1)
     """
     if required is not None or excluded is not None:
-        from fastmst.constraints import constrained_forest
+        from fastmst.solve.constraints import constrained_forest
         return constrained_forest(tail, head, weight, n_nodes, required=required,
                                   excluded=excluded, method=method, presorted=presorted,
                                   maximize=maximize, threads=threads)

@@ -1,4 +1,4 @@
-"""Stubs for fastmst._sort (order-preserving radix sort of edge weights)."""
+"""Stubs for fastmst._kernels.radix (order-preserving radix sort of edge weights)."""
 import numpy as np
 import numpy.typing as npt
 

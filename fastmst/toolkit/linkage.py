@@ -4,9 +4,9 @@ from __future__ import annotations
 import numpy as np
 
 from fastmst import validation
-from fastmst._dsu import labels_from_parent
-from fastmst._paths import union_parent
-from fastmst.pathmax import forest_merge_tree
+from fastmst._kernels.dsu import labels_from_parent
+from fastmst._kernels.paths import union_parent
+from fastmst.toolkit.pathmax import forest_merge_tree
 
 
 def single_linkage(forest) -> np.ndarray:
@@ -46,7 +46,7 @@ def single_linkage(forest) -> np.ndarray:
     >>> fastmst.single_linkage(f).tolist()
     [[0.0, 1.0, 0.5, 2.0], [2.0, 3.0, 1.0, 2.0], [4.0, 5.0, 2.0, 4.0]]
     """
-    from fastmst.forest import SpanningForest
+    from fastmst.solve.solve import SpanningForest
     if not isinstance(forest, SpanningForest):
         raise TypeError(f"single_linkage: expected a SpanningForest, received "
                         f"{type(forest).__name__}; compute one with minimum_spanning_forest.")

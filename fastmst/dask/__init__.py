@@ -37,7 +37,7 @@ from dask.delayed import Delayed
 
 import fastmst
 from fastmst import validation
-from fastmst.forest import SpanningForest
+from fastmst.solve.solve import SpanningForest
 
 __all__ = ["minimum_spanning_forest", "PLANS", "BYTES_PER_EDGE"]
 

@@ -28,8 +28,8 @@ from libc.stdint cimport int64_t, uint8_t, uint32_t, uint64_t
 from libc.stdlib cimport free, malloc
 from libc.string cimport memcpy
 
-from fastmst._typedefs cimport weight_t
-from fastmst._sort cimport Rec, rec_less
+from fastmst._kernels._typedefs cimport weight_t
+from fastmst._kernels.radix cimport Rec, rec_less
 
 cnp.import_array()
 

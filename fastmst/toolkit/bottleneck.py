@@ -4,7 +4,7 @@ from __future__ import annotations
 import numpy as np
 
 from fastmst import validation
-from fastmst.pathmax import forest_merge_tree, heaviest_on_paths
+from fastmst.toolkit.pathmax import forest_merge_tree, heaviest_on_paths
 
 _FUNC = "SpanningForest.bottleneck"
 

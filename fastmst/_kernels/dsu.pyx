@@ -3,8 +3,8 @@ import numpy as np
 cimport numpy as cnp
 from libc.stdint cimport int32_t, int64_t, uint8_t
 
-from fastmst._typedefs cimport index_t
-from fastmst._dsu cimport dsu_find, dsu_link
+from fastmst._kernels._typedefs cimport index_t
+from fastmst._kernels.dsu cimport dsu_find, dsu_link
 
 cnp.import_array()
 

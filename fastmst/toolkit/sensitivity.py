@@ -4,9 +4,9 @@ from __future__ import annotations
 import numpy as np
 
 from fastmst import validation
-from fastmst._paths import cover_paths, root_forest
-from fastmst._sort import edge_order
-from fastmst.pathmax import heaviest_on_paths, merge_tree, rule_sorted
+from fastmst._kernels.paths import cover_paths, root_forest
+from fastmst._kernels.radix import edge_order
+from fastmst.toolkit.pathmax import heaviest_on_paths, merge_tree, rule_sorted
 
 _FUNC = "sensitivity"
 

@@ -1,4 +1,4 @@
-"""Stubs for fastmst._kruskal (Kruskal scans and Filter-Kruskal)."""
+"""Stubs for fastmst._kernels.kruskal (Kruskal scans and Filter-Kruskal)."""
 import numpy as np
 import numpy.typing as npt
 

@@ -27,7 +27,7 @@ class UsageError(Exception):
 
 
 def _methods():
-    from fastmst.forest import METHODS
+    from fastmst.solve.solve import METHODS
     return tuple(METHODS)
 
 
@@ -191,7 +191,7 @@ def build_parser() -> argparse.ArgumentParser:
 # --- helpers --------------------------------------------------------------------------------------
 
 def _reporter(args):
-    from fastmst.progress import Reporter
+    from fastmst.cli.progress import Reporter
     return Reporter.for_terminal(args.quiet or args.json)
 
 
@@ -340,7 +340,7 @@ def _solve(args, edges, rep):
 
 def _has_required() -> bool:
     import inspect
-    from fastmst.forest import minimum_spanning_forest
+    from fastmst.solve.solve import minimum_spanning_forest
     return "required" in inspect.signature(minimum_spanning_forest).parameters
 
 

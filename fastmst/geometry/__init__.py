@@ -1,0 +1,1 @@
+"""Trees over coordinates: point spanning trees, great-circle lengths, Steiner trees along networks."""

@@ -1,0 +1,1 @@
+"""Tools that work on a spanning forest: certificates, margins, bottlenecks, clusters, updates."""
