@@ -1,0 +1,189 @@
+"""SpanningForest: the result of every solve."""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+
+class SpanningForest:
+    """A minimum (or maximum) spanning forest of an edge list.
+
+    Attributes
+    ----------
+    edges : ndarray of shape (F,), dtype=int64
+        Positions of the forest's edges in the input arrays, ordered by the tie rule: weight
+        ascending (descending when ``maximize``), equal weights by position.  ``F`` is
+        ``n_nodes - n_components``.
+    tail, head : ndarray of shape (F,)
+        Endpoints of the forest's edges, in the input id dtype.
+    weights : ndarray of shape (F,)
+        Weights of the forest's edges, in the input weight dtype.
+    n_nodes : int
+    n_edges : int
+        Number of edges of the input graph (positions of later edges continue from here).
+    n_components : int
+        Connected components of the graph, isolated nodes included.
+    labels : ndarray of shape (n_nodes,), dtype=int64
+        Component id of every node, 0..n_components-1 in order of first appearance.
+    maximize : bool
+        True for a maximum spanning forest.
+    method : str
+        The algorithm that ran ("kruskal", "boruvka", ...).
+    required_excess : float
+        What the ``required`` edges of ``minimum_spanning_forest`` cost: this forest's weight
+        minus that of the optimal forest without the requirement (the reverse when maximizing),
+        so always >= 0; 0.0 when nothing was required.
+    """
+
+    __slots__ = ("edges", "tail", "head", "weights", "n_nodes", "n_edges", "n_components",
+                 "labels", "maximize", "method", "_weight", "__dict__")
+
+    required_excess = 0.0
+
+    def __init__(self, edges, tail, head, weights, n_nodes, n_edges, n_components, labels,
+                 maximize=False, method=""):
+        self.edges = edges
+        self.tail = tail
+        self.head = head
+        self.weights = weights
+        self.n_nodes = int(n_nodes)
+        self.n_edges = int(n_edges)
+        self.n_components = int(n_components)
+        self.labels = labels
+        self.maximize = bool(maximize)
+        self.method = method
+        self._weight = None
+
+    @property
+    def weight(self) -> float:
+        """Total weight as a Python float, summed exactly rounded (``math.fsum``)."""
+        if self._weight is None:
+            self._weight = math.fsum(self.weights.tolist())
+        return self._weight
+
+    def __len__(self) -> int:
+        return int(self.edges.shape[0])
+
+    def __repr__(self) -> str:
+        kind = "maximum" if self.maximize else "minimum"
+        return (f"SpanningForest({kind}, n_nodes={self.n_nodes}, n_forest_edges={len(self)}, "
+                f"n_components={self.n_components}, weight={self.weight!r})")
+
+    def to_scipy(self):
+        """The forest as a symmetric ``scipy.sparse.csr_array`` of shape (n_nodes, n_nodes).
+
+        Zero-weight forest edges are kept as explicit stored entries (``.nnz`` counts them).
+        """
+        from scipy import sparse
+        rows = np.concatenate([self.tail, self.head]).astype(np.int64, copy=False)
+        cols = np.concatenate([self.head, self.tail]).astype(np.int64, copy=False)
+        data = np.concatenate([self.weights, self.weights])
+        return sparse.coo_array((data, (rows, cols)), shape=(self.n_nodes, self.n_nodes)).tocsr()
+
+    def to_networkx(self):
+        """The forest as a ``networkx.Graph`` with ``weight`` and ``position`` edge attributes.
+
+        Every node 0..n_nodes-1 is present, isolated ones included.
+        """
+        import networkx as nx
+        g = nx.Graph()
+        g.add_nodes_from(range(self.n_nodes))
+        g.add_edges_from(
+            (u, v, {"weight": w, "position": p})
+            for u, v, w, p in zip(self.tail.tolist(), self.head.tolist(),
+                                  self.weights.tolist(), self.edges.tolist())
+        )
+        return g
+
+
+    def bottleneck(self, a, b, *, threads=None):
+        """Heaviest edge on the forest path between nodes ``a`` and ``b`` (minimax queries).
+
+        Parameters
+        ----------
+        a, b : int or array_like of int
+            Node ids in ``[0, n_nodes)``; arrays of one shape (or broadcastable) give many pairs.
+        threads : int, optional
+            Worker threads; None or <= 0 means every available core (same answer either way).
+
+        Returns
+        -------
+        weight : ndarray of float64, shape of the broadcast pairs
+            The heaviest edge weight on the tree path: the minimax path value between the two
+            nodes over the whole graph.  inf for nodes in different components, -inf for a node
+            with itself.  For a maximum forest, the lightest edge on the path (the maximin, or
+            widest-path, value); then -inf across components and inf for a node with itself.
+        position : ndarray of int64, same shape
+            Input position of that edge (the tie-rule-heaviest among equal weights); -1 when
+            there is none.  For a forest solved with ``required``/``excluded`` edges the values
+            are those of its own tree paths, not minimax values of the whole graph.
+
+        Notes
+        -----
+        The lowest common ancestor of the two nodes in the forest's merge tree, by range maxima
+        over its leaf order: O(V) to build once (cached on the forest), then O(1) per pair.
+
+        Examples
+        --------
+        >>> import fastmst
+        >>> f = fastmst.minimum_spanning_forest([0, 1, 2, 0], [1, 2, 3, 3], [1.0, 4.0, 2.0, 3.0])
+        >>> w, p = f.bottleneck([0, 1, 0], [2, 3, 0])
+        >>> w.tolist(), p.tolist()
+        ([3.0, 3.0, -inf], [3, 3, -1])
+        """
+        from fastmst.toolkit.bottleneck import bottleneck
+        return bottleneck(self, a, b, threads)
+
+    def add_edges(self, tail, head, weight, n_nodes=None) -> "SpanningForest":
+        """Optimal forest of the old graph plus new edges, from this forest and the new edges.
+
+        The new edges get positions ``n_edges, n_edges + 1, ...``; node ids may extend past
+        ``n_nodes`` (or pass ``n_nodes``).  By the cycle property an edge left out of this
+        forest stays out, so only the F forest edges and the K new ones are solved: O((F + K)
+        log(F + K)).  The result is identical to a full solve of the combined graph, tie rule
+        included, and keeps ``maximize`` and any ``required`` edges of this forest (the
+        excluded ones are not in it to begin with).
+
+        Examples
+        --------
+        >>> import fastmst
+        >>> f = fastmst.minimum_spanning_forest([0, 1], [1, 2], [1.0, 5.0])
+        >>> g = f.add_edges([0], [2], [2.0])
+        >>> g.edges.tolist(), g.weight
+        ([0, 2], 3.0)
+        """
+        from fastmst.toolkit.update import add_edges
+        return add_edges(self, tail, head, weight, n_nodes)
+
+    def clusters(self, k=None, threshold=None):
+        """Single-linkage flat clusters: labels after cutting the heaviest forest edges.
+
+        Parameters
+        ----------
+        k : int, optional
+            Number of clusters, ``n_components <= k <= n_nodes``: the ``k - n_components``
+            heaviest forest edges are cut (``k - 1`` for a connected graph), in tie-rule order.
+        threshold : float, optional
+            Cut every forest edge heavier than ``threshold`` (like ``fcluster(...,
+            criterion="distance")``).  Pass exactly one of ``k`` and ``threshold``.
+
+        Returns
+        -------
+        labels : ndarray of shape (n_nodes,), dtype=int64
+            Cluster ids 0..k-1 in order of first appearance.
+
+        Notes
+        -----
+        For a maximum forest (weights are similarities) the lightest edges are cut instead, and
+        ``threshold`` cuts every edge lighter than it.
+
+        Examples
+        --------
+        >>> import fastmst
+        >>> f = fastmst.minimum_spanning_forest([0, 1, 2], [1, 2, 3], [0.5, 9.0, 1.0])
+        >>> f.clusters(k=2).tolist(), f.clusters(threshold=0.7).tolist()
+        ([0, 0, 1, 1], [0, 0, 1, 2])
+        """
+        from fastmst.toolkit.linkage import clusters
+        return clusters(self, k, threshold)
