@@ -5,6 +5,8 @@ import math
 
 import numpy as np
 
+from fastmst.io import atomic_write
+
 
 def _polyline(coords, tail, head):
     """x, y of every segment as one polyline broken by NaNs: one matplotlib path for all
@@ -40,8 +42,6 @@ def plot_forest(path, edges, forest, *, title=None, subtitle=None, groups=None,
     import matplotlib
     matplotlib.use("Agg", force=True)
     import matplotlib.pyplot as plt
-
-    from fastmst.io import _atomic
 
     if edges.coords is None:
         raise ValueError(f"plot: {edges.source} has no node coordinates; give a node table with "
@@ -95,6 +95,6 @@ def plot_forest(path, edges, forest, *, title=None, subtitle=None, groups=None,
     def write(tmp):
         fig.savefig(tmp, format="png")
     try:
-        return _atomic(path, write)
+        return atomic_write(path, write)
     finally:
         plt.close(fig)

@@ -20,7 +20,7 @@ from hypothesis import strategies as st
 
 from fastmst import io
 from fastmst.geometry.geodesy import EARTH_RADIUS_M, haversine_m
-from fastmst.validation import FileFormatError
+from fastmst.io import FileFormatError, registry
 
 # A labelled test graph: two components, a zero weight, a negative weight, parallel edges.
 LINKS = [("alpha", "bravo", 4.0), ("bravo", "charlie", 0.0), ("charlie", "alpha", 2.5),
@@ -76,7 +76,7 @@ def test_forest_round_trip(tmp_path, name):
                                  "w": [w for _, _, w in LINKS]}))
     f = el.solve()
     out = io.write_forest(tmp_path / name, f, el)
-    back = pa.table(io._load_table(out, None, "t")[0]) if not name.endswith(".npz") else None
+    back = pa.table(io.load_table(out)[0]) if not name.endswith(".npz") else None
     again = io.read_edges(out)
     assert _triples(again) == [(el.label([a])[0], el.label([b])[0], w) for a, b, w in
                                zip(f.tail, f.head, f.weights.tolist())]
@@ -425,7 +425,7 @@ def test_atomic_write_keeps_old_file(tmp_path):
             fh.write("half a fil")
         raise RuntimeError("disk full (simulated)")
     with pytest.raises(RuntimeError):
-        io._atomic(out, failing)
+        io.atomic_write(out, failing)
     assert out.read_text() == "old content\n"
     assert os.listdir(tmp_path) == ["forest.csv"]
     el = io.from_table(pa.table({"a": [0], "b": [1], "w": [1.0]}))
@@ -442,3 +442,82 @@ def test_progress_callback_reports_bytes(tmp_path):
     el = io.read_edges(p, progress=lambda done, total: seen.append((done, total)))
     assert el.n_edges == 2000
     assert seen and seen[-1][0] == seen[-1][1] == p.stat().st_size
+
+
+def test_registry_one_place_adds_a_format(tmp_path, monkeypatch):
+    """A format registered in one place is read by read_edges, listed among the read formats
+    and detected from its suffix; a second claim on a suffix or a name is refused."""
+    monkeypatch.setattr(registry, "_REGISTRY", dict(registry._REGISTRY))
+
+    def read_pairs(path, compression, request):
+        rows = [line.split() for line in open(path)]
+        t, h, labels = io.encode_labels(np.array([r[0] for r in rows]),
+                                        np.array([r[1] for r in rows]), str(path))
+        return io.EdgeList(t, h, np.array([float(r[2]) for r in rows]), len(labels), labels)
+    registry.register(registry.Format("pairs", (".pairs",), 99, read_edges=read_pairs))
+    (tmp_path / "e.pairs").write_text("a b 2\nb c 1\na c 5\n")
+    el = io.read_edges(tmp_path / "e.pairs")
+    assert el.labels.tolist() == ["a", "b", "c"] and el.solve().weight == 3.0
+    assert registry.names("read")[-1] == "pairs" and "pairs" not in registry.names("write")
+    with pytest.raises(ValueError, match="suffix '.pairs' of 'other' already belongs"):
+        registry.register(registry.Format("other", (".pairs",), 100))
+    with pytest.raises(ValueError, match="already registered"):
+        registry.register(registry.Format("csv", (".x",), 100))
+
+
+def test_format_lists_come_from_the_registry():
+    """FORMATS/WRITE_FORMATS and the CLI's --format choices are the registry's lists."""
+    from fastmst import cli
+    assert io.FORMATS == registry.names("read") == ("csv", "tsv", "parquet", "npz", "mtx", "gr")
+    assert io.WRITE_FORMATS == registry.names("write") == ("csv", "tsv", "parquet", "npz",
+                                                           "geojson")
+    solve = cli.build_parser()._subparsers._group_actions[0].choices["solve"]
+    fmt = next(a for a in solve._actions if a.dest == "format")
+    assert tuple(fmt.choices) == io.FORMATS
+
+
+def test_nan_messages_name_the_column_kind(tmp_path):
+    """A NaN coordinate is reported as a coordinate, a NaN weight as a weight."""
+    n = tmp_path / "n.csv"
+    n.write_text("id,x,y\n0,1.0,NaN\n1,2.0,3.0\n")
+    with pytest.raises(FileFormatError, match="coordinate in column 'y' is NaN .*every node"):
+        io.read_nodes(n)
+    e = tmp_path / "e.csv"
+    e.write_text("a,b,w\n0,1,NaN\n")
+    with pytest.raises(FileFormatError, match="weight in column 'w' is NaN .*every edge"):
+        io.read_edges(e)
+
+
+def test_wrong_types_raise_type_error(tmp_path):
+    """Wrong types are TypeError: a progress that is not callable, geographic not a bool, a
+    column not given by name, a table that is not a path or a table."""
+    p = _write_csv(tmp_path / "e.csv", ["a", "b", "w"], [(0, 1, 1.0)])
+    with pytest.raises(TypeError, match="progress must be a function"):
+        io.read_edges(p, progress=5)
+    n = tmp_path / "n.csv"
+    n.write_text("id,x,y\n0,1.0,2.0\n")
+    with pytest.raises(TypeError, match="geographic"):
+        io.read_nodes(n, geographic="yes")
+    with pytest.raises(TypeError, match="given by name"):
+        io.read_edges(p, weight=2)
+    with pytest.raises(TypeError, match="expected a file path"):
+        io.read_nodes(42)
+
+
+def test_read_positions_by_position_and_by_labels(tmp_path):
+    """Links named by position or by label pairs (either direction) give the same positions;
+    a pair names its lightest parallel edge, or all of them with all_parallel=True."""
+    el = io.from_table(pa.table({"a": [x for x, _, _ in LINKS], "b": [y for _, y, _ in LINKS],
+                                 "w": [w for _, _, w in LINKS]}))
+    pairs = tmp_path / "pairs.csv"
+    pairs.write_text("u,v\nbravo,alpha\necho,delta\n")
+    # alpha--bravo: positions 0 (weight 4) and 3 (weight 1); the lightest is 3
+    assert io.read_positions(pairs, el).tolist() == [3, 4]
+    assert sorted(io.read_positions(pairs, el, all_parallel=True).tolist()) == [0, 3, 4]
+    by_pos = tmp_path / "pos.csv"
+    by_pos.write_text("position\n3\n4\n")
+    assert io.read_positions(by_pos, el).tolist() == [3, 4]
+    bad = tmp_path / "bad.csv"
+    bad.write_text("u,v\nalpha,zulu\n")
+    with pytest.raises(FileFormatError, match="node 'zulu' is not a node"):
+        io.read_positions(bad, el)

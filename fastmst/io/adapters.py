@@ -1,0 +1,191 @@
+"""Edge lists from in-memory objects, and forests back to tables and graphs.
+
+``from_table`` (pandas/pyarrow), ``from_scipy`` (sparse matrices), ``from_networkx``; the way
+back: ``to_networkx``, ``forest_table`` (the forest as a pyarrow Table in the user's labels) and
+``node_table`` (one row per node with values such as cluster numbers).
+"""
+from __future__ import annotations
+
+import numpy as np
+
+from fastmst import validation
+from fastmst.io.checks import FileFormatError, table_row
+from fastmst.io.columns import choose_edge_columns
+from fastmst.io.edgelist import EdgeList, edges_from_table
+from fastmst.io.labels import all_labels, id_dtype, label_array
+from fastmst.io.nodes import NodeTable, read_nodes
+from fastmst.io.tables import is_pandas, pandas_to_arrow
+
+
+def from_table(table, *, tail=None, head=None, weight=None, nodes=None) -> EdgeList:
+    """An EdgeList from a pandas DataFrame or pyarrow Table (one row per edge).
+
+    Columns are chosen as in :func:`fastmst.io.read_edges`; labels of any type are mapped to
+    compact ids.
+    """
+    import pyarrow as pa
+    if isinstance(table, pa.Table):
+        t, source = table, "<pyarrow table>"
+    elif is_pandas(table):
+        t, source = pandas_to_arrow(table), "<pandas DataFrame>"
+    else:
+        raise TypeError(f"from_table: expected a pandas DataFrame or a pyarrow Table, received "
+                        f"{type(table).__name__}; for files use read_edges(path).")
+    if nodes is not None and not isinstance(nodes, NodeTable):
+        nodes = read_nodes(nodes)
+    cols = choose_edge_columns(t.column_names, tail, head, weight, source, nodes is not None)
+    if t.num_rows == 0:
+        raise FileFormatError(f"{source}: the table has no rows; expected one row per edge.")
+    return edges_from_table(t, cols, source, table_row, nodes)
+
+
+def from_scipy(matrix, *, symmetric=None) -> EdgeList:
+    """An EdgeList from a SciPy sparse matrix or array: every stored entry is an edge.
+
+    Explicit zeros are kept as zero-weight edges.  Edges are ordered by (row, column), entries
+    with the same (row, column) in storage order.
+
+    Parameters
+    ----------
+    matrix : scipy.sparse matrix or array of shape (n, n)
+    symmetric : bool, optional
+        True: the matrix is symmetric and only the upper triangle (row <= column) is read, one
+        edge per pair; an asymmetric matrix is then a ValueError.  False: every stored entry is
+        an edge.  None (default): True when the matrix equals its transpose exactly (stored
+        entries, explicit zeros included), else False.
+
+    Examples
+    --------
+    >>> from scipy import sparse
+    >>> m = sparse.csr_array(([2.0, 2.0], ([0, 1], [1, 0])), shape=(3, 3))
+    >>> el = from_scipy(m)
+    >>> el.n_nodes, el.tail.tolist(), el.head.tolist(), el.weight.tolist()
+    (3, [0], [1], [2.0])
+    """
+    from scipy import sparse
+    f = "from_scipy"
+    if not sparse.issparse(matrix):
+        raise TypeError(f"{f}: expected a scipy.sparse matrix or array, received "
+                        f"{type(matrix).__name__}; convert with scipy.sparse.csr_array(a).")
+    if matrix.ndim != 2 or matrix.shape[0] != matrix.shape[1]:
+        raise ValueError(f"{f}: an adjacency matrix must be square, received shape "
+                         f"{matrix.shape}.")
+    if symmetric is not None:
+        symmetric = validation.check_bool(symmetric, "symmetric", f)
+    coo = sparse.coo_array(matrix)
+    r, c, w = coo.row.astype(np.int64), coo.col.astype(np.int64), coo.data
+    order = np.lexsort((c, r))
+    r, c, w = r[order], c[order], w[order]
+    is_sym = _is_symmetric(r, c, w)
+    if symmetric is None:
+        symmetric = is_sym
+    elif symmetric and not is_sym:
+        raise ValueError(f"{f}: symmetric=True but the matrix differs from its transpose (stored "
+                         f"entries compared exactly); pass symmetric=False to read every stored "
+                         f"entry as an edge.")
+    if symmetric:
+        keep = r <= c
+        r, c, w = r[keep], c[keep], w[keep]
+    n = int(matrix.shape[0])
+    w = validation.check_weights(np.asarray(w), f)
+    dt = id_dtype(n)
+    return EdgeList(r.astype(dt), c.astype(dt), w, n, source="<scipy sparse>")
+
+
+def _is_symmetric(r, c, w) -> bool:
+    o2 = np.lexsort((r, c))
+    return bool(np.array_equal(r, c[o2]) and np.array_equal(c, r[o2])
+                and np.array_equal(w, w[o2]))
+
+
+def from_networkx(graph, *, weight="weight", default=None, pos=None) -> EdgeList:
+    """An EdgeList from an undirected networkx Graph or MultiGraph.
+
+    Compact id ``i`` is the ``i``-th node of ``graph.nodes`` (isolated nodes kept); edges come in
+    ``graph.edges`` order.  ``weight`` names the edge attribute; an edge without it is an error
+    unless ``default`` is given.  ``pos`` names a node attribute holding (x, y) coordinates.
+    """
+    import networkx as nx
+    f = "from_networkx"
+    if not isinstance(graph, nx.Graph):
+        raise TypeError(f"{f}: expected a networkx Graph, received {type(graph).__name__}.")
+    if graph.is_directed():
+        raise ValueError(f"{f}: received a directed graph; spanning forests are undirected. "
+                         f"Pass graph.to_undirected() if the direction does not matter.")
+    nodes = list(graph.nodes)
+    index = {v: i for i, v in enumerate(nodes)}
+    tail, head, w = [], [], []
+    for k, (u, v, data) in enumerate(graph.edges(data=True)):
+        if weight not in data and default is None:
+            raise ValueError(f"{f}: edge {k} ({u!r}, {v!r}) has no {weight!r} attribute; set it "
+                             f"on every edge or pass default=1.0.")
+        tail.append(index[u])
+        head.append(index[v])
+        w.append(data.get(weight, default))
+    n = len(nodes)
+    dt = id_dtype(n)
+    warr = np.asarray(w) if w else np.empty(0, dtype=np.float64)
+    if warr.dtype.kind not in "iuf":
+        try:
+            warr = warr.astype(np.float64)
+        except (TypeError, ValueError):
+            raise TypeError(f"{f}: edge attribute {weight!r} holds non-numeric values; expected "
+                            f"numbers.") from None
+    warr = validation.check_weights(warr, f)
+    labels = np.empty(n, dtype=object)
+    labels[:] = nodes
+    if n and all(isinstance(x, (int, np.integer)) and not isinstance(x, bool) for x in nodes):
+        labels = np.asarray(nodes, dtype=np.int64)
+    coords = None
+    if pos is not None:
+        missing = [v for v in nodes if pos not in graph.nodes[v]]
+        if missing:
+            raise ValueError(f"{f}: node {missing[0]!r} has no {pos!r} attribute; every node "
+                             f"needs coordinates when pos= is given.")
+        coords = np.asarray([graph.nodes[v][pos] for v in nodes], dtype=np.float64).reshape(n, 2)
+    return EdgeList(np.asarray(tail, dtype=dt), np.asarray(head, dtype=dt), warr, n, labels,
+                    coords, False, "<networkx graph>")
+
+
+def to_networkx(forest, edges: EdgeList | None = None):
+    """The forest as a networkx Graph in the user's labels.
+
+    Every node is present (isolated ones included); edges carry ``weight`` and ``position``.
+    Without ``edges``, ``forest.to_networkx()`` (compact ids).
+    """
+    import networkx as nx
+    if edges is None:
+        return forest.to_networkx()
+    g = nx.Graph()
+    g.add_nodes_from(edges.label(np.arange(edges.n_nodes)).tolist())
+    t = edges.label(forest.tail).tolist()
+    h = edges.label(forest.head).tolist()
+    g.add_edges_from((u, v, {"weight": w, "position": p}) for u, v, w, p in
+                     zip(t, h, forest.weights.tolist(), forest.edges.tolist()))
+    return g
+
+
+def forest_table(forest, edges: EdgeList):
+    """The forest as a pyarrow Table: tail, head (user labels), weight, position (input row).
+
+    The columns are named as in the input (``edges.columns``).
+    """
+    import pyarrow as pa
+    tn, hn, wn = edges.columns
+    if wn in (tn, hn):
+        wn = "weight"
+    cols = {tn: label_array(edges.label(forest.tail)),
+            hn: label_array(edges.label(forest.head)),
+            wn: pa.array(np.asarray(forest.weights)),
+            "position": pa.array(np.asarray(forest.edges, dtype=np.int64))}
+    return pa.table(cols)
+
+
+def node_table(edges: EdgeList, **columns):
+    """A pyarrow Table with one row per node: ``node`` (the user's label), then ``columns``
+    (arrays of length ``n_nodes`` indexed by compact id)."""
+    import pyarrow as pa
+    cols = {"node": all_labels(edges)}
+    for name, values in columns.items():
+        cols[name] = pa.array(np.asarray(values))
+    return pa.table(cols)

@@ -1,0 +1,91 @@
+"""Checks of files and tables: the file-format error and the column, cell and label checks.
+
+Every message names the source (file or table), the row or line when there is one, what was
+found and how to fix it.  A wrong type (a column given by something other than its name) is a
+TypeError; everything wrong with a file's contents is a :class:`FileFormatError`, a ValueError.
+"""
+from __future__ import annotations
+
+import os
+from pathlib import Path
+
+import numpy as np
+
+
+class FileFormatError(ValueError):
+    """A malformed input file or table; the message names the source and the line or row."""
+
+
+def csv_row(i: int) -> str:
+    """Wording of data row ``i`` (from 0) of a text file with a header line."""
+    return f"data row {i + 1} (line {i + 2})"
+
+
+def table_row(i: int) -> str:
+    """Wording of row ``i`` of a table or a binary file."""
+    return f"row {i} (counting from 0)"
+
+
+def existing_file(path, func: str) -> Path:
+    """``path`` as a Path, checked to be an existing, non-empty file."""
+    p = Path(path)
+    if not p.exists():
+        raise FileNotFoundError(f"{func}: no such file {str(p)!r}; check the path (the current "
+                                f"directory is {os.getcwd()!r}).")
+    if p.is_dir():
+        raise FileFormatError(f"{p}: is a directory; expected an edge-list file.")
+    if p.stat().st_size == 0:
+        raise FileFormatError(f"{p}: the file is empty; expected a header line and one line "
+                              f"per edge.")
+    return p
+
+
+def check_column(name, present, source: str, role: str, func: str) -> str:
+    """``name`` must be one of the ``present`` column names of ``source``."""
+    if not isinstance(name, str):
+        raise TypeError(f"{func}: the {role} column must be given by name (a string), received "
+                        f"{type(name).__name__} {name!r}.")
+    if name not in present:
+        listed = ", ".join(map(repr, present)) or "none"
+        raise FileFormatError(f"{source}: no column {name!r} for the {role}; the columns present "
+                              f"are {listed}. Pick one of them (CLI: --{role} COLUMN).")
+    return name
+
+
+def check_no_missing(missing: np.ndarray, column: str, source: str, where, func: str) -> None:
+    """Raise naming the first True entry of the boolean ``missing`` (``where(i)`` words it)."""
+    if missing.size and missing.any():
+        first = int(np.flatnonzero(missing)[0])
+        raise FileFormatError(f"{source}: {where(first)}: column {column!r} is empty or missing "
+                              f"({int(missing.sum())} such rows in all); every edge needs a "
+                              f"value there. Fill or drop those rows.")
+
+
+# What each kind of numeric column is for, as the NaN message words it.
+_NEEDS = {"weight": "every edge needs a comparable weight",
+          "coordinate": "every node needs finite coordinates"}
+
+
+def check_no_nan(values: np.ndarray, column: str, source: str, where, what: str = "weight"):
+    """Floating ``values`` of ``column`` must hold no NaN; ``what`` names them ("weight",
+    "coordinate").  Returns ``values``."""
+    if values.dtype.kind == "f" and values.size and np.isnan(values.min()):
+        bad = np.isnan(values)
+        first = int(np.flatnonzero(bad)[0])
+        raise FileFormatError(f"{source}: {where(first)}: {what} in column {column!r} is NaN "
+                              f"({int(bad.sum())} NaN {what}s in all); "
+                              f"{_NEEDS.get(what, 'every row needs a number')}. Fill or drop "
+                              f"those rows.")
+    return values
+
+
+def check_unique_labels(labels: np.ndarray, column: str, source: str, where) -> None:
+    """Node labels of a node table must be unique."""
+    order = np.argsort(labels, kind="stable")
+    s = labels[order]
+    dup = np.flatnonzero(s[1:] == s[:-1])
+    if dup.size:
+        a, b = sorted((int(order[dup[0]]), int(order[dup[0] + 1])))
+        raise FileFormatError(f"{source}: node {s[dup[0]]!r} in column {column!r} appears twice "
+                              f"({where(a)} and {where(b)}); node ids must be unique. Remove the "
+                              f"duplicate rows.")

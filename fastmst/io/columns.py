@@ -1,0 +1,98 @@
+"""pyarrow columns as NumPy: decoding, numeric columns, and the choice of edge columns.
+
+Used by every reader that goes through a pyarrow table (CSV/TSV, Parquet, .npz, in-memory
+tables) and by the node-table reader.  pyarrow is imported inside the functions: it is an
+optional dependency (the ``cli`` extra).
+"""
+from __future__ import annotations
+
+import numpy as np
+
+from fastmst.io.checks import FileFormatError, check_column, check_no_missing, check_no_nan
+
+
+def plain(col):
+    """Dictionary-encoded columns (pandas categoricals) decoded to their values."""
+    import pyarrow as pa
+    if pa.types.is_dictionary(col.type):
+        return col.cast(col.type.value_type)
+    return col
+
+
+def to_numpy(col) -> np.ndarray:
+    """A pyarrow array/column as NumPy (object arrays for text)."""
+    return col.to_numpy(zero_copy_only=False) if hasattr(col, "to_numpy") else np.asarray(col)
+
+
+def chunks(col) -> list:
+    """The chunks of a pyarrow column as zero-copy NumPy views (the column has no nulls)."""
+    return [c.to_numpy(zero_copy_only=True) for c in getattr(col, "chunks", [col])]
+
+
+def null_mask(col) -> np.ndarray:
+    """Boolean NumPy mask of the null cells of a pyarrow column."""
+    return col.is_null().to_numpy(zero_copy_only=False)
+
+
+def numeric_column(col, name, source, where, what="weight") -> np.ndarray:
+    """A numeric pyarrow column as int64 or float64 NumPy, checked for missing cells, text that
+    is not a number and NaN; ``what`` ("weight", "coordinate") words the messages."""
+    import pyarrow as pa
+    import pyarrow.compute as pc
+    col = plain(col)
+    if col.null_count:
+        check_no_missing(null_mask(col), name, source, where, "read_edges")
+    if pa.types.is_integer(col.type):
+        return to_numpy(pc.cast(col, pa.int64()))
+    if pa.types.is_floating(col.type) or pa.types.is_decimal(col.type):
+        values = to_numpy(pc.cast(col, pa.float64()))
+    elif pa.types.is_string(col.type) or pa.types.is_large_string(col.type):
+        values = to_numpy(col)
+        for i, v in enumerate(values):
+            try:
+                float(v)
+            except (TypeError, ValueError):
+                raise FileFormatError(f"{source}: {where(i)}: {what} {v!r} in column {name!r} is "
+                                      f"not a number; expected a number such as 12.5. Fix or "
+                                      f"drop that row.") from None
+        values = values.astype(np.float64)
+    else:
+        raise FileFormatError(f"{source}: column {name!r} holds {col.type} values; expected "
+                              f"numeric values. Pick another column (CLI: --weight, --x, --y).")
+    return check_no_nan(values, name, source, where, what)
+
+
+def choose_edge_columns(names, tail, head, weight, source, geometry):
+    """(tail, head, weight) column names: the given ones, checked, or the defaults.
+
+    Defaults: the first two columns, and the column named ``weight``, else the first other one.
+    ``geometry`` says whether a node table with coordinates is there, so that ``"length"`` may
+    name lengths computed from coordinates rather than a column.
+    """
+    if len(names) < 2 and (tail is None or head is None):
+        raise FileFormatError(f"{source}: found {len(names)} column(s) "
+                              f"({', '.join(map(repr, names)) or 'none'}); expected at least "
+                              f"tail and head columns and a weight. Is the separator right "
+                              f"(CSV ',' or TSV tab)?")
+    tail = names[0] if tail is None else tail
+    head = names[1] if head is None else head
+    check_column(tail, names, source, "tail", "read_edges")
+    check_column(head, names, source, "head", "read_edges")
+    if weight is None:
+        rest = [n for n in names if n not in (tail, head)]
+        if "weight" in names:
+            weight = "weight"
+        elif rest:
+            weight = rest[0]
+        else:
+            raise FileFormatError(f"{source}: no weight column; the columns present are "
+                                  f"{', '.join(map(repr, names))}. Add a weight column, or give "
+                                  f"a node table with coordinates and weight='length' (CLI: "
+                                  f"--nodes FILE --weight length).")
+    if weight == "length" and "length" not in names and not geometry:
+        raise FileFormatError(f"{source}: no column 'length'; to compute lengths from "
+                              f"coordinates give a node table (nodes=..., CLI: --nodes FILE), "
+                              f"or pick a weight column from {', '.join(map(repr, names))}.")
+    if not (geometry and weight == "length" and "length" not in names):
+        check_column(weight, names, source, "weight", "read_edges")
+    return tail, head, weight

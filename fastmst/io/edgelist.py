@@ -1,0 +1,102 @@
+"""The EdgeList type: compact node ids for the solvers, the user's labels for every output.
+
+:func:`edges_from_table` builds one from the columns of a pyarrow table; every reader of a
+tabular format (CSV/TSV, Parquet, .npz) and :func:`fastmst.io.from_table` go through it.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from fastmst.geometry.geodesy import edge_lengths
+from fastmst.io.columns import numeric_column
+from fastmst.io.labels import encode_label_columns
+from fastmst.io.nodes import NodeTable, node_index
+from fastmst.solve import minimum_spanning_forest
+
+
+@dataclass
+class EdgeList:
+    """An edge list with compact node ids and the user's node labels.
+
+    Attributes
+    ----------
+    tail, head : ndarray of shape (E,), dtype=int32 or int64
+        Compact node ids in ``[0, n_nodes)``; edge ``i`` is row ``i`` of the source.
+    weight : ndarray of shape (E,)
+        Edge weights (int64 or float64 as read; float64 when computed from geometry).
+    n_nodes : int
+    labels : ndarray of shape (n_nodes,) or None
+        The user's label of every compact id; None means the labels are the ids themselves.
+    coords : ndarray of shape (n_nodes, 2), dtype=float64, or None
+        Node coordinates when a node table gave them.
+    geographic : bool
+        True when ``coords`` are (longitude, latitude) in degrees.
+    source : str
+        Where the edges came from (file name or a description), for messages.
+    columns : tuple of str
+        Names for the tail, head and weight columns of output files (the input's names).
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> el = EdgeList(np.array([0, 1]), np.array([1, 2]), np.array([2.0, 1.0]), 3,
+    ...               labels=np.array(["a", "b", "c"]))
+    >>> el.label([2, 0]).tolist()
+    ['c', 'a']
+    >>> float(el.solve().weight)
+    3.0
+    """
+    tail: np.ndarray
+    head: np.ndarray
+    weight: np.ndarray
+    n_nodes: int
+    labels: np.ndarray | None = None
+    coords: np.ndarray | None = None
+    geographic: bool = False
+    source: str = "<edges>"
+    columns: tuple = ("tail", "head", "weight")
+
+    @property
+    def n_edges(self) -> int:
+        return int(self.tail.shape[0])
+
+    def label(self, ids) -> np.ndarray:
+        """The user's labels of compact node ids (the ids themselves when there are no labels)."""
+        ids = np.asarray(ids, dtype=np.int64)
+        return ids.copy() if self.labels is None else self.labels[ids]
+
+    def solve(self, **kwargs):
+        """``minimum_spanning_forest`` of these edges; keyword arguments are passed on."""
+        return minimum_spanning_forest(self.tail, self.head, self.weight, self.n_nodes, **kwargs)
+
+    def __repr__(self) -> str:
+        return (f"EdgeList({self.source!r}, n_nodes={self.n_nodes}, n_edges={self.n_edges}, "
+                f"labelled={self.labels is not None}, coords={self.coords is not None})")
+
+
+def edges_from_table(table, cols, source, where, nodes: NodeTable | None) -> EdgeList:
+    """An EdgeList from the (tail, head, weight) columns ``cols`` of a pyarrow table.
+
+    Without a node table, labels are encoded by the label rule of :mod:`fastmst.io.labels`;
+    with one, endpoints are looked up in it.  ``weight == "length"`` with a node table and no
+    such column computes lengths from the coordinates (great-circle metres for lon/lat).
+    """
+    tname, hname, wname = cols
+    tcol, hcol = table.column(tname), table.column(hname)
+    geometry = nodes is not None and wname == "length" and "length" not in table.column_names
+    if nodes is None:
+        t, h, labels = encode_label_columns(tcol, hcol, source, where, (tname, hname))
+        n = int(labels.size) if labels is not None else \
+            (max(int(t.max()), int(h.max())) + 1 if t.size else 0)
+        coords, geo = None, False
+    else:
+        t, h = node_index(tcol, hcol, nodes, source, where, (tname, hname))
+        labels, n, coords, geo = nodes.labels, int(nodes.labels.size), nodes.coords, \
+            nodes.geographic
+    if geometry:
+        w = edge_lengths(coords, t, h, metric="great-circle" if geo else "euclidean")
+    else:
+        w = numeric_column(table.column(wname), wname, source, where)
+    return EdgeList(t, h, w, n, labels, coords, geo, source, (tname, hname, wname))

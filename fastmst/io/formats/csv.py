@@ -1,0 +1,173 @@
+"""CSV and TSV: comma- or tab-separated text with a header line, optionally compressed.
+
+Read with pyarrow's multi-threaded parser in blocks of :data:`CSV_BLOCK_SIZE` bytes; ``.gz``,
+``.zst`` and ``.bz2`` files are read directly.  When pyarrow rejects a file, the error path
+scans it line by line to name the first bad line (a wrong field count or a number that does not
+parse).  Cells in :data:`NULLS` read as missing in numeric columns ("nan" is not among them: it
+reads as NaN and gets its own error); text labels never become missing ("NA" can be a label).
+"""
+from __future__ import annotations
+
+import csv as _csv
+import io as _io
+import os
+
+from fastmst.io import registry
+from fastmst.io.checks import FileFormatError, csv_row
+from fastmst.io.columns import choose_edge_columns
+from fastmst.io.edgelist import edges_from_table
+
+CSV_BLOCK_SIZE = 1 << 22   # bytes per parsing block: fewer, larger chunks than pyarrow's 1 MiB
+NULLS = ["", "NA", "N/A", "n/a", "NULL", "null", "None", "#N/A"]
+
+
+def _header(path, delimiter, compression):
+    import pyarrow as pa
+    with pa.input_stream(str(path), compression=compression) as s:
+        head = s.read(1 << 16)
+    text = head.decode("utf-8-sig", errors="replace")
+    if not text.strip():
+        raise FileFormatError(f"{path}: the file is empty; expected a header line naming the "
+                              f"columns and one line per edge.")
+    first = text.splitlines()[0]
+    return next(_csv.reader([first], delimiter=delimiter))
+
+
+def _first_bad_line(path, delimiter, compression, numeric):
+    """Error path only: find the first line whose field count or number is wrong."""
+    import pyarrow as pa
+    with pa.input_stream(str(path), compression=compression) as s:
+        text = _io.TextIOWrapper(s, encoding="utf-8-sig", errors="replace", newline="")
+        reader = _csv.reader(text, delimiter=delimiter)
+        header = next(reader, [])
+        idx = {n: i for i, n in enumerate(header)}
+        for lineno, row in enumerate(reader, start=2):
+            if not row:
+                continue
+            if len(row) != len(header):
+                return (f"line {lineno} has {len(row)} fields, the header has {len(header)} "
+                        f"({delimiter!r}-separated); fix that line (a stray or missing "
+                        f"separator, or an unquoted separator inside a label)")
+            for name in numeric:
+                v = row[idx[name]]
+                try:
+                    float(v)
+                except ValueError:
+                    return (f"{csv_row(lineno - 2)}: value {v!r} in column {name!r} is "
+                            f"not a number; expected a number such as 12.5. Fix or drop that row")
+    return None
+
+
+def read_csv(path, delimiter, compression, columns, numeric, progress=None):
+    """(table, header, chosen columns) of a CSV/TSV file.
+
+    ``columns(header)`` picks the columns to read; ``numeric(cols)`` names those that must be
+    numbers (for the error scan); ``progress(done_bytes, total_bytes)`` is called while reading.
+    """
+    try:
+        return _read_unchecked(path, delimiter, compression, columns, numeric, progress)
+    except OSError as exc:   # pyarrow reports corrupt or truncated compressed data this way
+        how = (f"is it complete and really {compression}-compressed?" if compression else
+               "is it a complete text file?")
+        raise FileFormatError(f"{path}: could not be read ({exc}); {how}") from None
+
+
+def _read_unchecked(path, delimiter, compression, columns, numeric, progress=None):
+    import pyarrow as pa
+    import pyarrow.csv as pcsv
+    header = _header(path, delimiter, compression)
+    read = pcsv.ReadOptions(use_threads=True, block_size=CSV_BLOCK_SIZE)
+    parse = pcsv.ParseOptions(delimiter=delimiter)
+    cols = columns(header)
+    convert = pcsv.ConvertOptions(include_columns=list(dict.fromkeys(cols)),
+                                  null_values=NULLS)
+    try:
+        if progress is not None:
+            src = _CountingFile(path, progress)
+            stream = pa.PythonFile(src, mode="r")
+            if compression:
+                stream = pa.CompressedInputStream(stream, compression)
+            with stream:
+                table = pcsv.read_csv(stream, read_options=read, parse_options=parse,
+                                      convert_options=convert)
+        else:
+            source = (pa.input_stream(str(path), compression=compression) if compression
+                      else str(path))
+            table = pcsv.read_csv(source, read_options=read, parse_options=parse,
+                                  convert_options=convert)
+    except pa.ArrowInvalid as exc:
+        where = _first_bad_line(path, delimiter, compression, [c for c in numeric(cols) if c])
+        msg = where or f"the file could not be parsed ({exc})"
+        raise FileFormatError(f"{path}: {msg}.") from None
+    if table.num_rows == 0:
+        raise FileFormatError(f"{path}: the file has a header ({', '.join(header)}) but no "
+                              f"edges; expected one line per edge after the header.")
+    return table, header, cols
+
+
+class _CountingFile:
+    """A binary file that reports how many bytes were read (for progress bars)."""
+
+    def __init__(self, path, progress):
+        self._f = open(path, "rb")
+        self._total = os.fstat(self._f.fileno()).st_size
+        self._done = 0
+        self._progress = progress
+        self.closed = False
+
+    def read(self, n=-1):
+        b = self._f.read(n)
+        self._done += len(b)
+        self._progress(self._done, self._total)
+        return b
+
+    def readable(self):
+        return True
+
+    def seekable(self):
+        return False
+
+    def close(self):
+        self._f.close()
+        self.closed = True
+
+
+def read_edges(path, compression, request, *, delimiter):
+    """An EdgeList from a CSV/TSV file (columns as chosen by ``request``)."""
+    chosen = {}
+
+    def columns(header):
+        chosen["cols"] = choose_edge_columns(header, request.tail, request.head, request.weight,
+                                             str(path), request.nodes is not None)
+        return [x for x in chosen["cols"] if x in header]
+
+    def numeric(cols):
+        return [chosen["cols"][2]] if chosen["cols"][2] in cols else []
+
+    table, _, _ = read_csv(path, delimiter, compression, columns, numeric, request.progress)
+    return edges_from_table(table, chosen["cols"], str(path), csv_row, request.nodes)
+
+
+def read_table(path, compression, *, delimiter):
+    """Every column of a CSV/TSV file, with its row wording."""
+    table, _, _ = read_csv(path, delimiter, compression, lambda header: header, lambda cols: [])
+    return table, csv_row
+
+
+def write_table(table, tmp, compression, *, delimiter):
+    """A pyarrow Table as CSV/TSV (compressed when ``compression`` names a codec)."""
+    import pyarrow as pa
+    import pyarrow.csv as pcsv
+    opts = pcsv.WriteOptions(delimiter=delimiter)
+    with pa.OSFile(tmp, "wb") as raw:
+        sink = pa.CompressedOutputStream(raw, compression) if compression else raw
+        pcsv.write_csv(table, sink, write_options=opts)
+        if compression:
+            sink.close()
+
+
+for _name, _suffixes, _order, _delimiter in (("csv", (".csv", ".txt"), 10, ","),
+                                             ("tsv", (".tsv", ".tab"), 11, "\t")):
+    registry.register(registry.Format(
+        _name, _suffixes, _order, compressed=True, read_edges=read_edges, read_table=read_table,
+        write_table=write_table, options={"delimiter": _delimiter}))

@@ -1,0 +1,59 @@
+"""NumPy ``.npz`` archives: one 1-D array per column (``tail``, ``head``, ``weight`` or chosen
+names); text labels as dtype ``U``, never pickled objects."""
+from __future__ import annotations
+
+import numpy as np
+
+from fastmst.io import registry
+from fastmst.io.checks import FileFormatError
+from fastmst.io.columns import choose_edge_columns
+from fastmst.io.edgelist import edges_from_table
+
+
+def _entry(i: int) -> str:
+    return f"entry {i}"
+
+
+def read_edges(path, compression, request):
+    """An EdgeList from the arrays of an .npz file (columns as chosen by ``request``)."""
+    import pyarrow as pa
+    try:
+        z = np.load(str(path), allow_pickle=False)
+    except (ValueError, OSError) as exc:
+        raise FileFormatError(f"{path}: not a readable .npz file ({exc}).") from None
+    with z:
+        names = list(z.files)
+        if {"tail", "head"} <= set(names):  # the conventional names come first
+            names = ["tail", "head"] + [x for x in names if x not in ("tail", "head")]
+        cols = choose_edge_columns(names, request.tail, request.head, request.weight,
+                                   str(path), request.nodes is not None)
+        try:
+            arrays = {c: z[c] for c in cols if c in names}
+        except ValueError as exc:
+            raise FileFormatError(f"{path}: an array needs pickle to load ({exc}); save labels "
+                                  f"as NumPy text (dtype 'U') or integers instead.") from None
+    lengths = {a.shape[0] for a in arrays.values()}
+    if any(a.ndim != 1 for a in arrays.values()) or len(lengths) != 1:
+        shapes = {c: a.shape for c, a in arrays.items()}
+        raise FileFormatError(f"{path}: arrays {shapes} must be 1-D and of one length (one "
+                              f"entry per edge).")
+    if lengths == {0}:
+        raise FileFormatError(f"{path}: the arrays are empty; expected one entry per edge.")
+    table = pa.table({c: pa.array(a) for c, a in arrays.items()})
+    return edges_from_table(table, cols, str(path), _entry, request.nodes)
+
+
+def write_table(table, tmp, compression):
+    """A pyarrow Table as an .npz archive, text columns as dtype ``U``."""
+    arrays = {}
+    for name in table.column_names:
+        a = table.column(name).to_numpy(zero_copy_only=False)
+        if a.dtype == object:
+            a = np.asarray(a.tolist(), dtype=str)
+        arrays[name] = a
+    with open(tmp, "wb") as fh:
+        np.savez(fh, **arrays)
+
+
+registry.register(registry.Format("npz", (".npz",), 30, read_edges=read_edges,
+                                  write_table=write_table))
