@@ -206,6 +206,21 @@ def test_usage_errors_exit_2(workdir, capsys):
     assert cli.main([]) == 2
 
 
+def test_usage_checked_before_any_file_is_read(tmp_path, capsys):
+    """Usage errors exit 2 even when the edge file does not exist: they are found before any
+    file is read (docs/files-and-cli.md, exit codes)."""
+    missing = str(tmp_path / "missing.csv")
+    for args in (["solve", missing, "--plot", "f.png"],
+                 ["solve", missing, "-o", str(tmp_path / "f.geojson")],
+                 ["solve", missing, "--x", "lon"],
+                 ["clusters", missing, "-k", "2", "-o", str(tmp_path / "c.geojson")],
+                 ["clusters", missing, "-k", "0"]):
+        assert cli.main(args) == 2, args
+        err = capsys.readouterr().err
+        assert "usage error" in err and "no such file" not in err
+    assert os.listdir(tmp_path) == []
+
+
 def test_progress_only_on_a_terminal(monkeypatch, capsys):
     """Progress bars are on for a terminal and off for pipes or with --quiet."""
     from fastmst.cli.progress import Reporter

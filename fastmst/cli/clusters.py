@@ -1,0 +1,94 @@
+"""``fastmst clusters``: single-linkage clusters of a graph's nodes, cut from its minimum
+spanning forest (the k-1 heaviest edges, or every edge above a threshold)."""
+from __future__ import annotations
+
+import argparse
+import json
+
+import numpy as np
+
+import fastmst
+from fastmst import io
+from fastmst.cli import common
+from fastmst.cli.common import EXIT_OK, UsageError, fmt_num
+
+EPILOG = """examples:
+  fastmst clusters sensors.csv -k 5 -o clusters.csv
+  fastmst clusters sensors.csv --threshold 250 -o clusters.parquet
+"""
+
+# one colour per cluster on maps, cycled after ten; cut edges are black
+PALETTE = ["#1f77b4", "#ff7f0e", "#2ca02c", "#d62728", "#9467bd", "#8c564b", "#e377c2",
+           "#7f7f7f", "#bcbd22", "#17becf"]
+
+
+def add_parser(sub):
+    p = sub.add_parser("clusters", help="single-linkage clusters: k clusters or a threshold",
+                       epilog=EPILOG, formatter_class=argparse.RawDescriptionHelpFormatter,
+                       description="Cut the minimum spanning forest into clusters (single "
+                                   "linkage): the k-1 heaviest edges, or every edge above a "
+                                   "threshold.")
+    common.add_input_options(p)
+    cut = p.add_mutually_exclusive_group(required=True)
+    cut.add_argument("-k", type=int, metavar="K", help="number of clusters")
+    cut.add_argument("--threshold", type=float, metavar="W",
+                     help="cut every forest edge heavier than W")
+    common.add_output_options(p)
+    p.set_defaults(run=run)
+
+
+def run(args) -> int:
+    common.check_outputs(args, geojson=False)
+    if args.k is not None and args.k < 1:
+        raise UsageError(f"-k {args.k}: the number of clusters must be at least 1.")
+    rep = common.reporter(args)
+    with rep:
+        edges = common.load_edges(args, rep)
+        common.check_coordinates(args, edges.coords is not None)
+        with rep.phase("solving"):
+            forest = fastmst.minimum_spanning_forest(edges.tail, edges.head, edges.weight,
+                                                     edges.n_nodes)
+        with rep.phase("clustering"):
+            labels = np.asarray(forest.clusters(k=args.k, threshold=args.threshold))
+        table = io.node_table(edges, cluster=labels.astype(np.int64))
+        with rep.phase("writing"):
+            for out in args.output:
+                io.write_table(out, table)
+        if args.plot:
+            from fastmst.plot import plot_forest
+            with rep.phase("plotting"):
+                plot_forest(args.plot, edges, forest, groups=cluster_groups(forest, labels),
+                            title="Single-linkage clusters",
+                            subtitle=f"{edges.source}: {int(labels.max()) + 1 if labels.size else 0}"
+                                     f" clusters (forest edges coloured by cluster; cut edges "
+                                     f"black)")
+    sizes = np.bincount(labels) if labels.size else np.zeros(0, np.int64)
+    top = np.argsort(-sizes, kind="stable")[:10]
+    out = {"source": edges.source, "nodes": edges.n_nodes, "clusters": int(sizes.size),
+           "k": args.k, "threshold": args.threshold,
+           "largest": [{"cluster": int(c), "size": int(sizes[c])} for c in top],
+           "written": list(args.output) + ([args.plot] if args.plot else []),
+           "seconds": common.seconds(rep.times)}
+    if args.json:
+        print(json.dumps(out, indent=2))
+    elif not args.quiet:
+        rows = [("nodes", fmt_num(edges.n_nodes)), ("clusters", fmt_num(sizes.size)),
+                ("largest", ", ".join(f"#{c}: {sizes[c]:,}" for c in top)),
+                ("time", common.times_text(rep.times))]
+        if out["written"]:
+            rows.append(("wrote", ", ".join(out["written"])))
+        common.print_block(f"fastmst clusters: {edges.source}", rows)
+    return EXIT_OK
+
+
+def cluster_groups(forest, labels):
+    """Plot classes for the forest's edges: one colour per cluster (cycled after ten), the
+    edges cut between clusters in black; returns (class per edge, names, colours)."""
+    lt, lh = labels[forest.tail], labels[forest.head]
+    n = int(labels.max()) + 1 if labels.size else 0
+    k = min(n, len(PALETTE))
+    idx = np.where(lt == lh, lt % len(PALETTE), len(PALETTE))
+    names = [f"cluster {c}" if n <= len(PALETTE) else f"clusters {c}, {c + 10}, ..."
+             for c in range(k)]
+    names += [f"_unused{c}" for c in range(k, len(PALETTE))] + ["cut between clusters"]
+    return idx, names, PALETTE + ["#000000"]

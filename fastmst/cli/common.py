@@ -1,0 +1,203 @@
+"""What every ``fastmst`` subcommand shares: options, exit codes, the caution, output helpers.
+
+Exit codes: :data:`EXIT_OK` 0 success; :data:`EXIT_DATA` 1 bad data (unreadable or malformed
+files, invalid values); :data:`EXIT_USAGE` 2 bad usage (:class:`UsageError`: unknown options,
+conflicting or missing arguments, unknown output formats); :data:`EXIT_NOT_MINIMUM` 3 (``check``
+ran and the forest is not a minimum spanning forest).
+"""
+from __future__ import annotations
+
+import math
+import sys
+
+import numpy as np
+
+import fastmst
+from fastmst import io
+from fastmst.cli.progress import Reporter
+
+CAUTION = ("Caution: a spanning tree has no redundancy - one failed link disconnects every site "
+           "beyond it. Designs for utilities or roads need review by licensed engineers under "
+           "the local codes.")
+
+EXIT_OK, EXIT_DATA, EXIT_USAGE, EXIT_NOT_MINIMUM = 0, 1, 2, 3
+
+
+class UsageError(Exception):
+    """A command line that cannot work (exit code 2)."""
+
+
+# --- shared options -------------------------------------------------------------------------------
+
+def add_input_options(p, forest_file=False):
+    """EDGES (and FOREST), the column options and the node-table options."""
+    p.add_argument("edges", metavar="EDGES", help="edge-list file: " + _suffix_help())
+    if forest_file:
+        p.add_argument("forest", metavar="FOREST",
+                       help="the forest to check: a file with a 'position' column (as written by "
+                            "'fastmst solve'), or with tail/head label columns")
+    g = p.add_argument_group("columns and nodes")
+    g.add_argument("--tail", metavar="COLUMN", help="tail column (default: the first column)")
+    g.add_argument("--head", metavar="COLUMN", help="head column (default: the second column)")
+    g.add_argument("--weight", metavar="COLUMN",
+                   help="weight column (default: 'weight', else the third column); 'length' "
+                        "with --nodes computes lengths from the coordinates")
+    g.add_argument("--format", choices=io.FORMATS,
+                   help="input format (default: from the file suffix)")
+    g.add_argument("--nodes", metavar="FILE",
+                   help="node table (CSV/Parquet): id, lon/lat or x/y columns; needed for "
+                        "lengths, GeoJSON and --plot")
+    g.add_argument("--node-id", metavar="COLUMN", help="node id column (default: 'id', else the "
+                                                        "first)")
+    g.add_argument("--x", metavar="COLUMN", help="x or longitude column of the node table")
+    g.add_argument("--y", metavar="COLUMN", help="y or latitude column of the node table")
+    geo = g.add_mutually_exclusive_group()
+    geo.add_argument("--geographic", dest="geographic", action="store_const", const=True,
+                     help="read --x/--y as longitude/latitude degrees (great-circle metres)")
+    geo.add_argument("--planar", dest="geographic", action="store_const", const=False,
+                     help="read --x/--y as planar coordinates (Euclidean lengths)")
+
+
+def _suffix_help() -> str:
+    """The readable suffixes from the format registry: ".csv/.tsv (optionally .gz/.zst), ..."."""
+    fmts = [io.registry.get(n) for n in io.FORMATS]
+    packed = "/".join(f.suffixes[0] for f in fmts if f.compressed)
+    rest = [f.suffixes[0] for f in fmts if not f.compressed]
+    return ", ".join(([f"{packed} (optionally .gz/.zst)"] if packed else []) + rest)
+
+
+def add_solver_options(p):
+    """--maximize, --method, --threads, --required, --excluded."""
+    g = p.add_argument_group("solver")
+    g.add_argument("--maximize", action="store_true", help="maximum spanning forest")
+    g.add_argument("--method", default="auto", choices=tuple(fastmst.METHODS),
+                   help="algorithm (default auto); every method gives the same forest")
+    g.add_argument("--threads", type=int, metavar="N", help="worker threads (default: all cores)")
+    g.add_argument("--required", metavar="FILE",
+                   help="links that must be in the forest: a file with a 'position' column or "
+                        "tail/head label columns")
+    g.add_argument("--excluded", metavar="FILE",
+                   help="links that may not be used (every parallel link of a listed pair)")
+
+
+def add_output_options(p, outputs=True):
+    """-o/--output and --plot (when ``outputs``), --json, --quiet, --debug."""
+    g = p.add_argument_group("output")
+    if outputs:
+        g.add_argument("-o", "--output", action="append", default=[], metavar="OUT",
+                       help="write the result; the format follows the suffix (.csv, .tsv, "
+                            ".csv.gz, .parquet, .npz, .geojson); repeat for several files")
+        g.add_argument("--plot", metavar="FILE.png", help="draw the forest over the nodes")
+    g.add_argument("--json", action="store_true", help="print the summary as JSON")
+    g.add_argument("--quiet", "-q", action="store_true",
+                   help="no progress bars and no summary (errors and the caution still print)")
+    g.add_argument("--debug", action="store_true", help="show tracebacks on errors")
+
+
+# --- usage checks and input -----------------------------------------------------------------------
+
+def check_outputs(args, *, geojson=True):
+    """Reject unknown output suffixes (and GeoJSON where it has no meaning) before any work."""
+    for out in getattr(args, "output", []):
+        try:
+            name, _ = io.detect_format(out, None, valid=io.WRITE_FORMATS, func="fastmst")
+        except ValueError as exc:
+            raise UsageError(f"-o {out}: {exc}") from None
+        if not geojson and io.registry.get(name).write_table is None:
+            raise UsageError(f"-o {out}: clusters are written as CSV, TSV, Parquet or "
+                             f".npz (node, cluster).")
+    plot = getattr(args, "plot", None)
+    if plot and not plot.lower().endswith(".png"):
+        raise UsageError(f"--plot {plot}: expected a file name ending in .png.")
+    check_coordinates(args, bool(getattr(args, "nodes", None)))
+
+
+def check_coordinates(args, have_coords: bool):
+    """--plot and GeoJSON outputs need node coordinates; ``have_coords`` says whether there
+    are some (before reading: whether --nodes was given; after: whether the edges carry them)."""
+    if have_coords:
+        return
+    if getattr(args, "plot", None):
+        raise UsageError("--plot needs node coordinates: give a node table with --nodes.")
+    for out in getattr(args, "output", []):
+        if io.registry.get(io.detect_format(out, None, valid=io.WRITE_FORMATS)[0]).write_forest:
+            raise UsageError(f"-o {out}: GeoJSON needs node coordinates: give a node table "
+                             f"with --nodes.")
+
+
+def reporter(args) -> Reporter:
+    """Progress bars on a terminal unless --quiet or --json."""
+    return Reporter.for_terminal(args.quiet or args.json)
+
+
+def load_edges(args, rep) -> io.EdgeList:
+    """The EdgeList of EDGES with the column and node-table options."""
+    nodes = None
+    if args.nodes:
+        with rep.phase("reading nodes"):
+            nodes = io.read_nodes(args.nodes, id=args.node_id, x=args.x, y=args.y,
+                                  geographic=args.geographic)
+    elif args.x or args.y or args.node_id:
+        raise UsageError("--node-id/--x/--y describe the node table; give it with --nodes FILE.")
+    with rep.phase("reading edges") as update:
+        edges = io.read_edges(args.edges, tail=args.tail, head=args.head, weight=args.weight,
+                              format=args.format, nodes=nodes,
+                              progress=update if rep.enabled else None)
+    return edges
+
+
+# --- printing -------------------------------------------------------------------------------------
+
+def fmt_num(x) -> str:
+    """A number for the screen: thousands separators, no trailing zeros.
+
+    >>> fmt_num(1234567), fmt_num(11.5), fmt_num(2.0), fmt_num(float("inf"))
+    ('1,234,567', '11.5', '2', 'inf')
+    """
+    if isinstance(x, (int, np.integer)):
+        return f"{int(x):,}"
+    x = float(x)
+    if not math.isfinite(x):
+        return str(x)
+    if x == int(x) and abs(x) < 1e15:
+        return f"{int(x):,}"
+    return f"{x:,.6g}" if abs(x) >= 1e6 or abs(x) < 1e-3 else f"{x:,.4f}".rstrip("0")
+
+
+def print_block(title, rows, out=None):
+    """A title line, then ``key  value`` rows aligned."""
+    out = sys.stdout if out is None else out
+    width = max((len(k) for k, _ in rows), default=0)
+    print(title, file=out)
+    for k, v in rows:
+        print(f"  {k:<{width}}  {v}", file=out)
+
+
+def times_text(times) -> str:
+    """Phase timings for the summary: ``reading edges 0.002 s | solving 0.000 s``."""
+    return " | ".join(f"{k} {v:.3f} s" for k, v in times.items())
+
+
+def seconds(times) -> dict:
+    """Phase timings for JSON, rounded to microseconds."""
+    return {k: round(v, 6) for k, v in times.items()}
+
+
+def jsonable(x):
+    """NumPy scalars as Python numbers, non-finite floats as text (JSON has no infinity)."""
+    if isinstance(x, np.generic):
+        x = x.item()
+    if isinstance(x, float) and not math.isfinite(x):
+        return str(x)
+    return x
+
+
+def edge_json(edges, p) -> dict:
+    """Edge ``p`` of ``edges`` as a JSON object in the user's labels."""
+    a, b = edges.label([edges.tail[p], edges.head[p]]).tolist()
+    return {"tail": jsonable(a), "head": jsonable(b), "weight": jsonable(edges.weight[p]),
+            "position": int(p)}
+
+
+def yes(b) -> str:
+    return "yes" if b else "NO"

@@ -1,0 +1,104 @@
+"""``fastmst solve``: read an edge list, solve its minimum (or maximum) spanning forest, print a
+summary, write the forest and optionally a map."""
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+
+import fastmst
+from fastmst import io
+from fastmst.cli import common
+from fastmst.cli.common import CAUTION, EXIT_OK, fmt_num, jsonable
+
+EPILOG = """examples:
+  fastmst solve links.csv -o forest.csv
+  fastmst solve links.csv --nodes sites.csv -o forest.csv -o forest.geojson --plot forest.png
+  fastmst solve roads.gr -o forest.parquet --json
+  fastmst solve links.csv --tail from --head to --weight cost --maximize -o best.csv
+  fastmst solve links.csv --nodes sites.csv --weight length -o forest.csv
+"""
+
+
+def add_parser(sub):
+    p = sub.add_parser("solve", help="minimum spanning forest of a file", epilog=EPILOG,
+                       formatter_class=argparse.RawDescriptionHelpFormatter,
+                       description="Read an edge list, compute its minimum (or maximum) spanning "
+                                   "forest, print a summary and write the forest.")
+    common.add_input_options(p)
+    common.add_solver_options(p)
+    common.add_output_options(p)
+    p.set_defaults(run=run)
+
+
+def run(args) -> int:
+    common.check_outputs(args)
+    rep = common.reporter(args)
+    with rep:
+        edges = common.load_edges(args, rep)
+        common.check_coordinates(args, edges.coords is not None)
+        kwargs = dict(method=args.method, maximize=args.maximize, threads=args.threads)
+        if args.required or args.excluded:
+            with rep.phase("reading links"):
+                if args.required:
+                    kwargs["required"] = io.read_positions(args.required, edges,
+                                                           func="--required")
+                if args.excluded:
+                    kwargs["excluded"] = io.read_positions(args.excluded, edges,
+                                                           all_parallel=True, func="--excluded")
+        with rep.phase("solving"):
+            forest = fastmst.minimum_spanning_forest(edges.tail, edges.head, edges.weight,
+                                                     edges.n_nodes, **kwargs)
+        with rep.phase("writing"):
+            for out in args.output:
+                io.write_forest(out, forest, edges)
+        if args.plot:
+            from fastmst.plot import plot_forest
+            with rep.phase("plotting"):
+                plot_forest(args.plot, edges, forest,
+                            subtitle=f"{edges.source}: {len(forest):,} of {edges.n_edges:,} "
+                                     f"edges, total weight {fmt_num(forest.weight)}")
+    summary = _summary(args, edges, forest, rep)
+    if args.json:
+        print(json.dumps(summary, indent=2))
+    elif not args.quiet:
+        rows = [("nodes", fmt_num(edges.n_nodes)), ("edges", fmt_num(edges.n_edges)),
+                ("components", fmt_num(forest.n_components)),
+                ("forest edges", fmt_num(len(forest))),
+                ("total weight", fmt_num(forest.weight))]
+        if len(forest):
+            i = len(forest) - 1
+            a, b = edges.label([forest.tail[i], forest.head[i]]).tolist()
+            rows.append(("lightest edge" if forest.maximize else "heaviest edge",
+                         f"{a} -- {b}, weight {fmt_num(forest.weights[i])} (edge position "
+                         f"{forest.edges[i]})"))
+        if "requirement_cost" in summary:
+            rows.append(("requirement cost", fmt_num(summary["requirement_cost"])))
+        rows += [("method", forest.method), ("time", common.times_text(rep.times))]
+        if summary["written"]:
+            rows.append(("wrote", ", ".join(summary["written"])))
+        common.print_block(f"fastmst solve: {edges.source}", rows)
+    if not args.json:
+        print(CAUTION, file=sys.stdout if not args.quiet else sys.stderr)
+    return EXIT_OK
+
+
+def _summary(args, edges, forest, rep) -> dict:
+    heaviest = None
+    if len(forest):
+        # forest edges are in tie-rule order, so the last one is the heaviest (the lightest of
+        # a maximum forest)
+        i = len(forest) - 1
+        a, b = edges.label([forest.tail[i], forest.head[i]]).tolist()
+        heaviest = {"tail": jsonable(a), "head": jsonable(b),
+                    "weight": jsonable(forest.weights[i]), "position": int(forest.edges[i])}
+    d = {"source": edges.source, "nodes": edges.n_nodes, "edges": edges.n_edges,
+         "components": forest.n_components, "forest_edges": len(forest),
+         "total_weight": jsonable(forest.weight), "maximize": forest.maximize,
+         "method": forest.method, "heaviest_edge" if not forest.maximize else "lightest_edge":
+         heaviest, "seconds": common.seconds(rep.times)}
+    if args.required:
+        d["requirement_cost"] = jsonable(forest.required_excess)
+    d["written"] = list(args.output) + ([args.plot] if args.plot else [])
+    d["caution"] = CAUTION
+    return d
