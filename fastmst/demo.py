@@ -4,8 +4,10 @@ Everything here is invented: the district, its villages and farms, its roads, th
 classes and their costs per metre.  The district is placed in the open North Atlantic (around
 32 W, 44 N) so that no real place is implied.  The scenario exercises the whole file path:
 it writes a site table and a candidate-trench table as CSV, reads them back through
-``fastmst.io``, solves the cheapest backbone, ranks its riskiest links by sensitivity (when the
-toolkit's ``fastmst.sensitivity`` exists), and writes CSV, GeoJSON, a PNG map and a JSON summary.
+``fastmst.io``, solves the cheapest backbone, ranks its riskiest links by ``fastmst.sensitivity``
+(the smallest relative cost rise that changes the design), and writes CSV, GeoJSON, a PNG map,
+a JSON summary and a README to the output folder.  ``fastmst demo`` (:mod:`fastmst.cli.demo`)
+runs it from the command line.
 """
 from __future__ import annotations
 

@@ -2,7 +2,9 @@
 
 Every message names the source (file or table), the row or line when there is one, what was
 found and how to fix it.  A wrong type (a column given by something other than its name) is a
-TypeError; everything wrong with a file's contents is a :class:`FileFormatError`, a ValueError.
+TypeError; everything wrong with a file's contents is a ``FileFormatError``, a ValueError (the
+class lives in :mod:`fastmst.validation`, shared with the Dask path; re-exported here and from
+:mod:`fastmst.io`).
 """
 from __future__ import annotations
 
@@ -11,9 +13,12 @@ from pathlib import Path
 
 import numpy as np
 
+# One exception class for malformed files and tables everywhere: it is defined in the core
+# checks so that the Dask path (which does not import fastmst.io) raises the same class.
+from fastmst.validation import FileFormatError
 
-class FileFormatError(ValueError):
-    """A malformed input file or table; the message names the source and the line or row."""
+__all__ = ["FileFormatError", "csv_row", "table_row", "existing_file", "check_column",
+           "check_no_missing", "check_no_nan", "check_unique_labels"]
 
 
 def csv_row(i: int) -> str:
