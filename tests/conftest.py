@@ -1,5 +1,7 @@
-"""Shared test configuration: a deterministic hypothesis profile and small graph helpers."""
+"""Shared test configuration: a deterministic hypothesis profile, the `slow` marks of tests in
+other modules, and small graph helpers."""
 import numpy as np
+import pytest
 from hypothesis import HealthCheck, settings
 
 # Deterministic profile: the same examples on every run and machine, no wall-clock deadline
@@ -13,6 +15,34 @@ settings.register_profile(
     print_blob=True,
 )
 settings.load_profile("fastmst")
+
+# Tests that took over about 3 s on the project's 2-core machine (`pytest --durations=25`),
+# marked `slow` so that `pytest -m "not slow"` gives a quick local run; CI runs every test.
+# "file::function" marks every parametrisation, "file::function[id]" one of them. A test module
+# may instead put @pytest.mark.slow on the test itself; then its entry here goes.
+SLOW = {
+    "test_performance_methods.py::test_filter_kruskal_streamed_chunks",
+    "test_performance_methods.py::test_hypothesis_methods_equal_networkx",
+    "test_dask.py::test_grid_graph_matches_in_memory[50-boruvka-1500]",
+    "test_cli.py::test_demo_default_folder",
+    "test_cli.py::test_solve_end_to_end",
+}
+
+
+def pytest_collection_modifyitems(config, items):
+    """Mark the SLOW tests; a SLOW entry whose module no longer defines the test is an error."""
+    modules = {}
+    for item in items:
+        if item.path.name.startswith("test_") and hasattr(item, "module"):
+            modules[item.path.name] = item.module
+            if (f"{item.path.name}::{item.name}" in SLOW
+                    or f"{item.path.name}::{item.originalname}" in SLOW):
+                item.add_marker(pytest.mark.slow)
+    for entry in sorted(SLOW):
+        file, test = entry.split("::")
+        if file in modules and not hasattr(modules[file], test.split("[")[0]):
+            raise pytest.UsageError(f"tests/conftest.py SLOW lists {entry!r}, but tests/{file} "
+                                    "defines no such test; rename or remove the entry.")
 
 
 def list_find(parent, x):

@@ -83,7 +83,11 @@ def run_recording_prints(name, code):
     return printed
 
 
-@pytest.mark.parametrize("name,code", BLOCKS, ids=[b[0] for b in BLOCKS])
+@pytest.mark.parametrize("name,code", [
+    # A block that starts a Dask cluster takes several seconds: `slow` (run by CI, skipped by
+    # `pytest -m "not slow"`).
+    pytest.param(name, code, marks=[pytest.mark.slow] if "dask" in code else [])
+    for name, code in BLOCKS], ids=[b[0] for b in BLOCKS])
 def test_documented_python_block(name, code, tmp_path, monkeypatch):
     """Run one block; every commented print line printed once, exactly its documented value."""
     monkeypatch.chdir(tmp_path)
