@@ -17,6 +17,7 @@ setup.py); for ``cdef class`` constructors the class docstring's first line is t
 import ast
 import importlib
 import importlib.machinery
+import importlib.util
 import inspect
 import re
 import types
@@ -24,9 +25,10 @@ from pathlib import Path
 
 import pytest
 
-ROOT = Path(__file__).resolve().parents[1]
-KERNELS = ROOT / "fastmst" / "_kernels"
 PACKAGE = "fastmst._kernels"
+# The kernels of the package under test (site-packages in CI, the checkout in an editable
+# install): the stubs are package data and lie beside the compiled modules.
+KERNELS = Path(importlib.util.find_spec("fastmst").submodule_search_locations[0]) / "_kernels"
 STUBS = sorted(p.stem for p in KERNELS.glob("*.pyi"))
 COMPILED = sorted({p.name.split(".")[0] for suffix in importlib.machinery.EXTENSION_SUFFIXES
                    for p in KERNELS.glob(f"*{suffix}")})
@@ -232,7 +234,7 @@ def load(name):
 
 def test_stubs_and_compiled_modules_pair_up():
     """Every compiled kernel has a stub beside it and every stub a compiled kernel."""
-    assert STUBS, "no .pyi stubs found in fastmst/_kernels"
+    assert STUBS, f"no .pyi stubs found in {KERNELS}"
     assert set(COMPILED) - set(STUBS) == set(), "compiled modules without a stub"
     assert set(STUBS) - set(COMPILED) == set(), "stubs without a compiled module"
 
