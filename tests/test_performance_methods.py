@@ -1,14 +1,18 @@
 """The performance methods (radix-sorted Kruskal, Filter-Kruskal, parallel Borůvka) return the
 one forest of the (weight, position) rule, checked against outside references."""
+from types import SimpleNamespace
+
 import numpy as np
 import pytest
 from hypothesis import given, settings, strategies as st
 
 import fastmst
 from fastmst import validation
-from fastmst._kernels.kruskal import filter_kruskal, kruskal_radix
-from fastmst._kernels.radix import edge_order
-from fastmst.solve.solve import choose_method
+from fastmst._kernels.boruvka import boruvka
+from fastmst._kernels.filter_kruskal import filter_kruskal
+from fastmst._kernels.radix_kruskal import kruskal_radix
+from fastmst._kernels.tie_rule import edge_order
+from fastmst.solve.methods import RUNNERS, choose_method
 
 nx = pytest.importorskip("networkx")
 sparse = pytest.importorskip("scipy.sparse")
@@ -23,11 +27,12 @@ def parallel_on_small_graphs(monkeypatch):
     """Run the parallel code paths even on the small graphs of these tests (the kernels
     normally keep one thread below a few million edges)."""
     import fastmst._kernels.boruvka
-    import fastmst._kernels.kruskal
+    import fastmst._kernels.filter_kruskal
     import fastmst._kernels.radix
+    import fastmst._kernels.radix_kruskal
     monkeypatch.setattr(fastmst._kernels.radix, "MIN_EDGES_PER_THREAD", 1)
-    monkeypatch.setattr(fastmst._kernels.kruskal, "MIN_EDGES_PIPELINE", 1)
-    monkeypatch.setattr(fastmst._kernels.kruskal, "FILTER_WINDOW", 64)
+    monkeypatch.setattr(fastmst._kernels.radix_kruskal, "MIN_EDGES_PIPELINE", 1)
+    monkeypatch.setattr(fastmst._kernels.filter_kruskal, "FILTER_WINDOW", 64)
     monkeypatch.setattr(fastmst._kernels.boruvka, "MIN_EDGES_PER_THREAD", 1)
 
 
@@ -250,8 +255,12 @@ def test_filter_kruskal_pivot_recursion_and_bucket_paths():
             got = filter_kruskal(tail, head, w, n, False, -1, 1, threshold)[0]
             np.testing.assert_array_equal(got, ref)
     w = rng.integers(0, 4, m).astype(float)
-    assert sorted(ref.tolist()) != [] and sorted(
-        kruskal_radix(tail, head, w, n)[0].tolist()) == networkx_forest(tail, head, w, n)
+    want = networkx_forest(tail, head, w, n)
+    assert len(want) == n - 1          # 20000 random edges on 500 nodes: connected
+    assert sorted(kruskal_radix(tail, head, w, n)[0].tolist()) == want
+    for threshold in (9, 1000):
+        got = filter_kruskal(tail, head, w, n, False, -1, 1, threshold)[0]
+        assert sorted(got.tolist()) == want
 
 
 @pytest.mark.parametrize("dtype", [np.float32, np.float64, np.int32, np.int64, np.uint32,
@@ -323,7 +332,15 @@ def test_auto_rule():
     assert choose_method(g, True, 2) == "kruskal"
     assert choose_method(g, False, 1) == "filter-kruskal"
     assert fastmst.minimum_spanning_forest([0, 1], [1, 2], [1.0, 2.0]).method == "filter-kruskal"
-    assert "filter-kruskal" in fastmst.METHODS
+    # beyond 2**32 - 1 edges (32-bit record positions) the rule picks Borůvka, which needs no sort
+    assert choose_method(SimpleNamespace(n_edges=2**32), False, 1) == "boruvka"
+    assert choose_method(SimpleNamespace(n_edges=2**32 - 1), False, 1) == "filter-kruskal"
+    # the registry holds exactly the documented methods, and every one of them runs
+    assert fastmst.METHODS == ("auto", "kruskal", "filter-kruskal", "boruvka")
+    assert tuple(RUNNERS) == fastmst.METHODS[1:]
+    for method in fastmst.METHODS:
+        f = fastmst.minimum_spanning_forest([0, 1], [1, 2], [1.0, 2.0], method=method)
+        assert f.edges.tolist() == [0, 1]
 
 
 @settings(deadline=None, derandomize=True, max_examples=60)
@@ -347,7 +364,7 @@ def test_hypothesis_methods_equal_networkx(graph, maximize):
 def test_forest_bound_same_for_every_thread_count(index_dtype):
     """forest_bound is (nodes with an edge) - 1 for every thread count; the reference count of
     touched nodes is numpy.unique over both endpoint arrays."""
-    from fastmst._kernels.kruskal import forest_bound
+    from fastmst._kernels.scan import forest_bound
     rng = np.random.default_rng(11)
     n = 3000
     for m in (1, 2, 7, 500, 4000):
@@ -382,3 +399,37 @@ def test_result_arrays_keep_input_dtypes(method):
         np.testing.assert_array_equal(f.tail, tail[f.edges])
         np.testing.assert_array_equal(f.head, head[f.edges])
         np.testing.assert_array_equal(f.weights.view(np.uint8), w[f.edges].view(np.uint8))
+
+
+KERNELS = {
+    "kruskal_radix": lambda t, h, w, n: kruskal_radix(t, h, w, n),
+    "filter_kruskal": lambda t, h, w, n: filter_kruskal(t, h, w, n),
+    "boruvka": lambda t, h, w, n: boruvka(t, h, w, n),
+}
+
+
+@pytest.mark.parametrize("kernel", sorted(KERNELS))
+def test_kernel_defs_refuse_weights_they_would_misread(kernel):
+    """Each kernel def checks its own weight argument: a byte-swapped array (whose bits read
+    natively are other numbers), a strided view, a wrong length or a non-kernel dtype raise
+    ValueError/TypeError instead of giving another forest; a correct array gives networkx's."""
+    rng = np.random.default_rng(12)
+    n, m = 30, 200
+    tail = rng.integers(0, n, m)
+    head = rng.integers(0, n, m)
+    w = rng.standard_normal(2 * m)
+    run = KERNELS[kernel]
+    got = run(tail, head, np.ascontiguousarray(w[:m]), n)[0]
+    assert sorted(got.tolist()) == networkx_forest(tail, head, w[:m], n)
+    with pytest.raises(ValueError):
+        run(tail, head, w[:m].astype(">f8"), n)               # byte-swapped
+    with pytest.raises(ValueError):
+        run(tail, head, w[::2], n)                            # strided (not contiguous)
+    with pytest.raises(ValueError):
+        run(tail, head, w[:m - 1].copy(), n)                  # one weight short
+    with pytest.raises(ValueError):
+        run(tail, head[:-1].copy(), w[:m].copy(), n)          # one head short
+    with pytest.raises((TypeError, ValueError)):
+        run(tail, head, w[:m].astype(np.float16), n)          # not a kernel dtype
+    with pytest.raises(TypeError):
+        run(tail, head, list(w[:m]), n)                       # not an array

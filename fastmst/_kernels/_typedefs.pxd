@@ -19,3 +19,15 @@ ctypedef fused weight_t:
     int64_t
     uint32_t
     uint64_t
+
+
+cdef inline int check_edge_arrays(Py_ssize_t n_tail, Py_ssize_t n_head, Py_ssize_t n_weight,
+                                  Py_ssize_t n_nodes, str func) except -1:
+    """The shape preconditions of a kernel ``def`` over edge arrays (``n_weight`` -1: no
+    weights).  Ids in [0, n_nodes) are the caller's to check (validation.validate_edges)."""
+    if n_head != n_tail or (n_weight >= 0 and n_weight != n_tail):
+        raise ValueError(f"{func}: tail, head and weight must have one length, received "
+                         f"{n_tail}, {n_head} and {n_weight}.")
+    if n_nodes < 0:
+        raise ValueError(f"{func}: n_nodes must be >= 0, received {n_nodes}.")
+    return 0

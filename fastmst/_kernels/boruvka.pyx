@@ -16,7 +16,9 @@ from libc.stdlib cimport free, malloc
 from libc.string cimport memmove
 
 from fastmst._kernels._atomics cimport cas64, load64, load_relaxed, store_relaxed, prefetch_w
-from fastmst._kernels._typedefs cimport index_t, weight_t
+from fastmst._kernels._typedefs cimport check_edge_arrays, index_t, weight_t
+from fastmst._kernels.dsu cimport dsu_find, label_first_appearance
+from fastmst._kernels.tie_rule cimport rule_before, weight_after
 
 cnp.import_array()
 
@@ -24,13 +26,9 @@ cnp.import_array()
 #: regions; on a busy machine each costs a wake-up).  Tests lower it.
 MIN_EDGES_PER_THREAD = 1 << 20
 
-
-cdef inline bint _lighter(weight_t wa, int64_t a, weight_t wb, int64_t b,
-                          bint maximize) noexcept nogil:
-    """Edge a comes before edge b in the tie-rule order (a, b: indices in position order)."""
-    if wa == wb:
-        return a < b
-    return wa > wb if maximize else wa < wb
+# Bound on the rounds (never reached: see the comment on the round sizes in _boruvka).
+cdef enum:
+    MAX_ROUNDS = 128
 
 
 cdef inline void _offer(int64_t* best, weight_t* hint, Py_ssize_t c, int64_t i, weight_t wi,
@@ -42,15 +40,15 @@ cdef inline void _offer(int64_t* best, weight_t* hint, Py_ssize_t c, int64_t i, 
     gathering its weight (one random read instead of three dependent ones).
     """
     cdef int64_t cur
-    cdef weight_t wc
+    cdef weight_t wc = wi
     load_relaxed(&hint[c], &wc)
-    if (wi < wc) if maximize else (wi > wc):
+    if weight_after(wi, wc, maximize):
         return
     cur = load64(&best[c])
     while True:
         if cur >= 0:
             wc = weight[pos[cur] if pos != NULL else cur]
-            if not _lighter(wi, i, wc, cur, maximize):
+            if not rule_before(wi, i, wc, cur, maximize):
                 return
         if cas64(&best[c], cur, i):
             store_relaxed(&hint[c], &wi)
@@ -69,8 +67,8 @@ cdef Py_ssize_t _boruvka(const index_t* tail, const index_t* head, const weight_
     numbered arbitrarily but deterministically), n_final (number of components).
     Returns -1 when memory runs out.
     """
-    cdef Py_ssize_t nc = n, ne = m, r_off = 0, count = 0, nfin = 0
-    cdef Py_ssize_t c, d, i, k, t, lo, hi, nnew, level, nlev = 0
+    cdef Py_ssize_t nc = n, ne = m, r_off = 0, count = 0, nfin = 0, nnew = 0
+    cdef Py_ssize_t c, d, i, k, t, lo, hi, level, nlev = 0
     cdef int64_t b
     cdef index_t* cu = <index_t*>tail
     cdef index_t* cv = <index_t*>head
@@ -79,15 +77,21 @@ cdef Py_ssize_t _boruvka(const index_t* tail, const index_t* head, const weight_
     cdef index_t* ncv
     cdef int64_t* npos
     cdef index_t nu, nv
+    # Round sizes: every component that still has an edge hooks onto another one, so each new
+    # component joins at least two old ones and a round has at most half the components of the
+    # one before.  Hence (a) the per-round maps of all rounds fit in n + n/2 + n/4 + ... < 2n
+    # entries (the 64 extra are headroom, not needed by the bound), and (b) there are at most
+    # log2(n) + 1 <= 64 rounds for any n < 2**63: the cap of MAX_ROUNDS (twice that) is never
+    # reached, it only guards the fixed-size level arrays, which hold nlev + 1 entries.
     cdef Py_ssize_t cap = 2 * n + 64
     cdef int64_t* best = <int64_t*>malloc((n + 1) * sizeof(int64_t))
     cdef index_t* to = <index_t*>malloc((n + 1) * sizeof(index_t))
     cdef index_t* maps = <index_t*>malloc(cap * sizeof(index_t))
-    cdef Py_ssize_t lev_off[130]
-    cdef Py_ssize_t lev_n[130]
+    cdef Py_ssize_t lev_off[MAX_ROUNDS + 1]
+    cdef Py_ssize_t lev_n[MAX_ROUNDS + 1]
     cdef Py_ssize_t* chunk = <Py_ssize_t*>malloc((threads + 1) * sizeof(Py_ssize_t))
     cdef index_t* mp
-    cdef index_t x, root, nxt
+    cdef index_t x
     cdef bint owned = False
     if best == NULL or to == NULL or maps == NULL or chunk == NULL:
         free(best); free(to); free(maps); free(chunk)
@@ -133,15 +137,7 @@ cdef Py_ssize_t _boruvka(const index_t* tail, const index_t* head, const weight_
                     mp[c] = <index_t>nnew
                     nnew += 1
         for c in range(nc):
-            root = to[c]
-            while to[root] != root:
-                root = to[root]
-            x = <index_t>c
-            while to[x] != root:
-                nxt = to[x]
-                to[x] = root
-                x = nxt
-            mp[c] = mp[root]
+            mp[c] = mp[dsu_find(to, <index_t>c)]
         lev_off[nlev] = r_off
         lev_n[nlev] = nc
         nlev += 1
@@ -159,7 +155,7 @@ cdef Py_ssize_t _boruvka(const index_t* tail, const index_t* head, const weight_
         for t in range(threads):
             chunk[t + 1] += chunk[t]
         k = chunk[threads]
-        if k == 0 or nnew == 0 or nlev >= 128:
+        if k == 0 or nnew == 0 or nlev >= MAX_ROUNDS:
             break
         if not owned:
             ncu = <index_t*>malloc(k * sizeof(index_t))
@@ -229,17 +225,6 @@ cdef Py_ssize_t _boruvka(const index_t* tail, const index_t* head, const weight_
     return count
 
 
-cdef Py_ssize_t _first_appearance(const index_t* lab, Py_ssize_t n, int64_t* table,
-                                  int64_t* out) noexcept nogil:
-    cdef Py_ssize_t i, k = 0
-    for i in range(n):
-        if table[lab[i]] < 0:
-            table[lab[i]] = k
-            k += 1
-        out[i] = table[lab[i]]
-    return k
-
-
 def boruvka(const index_t[::1] tail, const index_t[::1] head, const weight_t[::1] weight,
             Py_ssize_t n_nodes, bint maximize=False, int threads=1):
     """Minimum (or maximum) spanning forest by parallel Borůvka rounds.
@@ -263,6 +248,7 @@ def boruvka(const index_t[::1] tail, const index_t[::1] head, const weight_t[::1
         Component ids 0..k-1 in order of first appearance.
     n_components : int
     """
+    check_edge_arrays(tail.shape[0], head.shape[0], weight.shape[0], n_nodes, "boruvka")
     cdef Py_ssize_t m = tail.shape[0], n = n_nodes, count = 0, nfin = 0, k = 0
     cdef int nt = max(1, min(threads, m // MIN_EDGES_PER_THREAD + 1))
     dtype = np.int32 if index_t is int32_t else np.int64
@@ -291,5 +277,5 @@ def boruvka(const index_t[::1] tail, const index_t[::1] head, const weight_t[::1
     table = np.full(nfin, -1, dtype=np.int64)
     tbl = table
     with nogil:
-        k = _first_appearance(&lb[0], n, &tbl[0], &lbl[0])
+        k = label_first_appearance(&lb[0], n, &tbl[0], &lbl[0])
     return out[:count], labels, k

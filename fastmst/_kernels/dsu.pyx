@@ -4,7 +4,7 @@ cimport numpy as cnp
 from libc.stdint cimport int32_t, int64_t, uint8_t
 
 from fastmst._kernels._typedefs cimport index_t
-from fastmst._kernels.dsu cimport dsu_find, dsu_link
+from fastmst._kernels.dsu cimport dsu_find, dsu_link, label_first_appearance
 
 cnp.import_array()
 
@@ -29,7 +29,7 @@ cdef Py_ssize_t _union_pairs(index_t[::1] parent, uint8_t[::1] rank, int64_t[::1
                              const int64_t[::1] a, const int64_t[::1] b,
                              uint8_t[::1] out) noexcept nogil:
     cdef Py_ssize_t i, merges = 0
-    cdef bint merged
+    cdef bint merged = False
     for i in range(a.shape[0]):
         _find_grow(&parent[0], &size[0], &rank[0], <index_t>a[i], <index_t>b[i], &merged)
         out[i] = merged
@@ -169,22 +169,21 @@ cdef class DisjointSet:
         return f"DisjointSet(n={self.n}, n_sets={self._n_sets})"
 
 
-cdef Py_ssize_t _labels_from_parent(index_t[::1] parent, int64_t[::1] root_label,
-                                    int64_t[::1] out) noexcept nogil:
-    cdef Py_ssize_t i
-    cdef int64_t next_label = 0
-    cdef index_t r
-    for i in range(parent.shape[0]):
-        r = dsu_find(&parent[0], <index_t>i)
-        if root_label[r] < 0:
-            root_label[r] = next_label
-            next_label += 1
-        out[i] = root_label[r]
-    return next_label
+cdef int64_t _labels_from_parent(index_t[::1] parent, int64_t[::1] table,
+                                 int64_t[::1] out) noexcept nogil:
+    cdef Py_ssize_t i, n = parent.shape[0]
+    for i in range(n):
+        dsu_find(&parent[0], <index_t>i)       # afterwards parent[i] is the root of i
+    return label_first_appearance(&parent[0], n, &table[0], &out[0])
 
 
 def labels_from_parent(index_t[::1] parent):
     """Compact component ids from a union-find parent array (compresses it in place).
+
+    Parameters
+    ----------
+    parent : ndarray of shape (n,), dtype=int32 or int64
+        A parent array in the ``parent[root] == root`` form, entries in [0, n).
 
     Returns
     -------
@@ -195,11 +194,47 @@ def labels_from_parent(index_t[::1] parent):
     """
     cdef Py_ssize_t n = parent.shape[0]
     out = np.empty(n, dtype=np.int64)
-    root_label = np.full(n, -1, dtype=np.int64)
+    table = np.full(n, -1, dtype=np.int64)
     cdef int64_t[::1] o = out
-    cdef int64_t[::1] rl = root_label
-    cdef Py_ssize_t k = 0
+    cdef int64_t[::1] t = table
+    cdef int64_t k = 0
     if n:
         with nogil:
-            k = _labels_from_parent(parent, rl, o)
+            k = _labels_from_parent(parent, t, o)
+    return out, k
+
+
+def first_appearance(const index_t[::1] ids, Py_ssize_t n_ids):
+    """Relabel ids by order of first appearance.
+
+    Parameters
+    ----------
+    ids : ndarray of shape (n,), dtype=int32 or int64
+        Ids in [0, n_ids) (checked).
+    n_ids : int
+        Bound on the ids (the size of the lookup table).
+
+    Returns
+    -------
+    labels : ndarray of shape (n,), dtype=int64
+        ``labels[i]`` is the number of ``ids[i]`` among the distinct ids in order of first
+        appearance (0, 1, ...).
+    k : int
+        Number of distinct ids.
+    """
+    cdef Py_ssize_t n = ids.shape[0]
+    if n_ids < 0:
+        raise ValueError(f"first_appearance: n_ids must be >= 0, received {n_ids}.")
+    arr = np.asarray(ids)
+    if n and (arr.min() < 0 or arr.max() >= n_ids):
+        raise ValueError(f"first_appearance: ids must be in [0, {n_ids}), received values in "
+                         f"[{arr.min()}, {arr.max()}].")
+    out = np.empty(n, dtype=np.int64)
+    table = np.full(n_ids, -1, dtype=np.int64)
+    cdef int64_t[::1] o = out
+    cdef int64_t[::1] t = table
+    cdef int64_t k = 0
+    if n:
+        with nogil:
+            k = label_first_appearance(&ids[0], n, &t[0], &o[0])
     return out, k

@@ -1,4 +1,4 @@
-"""Type stubs for the tree path kernels (fastmst/_paths.pyx)."""
+"""Stubs for fastmst._kernels.paths (merge tree, path maxima, path cover)."""
 import numpy as np
 from numpy.typing import NDArray
 
@@ -6,8 +6,9 @@ def kruskal_tree(ftail: NDArray[np.integer], fhead: NDArray[np.integer], n_nodes
                  ) -> tuple[NDArray[np.int64], NDArray[np.int64], NDArray[np.int64],
                             NDArray[np.int64], int]: ...
 class PathMaxIndex:
-    pos: NDArray[np.int64]
-    gap: NDArray[np.int64]
+    # int32 while node and edge counts fit (n_nodes + n_forest_edges < 2**31 - 1), int64 beyond
+    pos: NDArray[np.int32] | NDArray[np.int64]
+    gap: NDArray[np.int32] | NDArray[np.int64]
     def __init__(self, kparent: NDArray[np.int64], left: NDArray[np.int64],
                  right: NDArray[np.int64], size: NDArray[np.int64], n_nodes: int) -> None: ...
     def query(self, qa: NDArray[np.integer], qb: NDArray[np.integer], threads: int = 1

@@ -17,7 +17,7 @@ Three near-linear kernels, each behind a thin ``def`` that allocates and checks 
     set whose sets are the connected regions of marked edges jumps over marked edges, so each
     tree edge is marked once: O((V + E) alpha(V)).
 
-The disjoint-set primitives come from ``_dsu.pxd``.  Internal arrays are int64, except the
+The disjoint-set primitives come from ``dsu.pxd``.  Internal arrays are int64, except the
 lookup tables of ``PathMaxIndex``, which are int32 while node and edge counts fit.
 """
 import numpy as np
@@ -423,8 +423,8 @@ cdef class PathMaxIndex:
                 _leaf_order(n, kparent, left, right, size, o, gp)
             _block_tables(gp, pr, sf, tb, nb, levels)
         if n + f < 2**31 - 1:
-            offset, gap, pre, suf, table = (a.astype(np.int32)
-                                            for a in (offset, gap, pre, suf, table))
+            offset, gap, pre, suf, table = [a.astype(np.int32)
+                                            for a in (offset, gap, pre, suf, table)]
         self.pos = offset[:n]
         self.gap = gap
         self._pre, self._suf, self._table = pre, suf, table

@@ -18,6 +18,8 @@ cnp.import_array()
 METRIC_CODES = {"euclidean": 0, "sqeuclidean": 1, "cityblock": 2, "chebyshev": 3,
                 "minkowski": 4}
 
+#: Default points per block of the scan (``dense_prim(block=...)``): a block's coordinates and
+#: best links stay in cache while it is relaxed.
 DEF_BLOCK = 1024
 
 

@@ -7,6 +7,8 @@
 from cython.parallel cimport prange
 from libc.stdint cimport uint32_t, uint64_t
 
+from fastmst._kernels.tie_rule cimport ukey_t, rank_key
+
 
 cdef packed struct Rec:
     uint64_t key
@@ -29,46 +31,12 @@ cdef extern from *:
 
 
 cdef void sort_records(Rec* a, Py_ssize_t n, int top_bits) noexcept nogil
-cdef Py_ssize_t split_top(Rec* a, Py_ssize_t n, int top_bits, Py_ssize_t* bounds,
-                          int* next_shift) noexcept nogil
+cdef void split_top(Rec* a, Py_ssize_t n, int top_bits, Py_ssize_t* bounds,
+                    int* next_shift) noexcept nogil
 cdef void sort_bucket(Rec* a, Py_ssize_t n, int shift) noexcept nogil
 
 
-# Order-preserving keys of weight bits (see _sort.pyx), shared with the Kruskal kernels.
-ctypedef fused ukey_t:
-    uint32_t
-    uint64_t
-
-# Key kinds.
-cdef enum:
-    KIND_UNSIGNED = 0
-    KIND_SIGNED = 1
-    KIND_FLOAT = 2
-
-
-cdef inline uint64_t _key(ukey_t bits, int kind) noexcept nogil:
-    cdef ukey_t top = (<ukey_t>1) << (sizeof(ukey_t) * 8 - 1)
-    if kind == KIND_SIGNED:
-        return <uint64_t>(bits ^ top)
-    if kind == KIND_FLOAT:
-        if bits == top:  # -0.0 ties with +0.0
-            bits = 0
-        if bits & top:
-            return <uint64_t>(<ukey_t>~bits)
-        return <uint64_t>(bits | top)
-    return <uint64_t>bits
-
-
-cdef inline uint64_t _rank_key(ukey_t bits, int kind, bint complement,
-                               uint64_t mask) noexcept nogil:
-    """The order-preserving key, complemented (within ``mask``) for a maximum forest."""
-    cdef uint64_t k = _key(bits, kind)
-    if complement:
-        k = (~k) & mask
-    return k
-
-
-cdef inline Py_ssize_t _digit_kp(uint64_t key, uint32_t pos, int s, uint64_t mask) noexcept nogil:
+cdef inline Py_ssize_t digit_kp(uint64_t key, uint32_t pos, int s, uint64_t mask) noexcept nogil:
     if s >= 32:
         return <Py_ssize_t>((key >> (s - 32)) & mask)
     return <Py_ssize_t>(((key << (32 - s)) | (<uint64_t>pos >> s)) & mask)
@@ -78,7 +46,6 @@ cdef inline void digit_hist(const ukey_t* bits, Py_ssize_t m, int kind, bint com
                             int s, Py_ssize_t* hist, Py_ssize_t nblk, int threads) noexcept nogil:
     """OUT: ``hist[t * 2048 + d]``, the edges of position block t (positions
     ``m*t//nblk .. m*(t+1)//nblk - 1``) in bucket d; blocks are taken by the threads dynamically."""
-    cdef uint64_t mask = (<uint64_t>0) - 1 if ukey_t is uint64_t else <uint64_t>0xFFFFFFFF
     cdef Py_ssize_t t, i, lo, hi
     cdef Py_ssize_t* h
     for i in range(nblk * 2048):
@@ -88,4 +55,4 @@ cdef inline void digit_hist(const ukey_t* bits, Py_ssize_t m, int kind, bint com
         hi = m * (t + 1) // nblk
         h = hist + t * 2048
         for i in range(lo, hi):
-            h[_digit_kp(_rank_key(bits[i], kind, comp, mask) - kmin, <uint32_t>i, s, 0x7FF)] += 1
+            h[digit_kp(rank_key(bits[i], kind, comp) - kmin, <uint32_t>i, s, 0x7FF)] += 1

@@ -1,24 +1,19 @@
-"""Order-preserving radix sort of edges under the (weight, position) rule.
+"""Radix sort of edge records under the tie rule.
 
-Every weight dtype the kernels read (float32/float64, int32/int64, uint32/uint64) maps to an
-unsigned key whose unsigned order is the weight order:
+A record is ``(key - kmin, position)``: the order-preserving key of the edge's weight (see
+``tie_rule``; complemented for a maximum forest) shifted so the smallest key is 0, and the input
+position, packed in 12 bytes.  The records are sorted by the 96-bit composite (key, position),
+which is distinct for every edge, so any correct sort gives exactly the rule order.
 
-* unsigned integers are their own key;
-* signed integers flip the sign bit (two's complement order becomes unsigned order);
-* IEEE floats: ``-0.0`` is first replaced by ``+0.0`` (they compare equal, so they must tie and
-  fall back to position order); a non-negative float sets the sign bit, a negative one has all
-  bits complemented, which orders negative floats (and ``-inf``) below positive ones.
-
-A maximum forest complements every key (descending weight becomes ascending key) instead of
-negating a copy of the weights; the position order of ties is unchanged.
-
-Records ``(key - min_key, position)`` are then sorted by an in-place most-significant-digit radix
-sort: one 11-bit pass over the whole array splits it into at most 2048 buckets in key order,
-and each bucket (small enough to stay in cache for the sizes we meet) is sorted by recursive
-8-bit passes that skip any digit that is constant within the bucket, down to an insertion sort
-below 24 records.  Because the (key, position) composite is distinct for every edge, this gives
-exactly the stable order: ties stay in position order.  No buffer beyond the 12-byte records is
-needed, which keeps the peak memory of a 100M-edge sort at 1.2 GB.
+``split_records`` computes the records and scatters them straight into 2048 buckets of the top
+11 bits (one counting pass and one scatter over the weights; per-thread histogram rows offset in
+thread order keep every bucket in position order).  ``sort_bucket`` then sorts one bucket: up
+to 2**22 records it mallocs a scratch buffer of the bucket's size and sorts by stable
+most-significant-digit scatter passes into it (11-bit digits above 2048 records, 8-bit below,
+digits that are constant within the bucket skipped, insertion sort from 24 records down),
+copying back after each pass; larger buckets, or when the buffer cannot be allocated, are sorted
+in place by 8-bit American-flag passes.  Peak memory is the 12-byte records plus one bucket's
+scratch per sorting thread.
 """
 import numpy as np
 cimport numpy as cnp
@@ -28,8 +23,8 @@ from libc.stdint cimport int64_t, uint8_t, uint32_t, uint64_t
 from libc.stdlib cimport free, malloc
 from libc.string cimport memcpy
 
-from fastmst._kernels._typedefs cimport weight_t
-from fastmst._kernels.radix cimport Rec, rec_less
+from fastmst._kernels.radix cimport Rec, digit_hist, digit_kp, rec_less
+from fastmst._kernels.tie_rule cimport ukey_t, rank_key
 
 cnp.import_array()
 
@@ -43,49 +38,12 @@ MAX_RECORDS = 2 ** 32
 #: edges: 0.10 s against 0.12 s with 2**21, 2026-12-02).  Tests lower it to run the parallel
 #: code on small graphs.
 MIN_EDGES_PER_THREAD = 1 << 19
-_RADIX_DTYPES = {np.dtype(t) for t in (np.float32, np.float64, np.int32, np.int64, np.uint32,
-                                       np.uint64)}
-
-def _kind_and_bits(weight):
-    kind = weight.dtype.kind
-    if kind == "f":
-        code = KIND_FLOAT
-    elif kind == "i":
-        code = KIND_SIGNED
-    else:
-        code = KIND_UNSIGNED
-    ubits = np.uint32 if weight.dtype.itemsize == 4 else np.uint64
-    return code, ubits
-
-
-def _scalar_keys(weight, bint complement):
-    """Keys of min(weight) and max(weight), as Python ints (smallest key first)."""
-    code, ubits = _kind_and_bits(weight)
-    ext = np.array([weight.min(), weight.max()], dtype=weight.dtype).view(ubits)
-    keys = []
-    for b in ext.tolist():
-        if code == KIND_SIGNED:
-            k = b ^ (1 << (ext.itemsize * 8 - 1))
-        elif code == KIND_FLOAT:
-            top = 1 << (ext.itemsize * 8 - 1)
-            if b == top:
-                b = 0
-            k = (~b & (2 * top - 1)) if b & top else b | top
-        else:
-            k = b
-        if complement:
-            k = ~k & ((1 << (ext.itemsize * 8)) - 1)
-        keys.append(k)
-    return min(keys), max(keys)
-
 
 # ---------------------------------------------------------------------------------------------
-# MSD radix sort kernels (noexcept nogil; cimported by _kruskal through _sort.pxd)
+# MSD radix sort kernels (noexcept nogil; the Kruskal kernels cimport them through radix.pxd)
 
 cdef inline Py_ssize_t _digit(const Rec* r, int s, uint64_t mask) noexcept nogil:
-    if s >= 32:
-        return <Py_ssize_t>((r.key >> (s - 32)) & mask)
-    return <Py_ssize_t>(((r.key << (32 - s)) | (<uint64_t>r.pos >> s)) & mask)
+    return digit_kp(r.key, r.pos, s, mask)
 
 
 cdef inline int _next_shift(int s) noexcept nogil:
@@ -177,9 +135,9 @@ cdef void _sort_scratch(Rec* a, Rec* tmp, Py_ssize_t n, int shift) noexcept nogi
     """Sort ``a[:n]`` (composites agree above bit ``shift + 8``) by stable MSD scatter passes
     into ``tmp`` (same size), 11-bit digits for large inputs, 8-bit below 2048 records."""
     cdef Py_ssize_t cnt[2048]
-    cdef Py_ssize_t i, d, acc, nb, j
-    cdef int s, width
-    cdef uint64_t mask
+    cdef Py_ssize_t i, d, acc, j, nb = 0
+    cdef int width, s = 0
+    cdef uint64_t mask = 0
     cdef bint constant
     while True:
         if n < 2 or shift < 0:
@@ -202,7 +160,7 @@ cdef void _sort_scratch(Rec* a, Rec* tmp, Py_ssize_t n, int shift) noexcept nogi
                 break
         if not constant:
             break
-        shift = s - 8 if s >= 8 else (0 if s > 0 else -1)
+        shift = _next_shift(s)
         if s == 0:
             return
     # exclusive prefix sums, then a stable scatter into tmp and a copy back
@@ -249,12 +207,12 @@ cdef void sort_bucket(Rec* a, Py_ssize_t n, int shift) noexcept nogil:
     free(tmp)
 
 
-cdef Py_ssize_t split_top(Rec* a, Py_ssize_t n, int top_bits, Py_ssize_t* bounds,
-                          int* next_shift) noexcept nogil:
+cdef void split_top(Rec* a, Py_ssize_t n, int top_bits, Py_ssize_t* bounds,
+                    int* next_shift) noexcept nogil:
     """One 11-bit MSD pass over the top bits.
 
     OUT: ``bounds[0..2048]`` bucket boundaries (bucket b is ``a[bounds[b]:bounds[b+1]]``, in key
-    order); ``next_shift`` the shift to pass to ``sort_bucket`` for each bucket.  Returns 2048.
+    order); ``next_shift`` the shift to pass to ``sort_bucket`` for each bucket.
     """
     cdef Py_ssize_t cnt[2048]
     cdef Py_ssize_t nxt[2048]
@@ -272,13 +230,12 @@ cdef Py_ssize_t split_top(Rec* a, Py_ssize_t n, int top_bits, Py_ssize_t* bounds
     bounds[2048] = acc
     _permute(a, 2048, nxt, bounds + 1, s, 0x7FF)
     next_shift[0] = _next_shift(s)
-    return 2048
 
 
 cdef void sort_records(Rec* a, Py_ssize_t n, int top_bits) noexcept nogil:
     """Sort ``a[:n]`` by (key, pos), serially."""
     cdef Py_ssize_t bounds[2049]
-    cdef int s
+    cdef int s = 0
     cdef Py_ssize_t b
     if n < 2:
         return
@@ -288,64 +245,6 @@ cdef void sort_records(Rec* a, Py_ssize_t n, int top_bits) noexcept nogil:
     split_top(a, n, top_bits, bounds, &s)
     for b in range(2048):
         sort_bucket(a + bounds[b], bounds[b + 1] - bounds[b], s)
-
-
-cdef Py_ssize_t _first_unsorted(const weight_t[::1] w, bint descending) noexcept nogil:
-    cdef Py_ssize_t i
-    if descending:
-        for i in range(1, w.shape[0]):
-            if w[i] > w[i - 1]:
-                return i
-    else:
-        for i in range(1, w.shape[0]):
-            if w[i] < w[i - 1]:
-                return i
-    return -1
-
-
-def first_unsorted(const weight_t[::1] weight, bint descending=False):
-    """Position of the first weight that breaks the order, or -1 when the order holds.
-
-    Parameters
-    ----------
-    weight : ndarray of shape (E,)
-        Validated, contiguous weights (no NaN).
-    descending : bool
-        Check non-increasing instead of non-decreasing order.
-    """
-    cdef Py_ssize_t i
-    with nogil:
-        i = _first_unsorted(weight, descending)
-    return i
-
-
-def edge_order(weight, bint descending=False, int threads=1):
-    """Positions sorted by (weight, position); weight descending when ``descending``.
-
-    ``weight`` holds no NaN.  ``-0.0`` and ``+0.0`` tie.  Kernel dtypes (float32/64,
-    int32/64, uint32/64) are radix sorted (see the module notes; non-contiguous or
-    byte-swapped input is copied first); other dtypes, and more than 2**32 - 1 edges, use the
-    stable NumPy sort.
-
-    Returns
-    -------
-    order : ndarray of shape (E,), dtype=int64
-    """
-    weight = np.asarray(weight)
-    cdef Py_ssize_t m = weight.shape[0]
-    if weight.dtype.newbyteorder("=") in _RADIX_DTYPES:
-        weight = np.ascontiguousarray(weight, dtype=weight.dtype.newbyteorder("="))
-    if m >= MAX_RECORDS or weight.dtype not in _RADIX_DTYPES:
-        w = weight + 0 if weight.dtype.kind == "f" else weight  # -0.0 + 0 is +0.0
-        if not descending:
-            return np.argsort(w, kind="stable").astype(np.int64, copy=False)
-        rev = np.argsort(w[::-1], kind="stable").astype(np.int64, copy=False)
-        return (m - 1 - rev)[::-1].copy()
-    if m < 2:
-        return np.arange(m, dtype=np.int64)
-    raw, bounds, shift = split_records(weight, descending, threads)
-    sort_buckets(raw, bounds, shift, 0, 2048, threads)
-    return raw.view(RECORD_DTYPE)["pos"].astype(np.int64)
 
 
 cdef void _fill_split(const ukey_t[::1] bits, int kind, bint complement, uint64_t kmin,
@@ -362,7 +261,6 @@ cdef void _fill_split(const ukey_t[::1] bits, int kind, bint complement, uint64_
     """
     cdef Py_ssize_t m = bits.shape[0]
     cdef int s = top_bits - 11 if top_bits > 11 else 0
-    cdef uint64_t mask = (<uint64_t>0) - 1 if ukey_t is uint64_t else <uint64_t>0xFFFFFFFF
     cdef Py_ssize_t t, i, j, d, lo, hi, acc
     cdef Py_ssize_t* h
     cdef uint64_t k
@@ -380,36 +278,27 @@ cdef void _fill_split(const ukey_t[::1] bits, int kind, bint complement, uint64_
         hi = m * (t + 1) // threads
         h = hist + t * 2048
         for i in range(lo, hi):
-            k = _rank_key(bits[i], kind, complement, mask)
-            k = k - kmin
-            d = _digit_kp(k, <uint32_t>i, s, 0x7FF)
+            k = rank_key(bits[i], kind, complement) - kmin
+            d = digit_kp(k, <uint32_t>i, s, 0x7FF)
             j = h[d]
             h[d] = j + 1
             out[j].key = k
             out[j].pos = <uint32_t>i
 
 
-def key_range(weight, bint maximize):
-    """``(kind, ubits, kmin, top_bits)`` of validated weights: the key kind code, the unsigned
-    view dtype of the weight bits, the smallest key, and the number of significant bits of the
-    96-bit composite ``(key - kmin) * 2**32 + position`` (one min/max of the weights)."""
-    code, ubits = _kind_and_bits(weight)
-    kmin, kmax = _scalar_keys(weight, maximize)
-    span = kmax - kmin
-    m = weight.shape[0]
-    top_bits = 32 + span.bit_length() if span > 0 else max(1, (m - 1).bit_length())
-    return code, ubits, kmin, top_bits
-
-
-def split_records(weight, bint maximize=False, int threads=1):
+def split_records(const ukey_t[::1] bits, int kind, bint maximize, uint64_t kmin, int top_bits,
+                  int threads=1):
     """Records of validated weights, already split into 2048 top-digit buckets in key order.
 
     Parameters
     ----------
-    weight : ndarray of shape (E,)
-        Contiguous native weights in a kernel dtype (no NaN), ``2 <= E < 2**32``.
+    bits : ndarray of shape (E,), dtype=uint32 or uint64
+        The weight bits and their key kind, from ``tie_rule.weight_bits``; ``2 <= E < 2**32``.
+    kind : int
     maximize : bool
         Complement the keys (descending weight order).
+    kmin, top_bits : int
+        From ``tie_rule.key_range`` of the same weights and ``maximize``.
     threads : int
         Threads for the two passes; the result does not depend on it.
 
@@ -422,10 +311,11 @@ def split_records(weight, bint maximize=False, int threads=1):
     next_shift : int
         The shift to pass to the bucket sort.
     """
-    cdef Py_ssize_t m = weight.shape[0]
+    cdef Py_ssize_t m = bits.shape[0]
     if m >= MAX_RECORDS or m < 2:
         raise ValueError(f"split_records: needs 2 <= E < 2**32 edges, received {m}.")
-    code, ubits, kmin, top_bits = key_range(weight, maximize)
+    if not 1 <= top_bits <= 96:
+        raise ValueError(f"split_records: top_bits must be in [1, 96], received {top_bits}.")
     threads = max(1, min(threads, m // MIN_EDGES_PER_THREAD + 1))
     raw = np.empty(12 * m, dtype=np.uint8)
     bounds = np.empty(2049, dtype=np.intp)
@@ -433,30 +323,24 @@ def split_records(weight, bint maximize=False, int threads=1):
     cdef uint8_t[::1] r = raw
     cdef Py_ssize_t[::1] bd = bounds
     cdef Py_ssize_t[::1] hs = hist
-    cdef Rec* out = <Rec*>&r[0]
-    cdef uint64_t lo = kmin
-    cdef int kind = code, tb = top_bits, nt = threads
-    cdef const uint32_t[::1] b32
-    cdef const uint64_t[::1] b64
-    if ubits is np.uint32:
-        b32 = weight.view(np.uint32)
-        with nogil:
-            _fill_split(b32, kind, maximize, lo, tb, out, &hs[0], &bd[0], nt)
-    else:
-        b64 = weight.view(np.uint64)
-        with nogil:
-            _fill_split(b64, kind, maximize, lo, tb, out, &hs[0], &bd[0], nt)
+    with nogil:
+        _fill_split(bits, kind, maximize, kmin, top_bits, <Rec*>&r[0], &hs[0], &bd[0], threads)
     s = top_bits - 11 if top_bits > 11 else 0
     return raw, bounds, _next_shift(s)
 
 
-def sort_buckets(raw, bounds, int next_shift, Py_ssize_t first, Py_ssize_t last, int threads=1):
-    """Sort buckets ``first..last-1`` of ``split_records`` output in place."""
-    cdef uint8_t[::1] r = raw
-    cdef Py_ssize_t[::1] bd = bounds
-    cdef Rec* a = <Rec*>&r[0]
+def sort_buckets(uint8_t[::1] raw, const Py_ssize_t[::1] bounds, int next_shift,
+                 Py_ssize_t first, Py_ssize_t last, int threads=1):
+    """Sort buckets ``first..last-1`` of ``split_records`` output in place (IN/OUT: raw)."""
+    if bounds.shape[0] != 2049 or raw.shape[0] != 12 * bounds[2048]:
+        raise ValueError("sort_buckets: raw and bounds must come from one split_records call.")
+    if not 0 <= first <= last <= 2048:
+        raise ValueError(f"sort_buckets: needs 0 <= first <= last <= 2048, received {first}, "
+                         f"{last}.")
+    if raw.shape[0] == 0:
+        return
+    cdef Rec* a = <Rec*>&raw[0]
     cdef Py_ssize_t b
     with nogil:
         for b in prange(first, last, num_threads=threads, schedule="dynamic"):
-            sort_bucket(a + bd[b], bd[b + 1] - bd[b], next_shift)
-    return raw
+            sort_bucket(a + bounds[b], bounds[b + 1] - bounds[b], next_shift)

@@ -1,4 +1,4 @@
-"""Stub of the compiled Steiner tree kernels (fastmst/_steiner.pyx)."""
+"""Stub of the compiled Steiner tree kernels (fastmst/_kernels/steiner.pyx)."""
 import numpy as np
 from numpy.typing import NDArray
 

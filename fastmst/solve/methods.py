@@ -1,39 +1,58 @@
 """The kernel contract and the method registry.
 
-Every method turns validated ``EdgeArrays`` into the same result; ``run_method`` dispatches to it
-and ``choose_method`` is the rule behind ``method="auto"``.
+Every method is a runner ``runner(g, presorted, maximize, threads) -> KernelResult`` on validated
+``EdgeArrays``; all of them return the identical result.  ``RUNNERS`` maps a method name to its
+runner, so adding a method is one runner and one entry here (``METHODS`` and the CLI choices
+follow).  ``choose_method`` is the rule behind ``method="auto"``; ``run_method`` runs a method
+and wraps its result into a ``SpanningForest``.
 """
 from __future__ import annotations
+
+from typing import Callable, NamedTuple
 
 import numpy as np
 
 from fastmst import validation
 from fastmst._kernels.boruvka import boruvka
 from fastmst._kernels.dsu import labels_from_parent
-from fastmst._kernels.kruskal import filter_kruskal, forest_bound, forest_size, kruskal, kruskal_radix
-from fastmst._kernels.radix import MAX_RECORDS, edge_order
+from fastmst._kernels.filter_kruskal import filter_kruskal
+from fastmst._kernels.radix import MAX_RECORDS
+from fastmst._kernels.radix_kruskal import kruskal_radix
+from fastmst._kernels.scan import forest_bound, forest_size, kruskal
+from fastmst._kernels.tie_rule import edge_order, sort_positions
 from fastmst.solve.result import SpanningForest
 
-METHODS = ("auto", "kruskal", "filter-kruskal", "boruvka")
+
+class KernelResult(NamedTuple):
+    """What every method returns.
+
+    edges : ndarray of shape (F,), dtype=int64
+        Forest positions in tie-rule order.
+    labels : ndarray of shape (n_nodes,), dtype=int64
+        Component ids 0..k-1 in order of first appearance.
+    n_components : int
+    tail, head, weights : ndarray of shape (F,)
+        The forest edges' endpoints and weights in the input dtypes, bit for bit.
+    """
+    edges: np.ndarray
+    labels: np.ndarray
+    n_components: int
+    tail: np.ndarray
+    head: np.ndarray
+    weights: np.ndarray
 
 
-def _rule_order(weights: np.ndarray, maximize: bool) -> np.ndarray:
-    """Order of ``weights`` by the tie rule (the array must already be in position order)."""
-    return edge_order(weights, maximize)
-
-
-def build_forest(g: validation.EdgeArrays, edges: np.ndarray, labels: np.ndarray,
-                 n_components: int, maximize: bool, method: str, sorted_by_rule: bool,
-                 gathered=None) -> SpanningForest:
-    """Wrap accepted positions into a SpanningForest, ordering them by the tie rule if needed.
+def kernel_result(g: validation.EdgeArrays, edges: np.ndarray, labels: np.ndarray,
+                  n_components: int, maximize: bool, sorted_by_rule: bool,
+                  gathered=None) -> KernelResult:
+    """A KernelResult from accepted positions, ordering them by the tie rule if needed.
 
     ``gathered``: the (tail, head, weights) of ``edges`` in kernel dtypes, when the kernel
     copied them out already.  They are cast back to the input dtypes where that is exact: ids
     always (validated into [0, n_nodes)), weights when the kernel dtype widened the input's.
     """
     if not sorted_by_rule and edges.shape[0]:
-        edges = np.sort(edges)
-        edges = edges[_rule_order(g.kweight[edges], maximize)]
+        edges = sort_positions(edges, g.kweight, maximize)
     parts = []
     for i, arr in enumerate((g.tail, g.head, g.weight)):
         if gathered is not None and (i < 2 or np.can_cast(arr.dtype, gathered[i].dtype, "safe")):
@@ -41,8 +60,85 @@ def build_forest(g: validation.EdgeArrays, edges: np.ndarray, labels: np.ndarray
         else:
             # np.take gathers ~30 % faster than fancy indexing at 1M of 10M positions (measured)
             parts.append(np.take(arr, edges))
-    return SpanningForest(edges, *parts, g.n_nodes, g.n_edges, n_components, labels, maximize,
-                          method)
+    return KernelResult(edges, labels, n_components, *parts)
+
+
+def to_forest(g: validation.EdgeArrays, r: KernelResult, maximize: bool,
+              method: str) -> SpanningForest:
+    """The SpanningForest of a kernel result."""
+    return SpanningForest(r.edges, r.tail, r.head, r.weights, g.n_nodes, g.n_edges,
+                          r.n_components, r.labels, maximize, method)
+
+
+def build_forest(g: validation.EdgeArrays, edges: np.ndarray, labels: np.ndarray,
+                 n_components: int, maximize: bool, method: str, sorted_by_rule: bool,
+                 gathered=None) -> SpanningForest:
+    """``to_forest(g, kernel_result(...), maximize, method)``: accepted positions of ``g`` into
+    a SpanningForest (used by the solve's internal callers, e.g. constraints)."""
+    return to_forest(g, kernel_result(g, edges, labels, n_components, maximize, sorted_by_rule,
+                                      gathered), maximize, method)
+
+
+# --------------------------------------------------------------------------------- runners
+
+def _run_scan_beyond_records(g: validation.EdgeArrays, presorted: bool,
+                             maximize: bool) -> KernelResult:
+    """More than 2**32 - 1 edges (beyond 32-bit record positions): the stable argsort order,
+    then the plain Kruskal scan."""
+    target, parent = forest_size(g.ktail, g.khead, g.n_nodes)
+    labels, n_components = labels_from_parent(parent)
+    del parent
+    order = (np.arange(g.n_edges, dtype=np.int64) if presorted
+             else edge_order(g.kweight, maximize))
+    edges, _ = kruskal(order, g.ktail, g.khead, g.n_nodes, target)
+    return kernel_result(g, edges, labels, n_components, maximize, True)
+
+
+def run_kruskal(g: validation.EdgeArrays, presorted: bool, maximize: bool,
+                threads: int) -> KernelResult:
+    """Radix-sorted Kruskal (positions scanned directly when ``presorted``)."""
+    if g.n_edges >= MAX_RECORDS:
+        return _run_scan_beyond_records(g, presorted, maximize)
+    # Stop at (nodes with an edge) - 1 accepted edges: exact for a connected graph with
+    # isolated nodes; a graph split further is scanned to the end (see docs/performance.md).
+    target = forest_bound(g.ktail, g.khead, g.n_nodes, threads)
+    edges, parent = kruskal_radix(g.ktail, g.khead, g.kweight, g.n_nodes, maximize, target,
+                                  threads, presorted)
+    labels, n_components = labels_from_parent(parent)
+    return kernel_result(g, edges, labels, n_components, maximize, True)
+
+
+def run_filter_kruskal(g: validation.EdgeArrays, presorted: bool, maximize: bool,
+                       threads: int) -> KernelResult:
+    """Streamed Filter-Kruskal; presorted input needs no filter and takes the Kruskal scan."""
+    if presorted or g.n_edges >= MAX_RECORDS:
+        return run_kruskal(g, presorted, maximize, threads)
+    target = forest_bound(g.ktail, g.khead, g.n_nodes, threads)
+    edges, parent, ftail, fhead, fweights = filter_kruskal(
+        g.ktail, g.khead, g.kweight, g.n_nodes, maximize, target, threads)
+    labels, n_components = labels_from_parent(parent)
+    return kernel_result(g, edges, labels, n_components, maximize, True,
+                         (ftail, fhead, fweights))
+
+
+def run_boruvka(g: validation.EdgeArrays, presorted: bool, maximize: bool,
+                threads: int) -> KernelResult:
+    """Parallel Borůvka (needs no sort, so ``presorted`` changes nothing)."""
+    edges, labels, n_components = boruvka(g.ktail, g.khead, g.kweight, g.n_nodes, maximize,
+                                          threads)
+    return kernel_result(g, edges, labels, n_components, maximize, False)
+
+
+Runner = Callable[[validation.EdgeArrays, bool, bool, int], KernelResult]
+
+#: Method name -> runner.  Adding a method: write its runner and add it here.
+RUNNERS: dict[str, Runner] = {
+    "kruskal": run_kruskal,
+    "filter-kruskal": run_filter_kruskal,
+    "boruvka": run_boruvka,
+}
+
+METHODS = ("auto", *RUNNERS)
 
 
 def choose_method(g: validation.EdgeArrays, presorted: bool, threads: int) -> str:
@@ -63,32 +159,6 @@ def choose_method(g: validation.EdgeArrays, presorted: bool, threads: int) -> st
 
 
 def run_method(g: validation.EdgeArrays, method: str, presorted: bool, maximize: bool,
-                threads: int) -> SpanningForest:
-    """Dispatch validated edges to a kernel (every kernel returns the identical forest)."""
-    if method == "boruvka":
-        edges, labels, n_components = boruvka(g.ktail, g.khead, g.kweight, g.n_nodes,
-                                              maximize, threads)
-        return build_forest(g, edges, labels, n_components, maximize, method, False)
-    if g.n_edges >= MAX_RECORDS:
-        # Beyond 32-bit record positions: stable argsort, then the plain Kruskal scan.
-        target, parent = forest_size(g.ktail, g.khead, g.n_nodes)
-        labels, n_components = labels_from_parent(parent)
-        del parent
-        order = (np.arange(g.n_edges, dtype=np.int64) if presorted
-                 else edge_order(g.kweight, maximize))
-        edges, _ = kruskal(order, g.ktail, g.khead, g.n_nodes, target)
-        return build_forest(g, edges, labels, n_components, maximize, method, True)
-    # Stop at (nodes with an edge) - 1 accepted edges: exact for a connected graph with
-    # isolated nodes; a graph split further is scanned to the end (see docs/performance.md).
-    target = forest_bound(g.ktail, g.khead, g.n_nodes, threads)
-    if method == "filter-kruskal" and not presorted:
-        edges, parent, ftail, fhead, fweights = filter_kruskal(
-            g.ktail, g.khead, g.kweight, g.n_nodes, maximize, target, threads)
-        labels, n_components = labels_from_parent(parent)
-        return build_forest(g, edges, labels, n_components, maximize, method, True,
-                            (ftail, fhead, fweights))
-    else:
-        edges, parent = kruskal_radix(g.ktail, g.khead, g.kweight, g.n_nodes, maximize,
-                                      target, threads, presorted)
-    labels, n_components = labels_from_parent(parent)
-    return build_forest(g, edges, labels, n_components, maximize, method, True)
+               threads: int) -> SpanningForest:
+    """Run a registered method on validated edges (every method returns the identical forest)."""
+    return to_forest(g, RUNNERS[method](g, presorted, maximize, threads), maximize, method)
