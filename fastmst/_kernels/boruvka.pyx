@@ -11,7 +11,7 @@ released throughout.  Without OpenMP the same code runs serially.
 import numpy as np
 cimport numpy as cnp
 from cython.parallel cimport parallel, prange, threadid
-from libc.stdint cimport int32_t, int64_t, uint8_t
+from libc.stdint cimport int32_t, int64_t, uint32_t, uint64_t
 from libc.stdlib cimport free, malloc
 from libc.string cimport memmove
 
@@ -19,6 +19,7 @@ from fastmst._kernels._atomics cimport cas64, load64, load_relaxed, store_relaxe
 from fastmst._kernels._typedefs cimport check_edge_arrays, index_t, weight_t
 from fastmst._kernels.dsu cimport dsu_find, label_first_appearance
 from fastmst._kernels.tie_rule cimport rule_before, weight_after
+from fastmst._kernels.tie_rule import weight_bits
 
 cnp.import_array()
 
@@ -225,16 +226,35 @@ cdef Py_ssize_t _boruvka(const index_t* tail, const index_t* head, const weight_
     return count
 
 
-def boruvka(const index_t[::1] tail, const index_t[::1] head, const weight_t[::1] weight,
+cdef Py_ssize_t _run(const index_t* tail, const index_t* head, const weight_t[::1] weight,
+                     Py_ssize_t n, bint maximize, int threads, int64_t* out,
+                     index_t* final_label, Py_ssize_t* n_final) except -2:
+    """Allocate the per-component hints for ``weight``'s dtype and run ``_boruvka``.
+
+    The one step that depends on the weight dtype, so that only it is specialised per dtype.
+    """
+    cdef Py_ssize_t m = weight.shape[0], count
+    # the hint starts at the worst weight of the graph (every edge is at least as light)
+    hint_a = np.empty(n + 1, dtype=np.asarray(weight).dtype)
+    cdef weight_t[::1] hint = hint_a
+    cdef weight_t worst = np.asarray(weight).min() if maximize else np.asarray(weight).max()
+    with nogil:
+        count = _boruvka(tail, head, &weight[0], n, m, maximize, threads, &hint[0], worst, out,
+                         final_label, n_final)
+    return count
+
+
+def boruvka(const index_t[::1] tail, const index_t[::1] head, cnp.ndarray weight not None,
             Py_ssize_t n_nodes, bint maximize=False, int threads=1):
     """Minimum (or maximum) spanning forest by parallel Borůvka rounds.
 
     Parameters
     ----------
     tail, head : ndarray of shape (E,), dtype=int32 or int64
-        Validated endpoint ids (read in place).
+        Validated endpoint ids in [0, n_nodes) (read in place).
     weight : ndarray of shape (E,)
-        Validated kernel weights (read in place).
+        Validated weights (read in place), checked by ``tie_rule.weight_bits``: a kernel dtype,
+        native byte order, contiguous.
     n_nodes : int
     maximize : bool
     threads : int
@@ -248,8 +268,9 @@ def boruvka(const index_t[::1] tail, const index_t[::1] head, const weight_t[::1
         Component ids 0..k-1 in order of first appearance.
     n_components : int
     """
-    check_edge_arrays(tail.shape[0], head.shape[0], weight.shape[0], n_nodes, "boruvka")
     cdef Py_ssize_t m = tail.shape[0], n = n_nodes, count = 0, nfin = 0, k = 0
+    weight_bits(weight, m, "boruvka")
+    check_edge_arrays(m, head.shape[0], -1, n_nodes, "boruvka")
     cdef int nt = max(1, min(threads, m // MIN_EDGES_PER_THREAD + 1))
     dtype = np.int32 if index_t is int32_t else np.int64
     out = np.empty(max(0, n - 1), dtype=np.int64)
@@ -259,18 +280,35 @@ def boruvka(const index_t[::1] tail, const index_t[::1] head, const weight_t[::1
     cdef index_t[::1] lb = lab
     cdef int64_t[::1] lbl = labels
     cdef int64_t[::1] tbl
-    # the hint starts at the worst weight of the graph (every edge is at least as light)
-    hint_a = np.empty(n + 1, dtype=np.asarray(weight).dtype)
-    cdef weight_t[::1] hint = hint_a
-    cdef weight_t worst
     if n == 0:
         return out[:0], labels, 0
     if m == 0 or n == 1:
         return out[:0], np.arange(n, dtype=np.int64), n
-    worst = np.asarray(weight).min() if maximize else np.asarray(weight).max()
-    with nogil:
-        count = _boruvka(&tail[0], &head[0], &weight[0], n, m, maximize, nt, &hint[0], worst,
-                         &o[0], &lb[0], &nfin)
+    cdef const float[::1] w_f4
+    cdef const double[::1] w_f8
+    cdef const int32_t[::1] w_i4
+    cdef const int64_t[::1] w_i8
+    cdef const uint32_t[::1] w_u4
+    cdef const uint64_t[::1] w_u8
+    cdef str code = weight.dtype.kind + str(weight.dtype.itemsize)
+    if code == "f8":
+        w_f8 = weight
+        count = _run(&tail[0], &head[0], w_f8, n, maximize, nt, &o[0], &lb[0], &nfin)
+    elif code == "f4":
+        w_f4 = weight
+        count = _run(&tail[0], &head[0], w_f4, n, maximize, nt, &o[0], &lb[0], &nfin)
+    elif code == "i8":
+        w_i8 = weight
+        count = _run(&tail[0], &head[0], w_i8, n, maximize, nt, &o[0], &lb[0], &nfin)
+    elif code == "i4":
+        w_i4 = weight
+        count = _run(&tail[0], &head[0], w_i4, n, maximize, nt, &o[0], &lb[0], &nfin)
+    elif code == "u8":
+        w_u8 = weight
+        count = _run(&tail[0], &head[0], w_u8, n, maximize, nt, &o[0], &lb[0], &nfin)
+    else:
+        w_u4 = weight
+        count = _run(&tail[0], &head[0], w_u4, n, maximize, nt, &o[0], &lb[0], &nfin)
     if count < 0:
         raise MemoryError("boruvka: out of memory for the per-round edge arrays; use "
                           "method='kruskal', which needs less extra memory.")

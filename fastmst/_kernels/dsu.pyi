@@ -17,5 +17,5 @@ class DisjointSet:
 
 def labels_from_parent(parent: NDArray[np.int32] | NDArray[np.int64]
                        ) -> tuple[NDArray[np.int64], int]: ...
-def first_appearance(ids: NDArray[np.int32] | NDArray[np.int64], n_ids: int
+def first_appearance(ids: NDArray[np.int64], n_ids: int
                      ) -> tuple[NDArray[np.int64], int]: ...

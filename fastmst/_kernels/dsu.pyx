@@ -204,12 +204,12 @@ def labels_from_parent(index_t[::1] parent):
     return out, k
 
 
-def first_appearance(const index_t[::1] ids, Py_ssize_t n_ids):
+def first_appearance(const int64_t[::1] ids, Py_ssize_t n_ids):
     """Relabel ids by order of first appearance.
 
     Parameters
     ----------
-    ids : ndarray of shape (n,), dtype=int32 or int64
+    ids : ndarray of shape (n,), dtype=int64
         Ids in [0, n_ids) (checked).
     n_ids : int
         Bound on the ids (the size of the lookup table).

@@ -384,7 +384,7 @@ cdef void _collect(const ukey_t* bits, const index_t* tail, const index_t* head,
 
 
 cdef void _distribute(const Rec* buf, const Py_ssize_t* start, const Py_ssize_t* fill,
-                      const ukey_t* bits, const index_t* tail, const index_t* head, int s,
+                      const index_t* tail, const index_t* head, int s,
                       Py_ssize_t d_end, Py_ssize_t* off, Rec* rec, index_t* side,
                       Py_ssize_t nblk, int threads) noexcept nogil:
     """Move the collected survivors of buckets below ``d_end`` into their slots (``off`` as in
@@ -462,13 +462,21 @@ cdef class _Slots:
         self.side = np.empty(3 * cap, dtype=dtype)
 
 
-cdef Py_ssize_t _fk_stream(const ukey_t[::1] bits, const index_t[::1] tail,
+ctypedef struct _Bits:
+    # The weight bits: one of the two pointers is set (4- or 8-byte weights).  The stream driver
+    # below takes them untyped so that only the three passes over the edges are specialised per
+    # width, not the driver.
+    const uint32_t* b32
+    const uint64_t* b64
+
+
+cdef Py_ssize_t _fk_stream(_Bits bits, const index_t[::1] tail,
                            const index_t[::1] head, int kind, bint comp, uint64_t kmin,
                            int top_bits, index_t[::1] parent,
                            int64_t[::1] op, index_t[::1] ot, index_t[::1] oh, uint64_t[::1] ow,
                            Py_ssize_t target, int threads, Py_ssize_t threshold,
                            Py_ssize_t chunk) except -1:
-    """Driver of the streamed Filter-Kruskal (see the section comment).  Returns the number
+    """Driver of the streamed Filter-Kruskal (see the module notes).  Returns the number
     of accepted edges written to ``op``, ``ot``, ``oh``, ``ow``."""
     dtype = np.int32 if index_t is int32_t else np.int64
     cdef Py_ssize_t m = tail.shape[0], count = 0, d0 = 0, d1, d_end, n_range
@@ -499,7 +507,10 @@ cdef Py_ssize_t _fk_stream(const ukey_t[::1] bits, const index_t[::1] tail,
     hist_a = np.empty(nblk * 2048, dtype=np.intp)
     hs = hist_a
     with nogil:
-        digit_hist(&bits[0], m, kind, comp, kmin, s, &hs[0], nblk, threads)
+        if bits.b64 != NULL:
+            digit_hist(bits.b64, m, kind, comp, kmin, s, &hs[0], nblk, threads)
+        else:
+            digit_hist(bits.b32, m, kind, comp, kmin, s, &hs[0], nblk, threads)
     hist = hist_a.reshape(nblk, 2048)
     cum = np.zeros(2049, dtype=np.intp)
     np.cumsum(hist.sum(axis=0), out=cum[1:])
@@ -526,8 +537,12 @@ cdef Py_ssize_t _fk_stream(const ukey_t[::1] bits, const index_t[::1] tail,
             recv = slots.rec
             sidev = slots.side
             with nogil:
-                _scatter(&bits[0], &tail[0], &head[0], m, kind, comp, kmin, s, d0, d1,
-                         &offv[0], <Rec*>&recv[0], &sidev[0], nblk, threads)
+                if bits.b64 != NULL:
+                    _scatter(bits.b64, &tail[0], &head[0], m, kind, comp, kmin, s, d0, d1,
+                             &offv[0], <Rec*>&recv[0], &sidev[0], nblk, threads)
+                else:
+                    _scatter(bits.b32, &tail[0], &head[0], m, kind, comp, kmin, s, d0, d1,
+                             &offv[0], <Rec*>&recv[0], &sidev[0], nblk, threads)
             d_end = d1
         else:
             # mark the largest tree, then collect up to 4 chunks' worth of unfiltered edges
@@ -547,9 +562,14 @@ cdef Py_ssize_t _fk_stream(const ukey_t[::1] bits, const index_t[::1] tail,
             h2 = np.zeros((nblk, 2048), dtype=np.intp)
             h2v = h2.reshape(-1)
             with nogil:
-                _collect(&bits[0], &tail[0], &head[0], m, kind, comp, kmin, s, d0, d1,
-                         &parent[0], &gv[0], <Rec*>&bufv[0], &fillv[0], &h2v[0], nblk,
-                         threads)
+                if bits.b64 != NULL:
+                    _collect(bits.b64, &tail[0], &head[0], m, kind, comp, kmin, s, d0, d1,
+                             &parent[0], &gv[0], <Rec*>&bufv[0], &fillv[0], &h2v[0], nblk,
+                             threads)
+                else:
+                    _collect(bits.b32, &tail[0], &head[0], m, kind, comp, kmin, s, d0, d1,
+                             &parent[0], &gv[0], <Rec*>&bufv[0], &fillv[0], &h2v[0], nblk,
+                             threads)
             cum2 = np.zeros(2049, dtype=np.intp)
             np.cumsum(h2.sum(axis=0), out=cum2[1:])
             if slots is None:
@@ -564,9 +584,8 @@ cdef Py_ssize_t _fk_stream(const ukey_t[::1] bits, const index_t[::1] tail,
             recv = slots.rec
             sidev = slots.side
             with nogil:
-                _distribute(<Rec*>&bufv[0], &startv[0], &fillv[0], &bits[0], &tail[0],
-                            &head[0], s, d_end, &offv[0], <Rec*>&recv[0], &sidev[0], nblk,
-                            threads)
+                _distribute(<Rec*>&bufv[0], &startv[0], &fillv[0], &tail[0], &head[0], s,
+                            d_end, &offv[0], <Rec*>&recv[0], &sidev[0], nblk, threads)
         bdv = bounds
         if n_range > 0:
             with nogil:
@@ -633,6 +652,7 @@ def filter_kruskal(const index_t[::1] tail, const index_t[::1] head, cnp.ndarray
     cdef int tb
     cdef const uint32_t[::1] b32
     cdef const uint64_t[::1] b64
+    cdef _Bits src
     cdef index_t[::1] pv = parent_a
     cdef int64_t[::1] opv = out_a
     cdef index_t[::1] otv = ot_a
@@ -653,14 +673,16 @@ def filter_kruskal(const index_t[::1] tail, const index_t[::1] head, cnp.ndarray
         lo, tb = key_range(weight, maximize)
         threads = max(1, min(threads, m // radix.MIN_EDGES_PER_THREAD + 1))
         parent_a.fill(-1)
+        src.b32 = NULL
+        src.b64 = NULL
         if bits.dtype == np.uint32:
             b32 = bits
-            count = _fk_stream(b32, tail, head, kind, maximize, lo, tb, pv, opv, otv, ohv, owv,
-                               target, threads, threshold, chunk)
+            src.b32 = &b32[0]
         else:
             b64 = bits
-            count = _fk_stream(b64, tail, head, kind, maximize, lo, tb, pv, opv, otv, ohv, owv,
-                               target, threads, threshold, chunk)
+            src.b64 = &b64[0]
+        count = _fk_stream(src, tail, head, kind, maximize, lo, tb, pv, opv, otv, ohv, owv,
+                           target, threads, threshold, chunk)
         with nogil:
             rp_standard_parents(&pv[0], n_nodes)
     edges = out_a[:count]

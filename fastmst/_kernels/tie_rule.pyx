@@ -33,7 +33,6 @@ import numpy as np
 cimport numpy as cnp
 from libc.stdint cimport uint32_t, uint64_t
 
-from fastmst._kernels._typedefs cimport weight_t
 from fastmst._kernels import radix
 
 cnp.import_array()
@@ -189,30 +188,46 @@ def key_range(weight, bint maximize):
     return kmin, top_bits
 
 
-cdef Py_ssize_t _first_unsorted(const weight_t[::1] w, bint descending) noexcept nogil:
+cdef Py_ssize_t _first_unsorted(const ukey_t[::1] bits, int kind, bint descending) noexcept nogil:
     cdef Py_ssize_t i
-    for i in range(1, w.shape[0]):
-        if weight_after(w[i - 1], w[i], descending):
+    cdef uint64_t k, prev = rank_key(bits[0], kind, descending)
+    for i in range(1, bits.shape[0]):
+        k = rank_key(bits[i], kind, descending)
+        if k < prev:
             return i
+        prev = k
     return -1
 
 
-def first_unsorted(const weight_t[::1] weight, bint descending=False):
+def first_unsorted(cnp.ndarray weight not None, bint descending=False):
     """Position of the first weight that breaks the rule order, or -1 when it holds.
 
-    Weights in position order are rule-sorted exactly when they are non-decreasing
-    (non-increasing with ``descending``); ``-0.0`` and ``+0.0`` tie.
+    Weights in position order are rule-sorted exactly when their keys are non-decreasing:
+    the weights non-decreasing (non-increasing with ``descending``), ``-0.0`` and ``+0.0``
+    tied.
 
     Parameters
     ----------
     weight : ndarray of shape (E,)
-        Validated, contiguous weights (no NaN).
+        Validated weights, as for ``weight_bits``.
     descending : bool
         Check non-increasing instead of non-decreasing order.
     """
-    cdef Py_ssize_t i
-    with nogil:
-        i = _first_unsorted(weight, descending)
+    bits, kind = weight_bits(weight, -1, "first_unsorted")
+    cdef const uint32_t[::1] b32
+    cdef const uint64_t[::1] b64
+    cdef int code = kind
+    cdef Py_ssize_t i = -1
+    if bits.shape[0] < 2:
+        return -1
+    if bits.dtype == np.uint32:
+        b32 = bits
+        with nogil:
+            i = _first_unsorted(b32, code, descending)
+    else:
+        b64 = bits
+        with nogil:
+            i = _first_unsorted(b64, code, descending)
     return i
 
 
