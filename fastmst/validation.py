@@ -1,9 +1,12 @@
-"""Every input check of fastmst, in one place.
+"""The core input checks: edge arrays, ids, weights and scalar arguments.
 
-Each message says what was received, what was expected and how to fix it, and names the first
-offending position.  Wrong types raise TypeError, wrong values raise ValueError.  Nothing here
-mutates its inputs: conversions make new arrays, and arrays already in a kernel dtype are passed
-through without a copy (read-only and memory-mapped arrays included).
+Every function of the package validates its arguments here or, for checks that only one part of
+the package needs, beside that code (``fastmst.toolkit.checks``, ``fastmst.geometry.checks``,
+``fastmst.dask.checks``, the file checks of ``fastmst.io``).  Each message says what was received,
+what was expected and how to fix it, and names the first offending position.  Wrong types raise
+TypeError, wrong values raise ValueError.  Nothing here mutates its inputs: conversions make new
+arrays, and arrays already in a kernel dtype are passed through without a copy (read-only and
+memory-mapped arrays included).
 """
 from __future__ import annotations
 
@@ -21,6 +24,22 @@ _KERNEL_WEIGHTS = {np.dtype(t) for t in (np.float32, np.float64, np.int32, np.in
 _WIDEN = {np.dtype(np.int8): np.int32, np.dtype(np.int16): np.int32,
           np.dtype(np.uint8): np.int32, np.dtype(np.uint16): np.int32,
           np.dtype(np.float16): np.float32}
+
+
+def shown(value) -> str:
+    """``repr`` of a received value for an error message; NumPy scalars as plain Python values
+    (``7``, not ``np.int64(7)``)."""
+    if isinstance(value, np.generic):
+        value = value.item()
+    return repr(value)
+
+
+class FileFormatError(ValueError):
+    """A malformed input file or table; the message names the source and the line or row.
+
+    One class for files (``fastmst.io``, which re-exports it) and for the partitions of the
+    Dask path (``fastmst.dask``), so that, e.g., a missing column is the same error on both.
+    """
 
 
 @dataclass(frozen=True)
@@ -115,7 +134,7 @@ def check_n_nodes(n_nodes, func: str) -> int | None:
         return None
     if isinstance(n_nodes, (bool, np.bool_)) or not isinstance(n_nodes, (int, np.integer)):
         raise TypeError(f"{func}: n_nodes must be an integer or None, received "
-                        f"{type(n_nodes).__name__} {n_nodes!r}.")
+                        f"{type(n_nodes).__name__} {shown(n_nodes)}.")
     n = int(n_nodes)
     if n < 0:
         raise ValueError(f"{func}: n_nodes must be >= 0, received {n}.")
@@ -126,7 +145,7 @@ def _range_error(arr, name, n_nodes, func, given):
     bad_neg = np.flatnonzero(arr < 0) if arr.dtype.kind == "i" else np.empty(0, np.int64)
     bad_big = np.flatnonzero(arr >= n_nodes)
     first = min(bad_neg[:1].tolist() + bad_big[:1].tolist())
-    value = arr[first]
+    value = arr[first].item()
     if value < 0:
         raise ValueError(f"{func}: {name}[{first}] = {value} is negative; node ids must be in "
                          f"[0, n_nodes).")
@@ -195,10 +214,27 @@ def validate_edges(tail, head, weight, n_nodes=None, *,
     return EdgeArrays(t, h, w, kt, kh, kw, n)
 
 
+def trusted_edges(tail: np.ndarray, head: np.ndarray, weight: np.ndarray,
+                  n_nodes: int) -> EdgeArrays:
+    """``EdgeArrays`` of edges that are valid by construction, without checking them.
+
+    For internals that derive a new edge list from validated arrays (a subgraph, a contracted
+    graph, a candidate set, an update): ``tail``/``head`` are integer ids in ``[0, n_nodes)``
+    and ``weight`` has an integer or float dtype that ``check_weights`` accepts, without NaN.
+    They are kept as the caller's arrays (the result keeps their dtypes); the kernel arrays
+    view them when they already are contiguous, native-endian and in a kernel dtype.
+    """
+    n = int(n_nodes)
+    kt, kh = _kernel_ids(tail, head, n)
+    native = weight.dtype.newbyteorder("=")
+    kw = _native_contiguous(weight.astype(_WIDEN[native]) if native in _WIDEN else weight)
+    return EdgeArrays(tail, head, weight, kt, kh, kw, n)
+
+
 def check_choice(value, valid, name: str, func: str) -> str:
     if not isinstance(value, str):
         raise TypeError(f"{func}: {name} must be a string, received {type(value).__name__} "
-                        f"{value!r}; expected one of {', '.join(map(repr, valid))}.")
+                        f"{shown(value)}; expected one of {', '.join(map(repr, valid))}.")
     if value not in valid:
         raise ValueError(f"{func}: unknown {name} {value!r}; expected one of "
                          f"{', '.join(map(repr, valid))}.")
@@ -211,12 +247,13 @@ def check_threads(threads, func: str) -> int:
         return max(1, len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity")
                    else (os.cpu_count() or 1))
     if isinstance(threads, (bool, np.bool_)):
-        raise TypeError(f"{func}: threads must be an integer or None, received {threads!r}.")
+        raise TypeError(f"{func}: threads must be an integer or None, received "
+                        f"{type(threads).__name__} {shown(threads)}.")
     try:
         t = operator.index(threads)
     except TypeError:
         raise TypeError(f"{func}: threads must be an integer or None, received "
-                        f"{type(threads).__name__} {threads!r}.") from None
+                        f"{type(threads).__name__} {shown(threads)}.") from None
     if t <= 0:
         return check_threads(None, func)
     return t
@@ -225,7 +262,7 @@ def check_threads(threads, func: str) -> int:
 def check_bool(value, name: str, func: str) -> bool:
     if not isinstance(value, (bool, np.bool_)):
         raise TypeError(f"{func}: {name} must be True or False, received "
-                        f"{type(value).__name__} {value!r}.")
+                        f"{type(value).__name__} {shown(value)}.")
     return bool(value)
 
 
@@ -247,154 +284,9 @@ def check_positions(positions, n_edges: int, name: str, func: str) -> np.ndarray
                         f"mask), received dtype {arr.dtype}.")
     bad = np.flatnonzero((arr < 0) | (arr >= n_edges))
     if bad.size:
-        raise ValueError(f"{func}: {name}[{bad[0]}] = {arr[bad[0]]} is not an edge position; "
-                         f"expected positions in [0, {n_edges}).")
+        raise ValueError(f"{func}: {name}[{bad[0]}] = {arr[bad[0]].item()} is not an edge "
+                         f"position; expected positions in [0, {n_edges}).")
     return arr.astype(np.int64)
-
-
-# --- Files and tables (used by fastmst.io and the command line) -------------------------------
-
-class FileFormatError(ValueError):
-    """A malformed input file or table; the message names the source and the line or row."""
-
-
-def check_column(name, present, source: str, role: str, func: str) -> str:
-    """``name`` must be one of the ``present`` column names of ``source``."""
-    if not isinstance(name, str):
-        raise TypeError(f"{func}: the {role} column must be given by name (a string), received "
-                        f"{type(name).__name__} {name!r}.")
-    if name not in present:
-        listed = ", ".join(map(repr, present)) or "none"
-        raise FileFormatError(f"{source}: no column {name!r} for the {role}; the columns present "
-                              f"are {listed}. Pick one of them (CLI: --{role} COLUMN).")
-    return name
-
-
-def check_no_missing(missing: np.ndarray, column: str, source: str, where, func: str) -> None:
-    """Raise naming the first True entry of the boolean ``missing`` (``where(i)`` words it)."""
-    if missing.size and missing.any():
-        first = int(np.flatnonzero(missing)[0])
-        raise FileFormatError(f"{source}: {where(first)}: column {column!r} is empty or missing "
-                              f"({int(missing.sum())} such rows in all); every edge needs a "
-                              f"value there. Fill or drop those rows.")
-
-
-def check_unique_labels(labels: np.ndarray, column: str, source: str, where) -> None:
-    """Node labels of a node table must be unique."""
-    order = np.argsort(labels, kind="stable")
-    s = labels[order]
-    dup = np.flatnonzero(s[1:] == s[:-1])
-    if dup.size:
-        a, b = sorted((int(order[dup[0]]), int(order[dup[0] + 1])))
-        raise FileFormatError(f"{source}: node {s[dup[0]]!r} in column {column!r} appears twice "
-                              f"({where(a)} and {where(b)}); node ids must be unique. Remove the "
-                              f"duplicate rows.")
-
-
-# --- checks of the network-design toolkit (check_forest, sensitivity, bottleneck, clusters) ---
-
-def validate_graph_with_forest(tail, head, weight, forest, n_nodes, maximize, threads, *,
-                               name: str, func: str, strict_maximize: bool):
-    """Shared checks of the functions that take a graph and a forest of it.
-
-    ``forest`` is a SpanningForest (its ``maximize``, ``n_nodes`` and edge count are used and
-    checked against the graph), an array of edge positions or a boolean mask.  With
-    ``strict_maximize`` an explicit ``maximize`` that contradicts a SpanningForest is an error.
-
-    Returns
-    -------
-    g : EdgeArrays
-    pos : ndarray of shape (F,), dtype=int64
-        The forest's positions.
-    in_forest : ndarray of shape (E,), dtype=bool
-    maximize : bool
-    threads : int
-    """
-    from fastmst.solve.solve import SpanningForest
-    expected_edges = None
-    if isinstance(forest, SpanningForest):
-        if maximize is None:
-            maximize = forest.maximize
-        elif strict_maximize and bool(maximize) != forest.maximize:
-            raise ValueError(f"{func}: maximize={maximize!r} contradicts the forest, which is a "
-                             f"{'maximum' if forest.maximize else 'minimum'} spanning forest; "
-                             f"leave maximize out.")
-        if n_nodes is None:
-            n_nodes = forest.n_nodes
-        expected_edges = forest.n_edges
-        forest = forest.edges
-    maximize = False if maximize is None else check_bool(maximize, "maximize", func)
-    threads = check_threads(threads, func)
-    g = validate_edges(tail, head, weight, n_nodes, func=func)
-    if expected_edges is not None and expected_edges != g.n_edges:
-        raise ValueError(f"{func}: the forest was computed on a graph of {expected_edges} "
-                         f"edges, received {g.n_edges}; pass the same edge list.")
-    pos = check_positions(forest, g.n_edges, name, func)
-    in_forest = check_unique_positions(pos, g.n_edges, name, func)
-    return g, pos, in_forest, maximize, threads
-
-
-def check_unique_positions(pos: np.ndarray, n_edges: int, name: str, func: str) -> np.ndarray:
-    """Reject repeated positions in an edge set (``pos`` from check_positions); return the
-    boolean membership mask of shape (n_edges,)."""
-    mask = np.zeros(n_edges, dtype=bool)
-    mask[pos] = True
-    if np.count_nonzero(mask) != pos.size:
-        order = np.argsort(pos, kind="stable")
-        s = pos[order]
-        dup = np.flatnonzero(s[1:] == s[:-1])
-        i, j = sorted((int(order[dup[0]]), int(order[dup[0] + 1])))
-        raise ValueError(f"{func}: {name}[{j}] = {pos[j]} repeats {name}[{i}]; an edge set "
-                         f"lists each edge position once. Deduplicate with np.unique({name}).")
-    return mask
-
-
-def check_node_pairs(a, b, n_nodes: int, func: str):
-    """Node ids of query pairs: two broadcastable integer arrays with ids in [0, n_nodes).
-
-    Returns (a, b, shape) with a and b flattened to contiguous int64 arrays.
-    """
-    arrs = []
-    for name, x in (("a", a), ("b", b)):
-        if x is None:
-            raise TypeError(f"{func}: {name} is None; expected node ids (an integer or an array "
-                            f"of integers).")
-        arr = np.asarray(x)
-        if arr.dtype.kind not in "iu" and not (arr.size == 0 and arr.dtype.kind == "f"):
-            raise TypeError(f"{func}: {name} has dtype {arr.dtype}; expected integer node ids "
-                            f"0..n_nodes-1. Convert with np.asarray({name}).astype(np.int64).")
-        arrs.append(arr)
-    try:
-        a2, b2 = np.broadcast_arrays(*arrs)
-    except ValueError:
-        raise ValueError(f"{func}: a and b must have one shape (or broadcast to one), received "
-                         f"shapes {arrs[0].shape} and {arrs[1].shape}.") from None
-    shape = a2.shape
-    out = []
-    for name, arr in (("a", a2), ("b", b2)):
-        flat = np.ascontiguousarray(arr.reshape(-1), dtype=np.int64)
-        if flat.size:
-            bad = np.flatnonzero((flat < 0) | (flat >= n_nodes))
-            if bad.size:
-                raise ValueError(f"{func}: {name} holds node id {flat[bad[0]]} (at flat index "
-                                 f"{bad[0]}); expected ids in [0, {n_nodes}) for this forest of "
-                                 f"{n_nodes} nodes.")
-        out.append(flat)
-    return out[0], out[1], shape
-
-
-def check_cluster_count(k, low: int, high: int, func: str) -> int:
-    """Number of clusters k, an integer in [low, high]."""
-    if isinstance(k, (bool, np.bool_)) or not isinstance(k, (int, np.integer)):
-        raise TypeError(f"{func}: k must be an integer number of clusters, received "
-                        f"{type(k).__name__} {k!r}.")
-    k = int(k)
-    if not low <= k <= high:
-        why = (f" (the graph already has {low} connected components, and each is at least one "
-               f"cluster)" if low > 1 else "")
-        raise ValueError(f"{func}: k = {k} is out of range; expected {low} <= k <= {high}, the "
-                         f"number of nodes{why}.")
-    return k
 
 
 def check_real(value, name: str, func: str) -> float:
@@ -402,163 +294,11 @@ def check_real(value, name: str, func: str) -> float:
     if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, float, np.integer,
                                                                    np.floating)):
         raise TypeError(f"{func}: {name} must be a real number, received "
-                        f"{type(value).__name__} {value!r}.")
+                        f"{type(value).__name__} {shown(value)}.")
     v = float(value)
     if v != v:
         raise ValueError(f"{func}: {name} is NaN; expected a real number.")
     return v
-
-
-# --- points and Steiner trees ----------------------------------------------------------------
-
-def check_points(points, func: str, name: str = "points") -> np.ndarray:
-    """Coordinates as a new or viewed C-contiguous float64 array of shape (n, d); finite values."""
-    if points is None:
-        raise TypeError(f"{func}: {name} is None; expected an array of shape (n_points, d).")
-    try:
-        arr = np.asarray(points)
-    except (ValueError, TypeError) as exc:
-        raise TypeError(f"{func}: {name} could not be read as an array ({exc}); pass a NumPy "
-                        f"array of shape (n_points, d), one row per point.") from None
-    if arr.dtype.kind == "b" or arr.dtype.kind not in "iuf":
-        raise TypeError(f"{func}: {name} has dtype {arr.dtype}; expected numeric coordinates. "
-                        f"Convert with np.asarray({name}, dtype=float).")
-    if arr.ndim != 2:
-        raise ValueError(f"{func}: {name} must have shape (n_points, d), received an array of "
-                         f"shape {arr.shape}; for one coordinate per point pass "
-                         f"{name}.reshape(-1, 1).")
-    if arr.shape[1] == 0:
-        raise ValueError(f"{func}: {name} has shape {arr.shape}: points need at least one "
-                         f"coordinate column.")
-    arr = np.ascontiguousarray(arr, dtype=np.float64)
-    if arr.size and not np.isfinite(arr).all():
-        bad = np.argwhere(~np.isfinite(arr))[0]
-        raise ValueError(f"{func}: {name}[{bad[0]}, {bad[1]}] = {arr[bad[0], bad[1]]}; every "
-                         f"coordinate must be a finite number. Drop or fill those rows first, "
-                         f"e.g. {name}[np.isfinite({name}).all(axis=1)].")
-    return arr
-
-
-def check_lonlat(points, func: str, name: str = "points") -> np.ndarray:
-    """(longitude, latitude) rows in degrees, latitudes in [-90, 90]; float64 (n, 2)."""
-    arr = check_points(points, func, name)
-    if arr.shape[1] != 2:
-        raise ValueError(f"{func}: metric='great-circle' needs {name} of shape (n_points, 2) "
-                         f"holding (longitude, latitude) in degrees, received shape "
-                         f"{arr.shape}.")
-    if arr.size:
-        bad = np.flatnonzero(np.abs(arr[:, 1]) > 90.0)
-        if bad.size:
-            i = int(bad[0])
-            raise ValueError(f"{func}: {name}[{i}, 1] = {arr[i, 1]} is not a latitude; "
-                             f"expected degrees in [-90, 90] in column 1 (column 0 is "
-                             f"longitude). Are longitude and latitude swapped?")
-    return arr
-
-
-def check_max_length(max_length, func: str) -> float | None:
-    """None, or a non-negative real number (inf means no limit)."""
-    if max_length is None:
-        return None
-    if isinstance(max_length, (bool, np.bool_)) or not isinstance(
-            max_length, (int, float, np.integer, np.floating)):
-        raise TypeError(f"{func}: max_length must be a number or None, received "
-                        f"{type(max_length).__name__} {max_length!r}.")
-    value = float(max_length)
-    if np.isnan(value) or value < 0:
-        raise ValueError(f"{func}: max_length must be >= 0 (or None for no limit), received "
-                         f"{max_length!r}.")
-    return None if np.isinf(value) else value
-
-
-def check_terminals(terminals, n_nodes: int, func: str) -> np.ndarray:
-    """Terminal node ids as a new sorted int64 array without repeats."""
-    if terminals is None:
-        raise TypeError(f"{func}: terminals is None; expected a 1-D array of node ids.")
-    arr = np.asarray(terminals)
-    if arr.ndim != 1:
-        raise ValueError(f"{func}: terminals must be a 1-D array of node ids, received shape "
-                         f"{arr.shape}.")
-    if arr.size == 0:
-        return np.empty(0, dtype=np.int64)
-    if arr.dtype.kind not in "iu":
-        raise TypeError(f"{func}: terminals has dtype {arr.dtype}; expected integer node ids "
-                        f"in [0, n_nodes). Convert with terminals.astype(np.int64).")
-    bad = np.flatnonzero((arr < 0) | (arr >= n_nodes))
-    if bad.size:
-        i = int(bad[0])
-        raise ValueError(f"{func}: terminals[{i}] = {arr[i]} is not a node; expected ids in "
-                         f"[0, {n_nodes}) for n_nodes={n_nodes}. Pass n_nodes if the graph has "
-                         f"nodes beyond the largest edge endpoint.")
-    return np.unique(arr.astype(np.int64))
-
-
-def check_nonnegative_finite(weight: np.ndarray, func: str, name: str = "weight") -> None:
-    """Weights must be finite and >= 0 (shortest paths need it)."""
-    if weight.size == 0:
-        return
-    if weight.dtype.kind == "f":
-        bad = np.flatnonzero(~np.isfinite(weight) | (weight < 0))
-    elif weight.dtype.kind == "i":
-        bad = np.flatnonzero(weight < 0)
-    else:
-        return
-    if bad.size:
-        i = int(bad[0])
-        raise ValueError(f"{func}: {name}[{i}] = {weight[i].item()!r}; Steiner trees need "
-                         f"finite, non-negative weights (lengths or costs along the network). Drop "
-                         f"the edge, or shift costs so they are >= 0.")
-# ---------------------------------------------------------------------------------------------
-# Checks of the distributed path (fastmst.dask): column names, chunk arrays, tuning knobs.
-
-def check_column_name(value, name: str, func: str) -> str:
-    """A column name given as ``tail=``/``head=``/``weight=`` must be a non-empty string."""
-    if not isinstance(value, str) or not value:
-        raise TypeError(f"{func}: {name} must be a column name (a non-empty string), received "
-                        f"{type(value).__name__} {value!r}; e.g. {name}={name!r}.")
-    return value
-
-
-def check_columns(present, wanted: dict, func: str, where: str = "") -> None:
-    """Every wanted column (role -> name) must be among ``present``; list the present ones."""
-    present = [str(c) for c in present]
-    missing = [f"{role}={col!r}" for role, col in wanted.items() if col not in present]
-    if missing:
-        at = f" in {where}" if where else ""
-        raise ValueError(f"{func}: column{'s' if len(missing) > 1 else ''} "
-                         f"{', '.join(missing)} not found{at}; the columns present are "
-                         f"{present!r}. Pass the right names, e.g. "
-                         f"minimum_spanning_forest(edges, tail='src', head='dst', "
-                         f"weight='cost').")
-
-
-def check_chunk_no_missing(values, name: str, func: str, where: str = "") -> None:
-    """A column read from a table must not hold missing values (NA/None)."""
-    import pandas as pd
-    mask = pd.isna(values)
-    if mask.any():
-        first = int(np.flatnonzero(np.asarray(mask))[0])
-        at = f" of {where}" if where else ""
-        raise ValueError(f"{func}: {name}[{first}]{at} is missing (NA); every edge needs two "
-                         f"endpoints and a weight. Drop the incomplete rows first, e.g. "
-                         f"edges.dropna(subset=[...]).")
-
-
-def check_chunk_ids(arr: np.ndarray, name: str, n_nodes, func: str, where: str) -> None:
-    """Ids of one chunk of a distributed edge list: integers in [0, n_nodes)."""
-    check_ids(arr, f"{name} ({where})", func)
-    if arr.size == 0:
-        return
-    if arr.dtype.kind == "i" and int(arr.min()) < 0:
-        first = int(np.flatnonzero(arr < 0)[0])
-        raise ValueError(f"{func}: {name}[{first}] = {arr[first]} of {where} is negative; node "
-                         f"ids must be global integers in [0, n_nodes). Map labels to compact "
-                         f"ids first.")
-    if n_nodes is not None and int(arr.max()) >= n_nodes:
-        first = int(np.flatnonzero(arr >= n_nodes)[0])
-        raise ValueError(f"{func}: {name}[{first}] = {arr[first]} of {where} is out of range; "
-                         f"expected ids in [0, {n_nodes}) for n_nodes={n_nodes}; pass "
-                         f"n_nodes >= {int(arr.max()) + 1} or fix the id.")
 
 
 def check_count(value, name: str, func: str, minimum: int = 1, allow_none: bool = False):
@@ -568,7 +308,18 @@ def check_count(value, name: str, func: str, minimum: int = 1, allow_none: bool 
     if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, np.integer)):
         none = " or None" if allow_none else ""
         raise TypeError(f"{func}: {name} must be an integer{none}, received "
-                        f"{type(value).__name__} {value!r}.")
+                        f"{type(value).__name__} {shown(value)}.")
     if int(value) < minimum:
         raise ValueError(f"{func}: {name} must be >= {minimum}, received {int(value)}.")
     return int(value)
+
+
+def check_column_name(value, name: str, func: str) -> str:
+    """A column name given as ``tail=``/``head=``/``weight=``: a non-empty string."""
+    if not isinstance(value, str):
+        raise TypeError(f"{func}: {name} must be a column name (a string), received "
+                        f"{type(value).__name__} {shown(value)}; e.g. {name}={name!r}.")
+    if not value:
+        raise ValueError(f"{func}: {name} is the empty string; expected the name of a column, "
+                         f"e.g. {name}={name!r}.")
+    return value

@@ -25,6 +25,7 @@ import networkx as nx  # noqa: E402
 
 import fastmst  # noqa: E402
 import fastmst.dask as fdask  # noqa: E402
+from fastmst.validation import FileFormatError  # noqa: E402
 
 
 @pytest.fixture(scope="module")
@@ -255,15 +256,22 @@ def test_worker_killed_mid_run(client, tmp_path):
 
 
 def test_missing_column_lists_present_ones(client, tmp_path):
-    """A missing column names the wanted role and lists the columns that are present."""
+    """A missing column names the wanted role and lists the columns that are present, with the
+    exception class and wording of the file readers (FileFormatError, a ValueError)."""
     t, h, w = random_graph(10, n=50, m=100)
     path = write_parquet(tmp_path / "g", t, h, w, [50])
-    with pytest.raises(ValueError, match=r"weight='cost'.*present are \['tail', 'head', "
-                                         r"'weight'\]"):
+    with pytest.raises(FileFormatError, match=r"the Dask DataFrame: no column 'cost' for the "
+                                              r"weight.*present are 'tail', 'head', 'weight'"):
         fdask.minimum_spanning_forest(dd.read_parquet(path), weight="cost")
     chunks = [dask.delayed(pd.DataFrame)({"src": t, "head": h, "weight": w})]
-    with pytest.raises(ValueError, match=r"tail='tail' not found in partition 0.*'src'"):
+    with pytest.raises(FileFormatError, match=r"partition 0: no column 'tail' for the tail.*"
+                                              r"present are 'src', 'head', 'weight'"):
         fdask.minimum_spanning_forest(chunks)
+    # The file readers word it the same way (source, column, role, the columns present).
+    frame = pd.DataFrame({"src": t, "head": h, "weight": w})
+    frame.to_csv(tmp_path / "g.csv", index=False)
+    with pytest.raises(FileFormatError, match=r"no column 'tail' for the tail.*'src', 'head'"):
+        fastmst.read_edges(tmp_path / "g.csv", tail="tail", head="head", weight="weight")
 
 
 def test_bad_values_raise_clear_errors(client, tmp_path):

@@ -228,3 +228,37 @@ def test_add_edges_ties_between_old_and_new_edges(maximize, new_dtype):
                                    np.concatenate([w, w2.astype(np.float64)]).tolist()))
     span = nx.maximum_spanning_edges if maximize else nx.minimum_spanning_edges
     assert g.weight == sum(d["weight"] for *_, d in span(mg, data=True))
+
+
+def test_forest_fields_are_declared_and_provenance_says_who_made_it():
+    """SpanningForest declares every field (no __dict__: nothing can be attached from outside),
+    documents each public one, keeps `method` for the algorithm and records the producing call
+    in `provenance`; a pickled forest comes back equal without its cache."""
+    import pickle
+    f = fastmst.minimum_spanning_forest([0, 1, 2, 0], [1, 2, 3, 3], [1.0, 4.0, 2.0, 3.0])
+    assert not hasattr(f, "__dict__")
+    with pytest.raises(AttributeError):
+        f.extra = 1
+    doc = fastmst.SpanningForest.__doc__
+    for name in fastmst.SpanningForest.__slots__:
+        if not name.startswith("_"):
+            assert f"    {name} :" in doc or f", {name} :" in doc or f"    {name}, " in doc, name
+    assert f.method == "filter-kruskal"
+    assert f.provenance == {"function": "minimum_spanning_forest"}
+    assert f.metric is None and f.dask_plan is None and f.required.tolist() == []
+    f.bottleneck([0], [2])                                  # fills the merge-tree cache
+    g = pickle.loads(pickle.dumps(f))
+    assert g.edges.tolist() == f.edges.tolist() and g.weight == f.weight
+    assert g.bottleneck([0], [2])[1].tolist() == f.bottleneck([0], [2])[1].tolist()
+    c = fastmst.minimum_spanning_forest([0, 1, 2, 0], [1, 2, 3, 3], [1.0, 4.0, 2.0, 3.0],
+                                        required=[1], excluded=[3])
+    assert c.provenance == {"function": "minimum_spanning_forest", "n_required": 1,
+                            "n_excluded": 1}
+    assert c.required.tolist() == [1]
+    u = c.add_edges([1], [3], [0.5])
+    assert u.provenance == {"function": "SpanningForest.add_edges", "n_new_edges": 1}
+    assert u.method == "filter-kruskal" and u.required.tolist() == [1]
+    assert f.add_edges([1], [3], [0.5]).method == "kruskal"   # the presorted merge, scanned
+    p = fastmst.point_spanning_tree([[0, 0], [3, 0], [3, 4]])
+    assert p.method == "all-pairs" and p.metric == "euclidean"
+    assert p.provenance == {"function": "point_spanning_tree", "metric": "euclidean"}

@@ -35,9 +35,11 @@ import numpy as np
 import dask
 from dask.delayed import Delayed
 
-import fastmst
 from fastmst import validation
-from fastmst.solve.solve import SpanningForest
+from fastmst._kernels.dsu import DisjointSet
+from fastmst.dask import checks
+from fastmst.solve.result import SpanningForest
+from fastmst.solve.solve import solve_trusted
 
 __all__ = ["minimum_spanning_forest", "PLANS", "BYTES_PER_EDGE"]
 
@@ -66,11 +68,11 @@ def _column(values, name, where):
         if isinstance(values.dtype, np.dtype):  # NaN in float columns is checked later
             return values.to_numpy()
         # an extension dtype (nullable Int64, pyarrow-backed, ...): refuse NA, then unwrap
-        validation.check_chunk_no_missing(values, name, _FUNC, where)
+        checks.check_chunk_no_missing(values, name, _FUNC, where)
         return values.to_numpy(dtype=_numpy_dtype(values.dtype))
     if hasattr(values, "null_count") and hasattr(values, "to_numpy"):  # a pyarrow column
         if values.null_count:
-            validation.check_chunk_no_missing(values.to_pandas(), name, _FUNC, where)
+            checks.check_chunk_no_missing(values.to_pandas(), name, _FUNC, where)
         return values.to_numpy()
     return np.asarray(values)
 
@@ -93,13 +95,13 @@ def _chunk_arrays(chunk, names, where):
             chunk, Mapping):
         present = list(chunk.columns) if not hasattr(chunk, "column_names") else list(
             chunk.column_names)
-        validation.check_columns(present, wanted, _FUNC, where)
+        checks.check_columns(present, wanted, _FUNC, where)
         return tuple(_column(chunk[c], role, where) for role, c in zip(wanted, names))
     if hasattr(chunk, "column_names"):  # pyarrow Table / RecordBatch
-        validation.check_columns(chunk.column_names, wanted, _FUNC, where)
+        checks.check_columns(chunk.column_names, wanted, _FUNC, where)
         return tuple(_column(chunk.column(c), role, where) for role, c in zip(wanted, names))
     if isinstance(chunk, Mapping):
-        validation.check_columns(list(chunk.keys()), wanted, _FUNC, where)
+        checks.check_columns(list(chunk.keys()), wanted, _FUNC, where)
         return tuple(_column(chunk[c], role, where) for role, c in zip(wanted, names))
     if isinstance(chunk, tuple) and len(chunk) == 3:
         return tuple(_column(c, role, where) for role, c in zip(wanted, chunk))
@@ -116,8 +118,8 @@ def _stats(chunk, names, index, n_nodes):
     if not (t.shape == h.shape == w.shape) or t.ndim != 1:
         raise ValueError(f"{_FUNC}: tail, head and weight of {where} must be 1-D with one entry "
                          f"per edge, received shapes {t.shape}, {h.shape} and {w.shape}.")
-    validation.check_chunk_ids(t, "tail", n_nodes, _FUNC, where)
-    validation.check_chunk_ids(h, "head", n_nodes, _FUNC, where)
+    checks.check_chunk_ids(t, "tail", n_nodes, _FUNC, where)
+    checks.check_chunk_ids(h, "head", n_nodes, _FUNC, where)
     validation.check_weights(w, _FUNC, f"weight ({where})")
     hi = max(int(t.max()), int(h.max())) if t.size else -1
     return {"m": int(t.shape[0]), "hi": hi, "tail": t.dtype.str, "head": h.dtype.str,
@@ -163,8 +165,8 @@ def _local_forest(rec, n_comp, maximize):
     if n_comp > 8 * m + 1024:  # compact the ids so the kernel's work arrays stay O(m)
         uniq, inv = np.unique(np.concatenate([ct, ch]), return_inverse=True)
         ct, ch, n_comp = inv[:m], inv[m:], uniq.shape[0]
-    f = fastmst.minimum_spanning_forest(ct, ch, rec["w"], n_comp, maximize=maximize,
-                                        threads=1)
+    # Valid by construction: ids checked in pass 0 (or component labels), kernel weights.
+    f = solve_trusted(ct, ch, rec["w"], n_comp, maximize=maximize, threads=1)
     return np.sort(f.edges)
 
 
@@ -277,7 +279,7 @@ def _partitions(edges, names):
         dd = None
     if dd is not None and isinstance(edges, dd.DataFrame):
         wanted = dict(zip(("tail", "head", "weight"), names))
-        validation.check_columns(list(edges.columns), wanted, _FUNC, "the Dask DataFrame")
+        checks.check_columns(list(edges.columns), wanted, _FUNC, "the Dask DataFrame")
         dtypes = edges.dtypes
         for role, col in wanted.items():
             kind = getattr(dtypes[col], "kind", "O")
@@ -422,8 +424,9 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
     -------
     SpanningForest
         As from :func:`fastmst.minimum_spanning_forest` on the concatenated partitions: ``edges``
-        are global edge ids (partition offset + row), ordered by (weight, id).  The attribute
-        ``dask_plan`` records the passes that ran (rounds, sizes, seconds).
+        are global edge ids (partition offset + row), ordered by (weight, id).
+        ``provenance["plan"]`` (also ``dask_plan``) records the passes that ran (rounds,
+        sizes, seconds).
 
     Notes
     -----
@@ -565,7 +568,7 @@ def _contract(cand, labels, n_comp, n):
     cand.clear()  # the client holds O(n): free the candidates as soon as possible
     del first
     ct, ch = (rec["t"], rec["h"]) if labels is None else (labels[rec["t"]], labels[rec["h"]])
-    ds = fastmst.DisjointSet(n_comp)
+    ds = DisjointSet(n_comp)
     merged = ds.union_pairs(ct, ch)
     if int(np.count_nonzero(merged)) != uniq.shape[0]:  # pragma: no cover - a broken invariant
         raise RuntimeError(f"{_FUNC}: internal error: the Borůvka candidates closed a cycle; "
@@ -589,14 +592,13 @@ def _assemble(chosen, n, n_edges, maximize, dtypes, info):
     del order
     # The union of the chosen edges is a forest; solving it once more orders it by the tie
     # rule and yields the component labels exactly as the in-memory function numbers them.
-    f = fastmst.minimum_spanning_forest(t, h, w, n, maximize=maximize, threads=1)
+    f = solve_trusted(t, h, w, n, maximize=maximize, threads=1)
     if len(f) != ids.shape[0]:  # pragma: no cover - a broken invariant
         raise RuntimeError(f"{_FUNC}: internal error: the merged edges are not a forest; "
                            f"please report this with the input that caused it.")
     pos = f.edges
-    out = SpanningForest(ids[pos], t[pos].astype(tdt), h[pos].astype(hdt),
-                         w[pos].astype(wdt), n, n_edges, f.n_components, f.labels, maximize,
-                         "dask-" + ("+".join(["boruvka"] * bool(info["rounds"])
-                                             + ["filter"] * bool(info["final"])) or "none"))
-    out.dask_plan = info
-    return out
+    method = "dask-" + ("+".join(["boruvka"] * bool(info["rounds"])
+                                 + ["filter"] * bool(info["final"])) or "none")
+    return SpanningForest(ids[pos], t[pos].astype(tdt), h[pos].astype(hdt), w[pos].astype(wdt),
+                          n, n_edges, f.n_components, f.labels, maximize, method,
+                          provenance={"function": _FUNC, "plan": info})

@@ -9,6 +9,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from fastmst import validation
+
 EARTH_RADIUS_M = 6_371_008.8
 
 
@@ -69,6 +71,7 @@ def edge_lengths(coords, tail, head, *, metric: str = "euclidean") -> np.ndarray
         In the units of ``coords`` (Euclidean) or metres (great-circle).
     """
     f = "edge_lengths"
+    metric = validation.check_choice(metric, ("euclidean", "great-circle"), "metric", f)
     xy = _coords(coords, "coords", f)
     if xy.ndim != 2:
         raise ValueError(f"{f}: coords must have shape (n_nodes, d), received {xy.shape}.")
@@ -77,9 +80,7 @@ def edge_lengths(coords, tail, head, *, metric: str = "euclidean") -> np.ndarray
     if metric == "euclidean":
         d = xy[t] - xy[h]
         return np.sqrt(np.einsum("ij,ij->i", d, d))
-    if metric == "great-circle":
-        if xy.shape[1] != 2:
-            raise ValueError(f"{f}: great-circle lengths need (longitude, latitude) columns, "
-                             f"received {xy.shape[1]} columns.")
-        return haversine_m(xy[t, 0], xy[t, 1], xy[h, 0], xy[h, 1])
-    raise ValueError(f"{f}: unknown metric {metric!r}; expected 'euclidean' or 'great-circle'.")
+    if xy.shape[1] != 2:
+        raise ValueError(f"{f}: great-circle lengths need (longitude, latitude) columns, "
+                         f"received {xy.shape[1]} columns.")
+    return haversine_m(xy[t, 0], xy[t, 1], xy[h, 0], xy[h, 1])

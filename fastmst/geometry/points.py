@@ -19,8 +19,10 @@ import numpy as np
 
 from fastmst import validation
 from fastmst._kernels.points import METRIC_CODES, dense_prim
-from fastmst.solve.solve import SpanningForest, minimum_spanning_forest
+from fastmst.geometry import checks
 from fastmst.geometry.geodesy import EARTH_RADIUS_M, haversine_m
+from fastmst.solve.result import SpanningForest
+from fastmst.solve.solve import solve_trusted
 
 __all__ = ["point_spanning_tree", "EARTH_RADIUS_M"]
 
@@ -347,10 +349,13 @@ def _check_metric(metric, X, kwargs):
             raise ValueError(f"{_FUNC}: metric 'great-circle' takes only metric_kwargs="
                              f"{{'radius': metres}}, received keys {sorted(extra)}.")
         r = kwargs.get("radius", EARTH_RADIUS_M)
-        if isinstance(r, bool) or not isinstance(r, (int, float, np.integer, np.floating)) \
-                or not np.isfinite(r) or r <= 0:
+        if isinstance(r, (bool, np.bool_)) or not isinstance(r, (int, float, np.integer,
+                                                                 np.floating)):
+            raise TypeError(f"{_FUNC}: radius must be a number of metres, received "
+                            f"{type(r).__name__} {validation.shown(r)}.")
+        if not np.isfinite(r) or r <= 0:
             raise ValueError(f"{_FUNC}: radius must be a positive finite number of metres, "
-                             f"received {r!r}.")
+                             f"received {validation.shown(r)}.")
         return
     if metric in METRIC_CODES and not kwargs:
         return
@@ -445,9 +450,9 @@ def point_spanning_tree(points, *, metric: str = "euclidean", max_length=None,
     2
     """
     if metric == "great-circle":
-        X = validation.check_lonlat(points, _FUNC)
+        X = checks.check_lonlat(points, _FUNC)
     else:
-        X = validation.check_points(points, _FUNC)
+        X = checks.check_points(points, _FUNC)
     kwargs = {} if metric_kwargs is None else metric_kwargs
     if not isinstance(kwargs, dict):
         raise TypeError(f"{_FUNC}: metric_kwargs must be a dict or None, received "
@@ -455,7 +460,7 @@ def point_spanning_tree(points, *, metric: str = "euclidean", max_length=None,
     if isinstance(metric, str):
         kwargs = _metric_defaults(metric, X, kwargs)
     _check_metric(metric, X, kwargs)
-    limit = validation.check_max_length(max_length, _FUNC)
+    limit = checks.check_max_length(max_length, _FUNC)
     threads = 1 if threads is None else validation.check_threads(threads, _FUNC)
     n, d = X.shape
 
@@ -499,11 +504,11 @@ def _build(X, n, d, metric, kwargs, limit, threads):
     if n < 2:
         t = h = np.empty(0, dtype=np.int64)
         w = np.empty(0, dtype=np.float64)
-        f = minimum_spanning_forest(t, h, w, n_nodes=n)
+        f = solve_trusted(t, h, w, n)
         route = "all-pairs"
     elif route is not None:
         w = length(t, h)
-        f = minimum_spanning_forest(t, h, w, n_nodes=n)
+        f = solve_trusted(t, h, w, n)
         if f.n_components != 1:       # a candidate set must span; never trust one that does not
             route = None
     if route is None:
@@ -519,15 +524,14 @@ def _build(X, n, d, metric, kwargs, limit, threads):
         order = np.argsort(pair_position(t, h, n), kind="stable")
         t, h = t[order], h[order]
         w = length(t, h) if length is not None else w[order]
-        f = minimum_spanning_forest(t, h, w, n_nodes=n)
+        f = solve_trusted(t, h, w, n)
     tt, hh, ww = t[f.edges], h[f.edges], w[f.edges]
     _too_far(ww, metric)
     if limit is not None:
         keep = ww <= limit
         tt, hh, ww = tt[keep], hh[keep], ww[keep]
-        f = minimum_spanning_forest(tt, hh, ww, n_nodes=n)   # labels of the clusters
+        f = solve_trusted(tt, hh, ww, n)   # labels of the clusters
         tt, hh, ww = tt[f.edges], hh[f.edges], ww[f.edges]
-    out = SpanningForest(pair_position(tt, hh, n), tt, hh, ww, n, n * (n - 1) // 2,
-                         f.n_components, f.labels, False, route)
-    out.metric = metric
-    return out
+    return SpanningForest(pair_position(tt, hh, n), tt, hh, ww, n, n * (n - 1) // 2,
+                          f.n_components, f.labels, False, route,
+                          provenance={"function": _FUNC, "metric": metric})

@@ -12,7 +12,8 @@ import numpy as np
 
 from fastmst import validation
 from fastmst._kernels.steiner import mark_paths, prune_leaves, voronoi
-from fastmst.solve.solve import minimum_spanning_forest
+from fastmst.geometry import checks
+from fastmst.solve.solve import solve_trusted
 
 __all__ = ["SteinerTree", "steiner_tree"]
 
@@ -121,7 +122,7 @@ def _tree_and_prune(n, t, h, w, nodes_mask, is_terminal):
     Returns the kept edge positions (ascending).
     """
     cand = np.flatnonzero(nodes_mask[t] & nodes_mask[h] & (t != h))
-    f = minimum_spanning_forest(t[cand], h[cand], w[cand], n_nodes=n)
+    f = solve_trusted(t[cand], h[cand], w[cand], n)
     chosen = np.sort(cand[f.edges])
     indptr, nbr, arc_edge, _ = _csr(n, t[chosen], h[chosen],
                                     np.arange(chosen.shape[0], dtype=np.int64))
@@ -182,9 +183,9 @@ def steiner_tree(tail, head, weight, terminals, n_nodes=None) -> SteinerTree:
     (3.0, [3], [0, 1, 2])
     """
     g = validation.validate_edges(tail, head, weight, n_nodes, func=_FUNC)
-    validation.check_nonnegative_finite(g.weight, _FUNC)
+    checks.check_nonnegative_finite(g.weight, _FUNC)
     n, m = g.n_nodes, g.n_edges
-    term = validation.check_terminals(terminals, n, _FUNC)
+    term = checks.check_terminals(terminals, n, _FUNC)
     k = term.shape[0]
     t = np.asarray(g.ktail, dtype=np.int64)
     h = np.asarray(g.khead, dtype=np.int64)
@@ -198,7 +199,7 @@ def steiner_tree(tail, head, weight, terminals, n_nodes=None) -> SteinerTree:
         rt, rh = region[t], region[h]
         bridge = np.flatnonzero((rt >= 0) & (rh >= 0) & (rt != rh))
         bw = dist[t[bridge]] + w[bridge] + dist[h[bridge]]
-        f = minimum_spanning_forest(rt[bridge], rh[bridge], bw, n_nodes=k)
+        f = solve_trusted(rt[bridge], rh[bridge], bw, k)
         picked = bridge[f.edges]
         mark = mark_paths(np.concatenate([t[picked], h[picked]]), pred_edge, pred_node, m)
         mark[picked] = True
@@ -222,7 +223,7 @@ def steiner_tree(tail, head, weight, terminals, n_nodes=None) -> SteinerTree:
         chosen = np.empty(0, dtype=np.int64)
 
     # Trees of the result, and the bound per tree.
-    comp = minimum_spanning_forest(t[chosen], h[chosen], w[chosen], n_nodes=n)
+    comp = solve_trusted(t[chosen], h[chosen], w[chosen], n)
     lab = comp.labels[term]
     _, first, tree_of = np.unique(lab, return_index=True, return_inverse=True)
     rank = np.empty(first.shape[0], dtype=np.int64)

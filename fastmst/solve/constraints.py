@@ -1,11 +1,22 @@
-"""Required and excluded edges: the lightest forest that keeps some links and avoids others."""
+"""Required and excluded edges: the lightest forest that keeps some links and avoids others.
+
+Works on validated arrays (``fastmst.validation.EdgeArrays`` and checked positions) and returns
+the fields of a ``SpanningForest`` as a dict, so that it sits below ``fastmst.solve.result``:
+the public entry ``minimum_spanning_forest(..., required=, excluded=)`` validates once, calls
+``constrained_forest`` and wraps the fields; ``SpanningForest.add_edges`` calls it too, to keep
+a forest's required edges through an update.  ``run`` and ``forest_fields`` are the two steps
+of every validated solve (a registered method, then the fields of its result).
+"""
 from __future__ import annotations
+
+import math
 
 import numpy as np
 
 from fastmst import validation
 from fastmst._kernels.dsu import labels_from_parent
 from fastmst._kernels.paths import kruskal_tree, root_forest, union_parent
+from fastmst.solve import methods
 
 _FUNC = "minimum_spanning_forest"
 
@@ -42,23 +53,57 @@ def _cycle_error(g, req: np.ndarray, at: int):
                       f"contains them all; drop at least one of them from required.")
 
 
-def constrained_forest(tail, head, weight, n_nodes=None, *, required=None, excluded=None,
-                       method="auto", presorted=False, maximize=False, threads=None):
-    """The optimal forest that contains every ``required`` and no ``excluded`` position.
+def run(g: validation.EdgeArrays, method: str, presorted: bool, maximize: bool,
+        threads: int) -> tuple[methods.KernelResult, str]:
+    """Run a registered method ("auto" resolved by ``methods.choose_method``) on valid edges;
+    return its result and the method that ran."""
+    if method == "auto":
+        method = methods.choose_method(g, presorted, threads)
+    return methods.RUNNERS[method](g, presorted, maximize, threads), method
 
-    Called by ``minimum_spanning_forest`` when ``required`` or ``excluded`` is given.  The
-    required edges are joined first (contracted); the rest of the forest is the optimal forest
-    of the contracted graph without the excluded edges, under the same tie rule.  The result's
-    ``required_excess`` is its weight minus the weight of the optimal forest of the graph without
-    the excluded edges (that one minus this one when maximizing): what the requirement costs.
+
+def forest_fields(g: validation.EdgeArrays, r: methods.KernelResult, maximize: bool,
+                  method: str, **extra) -> dict:
+    """The keyword arguments of the ``SpanningForest`` of a kernel result on ``g`` (``extra``
+    adds or overrides fields)."""
+    fields = dict(edges=r.edges, tail=r.tail, head=r.head, weights=r.weights,
+                  n_nodes=g.n_nodes, n_edges=g.n_edges, n_components=r.n_components,
+                  labels=r.labels, maximize=maximize, method=method)
+    fields.update(extra)
+    return fields
+
+
+def total(fields: dict) -> float:
+    """Exactly rounded total weight of forest fields (as ``SpanningForest.weight``)."""
+    return math.fsum(fields["weights"].tolist())
+
+
+def _solve_subgraph(g, keep: np.ndarray, group, n_nodes: int, opts: dict):
+    """The optimal forest of the edges ``keep`` of ``g`` (endpoints mapped through ``group``
+    when given); the edges are valid by construction, so nothing is checked again."""
+    t, h = g.ktail[keep], g.khead[keep]
+    if group is not None:
+        t, h = group[t], group[h]
+    sub = validation.trusted_edges(t, h, g.kweight[keep], n_nodes)
+    return run(sub, opts["method"], opts["presorted"], opts["maximize"], opts["threads"])
+
+
+def constrained_forest(g: validation.EdgeArrays, required: np.ndarray, excluded: np.ndarray, *,
+                       method: str, presorted: bool, maximize: bool, threads: int) -> dict:
+    """The optimal forest of validated edges that contains every ``required`` and no
+    ``excluded`` position (both int64 arrays of positions in ``[0, n_edges)``, any order), as
+    ``SpanningForest`` fields.
+
+    The required edges are joined first (contracted); the rest of the forest is the optimal
+    forest of the contracted graph without the excluded edges, under the same tie rule.  The
+    result's ``required_excess`` is its weight minus the weight of the optimal forest of the
+    graph without the excluded edges (that one minus this one when maximizing): what the
+    requirement costs; that forest's fields are under ``free``.  ``method``, ``presorted``
+    and ``threads`` are already checked.
     """
-    from fastmst.solve.solve import build_forest, minimum_spanning_forest, METHODS
-    g = validation.validate_edges(tail, head, weight, n_nodes, func=_FUNC)
-    validation.check_choice(method, METHODS, "method", _FUNC)
-    maximize = validation.check_bool(maximize, "maximize", _FUNC)
     e = g.n_edges
-    req = np.unique(validation.check_positions(required, e, "required", _FUNC))
-    exc = np.unique(validation.check_positions(excluded, e, "excluded", _FUNC))
+    req = np.unique(required)
+    exc = np.unique(excluded)
     both = np.intersect1d(req, exc)
     if both.size:
         raise ValueError(f"{_FUNC}: positions {both[:10].tolist()} are both required and "
@@ -66,14 +111,13 @@ def constrained_forest(tail, head, weight, n_nodes=None, *, required=None, exclu
     allowed = np.ones(e, dtype=bool)
     allowed[exc] = False
     opts = dict(method=method, presorted=presorted, maximize=maximize, threads=threads)
+    provenance = {"function": _FUNC, "n_required": int(req.size), "n_excluded": int(exc.size)}
     if req.size == 0:
         keep = np.flatnonzero(allowed)
-        sub = minimum_spanning_forest(g.ktail[keep], g.khead[keep], g.kweight[keep], g.n_nodes,
-                                      **opts)
-        out = build_forest(g, keep[sub.edges], sub.labels, sub.n_components, maximize,
-                           sub.method, True)
-        out.required_excess = 0.0
-        return out
+        sub, used = _solve_subgraph(g, keep, None, g.n_nodes, opts)
+        r = methods.kernel_result(g, keep[sub.edges], sub.labels, sub.n_components, maximize,
+                                  True)
+        return forest_fields(g, r, maximize, used, provenance=provenance)
     rt = np.ascontiguousarray(g.ktail[req], dtype=np.int64)
     rh = np.ascontiguousarray(g.khead[req], dtype=np.int64)
     _, _, _, _, cycle = kruskal_tree(rt, rh, g.n_nodes)
@@ -82,17 +126,17 @@ def constrained_forest(tail, head, weight, n_nodes=None, *, required=None, exclu
     group, n_groups = labels_from_parent(union_parent(rt, rh, g.n_nodes))
     allowed[req] = False
     keep = np.flatnonzero(allowed)
-    sub = minimum_spanning_forest(group[g.ktail[keep]], group[g.khead[keep]], g.kweight[keep],
-                                  n_groups, **opts)
+    sub, used = _solve_subgraph(g, keep, group, n_groups, opts)
     edges = np.concatenate([req, keep[sub.edges]])
     labels = _first_appearance(sub.labels[group])
-    out = build_forest(g, edges, labels, sub.n_components, maximize, sub.method, False)
+    out = forest_fields(g, methods.kernel_result(g, edges, labels, sub.n_components, maximize,
+                                                 False), maximize, used)
     allowed[req] = True
     free_keep = np.flatnonzero(allowed)
-    free = minimum_spanning_forest(g.ktail[free_keep], g.khead[free_keep], g.kweight[free_keep],
-                                   g.n_nodes, **opts)
-    out.required_excess = (free.weight - out.weight) if maximize else (out.weight - free.weight)
-    out.__dict__["_required"] = req
-    out.__dict__["_free"] = build_forest(g, free_keep[free.edges], free.labels, free.n_components,
-                                         maximize, free.method, True)
+    sub, used = _solve_subgraph(g, free_keep, None, g.n_nodes, opts)
+    free = forest_fields(g, methods.kernel_result(g, free_keep[sub.edges], sub.labels,
+                                                  sub.n_components, maximize, True),
+                         maximize, used)
+    excess = (total(free) - total(out)) if maximize else (total(out) - total(free))
+    out.update(required=req, required_excess=excess, provenance=provenance, free=free)
     return out

@@ -3,8 +3,9 @@
 Every method is a runner ``runner(g, presorted, maximize, threads) -> KernelResult`` on validated
 ``EdgeArrays``; all of them return the identical result.  ``RUNNERS`` maps a method name to its
 runner, so adding a method is one runner and one entry here (``METHODS`` and the CLI choices
-follow).  ``choose_method`` is the rule behind ``method="auto"``; ``run_method`` runs a method
-and wraps its result into a ``SpanningForest``.
+follow).  ``choose_method`` is the rule behind ``method="auto"``.  This module sits below
+``fastmst.solve.result``: the solve (``fastmst.solve.constraints.run``/``forest_fields``) turns a
+KernelResult into the fields of a ``SpanningForest``.
 """
 from __future__ import annotations
 
@@ -20,7 +21,6 @@ from fastmst._kernels.radix import MAX_RECORDS
 from fastmst._kernels.radix_kruskal import kruskal_radix
 from fastmst._kernels.scan import forest_bound, forest_size, kruskal
 from fastmst._kernels.tie_rule import edge_order, sort_positions
-from fastmst.solve.result import SpanningForest
 
 
 class KernelResult(NamedTuple):
@@ -61,22 +61,6 @@ def kernel_result(g: validation.EdgeArrays, edges: np.ndarray, labels: np.ndarra
             # np.take gathers ~30 % faster than fancy indexing at 1M of 10M positions (measured)
             parts.append(np.take(arr, edges))
     return KernelResult(edges, labels, n_components, *parts)
-
-
-def to_forest(g: validation.EdgeArrays, r: KernelResult, maximize: bool,
-              method: str) -> SpanningForest:
-    """The SpanningForest of a kernel result."""
-    return SpanningForest(r.edges, r.tail, r.head, r.weights, g.n_nodes, g.n_edges,
-                          r.n_components, r.labels, maximize, method)
-
-
-def build_forest(g: validation.EdgeArrays, edges: np.ndarray, labels: np.ndarray,
-                 n_components: int, maximize: bool, method: str, sorted_by_rule: bool,
-                 gathered=None) -> SpanningForest:
-    """``to_forest(g, kernel_result(...), maximize, method)``: accepted positions of ``g`` into
-    a SpanningForest (used by the solve's internal callers, e.g. constraints)."""
-    return to_forest(g, kernel_result(g, edges, labels, n_components, maximize, sorted_by_rule,
-                                      gathered), maximize, method)
 
 
 # --------------------------------------------------------------------------------- runners
@@ -156,9 +140,3 @@ def choose_method(g: validation.EdgeArrays, presorted: bool, threads: int) -> st
     if g.n_edges >= MAX_RECORDS:
         return "boruvka"
     return "filter-kruskal"
-
-
-def run_method(g: validation.EdgeArrays, method: str, presorted: bool, maximize: bool,
-               threads: int) -> SpanningForest:
-    """Run a registered method on validated edges (every method returns the identical forest)."""
-    return to_forest(g, RUNNERS[method](g, presorted, maximize, threads), maximize, method)

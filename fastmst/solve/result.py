@@ -1,9 +1,21 @@
-"""SpanningForest: the result of every solve."""
+"""SpanningForest: the result of every solve.
+
+Every field is declared in the class (``__slots__``, no ``__dict__``); nothing is attached from
+outside.  The forest's methods call the toolkit's array engines, which sit below this module:
+``fastmst.toolkit.pathmax`` (merge tree), ``bottleneck``, ``clusters`` and ``update``.
+"""
 from __future__ import annotations
 
 import math
 
 import numpy as np
+
+from fastmst.toolkit import bottleneck as _bottleneck
+from fastmst.toolkit import clusters as _clusters
+from fastmst.toolkit import update as _update
+
+_NONE = np.empty(0, dtype=np.int64)
+_NONE.flags.writeable = False
 
 
 class SpanningForest:
@@ -29,20 +41,46 @@ class SpanningForest:
     maximize : bool
         True for a maximum spanning forest.
     method : str
-        The algorithm that ran ("kruskal", "boruvka", ...).
+        The algorithm that built the forest: the kernel that ran ("kruskal", "filter-kruskal",
+        "boruvka"), the route of a point tree ("delaunay", "dense-prim", ...), or the passes of
+        a Dask solve ("dask-boruvka+filter", ...).
+    required : ndarray of shape (R,), dtype=int64
+        Positions of the edges the forest was required to contain, ascending; empty when
+        nothing was required.  ``add_edges`` keeps them.
     required_excess : float
         What the ``required`` edges of ``minimum_spanning_forest`` cost: this forest's weight
         minus that of the optimal forest without the requirement (the reverse when maximizing),
         so always >= 0; 0.0 when nothing was required.
+    provenance : dict
+        Which call produced the forest: ``provenance["function"]`` is
+        "minimum_spanning_forest", "SpanningForest.add_edges", "point_spanning_tree" or
+        "fastmst.dask.minimum_spanning_forest"; the other keys are that call's details
+        (``n_required`` and ``n_excluded`` of a constrained solve, ``n_new_edges`` of an
+        update, ``metric`` of a point tree, ``plan`` of a Dask solve).
+    metric : str or None
+        The metric of a point tree (``provenance["metric"]``); None for other forests.
+    dask_plan : dict or None
+        The passes a Dask solve ran: rounds, sizes and seconds (``provenance["plan"]``); None
+        for other forests.
+    weight : float
+        Total weight, summed exactly rounded (``math.fsum``).
+
+    Notes
+    -----
+    Two private fields: ``_free``, for a forest with ``required`` edges the optimal forest of
+    the same graph without the requirement (``add_edges`` updates it to keep
+    ``required_excess`` right), else None; and ``_cache``, values computed once on demand (the
+    total weight, the merge tree of ``bottleneck`` and ``single_linkage``).  A pickled forest
+    leaves the cache behind.
     """
 
     __slots__ = ("edges", "tail", "head", "weights", "n_nodes", "n_edges", "n_components",
-                 "labels", "maximize", "method", "_weight", "__dict__")
-
-    required_excess = 0.0
+                 "labels", "maximize", "method", "required", "required_excess", "provenance",
+                 "_free", "_cache")
 
     def __init__(self, edges, tail, head, weights, n_nodes, n_edges, n_components, labels,
-                 maximize=False, method=""):
+                 maximize=False, method="", *, required=None, required_excess=0.0,
+                 provenance=None, free=None):
         self.edges = edges
         self.tail = tail
         self.head = head
@@ -53,14 +91,47 @@ class SpanningForest:
         self.labels = labels
         self.maximize = bool(maximize)
         self.method = method
-        self._weight = None
+        self.required = _NONE if required is None else required
+        self.required_excess = float(required_excess)
+        self.provenance = ({"function": "minimum_spanning_forest"} if provenance is None
+                           else provenance)
+        self._free = free
+        self._cache = {}
+
+    @classmethod
+    def _from_fields(cls, fields: dict) -> "SpanningForest":
+        """A forest from the field dict of the array-level solves (``fastmst.solve.constraints``,
+        ``fastmst.toolkit.update``); a nested ``free`` dict becomes a forest too."""
+        free = fields.get("free")
+        if isinstance(free, dict):
+            fields = {**fields, "free": cls._from_fields(free)}
+        return cls(**fields)
+
+    def __getstate__(self):
+        return {k: getattr(self, k) for k in self.__slots__ if k != "_cache"}
+
+    def __setstate__(self, state):
+        for k, v in state.items():
+            setattr(self, k, v)
+        self._cache = {}
+
+    @property
+    def metric(self) -> str | None:
+        """The metric of a point tree; None for other forests."""
+        return self.provenance.get("metric")
+
+    @property
+    def dask_plan(self) -> dict | None:
+        """The passes of a Dask solve (rounds, sizes, seconds); None for other forests."""
+        return self.provenance.get("plan")
 
     @property
     def weight(self) -> float:
         """Total weight as a Python float, summed exactly rounded (``math.fsum``)."""
-        if self._weight is None:
-            self._weight = math.fsum(self.weights.tolist())
-        return self._weight
+        total = self._cache.get("weight")
+        if total is None:
+            total = self._cache["weight"] = math.fsum(self.weights.tolist())
+        return total
 
     def __len__(self) -> int:
         return int(self.edges.shape[0])
@@ -95,7 +166,6 @@ class SpanningForest:
                                   self.weights.tolist(), self.edges.tolist())
         )
         return g
-
 
     def bottleneck(self, a, b, *, threads=None):
         """Heaviest edge on the forest path between nodes ``a`` and ``b`` (minimax queries).
@@ -132,8 +202,7 @@ class SpanningForest:
         >>> w.tolist(), p.tolist()
         ([3.0, 3.0, -inf], [3, 3, -1])
         """
-        from fastmst.toolkit.bottleneck import bottleneck
-        return bottleneck(self, a, b, threads)
+        return _bottleneck.bottleneck(self, a, b, threads)
 
     def add_edges(self, tail, head, weight, n_nodes=None) -> "SpanningForest":
         """Optimal forest of the old graph plus new edges, from this forest and the new edges.
@@ -153,8 +222,7 @@ class SpanningForest:
         >>> g.edges.tolist(), g.weight
         ([0, 2], 3.0)
         """
-        from fastmst.toolkit.update import add_edges
-        return add_edges(self, tail, head, weight, n_nodes)
+        return SpanningForest._from_fields(_update.add_edges(self, tail, head, weight, n_nodes))
 
     def clusters(self, k=None, threshold=None):
         """Single-linkage flat clusters: labels after cutting the heaviest forest edges.
@@ -185,5 +253,4 @@ class SpanningForest:
         >>> f.clusters(k=2).tolist(), f.clusters(threshold=0.7).tolist()
         ([0, 0, 1, 1], [0, 0, 1, 2])
         """
-        from fastmst.toolkit.linkage import clusters
-        return clusters(self, k, threshold)
+        return _clusters.clusters(self, k, threshold)

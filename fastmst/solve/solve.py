@@ -1,9 +1,12 @@
 """minimum_spanning_forest: the public solve, and the private solve that internals call."""
 from __future__ import annotations
 
+import numpy as np
+
 from fastmst import validation
-from fastmst._kernels.radix import first_unsorted
-from fastmst.solve.methods import METHODS, build_forest, choose_method, run_method
+from fastmst._kernels.tie_rule import first_unsorted
+from fastmst.solve.constraints import constrained_forest, forest_fields, run
+from fastmst.solve.methods import METHODS
 from fastmst.solve.result import SpanningForest
 
 _FUNC = "minimum_spanning_forest"
@@ -64,11 +67,6 @@ def minimum_spanning_forest(tail, head, weight, n_nodes=None, *, method="auto",
     >>> f.edges.tolist(), f.weight, f.n_components
     ([0, 2, 3], 7.0, 1)
     """
-    if required is not None or excluded is not None:
-        from fastmst.solve.constraints import constrained_forest
-        return constrained_forest(tail, head, weight, n_nodes, required=required,
-                                  excluded=excluded, method=method, presorted=presorted,
-                                  maximize=maximize, threads=threads)
     g = validation.validate_edges(tail, head, weight, n_nodes, func=_FUNC)
     method = validation.check_choice(method, METHODS, "method", _FUNC)
     presorted = validation.check_bool(presorted, "presorted", _FUNC)
@@ -79,20 +77,41 @@ def minimum_spanning_forest(tail, head, weight, n_nodes=None, *, method="auto",
         if bad >= 0:
             order = "non-increasing" if maximize else "non-decreasing"
             raise ValueError(f"{_FUNC}: presorted=True but the weights are not {order}: "
-                             f"weight[{bad}] = {g.weight[bad]!r} follows weight[{bad - 1}] = "
-                             f"{g.weight[bad - 1]!r}. Sort the edges first or pass "
-                             f"presorted=False.")
+                             f"weight[{bad}] = {validation.shown(g.weight[bad])} follows "
+                             f"weight[{bad - 1}] = {validation.shown(g.weight[bad - 1])}. Sort "
+                             f"the edges first or pass presorted=False.")
+    if required is not None or excluded is not None:
+        req = validation.check_positions(required, g.n_edges, "required", _FUNC)
+        exc = validation.check_positions(excluded, g.n_edges, "excluded", _FUNC)
+        return SpanningForest._from_fields(constrained_forest(
+            g, req, exc, method=method, presorted=presorted, maximize=maximize, threads=threads))
     return solve_validated(g, method=method, presorted=presorted, maximize=maximize,
                            threads=threads)
 
 
 def solve_validated(g: validation.EdgeArrays, *, method: str = "auto", presorted: bool = False,
                     maximize: bool = False, threads: int = 1) -> SpanningForest:
-    """The solve on edges that ``validation.validate_edges`` has checked (private).
+    """The solve on edges that are already valid (private).
 
-    Internals (constraints, updates, points, Steiner trees, Dask) call this instead of the public
-    function so that nothing is validated twice.  ``presorted`` is trusted, not checked.
+    ``g`` comes from ``validation.validate_edges`` or, for edges valid by construction, from
+    ``validation.trusted_edges``; ``method`` is one of ``METHODS``, ``threads`` a positive count
+    and ``presorted`` is trusted, not checked.  Internals above the result (point trees, Steiner
+    trees, Dask, ``check_forest``) call this instead of the public function so that nothing is
+    validated twice; constraints and updates sit below ``SpanningForest`` and use the same two
+    steps (``constraints.run``, ``constraints.forest_fields``) directly.
     """
-    if method == "auto":
-        method = choose_method(g, presorted, threads)
-    return run_method(g, method, presorted, maximize, threads)
+    r, method = run(g, method, presorted, maximize, threads)
+    return SpanningForest(**forest_fields(g, r, maximize, method))
+
+
+def solve_trusted(tail: np.ndarray, head: np.ndarray, weight: np.ndarray, n_nodes: int, *,
+                  maximize: bool = False, threads: int | None = None) -> SpanningForest:
+    """``solve_validated`` of edges that are valid by construction (private).
+
+    For internals that derive an edge list from validated input (candidate pairs of points,
+    Steiner subgraphs, Dask partitions): see ``validation.trusted_edges`` for what the arrays
+    must satisfy; nothing is checked.  ``threads=None`` means every available core.
+    """
+    threads = validation.check_threads(threads, _FUNC)
+    return solve_validated(validation.trusted_edges(tail, head, weight, n_nodes),
+                           maximize=maximize, threads=threads)

@@ -6,7 +6,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from fastmst import validation
+from fastmst.solve.solve import solve_validated
+from fastmst.toolkit.checks import validate_graph_with_forest
 from fastmst.toolkit.pathmax import heaviest_on_paths, merge_tree, rule_sorted
 
 _FUNC = "check_forest"
@@ -101,8 +102,7 @@ def check_forest(tail, head, weight, edges, n_nodes=None, *, maximize=None,
     >>> c.is_minimum, c.violations.tolist(), c.replaces.tolist(), c.excess
     (False, [2], [1], 0.5)
     """
-    from fastmst.solve.solve import minimum_spanning_forest
-    g, pos, in_forest, maximize, threads = validation.validate_graph_with_forest(
+    g, pos, in_forest, maximize, threads = validate_graph_with_forest(
         tail, head, weight, edges, n_nodes, maximize, threads, name="edges", func=_FUNC,
         strict_maximize=False)
     order = rule_sorted(pos, g.kweight, maximize)
@@ -130,8 +130,7 @@ def check_forest(tail, head, weight, edges, n_nodes=None, *, maximize=None,
     elif is_minimum:
         excess = 0.0
     else:
-        best = minimum_spanning_forest(g.ktail, g.khead, g.kweight, g.n_nodes,
-                                       maximize=maximize, threads=threads).weight
+        best = solve_validated(g, maximize=maximize, threads=threads).weight
         given = math.fsum(g.kweight[pos].tolist())
         excess = (best - given) if maximize else (given - best)
     return ForestCheck(True, bool(is_spanning), is_minimum, violations, replaces, float(excess),

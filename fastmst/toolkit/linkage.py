@@ -4,8 +4,7 @@ from __future__ import annotations
 import numpy as np
 
 from fastmst import validation
-from fastmst._kernels.dsu import labels_from_parent
-from fastmst._kernels.paths import union_parent
+from fastmst.solve.result import SpanningForest
 from fastmst.toolkit.pathmax import forest_merge_tree
 
 
@@ -46,7 +45,6 @@ def single_linkage(forest) -> np.ndarray:
     >>> fastmst.single_linkage(f).tolist()
     [[0.0, 1.0, 0.5, 2.0], [2.0, 3.0, 1.0, 2.0], [4.0, 5.0, 2.0, 4.0]]
     """
-    from fastmst.solve.solve import SpanningForest
     if not isinstance(forest, SpanningForest):
         raise TypeError(f"single_linkage: expected a SpanningForest, received "
                         f"{type(forest).__name__}; compute one with minimum_spanning_forest.")
@@ -61,9 +59,9 @@ def single_linkage(forest) -> np.ndarray:
     if heights.size and heights[0] < 0:
         bad = int(np.flatnonzero(heights < 0)[0])
         raise ValueError(f"single_linkage: the forest edge at position {forest.edges[bad]} "
-                         f"weighs {forest.weights[bad]!r}; linkage heights must be >= 0 "
-                         f"(scipy.cluster.hierarchy rejects negative ones). Shift the weights "
-                         f"(e.g. weight - weight.min()): the clusters do not change.")
+                         f"weighs {validation.shown(forest.weights[bad])}; linkage heights must "
+                         f"be >= 0 (scipy.cluster.hierarchy rejects negative ones). Shift the "
+                         f"weights (e.g. weight - weight.min()): the clusters do not change.")
     tree = forest_merge_tree(forest)
     f = tree.edges.shape[0]
     z = np.empty((n - 1, 4), dtype=np.float64)
@@ -90,27 +88,3 @@ def _first_leaf(forest, tree, roots: np.ndarray) -> np.ndarray:
     inner = roots >= n
     leaf[inner] = np.asarray(forest.tail)[roots[inner] - n]
     return forest.labels[leaf]
-
-
-def clusters(forest, k=None, threshold=None) -> np.ndarray:
-    """Flat single-linkage clusters; see ``SpanningForest.clusters``."""
-    func = "SpanningForest.clusters"
-    if (k is None) == (threshold is None):
-        raise ValueError(f"{func}: pass exactly one of k (number of clusters) or threshold "
-                         f"(cut height), received k={k!r}, threshold={threshold!r}.")
-    n = forest.n_nodes
-    f = len(forest)
-    if k is not None:
-        k = validation.check_cluster_count(k, max(forest.n_components, 1), max(n, 1), func)
-        keep = f - (k - forest.n_components)
-    else:
-        t = validation.check_real(threshold, "threshold", func)
-        w = forest.weights.astype(np.float64)
-        # forest.weights is in tie-rule order: ascending (descending when maximize).
-        keep = int(np.searchsorted(-w if forest.maximize else w,
-                                   -t if forest.maximize else t, side="right"))
-    ft = np.ascontiguousarray(forest.tail[:keep], dtype=np.int64)
-    fh = np.ascontiguousarray(forest.head[:keep], dtype=np.int64)
-    if n == 0:
-        return np.empty(0, dtype=np.int64)
-    return labels_from_parent(union_parent(ft, fh, n))[0]

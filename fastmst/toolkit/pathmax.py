@@ -14,7 +14,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from fastmst._kernels.paths import PathMaxIndex, kruskal_tree
-from fastmst._kernels.radix import edge_order
+from fastmst._kernels.tie_rule import edge_order
 
 
 @dataclass(frozen=True)
@@ -70,14 +70,14 @@ def heaviest_on_paths(tree: MergeTree, qa: np.ndarray, qb: np.ndarray,
 
 
 def forest_merge_tree(forest) -> MergeTree:
-    """The merge tree of a SpanningForest (its ``edges`` are already in tie-rule order), cached
-    on the forest."""
-    tree = forest.__dict__.get("_merge_tree")
+    """The merge tree of a SpanningForest (its ``edges`` are already in tie-rule order), kept
+    in the forest's private cache."""
+    tree = forest._cache.get("merge_tree")
     if tree is None:
         tree, cycle = merge_tree(forest.tail, forest.head, forest.edges, forest.n_nodes)
         if cycle >= 0:
             raise ValueError(f"the SpanningForest's edge at position {forest.edges[cycle]} "
                              f"closes a cycle; this object was not produced by "
                              f"minimum_spanning_forest or has been modified.")
-        forest.__dict__["_merge_tree"] = tree
+        forest._cache["merge_tree"] = tree
     return tree

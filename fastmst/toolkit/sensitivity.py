@@ -5,7 +5,8 @@ import numpy as np
 
 from fastmst import validation
 from fastmst._kernels.paths import cover_paths, root_forest
-from fastmst._kernels.radix import edge_order
+from fastmst._kernels.tie_rule import edge_order
+from fastmst.toolkit.checks import validate_graph_with_forest
 from fastmst.toolkit.pathmax import heaviest_on_paths, merge_tree, rule_sorted
 
 _FUNC = "sensitivity"
@@ -83,7 +84,7 @@ def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None,
     >>> fastmst.sensitivity(t, h, w, f).tolist()
     [3.0, 2.0, 2.0, inf]
     """
-    g, pos, in_forest, maximize, threads = validation.validate_graph_with_forest(
+    g, pos, in_forest, maximize, threads = validate_graph_with_forest(
         tail, head, weight, forest, None, maximize, threads, name="forest", func=_FUNC,
         strict_maximize=True)
     fedges = rule_sorted(pos, g.kweight, maximize)
@@ -112,9 +113,10 @@ def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None,
     if worse.any():
         i = int(np.flatnonzero(worse)[0])
         raise ValueError(f"{_FUNC}: the forest is not {'maximum' if maximize else 'minimum'}: "
-                         f"the non-tree edge at position {non[i]} (weight {g.weight[non[i]]!r}) "
-                         f"beats the forest edge at position {heavy[i]} (weight "
-                         f"{g.weight[heavy[i]]!r}) on its tree path. check_forest(...) lists "
+                         f"the non-tree edge at position {non[i]} (weight "
+                         f"{validation.shown(g.weight[non[i]])}) beats the forest edge at "
+                         f"position {heavy[i]} (weight {validation.shown(g.weight[heavy[i]])}) "
+                         f"on its tree path. check_forest(...) lists "
                          f"every such pair; minimum_spanning_forest(...) gives the optimum.")
     out[non] = _margin(hw, nw) if maximize else _margin(nw, hw)
     if return_partner:

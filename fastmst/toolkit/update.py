@@ -1,22 +1,30 @@
-"""Incremental update: the optimal forest after new candidate edges arrive."""
+"""Incremental update: the optimal forest after new candidate edges arrive.
+
+Array level, below ``fastmst.solve.result``: ``add_edges`` returns the fields of the new
+``SpanningForest``, which ``SpanningForest.add_edges`` wraps.
+"""
 from __future__ import annotations
 
 import numpy as np
 
 from fastmst import validation
+from fastmst._kernels.tie_rule import edge_order
+from fastmst.solve.constraints import constrained_forest, forest_fields, run, total
 
 _FUNC = "SpanningForest.add_edges"
 
 
-def add_edges(forest, tail, head, weight, n_nodes=None):
-    """Optimal forest of the old graph plus new edges; see ``SpanningForest.add_edges``."""
-    from fastmst._kernels.radix import edge_order
-    from fastmst.solve.solve import SpanningForest, minimum_spanning_forest
+def add_edges(forest, tail, head, weight, n_nodes=None) -> dict:
+    """Optimal forest of the old graph plus new edges; see ``SpanningForest.add_edges``.
+
+    Returns the fields of the new ``SpanningForest`` (a dict; with required edges, the fields
+    of the updated optimum without them under ``free``).
+    """
     new = validation.validate_edges(tail, head, weight, n_nodes, func=_FUNC)
     n = max(forest.n_nodes, new.n_nodes)
     k = new.n_edges
-    required = forest.__dict__.get("_required")
-    if required is None:
+    constrained = forest.required.size > 0
+    if not constrained:
         # The old forest is already in rule order and every new edge comes after every old
         # one by position, so the combined rule order is a merge: no sort of the old edges.
         order = np.arange(len(forest), dtype=np.int64)
@@ -41,7 +49,9 @@ def add_edges(forest, tail, head, weight, n_nodes=None):
                                  f"exactly with float weights; pass the new weights as "
                                  f"integers too (dtype {part.dtype}).")
     new_pos = forest.n_edges + new_order
-    if required is None:
+    threads = validation.check_threads(None, _FUNC)
+    provenance = {"function": _FUNC, "n_new_edges": k}
+    if not constrained:
         # Slot of each new edge after every old edge of equal weight (old positions are smaller).
         if forest.maximize:
             at = len(old_w) - np.searchsorted(old_w[::-1], new_w, side="left")
@@ -57,23 +67,22 @@ def add_edges(forest, tail, head, weight, n_nodes=None):
                           (merged_w, old_w, new_w)):
             dst[~is_new] = a
             dst[is_new] = b
-        sub = minimum_spanning_forest(t, h, merged_w, n, maximize=forest.maximize,
-                                      presorted=True)
-        return SpanningForest(position[sub.edges], sub.tail, sub.head, sub.weights, n,
-                              forest.n_edges + k, sub.n_components, sub.labels,
-                              forest.maximize, "add_edges")
+        # Valid by construction: ids of both validated lists in [0, n), weights without NaN.
+        g = validation.trusted_edges(t, h, merged_w, n)
+        sub, used = run(g, "auto", True, forest.maximize, threads)
+        return forest_fields(g, sub._replace(edges=position[sub.edges]), forest.maximize, used,
+                             n_edges=forest.n_edges + k, provenance=provenance)
     t = np.concatenate(ids[:2])
     h = np.concatenate(ids[2:])
     position = np.concatenate([old_pos, new_pos])
-    sub = minimum_spanning_forest(t, h, w, n, maximize=forest.maximize,
-                                  required=np.searchsorted(old_pos, required))
-    out = SpanningForest(position[sub.edges], sub.tail, sub.head, sub.weights, n,
-                         forest.n_edges + k, sub.n_components, sub.labels, forest.maximize,
-                         "add_edges")
+    g = validation.trusted_edges(t, h, w, n)
+    sub = constrained_forest(g, np.searchsorted(old_pos, forest.required),
+                             np.empty(0, dtype=np.int64), method="auto", presorted=False,
+                             maximize=forest.maximize, threads=threads)
     # What the requirement costs is measured against the free optimum, updated alongside.
-    free = add_edges(forest.__dict__["_free"], tail, head, weight, n_nodes)
-    out.required_excess = ((free.weight - out.weight) if forest.maximize
-                           else (out.weight - free.weight))
-    out.__dict__["_required"] = required
-    out.__dict__["_free"] = free
-    return out
+    free = add_edges(forest._free, tail, head, weight, n_nodes)
+    excess = (total(free) - total(sub)) if forest.maximize else (total(sub) - total(free))
+    sub.update(edges=position[sub["edges"]], n_edges=forest.n_edges + k,
+               required=forest.required, required_excess=excess, provenance=provenance,
+               free=free)
+    return sub
