@@ -1,5 +1,7 @@
 """Bad input gets a clear TypeError (wrong type) or ValueError (wrong value) that names what was
 received, what was expected and the first offending position."""
+import re
+
 import numpy as np
 import pytest
 
@@ -55,3 +57,127 @@ def test_infinite_weights_are_ordinary():
     """+inf and -inf are valid weights, ordered as usual."""
     f = MSF([0, 0, 1], [1, 2, 2], [np.inf, -np.inf, 1.0])
     assert f.edges.tolist() == [1, 2]
+
+
+# --- every public function: wrong type -> TypeError, wrong value -> ValueError ----------------
+
+_G = ([0, 1, 2], [1, 2, 3], [1.0, 2.0, 3.0])
+
+
+def _forest(maximize=False):
+    return fastmst.minimum_spanning_forest(*_G, maximize=maximize)
+
+
+def _geodesy():
+    from fastmst.geometry import geodesy
+    return geodesy
+
+
+# (call, exception, argument named in the message, what was received, as the message says it)
+_API = {
+    "minimum_spanning_forest": [
+        (lambda: MSF(*_G, n_nodes="4"), TypeError, "n_nodes", "str '4'"),
+        (lambda: MSF(*_G, method="x"), ValueError, "method", "'x'"),
+        (lambda: MSF(*_G, required=[9]), ValueError, "required", "= 9"),
+    ],
+    "check_forest": [
+        (lambda: fastmst.check_forest(*_G, edges=["a"]), TypeError, "edges", "dtype <U1"),
+        (lambda: fastmst.check_forest(*_G, edges=[7]), ValueError, "edges", "= 7"),
+    ],
+    "sensitivity": [
+        (lambda: fastmst.sensitivity(*_G, forest=_forest(), return_partner="yes"), TypeError,
+         "return_partner", "str 'yes'"),
+        (lambda: fastmst.sensitivity(*_G, forest=_forest(), maximize=True), ValueError,
+         "maximize", "maximize=True"),
+    ],
+    "single_linkage": [
+        (lambda: fastmst.single_linkage("f"), TypeError, "SpanningForest", "received str"),
+        (lambda: fastmst.single_linkage(_forest(maximize=True)), ValueError, "single_linkage",
+         "received a maximum spanning forest"),
+    ],
+    "point_spanning_tree": [
+        (lambda: fastmst.point_spanning_tree([[0, 0], [1, 1]], max_length="1"), TypeError,
+         "max_length", "str '1'"),
+        (lambda: fastmst.point_spanning_tree([[0, 0], [1, 1]], max_length=-1), ValueError,
+         "max_length", "-1"),
+        (lambda: fastmst.point_spanning_tree([[0, 0], [1, 1]], metric=3), TypeError, "metric",
+         "int 3"),
+        (lambda: fastmst.point_spanning_tree([[0, 0]], metric="great-circle",
+                                             metric_kwargs={"radius": "big"}), TypeError,
+         "radius", "str 'big'"),
+        (lambda: fastmst.point_spanning_tree([[0, 0]], metric="great-circle",
+                                             metric_kwargs={"radius": -1.0}), ValueError,
+         "radius", "-1.0"),
+        (lambda: fastmst.point_spanning_tree([[0, np.nan]]), ValueError, "points[0, 1]", "nan"),
+    ],
+    "steiner_tree": [
+        (lambda: fastmst.steiner_tree(*_G, terminals=[0.5, 1.5]), TypeError, "terminals",
+         "dtype float64"),
+        (lambda: fastmst.steiner_tree(*_G, terminals=[0, 9]), ValueError, "terminals[1]", "= 9"),
+    ],
+    "SpanningForest.bottleneck": [
+        (lambda: _forest().bottleneck([0.5], [1]), TypeError, "a", "dtype float64"),
+        (lambda: _forest().bottleneck([0], [9]), ValueError, "b", "node id 9"),
+    ],
+    "SpanningForest.clusters": [
+        (lambda: _forest().clusters(k="2"), TypeError, "k", "str '2'"),
+        (lambda: _forest().clusters(k=np.int64(9)), ValueError, "k", "k = 9"),
+        (lambda: _forest().clusters(threshold="a"), TypeError, "threshold", "str 'a'"),
+    ],
+    "SpanningForest.add_edges": [
+        (lambda: _forest().add_edges([0.5], [1], [1.0]), TypeError, "tail", "dtype float64"),
+        (lambda: _forest().add_edges([0], [1], [np.nan]), ValueError, "weight[0]", "NaN"),
+    ],
+    "DisjointSet": [
+        (lambda: fastmst.DisjointSet("3"), TypeError, "n", "str '3'"),
+        (lambda: fastmst.DisjointSet(-1), ValueError, "n", "-1"),
+    ],
+    "haversine_m": [
+        (lambda: _geodesy().haversine_m("a", 0, 0, 0), TypeError, "lon1", "dtype <U1"),
+        (lambda: _geodesy().haversine_m(0, 91, 0, 0), ValueError, "lat1", "91.0"),
+    ],
+    "edge_lengths": [
+        (lambda: _geodesy().edge_lengths([[0, 0]], [0], [0], metric=3), TypeError, "metric",
+         "int 3"),
+        (lambda: _geodesy().edge_lengths([[0, 0]], [0], [0], metric="x"), ValueError, "metric",
+         "'x'"),
+    ],
+    "read_nodes": [
+        (lambda: fastmst.read_nodes(3), TypeError, "read_nodes", "received int"),
+    ],
+}
+
+
+@pytest.mark.parametrize("case", [pytest.param(c, id=f"{name}-{i}")
+                                  for name, cases in _API.items() for i, c in enumerate(cases)])
+def test_public_api_wrong_type_and_value(case):
+    """Every public function: a wrong type is a TypeError and a wrong value a ValueError, and
+    the message names the argument and what was received (NumPy scalars shown as plain
+    numbers, never as ``np.int64(9)``)."""
+    call, exc, argument, received = case
+    with pytest.raises(exc) as info:
+        call()
+    assert type(info.value) is exc or (exc is ValueError and isinstance(info.value, ValueError))
+    msg = str(info.value)
+    assert argument in msg and received in msg, msg
+    assert not re.search(r"np\.(?:u?int|float|bool|str_|complex)\w*\(|np\.(?:True|False)_",
+                         msg), msg
+
+
+def test_public_api_sweep_covers_the_package():
+    """The sweep above lists every public callable of ``fastmst`` (so a new one gets cases)."""
+    public = {n for n in fastmst.__all__ if callable(getattr(fastmst, n))
+              and not isinstance(getattr(fastmst, n), type) or n == "DisjointSet"}
+    covered = set(_API) | {"SpanningForest", "ForestCheck", "SteinerTree", "EdgeList"}
+    io_functions = {"read_edges", "write_forest"}   # file arguments: tests/test_io.py
+    assert public - covered - io_functions == set()
+
+
+def test_column_name_empty_is_a_value_error():
+    """An empty column name is a wrong value (ValueError); a non-string a wrong type."""
+    from fastmst import validation
+    with pytest.raises(ValueError, match="tail is the empty string"):
+        validation.check_column_name("", "tail", "f")
+    with pytest.raises(TypeError, match=r"tail must be a column name \(a string\), received "
+                                        r"int 0"):
+        validation.check_column_name(0, "tail", "f")
