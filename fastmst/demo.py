@@ -18,6 +18,11 @@ from pathlib import Path
 
 import numpy as np
 
+import fastmst
+from fastmst import io
+from fastmst.geometry.geodesy import haversine_m
+from fastmst.plot import plot_forest
+
 SCENARIO = "Invented scenario: fibre backbone for the fictional rural district of Low Marren"
 # Surface classes of the invented district: name, invented trench cost per metre, map colour.
 SURFACES = (
@@ -47,7 +52,6 @@ def generate(n_sites: int = 30_000, seed: int = 2024):
     """
     from scipy.spatial import Delaunay
 
-    from fastmst.geometry.geodesy import haversine_m
     rng = np.random.default_rng(seed)
     n_villages = max(3, n_sites // 1500)
     centres = np.column_stack([_LON0 + rng.uniform(0.05, 0.95, n_villages) * _DLON,
@@ -98,8 +102,6 @@ def run(out_dir="fastmst-demo-output", *, n_sites=30_000, seed=2024, reporter=No
     """Generate, solve and write the demo into ``out_dir``; returns the summary dict."""
     import pyarrow as pa
 
-    import fastmst
-    from fastmst import io
     rep = reporter
     phase = rep.phase if rep is not None else (lambda name, total=None: nullcontext(None))
     out = Path(out_dir)
@@ -138,7 +140,6 @@ def run(out_dir="fastmst-demo-output", *, n_sites=30_000, seed=2024, reporter=No
         io.write_geojson(out / "backbone.geojson", forest, edges, properties=props)
         files += ["sites.csv", "trenches.csv", "backbone.csv", "backbone.geojson"]
     if plot:
-        from fastmst.plot import plot_forest
         index = {name: k for k, (name, _, _) in enumerate(SURFACES)}
         groups = (np.array([index[x] for x in f_surface.tolist()], dtype=np.int64),
                   [n for n, _, _ in SURFACES], [c for _, _, c in SURFACES])

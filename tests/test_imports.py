@@ -71,15 +71,7 @@ def _with_parents(names):
     return {m for m in out if m in SOURCES}
 
 
-#: Modules of other work in progress that still import package modules inside functions (to
-#: keep matplotlib off the command line's start-up); strict, so the mark goes when they move.
-_PENDING = {"fastmst.cli.clusters", "fastmst.cli.solve", "fastmst.demo"}
-
-
-@pytest.mark.parametrize("module", [
-    pytest.param(m, marks=pytest.mark.xfail(strict=True, reason="function-level import of a "
-                                            "package module, to be moved to module top"))
-    if m in _PENDING else m for m in MODULES])
+@pytest.mark.parametrize("module", MODULES)
 def test_no_function_level_import_of_package_modules(module):
     """Imports of fastmst modules sit at module top, where a cycle would show; only optional
     heavy dependencies outside the package are imported inside functions."""

@@ -11,6 +11,7 @@ import fastmst
 from fastmst import io
 from fastmst.cli import common
 from fastmst.cli.common import EXIT_OK, UsageError, fmt_num
+from fastmst.plot import plot_forest
 
 EPILOG = """examples:
   fastmst clusters sensors.csv -k 5 -o clusters.csv
@@ -55,7 +56,6 @@ def run(args) -> int:
             for out in args.output:
                 io.write_table(out, table)
         if args.plot:
-            from fastmst.plot import plot_forest
             with rep.phase("plotting"):
                 plot_forest(args.plot, edges, forest, groups=cluster_groups(forest, labels),
                             title="Single-linkage clusters",

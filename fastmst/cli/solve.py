@@ -10,6 +10,7 @@ import fastmst
 from fastmst import io
 from fastmst.cli import common
 from fastmst.cli.common import CAUTION, EXIT_OK, fmt_num, jsonable
+from fastmst.plot import plot_forest
 
 EPILOG = """examples:
   fastmst solve links.csv -o forest.csv
@@ -53,7 +54,6 @@ def run(args) -> int:
             for out in args.output:
                 io.write_forest(out, forest, edges)
         if args.plot:
-            from fastmst.plot import plot_forest
             with rep.phase("plotting"):
                 plot_forest(args.plot, edges, forest,
                             subtitle=f"{edges.source}: {len(forest):,} of {edges.n_edges:,} "
