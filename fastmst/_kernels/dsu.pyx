@@ -1,12 +1,10 @@
 """Disjoint set (union-find) with union by rank and true path compression."""
 import numpy as np
-cimport numpy as cnp
 from libc.stdint cimport int32_t, int64_t, uint8_t
 
 from fastmst._kernels._typedefs cimport index_t
 from fastmst._kernels.dsu cimport dsu_find, dsu_link, label_first_appearance
 
-cnp.import_array()
 
 _INT32_LIMIT = 2 ** 31
 

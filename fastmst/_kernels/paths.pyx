@@ -21,14 +21,11 @@ The disjoint-set primitives come from ``dsu.pxd``.  Internal arrays are int64, e
 lookup tables of ``PathMaxIndex``, which are int32 while node and edge counts fit.
 """
 import numpy as np
-cimport numpy as cnp
 from libc.stdint cimport int32_t, int64_t, uint8_t
 
 from fastmst._kernels._typedefs cimport index_t
 from fastmst._kernels.dsu cimport dsu_find, dsu_link
 from cython.parallel cimport prange
-
-cnp.import_array()
 
 
 cdef int64_t _kruskal_tree(const index_t[::1] ftail, const index_t[::1] fhead, int64_t n,
@@ -452,14 +449,16 @@ cdef class PathMaxIndex:
         if qa.shape[0] and self._n == 0:
             raise ValueError("PathMaxIndex.query: the forest has no nodes.")
         out = np.empty(qa.shape[0], dtype=np.int64)
-        _query(self.pos, self.gap, self._pre, self._suf, self._table, self._nb, self._f,
-               qa, qb, out, threads)
+        cdef int64_t[::1] o = out
+        # the index tables are all int32 or all int64 (see __init__)
+        cdef const int32_t[::1] p4, g4, pr4, sf4, tb4
+        cdef const int64_t[::1] p8, g8, pr8, sf8, tb8
+        if self.pos.dtype == np.int32:
+            p4, g4, pr4, sf4, tb4 = self.pos, self.gap, self._pre, self._suf, self._table
+            with nogil:
+                _path_max(p4, g4, pr4, sf4, tb4, self._nb, self._f, qa, qb, o, threads)
+        else:
+            p8, g8, pr8, sf8, tb8 = self.pos, self.gap, self._pre, self._suf, self._table
+            with nogil:
+                _path_max(p8, g8, pr8, sf8, tb8, self._nb, self._f, qa, qb, o, threads)
         return out
-
-
-def _query(const rank_t[::1] pos, const rank_t[::1] gap, const rank_t[::1] pre,
-           const rank_t[::1] suf, const rank_t[::1] table, int64_t nb, int64_t f,
-           const index_t[::1] qa, const index_t[::1] qb, int64_t[::1] out, int threads):
-    """Run the query kernel on the index tables (all of one dtype); OUT: out."""
-    with nogil:
-        _path_max(pos, gap, pre, suf, table, nb, f, qa, qb, out, threads)

@@ -7,12 +7,10 @@ each point's best link to the tree with the newest tree point and reports its ow
 blocks' winners are then compared serially, so the answer does not depend on the thread count.
 """
 import numpy as np
-cimport numpy as cnp
 from cython.parallel cimport prange
 from libc.math cimport sqrt, fabs, pow, INFINITY
 from libc.stdint cimport int64_t, uint8_t
 
-cnp.import_array()
 
 # Metric codes of the native kernel (points.py maps names to these).
 METRIC_CODES = {"euclidean": 0, "sqeuclidean": 1, "cityblock": 2, "chebyshev": 3,

@@ -16,8 +16,6 @@ in place by 8-bit American-flag passes.  Peak memory is the 12-byte records plus
 scratch per sorting thread.
 """
 import numpy as np
-cimport numpy as cnp
-cimport cython
 from cython.parallel cimport prange
 from libc.stdint cimport int64_t, uint8_t, uint32_t, uint64_t
 from libc.stdlib cimport free, malloc
@@ -26,7 +24,6 @@ from libc.string cimport memcpy
 from fastmst._kernels.radix cimport Rec, digit_hist, digit_kp, rec_less
 from fastmst._kernels.tie_rule cimport ukey_t, rank_key
 
-cnp.import_array()
 
 #: NumPy view of the 12-byte records (packed: key uint64, pos uint32).
 RECORD_DTYPE = np.dtype([("key", "<u8"), ("pos", "<u4")], align=False)

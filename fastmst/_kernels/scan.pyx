@@ -5,7 +5,6 @@ radix records cannot hold positions); ``forest_size`` counts the forest edges by
 ``forest_bound`` bounds them by one streaming pass, which lets the Kruskal kernels stop early.
 """
 import numpy as np
-cimport numpy as cnp
 from cython.parallel cimport prange, threadid
 from libc.stdint cimport int32_t, int64_t, uint8_t, uint64_t
 
@@ -13,7 +12,6 @@ from fastmst._kernels._typedefs cimport check_edge_arrays, index_t
 from fastmst._kernels.dsu cimport dsu_find, dsu_link, dsu_union
 from fastmst._kernels import radix
 
-cnp.import_array()
 
 cdef extern from *:
     """
@@ -26,7 +24,6 @@ cdef extern from *:
     #endif
     """
     int popcount64 "FASTMST_POPCOUNT64"(uint64_t x) noexcept nogil
-
 
 
 cdef Py_ssize_t _kruskal_scan(const int64_t[::1] order, const index_t[::1] tail,
@@ -116,7 +113,6 @@ def kruskal(const int64_t[::1] order, const index_t[::1] tail, const index_t[::1
         with nogil:
             count = _kruskal_scan(order, tail, head, p, r, cap, o)
     return out[:count], parent
-
 
 
 cdef Py_ssize_t _count_touched(const index_t* tail, const index_t* head, Py_ssize_t m,

@@ -3,11 +3,8 @@
 The graph arrives as a CSR adjacency of arcs (each undirected edge twice) with float64 lengths.
 """
 import numpy as np
-cimport numpy as cnp
 from libc.math cimport INFINITY
 from libc.stdint cimport int64_t, uint8_t
-
-cnp.import_array()
 
 
 cdef inline bint _heap_less(const double* key, const int64_t* node, Py_ssize_t i,
