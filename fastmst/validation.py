@@ -301,6 +301,23 @@ def check_real(value, name: str, func: str) -> float:
     return v
 
 
+def check_real_exact(value, name: str, func: str) -> int | float:
+    """A real number (not NaN) as an exact Python ``int`` or ``float``: integers (NumPy ones
+    included, uint64 beyond 2**63 too) stay integers, floats of any width become the float64
+    of the same value.  For comparisons with weights that must not round (see
+    ``fastmst.toolkit.clusters``)."""
+    if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, float, np.integer,
+                                                                   np.floating)):
+        raise TypeError(f"{func}: {name} must be a real number, received "
+                        f"{type(value).__name__} {shown(value)}.")
+    if isinstance(value, (int, np.integer)):
+        return int(value)
+    v = float(value)          # float16/32/64 widen exactly; longdouble is rounded to float64
+    if v != v:
+        raise ValueError(f"{func}: {name} is NaN; expected a real number.")
+    return v
+
+
 def check_count(value, name: str, func: str, minimum: int = 1, allow_none: bool = False):
     """An integer knob such as ``split_every`` or ``max_task_edges`` (>= minimum)."""
     if value is None and allow_none:

@@ -184,6 +184,9 @@ class SpanningForest:
             nodes over the whole graph.  inf for nodes in different components, -inf for a node
             with itself.  For a maximum forest, the lightest edge on the path (the maximin, or
             widest-path, value); then -inf across components and inf for a node with itself.
+            The path's edges are compared in the weights' own dtype; only the value returned
+            is converted to float64 (integer weights beyond 2**53 round to the nearest
+            float64; the input weight at ``position`` is the exact value).
         position : ndarray of int64, same shape
             Input position of that edge (the tie-rule-heaviest among equal weights); -1 when
             there is none.  For a forest solved with ``required``/``excluded`` edges the values

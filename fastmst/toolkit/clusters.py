@@ -1,5 +1,13 @@
-"""Flat single-linkage clusters from a spanning forest: ``SpanningForest.clusters``."""
+"""Flat single-linkage clusters from a spanning forest: ``SpanningForest.clusters``.
+
+A threshold meets the weights exactly, in the weights' own dtype: it is first turned into the
+nearest value of that dtype on the kept side (``bound_in_dtype``), then compared there, so
+int64 weights beyond 2**53, uint64 weights and float32 weights against a float64 or integer
+threshold are never rounded.
+"""
 from __future__ import annotations
+
+import math
 
 import numpy as np
 
@@ -21,11 +29,9 @@ def clusters(forest, k=None, threshold=None) -> np.ndarray:
         k = check_cluster_count(k, max(forest.n_components, 1), max(n, 1), func)
         keep = f - (k - forest.n_components)
     else:
-        t = validation.check_real(threshold, "threshold", func)
-        w = forest.weights.astype(np.float64)
+        t = validation.check_real_exact(threshold, "threshold", func)
         # forest.weights is in tie-rule order: ascending (descending when maximize).
-        keep = int(np.searchsorted(-w if forest.maximize else w,
-                                   -t if forest.maximize else t, side="right"))
+        keep = count_within(forest.weights, t, forest.maximize)
     ft = np.ascontiguousarray(forest.tail[:keep], dtype=np.int64)
     fh = np.ascontiguousarray(forest.head[:keep], dtype=np.int64)
     if n == 0:
@@ -45,3 +51,52 @@ def check_cluster_count(k, low: int, high: int, func: str) -> int:
         raise ValueError(f"{func}: k = {k} is out of range; expected {low} <= k <= {high}, the "
                          f"number of nodes{why}.")
     return k
+
+
+def bound_in_dtype(t: int | float, dtype: np.dtype, upper: bool):
+    """The value of ``dtype`` nearest to the exact real ``t`` on one side, or None.
+
+    ``upper``: the largest value ``<= t`` (None when every value of the dtype is above ``t``);
+    otherwise the smallest value ``>= t`` (None when every value is below).  For every weight
+    ``w`` of the dtype, ``w <= t`` exactly when ``w <= bound`` (``w >= t`` exactly when
+    ``w >= bound``), so the comparison can be made in the dtype itself.  Python compares ints
+    and floats exactly, which the steps below rely on.
+    """
+    dtype = np.dtype(dtype)
+    if dtype.kind in "iu":
+        info = np.iinfo(dtype)
+        if isinstance(t, float):
+            if math.isinf(t):
+                if (t > 0) == upper:
+                    return dtype.type(info.max if upper else info.min)
+                return None
+            t = math.floor(t) if upper else math.ceil(t)
+        if upper:
+            return None if t < info.min else dtype.type(min(t, info.max))
+        return None if t > info.max else dtype.type(max(t, info.min))
+    big = float(np.finfo(dtype).max)
+    try:
+        c = dtype.type(t)
+    except OverflowError:                     # an int beyond float64
+        c = dtype.type(math.inf if t > 0 else -math.inf)
+    if np.isinf(c) and not (isinstance(t, float) and math.isinf(t)):
+        c = dtype.type(big if t > 0 else -big)  # a finite t beyond the dtype's range
+    if upper and float(c) > t:
+        c = np.nextafter(c, dtype.type(-math.inf))
+    elif not upper and float(c) < t:
+        c = np.nextafter(c, dtype.type(math.inf))
+    return c
+
+
+def count_within(weights: np.ndarray, t: int | float, descending: bool) -> int:
+    """How many of ``weights`` (sorted ascending, or descending with ``descending``) are
+    ``<= t`` (``>= t`` when descending): the length of the prefix that a cut at ``t`` keeps,
+    compared exactly in the weights' dtype."""
+    c = bound_in_dtype(t, weights.dtype, upper=not descending)
+    if c is None:
+        return 0
+    c = np.asarray(c, dtype=weights.dtype)
+    if not descending:
+        return int(np.searchsorted(weights, c, side="right"))
+    # Descending: the prefix of weights >= c is everything but the weights < c.
+    return int(weights.shape[0] - np.searchsorted(weights[::-1], c, side="left"))

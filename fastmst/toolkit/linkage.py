@@ -72,7 +72,10 @@ def single_linkage(forest) -> np.ndarray:
     if f < n - 1:
         roots = np.flatnonzero(tree.kparent == -1)
         roots = roots[np.argsort(_first_leaf(forest, tree, roots), kind="stable")]
-        sizes = np.where(roots < n, 1, tree.size[np.maximum(roots - n, 0)])
+        # A root is a node (size 1) or a merge (its size); a forest without edges has no merges.
+        sizes = np.ones(roots.shape[0], dtype=np.int64)
+        inner = roots >= n
+        sizes[inner] = tree.size[roots[inner] - n]
         cur, cur_size = int(roots[0]), int(sizes[0])
         for i, (r, s) in enumerate(zip(roots[1:].tolist(), sizes[1:].tolist())):
             row = f + i

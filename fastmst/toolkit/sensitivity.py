@@ -13,10 +13,20 @@ _FUNC = "sensitivity"
 
 
 def _margin(high: np.ndarray, low: np.ndarray) -> np.ndarray:
-    """high - low in float64, with equal values (infinities included) giving 0."""
+    """high - low (``high >= low`` elementwise, one weight dtype) as float64, the exact
+    difference rounded once; equal values (infinities included) give 0.
+
+    Integer weights are subtracted in uint64, modulo 2**64: the exact difference lies in
+    [0, 2**64), so the wrapped result is exact, and one conversion rounds it.  Float weights
+    are subtracted in float64, which rounds the exact difference once (float32 widens
+    exactly); an overflow gives inf.
+    """
+    if high.dtype.kind in "iu":
+        with np.errstate(over="ignore"):
+            return (high.astype(np.uint64) - low.astype(np.uint64)).astype(np.float64)
     h = high.astype(np.float64)
     lo = low.astype(np.float64)
-    with np.errstate(invalid="ignore"):
+    with np.errstate(invalid="ignore", over="ignore"):
         return np.where(h == lo, 0.0, h - lo)
 
 
@@ -69,7 +79,9 @@ def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None,
     among the heaviest); it enters when its position is earlier than that edge's.  For any
     smaller move the forest stays the same; for any larger one it changes.
 
-    Margins are computed in float64 (integer weights above 2**53 are rounded).  Non-tree edges
+    Each margin is the exact difference of two weights rounded once to float64 (so a margin
+    between integer weights beyond 2**53 is exact whenever float64 can hold it); the forest
+    and the partners are found by comparing the weights in their own dtype.  Non-tree edges
     get their heaviest path edge from range maxima over the merge tree's leaf order; forest
     edges get their lightest covering edge by taking the non-tree edges in tie-rule order and
     marking the unmarked edges of each tree path, jumping over marked ones with a disjoint set

@@ -43,8 +43,9 @@ def add_edges(forest, tail, head, weight, n_nodes=None) -> dict:
     if w.dtype.kind == "f" and (forest.weights.dtype.kind in "iu" or new.weight.dtype.kind in "iu"):
         # Mixed integer and float weights meet in float64; refuse if that rounds a weight.
         for part in (forest.weights, new.weight):
+            # Compared as Python ints: |v| <= 2**53 is exactly what float64 holds.
             if part.dtype.kind in "iu" and part.size and \
-                    np.abs(part.astype(np.float64)).max() > 2.0**53:
+                    max(-int(part.min()), int(part.max())) > 2**53:
                 raise ValueError(f"{_FUNC}: integer weights above 2**53 cannot be compared "
                                  f"exactly with float weights; pass the new weights as "
                                  f"integers too (dtype {part.dtype}).")
