@@ -6,13 +6,12 @@ Steiner trees", Acta Informatica 15 (1981).
 """
 from __future__ import annotations
 
-import math
-
 import numpy as np
 
 from fastmst import validation
 from fastmst._kernels.steiner import mark_paths, prune_leaves, voronoi
 from fastmst.geometry import checks
+from fastmst.solve import totals
 from fastmst.solve.solve import solve_trusted
 
 __all__ = ["SteinerTree", "steiner_tree"]
@@ -33,7 +32,7 @@ class SteinerTree:
     weights : ndarray of shape (F,)
         Weights of the chosen edges (input weight dtype).
     weight : float
-        Total weight (``math.fsum``).
+        Total weight: the exact sum rounded once (inf when it is beyond the float64 range).
     terminals : ndarray of shape (k,), dtype=int64
         The distinct terminals, ascending.
     nodes : ndarray, dtype=int64
@@ -77,7 +76,7 @@ class SteinerTree:
         self.n_nodes = int(n_nodes)
         self.n_edges = int(n_edges)
         self.method = "mehlhorn"
-        self.weight = math.fsum(np.asarray(weights, dtype=np.float64).tolist())
+        self.weight = totals.total(np.asarray(weights))
 
     @property
     def connected(self) -> bool:
@@ -130,6 +129,20 @@ def _tree_and_prune(n, t, h, w, nodes_mask, is_terminal):
     return chosen[alive]
 
 
+_MAX_TOTAL = float(np.finfo(np.float64).max) / 2
+
+
+def _check_lengths_fit(weight: np.ndarray) -> None:
+    """Path lengths are float64 sums of edge weights; refuse weights whose total could
+    overflow one (every path, and every bridge dist + w + dist, weighs at most the total)."""
+    whole = totals.total(weight)
+    if whole > _MAX_TOTAL:
+        raise ValueError(f"{_FUNC}: the weights add up to {whole!r}, beyond what float64 path "
+                         f"lengths can hold (the total must stay below {_MAX_TOTAL:.3g}); "
+                         f"scale the weights down, e.g. weight / weight.max(): the tree does "
+                         f"not change.")
+
+
 def steiner_tree(tail, head, weight, terminals, n_nodes=None) -> SteinerTree:
     """A Steiner tree joining ``terminals`` along an undirected network, with a proven bound.
 
@@ -138,7 +151,8 @@ def steiner_tree(tail, head, weight, terminals, n_nodes=None) -> SteinerTree:
     tail, head : array_like of shape (E,), integer dtype
         Endpoints of each edge, ids in ``[0, n_nodes)``.
     weight : array_like of shape (E,)
-        Finite, non-negative edge lengths or costs.
+        Finite, non-negative edge lengths or costs whose total stays below half the float64
+        maximum (about 9e307), so that no path length overflows.
     terminals : array_like of shape (k,), integer dtype
         The nodes to join (repeats are ignored).
     n_nodes : int, optional
@@ -155,7 +169,8 @@ def steiner_tree(tail, head, weight, terminals, n_nodes=None) -> SteinerTree:
     Raises
     ------
     TypeError, ValueError
-        Malformed edges, negative or non-finite weights, terminals that are not nodes.
+        Malformed edges, negative or non-finite weights (or weights whose total is beyond
+        the bound above), terminals that are not nodes.
 
     Notes
     -----
@@ -184,6 +199,7 @@ def steiner_tree(tail, head, weight, terminals, n_nodes=None) -> SteinerTree:
     """
     g = validation.validate_edges(tail, head, weight, n_nodes, func=_FUNC)
     checks.check_nonnegative_finite(g.weight, _FUNC)
+    _check_lengths_fit(g.weight)
     n, m = g.n_nodes, g.n_edges
     term = checks.check_terminals(terminals, n, _FUNC)
     k = term.shape[0]
@@ -198,7 +214,8 @@ def steiner_tree(tail, head, weight, terminals, n_nodes=None) -> SteinerTree:
         dist, region, pred_edge, pred_node = voronoi(indptr, nbr, length, arc_edge, term)
         rt, rh = region[t], region[h]
         bridge = np.flatnonzero((rt >= 0) & (rh >= 0) & (rt != rh))
-        bw = dist[t[bridge]] + w[bridge] + dist[h[bridge]]
+        with np.errstate(over="ignore"):         # lengths beyond float64 become inf
+            bw = dist[t[bridge]] + w[bridge] + dist[h[bridge]]
         f = solve_trusted(rt[bridge], rh[bridge], bw, k)
         picked = bridge[f.edges]
         mark = mark_paths(np.concatenate([t[picked], h[picked]]), pred_edge, pred_node, m)
@@ -208,14 +225,14 @@ def steiner_tree(tail, head, weight, terminals, n_nodes=None) -> SteinerTree:
         nodes_mask[h[mark]] = True
         nodes_mask[term] = True
         chosen = _tree_and_prune(n, t, h, w, nodes_mask, is_terminal)
-        total = math.fsum(w[chosen].tolist())
+        total = totals.total(g.weight[chosen])
         for _ in range(_MAX_ROUNDS - 1):
             nodes_mask[:] = False
             nodes_mask[t[chosen]] = True
             nodes_mask[h[chosen]] = True
             nodes_mask[term] = True
             again = _tree_and_prune(n, t, h, w, nodes_mask, is_terminal)
-            again_total = math.fsum(w[again].tolist())
+            again_total = totals.total(g.weight[again])
             if not again_total < total:
                 break
             chosen, total = again, again_total
@@ -235,9 +252,10 @@ def steiner_tree(tail, head, weight, terminals, n_nodes=None) -> SteinerTree:
     k_tree = np.bincount(terminal_tree, minlength=n_trees)
     ratio = np.where(k_tree >= 2, 2.0 * (1.0 - 1.0 / np.maximum(k_tree, 1)), 1.0)
     ratio = np.maximum(ratio, 1.0)
-    w_tree = np.bincount(label_to_tree[comp.labels[t[chosen]]], weights=w[chosen],
-                         minlength=n_trees) if chosen.shape[0] else np.zeros(n_trees)
-    lower = float(np.sum(w_tree / ratio)) if n_trees else 0.0
+    with np.errstate(over="ignore"):     # a tree heavier than float64 holds: inf
+        w_tree = np.bincount(label_to_tree[comp.labels[t[chosen]]], weights=w[chosen],
+                             minlength=n_trees) if chosen.shape[0] else np.zeros(n_trees)
+        lower = float(np.sum(w_tree / ratio)) if n_trees else 0.0
     nodes = np.union1d(np.union1d(t[chosen], h[chosen]), term).astype(np.int64)
     return SteinerTree(chosen, g.tail[chosen], g.head[chosen], g.weight[chosen], term, nodes,
                        n_trees, terminal_tree, float(ratio.max()) if n_trees else 1.0, lower,

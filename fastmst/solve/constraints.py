@@ -9,14 +9,12 @@ of every validated solve (a registered method, then the fields of its result).
 """
 from __future__ import annotations
 
-import math
-
 import numpy as np
 
 from fastmst import validation
 from fastmst._kernels.dsu import labels_from_parent
 from fastmst._kernels.paths import kruskal_tree, root_forest, union_parent
-from fastmst.solve import methods
+from fastmst.solve import methods, totals
 
 _FUNC = "minimum_spanning_forest"
 
@@ -73,9 +71,11 @@ def forest_fields(g: validation.EdgeArrays, r: methods.KernelResult, maximize: b
     return fields
 
 
-def total(fields: dict) -> float:
-    """Exactly rounded total weight of forest fields (as ``SpanningForest.weight``)."""
-    return math.fsum(fields["weights"].tolist())
+def excess(fields: dict, free: dict, maximize: bool) -> float:
+    """What the forest ``fields`` costs over the optimum ``free`` (fields of one graph): the
+    exact difference of their totals over the edges they do not share, rounded once."""
+    return totals.excess(fields["edges"], fields["weights"], free["edges"], free["weights"],
+                         maximize)
 
 
 def _solve_subgraph(g, keep: np.ndarray, group, n_nodes: int, opts: dict):
@@ -137,6 +137,6 @@ def constrained_forest(g: validation.EdgeArrays, required: np.ndarray, excluded:
     free = forest_fields(g, methods.kernel_result(g, free_keep[sub.edges], sub.labels,
                                                   sub.n_components, maximize, True),
                          maximize, used)
-    excess = (total(free) - total(out)) if maximize else (total(out) - total(free))
-    out.update(required=req, required_excess=excess, provenance=provenance, free=free)
+    out.update(required=req, required_excess=excess(out, free, maximize),
+               provenance=provenance, free=free)
     return out

@@ -6,10 +6,9 @@ outside.  The forest's methods call the toolkit's array engines, which sit below
 """
 from __future__ import annotations
 
-import math
-
 import numpy as np
 
+from fastmst.solve import totals
 from fastmst.toolkit import bottleneck as _bottleneck
 from fastmst.toolkit import clusters as _clusters
 from fastmst.toolkit import update as _update
@@ -50,7 +49,8 @@ class SpanningForest:
     required_excess : float
         What the ``required`` edges of ``minimum_spanning_forest`` cost: this forest's weight
         minus that of the optimal forest without the requirement (the reverse when maximizing),
-        so always >= 0; 0.0 when nothing was required.
+        so always >= 0 (or NaN); 0.0 when nothing was required.  The exact difference over the
+        edges the two forests do not share, rounded once, so shared infinite edges cancel.
     provenance : dict
         Which call produced the forest: ``provenance["function"]`` is
         "minimum_spanning_forest", "SpanningForest.add_edges", "point_spanning_tree" or
@@ -63,7 +63,8 @@ class SpanningForest:
         The passes a Dask solve ran: rounds, sizes and seconds (``provenance["plan"]``); None
         for other forests.
     weight : float
-        Total weight, summed exactly rounded (``math.fsum``).
+        Total weight: the exact sum rounded once (NaN when +inf and -inf weights meet, +-inf
+        when the sum is beyond float64; see ``fastmst.solve.totals``).
 
     Notes
     -----
@@ -127,10 +128,11 @@ class SpanningForest:
 
     @property
     def weight(self) -> float:
-        """Total weight as a Python float, summed exactly rounded (``math.fsum``)."""
+        """Total weight as a Python float: the exact sum rounded once, never raising (NaN for
+        +inf with -inf, +-inf beyond the float64 range)."""
         total = self._cache.get("weight")
         if total is None:
-            total = self._cache["weight"] = math.fsum(self.weights.tolist())
+            total = self._cache["weight"] = totals.total(self.weights)
         return total
 
     def __len__(self) -> int:

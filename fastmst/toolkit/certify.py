@@ -6,6 +6,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from fastmst.solve import totals
 from fastmst.solve.solve import solve_validated
 from fastmst.toolkit.checks import validate_graph_with_forest
 from fastmst.toolkit.pathmax import heaviest_on_paths, merge_tree, rule_sorted
@@ -33,8 +34,10 @@ class ForestCheck:
         For each violation, the position of that tree edge: adding ``violations[i]`` and
         removing ``replaces[i]`` gives a strictly better spanning forest.
     excess : float
-        Weight of the given forest minus the optimum (optimum minus it with ``maximize``);
-        0.0 when minimum, NaN when the edges are not a spanning forest.
+        Weight of the given forest minus the optimum (optimum minus it with ``maximize``),
+        the exact difference over the edges the two do not share, rounded once (+inf when an
+        infinite weight makes the difference); 0.0 when minimum, NaN when the edges are not a
+        spanning forest.
     cycle : int
         Position of the first given edge (in tie-rule order) that closes a cycle, or -1.
     crossing : ndarray of shape (C,), dtype=int64
@@ -130,8 +133,7 @@ def check_forest(tail, head, weight, edges, n_nodes=None, *, maximize=None,
     elif is_minimum:
         excess = 0.0
     else:
-        best = solve_validated(g, maximize=maximize, threads=threads).weight
-        given = math.fsum(g.kweight[pos].tolist())
-        excess = (best - given) if maximize else (given - best)
+        best = solve_validated(g, maximize=maximize, threads=threads)
+        excess = totals.excess(pos, g.weight[pos], best.edges, best.weights, maximize)
     return ForestCheck(True, bool(is_spanning), is_minimum, violations, replaces, float(excess),
                        -1, crossing)

@@ -9,7 +9,7 @@ import numpy as np
 
 from fastmst import validation
 from fastmst._kernels.tie_rule import edge_order
-from fastmst.solve.constraints import constrained_forest, forest_fields, run, total
+from fastmst.solve.constraints import constrained_forest, excess, forest_fields, run
 
 _FUNC = "SpanningForest.add_edges"
 
@@ -82,8 +82,7 @@ def add_edges(forest, tail, head, weight, n_nodes=None) -> dict:
                              maximize=forest.maximize, threads=threads)
     # What the requirement costs is measured against the free optimum, updated alongside.
     free = add_edges(forest._free, tail, head, weight, n_nodes)
-    excess = (total(free) - total(sub)) if forest.maximize else (total(sub) - total(free))
     sub.update(edges=position[sub["edges"]], n_edges=forest.n_edges + k,
-               required=forest.required, required_excess=excess, provenance=provenance,
-               free=free)
+               required=forest.required, provenance=provenance, free=free)
+    sub["required_excess"] = excess(sub, free, forest.maximize)
     return sub
