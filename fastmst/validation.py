@@ -10,6 +10,7 @@ memory-mapped arrays included).
 """
 from __future__ import annotations
 
+import functools
 import operator
 import os
 from dataclasses import dataclass
@@ -17,6 +18,46 @@ from dataclasses import dataclass
 import numpy as np
 
 INT32_LIMIT = 2**31
+
+#: ``threads`` above this is refused: more than any machine has cores, and beyond it OpenMP's
+#: C ``int`` thread count would be the next limit (2**31).
+MAX_THREADS = 4096
+
+
+def node_bytes(n_nodes: int) -> int:
+    """Bytes per node that every solve allocates at least: the union-find parent (4-byte ids
+    below 2**31 nodes, 8-byte beyond), the int64 labels of the result and the int64 table
+    that numbers the components (``fastmst._kernels.dsu.labels_from_parent``).  Borůvka needs
+    more (40 bytes per node with 8-byte ids); this is the floor, so a refusal based on it is
+    never premature."""
+    return (4 if n_nodes < INT32_LIMIT else 8) + 8 + 8
+
+
+@functools.lru_cache(maxsize=1)
+def memory_bytes() -> int | None:
+    """Physical memory of this machine (``os.sysconf``), or None where it cannot be read."""
+    try:
+        return int(os.sysconf("SC_PHYS_PAGES")) * int(os.sysconf("SC_PAGE_SIZE"))
+    except (AttributeError, ValueError, OSError):
+        return None
+
+
+def _gib(n_bytes: int) -> str:
+    return f"{n_bytes / 2**30:,.1f} GiB"
+
+
+def node_memory_error(n: int) -> str | None:
+    """Why ``n`` nodes cannot be solved on this machine (the per-node arrays alone exceed its
+    physical memory, or the address space), or None when they may be."""
+    need = n * node_bytes(n)
+    have = memory_bytes()
+    if need >= 2**63:
+        return f"its per-node arrays would need {_gib(need)}, beyond any address space"
+    if have is not None and need > have:
+        return (f"its per-node arrays alone would need {_gib(need)} "
+                f"({node_bytes(n)} bytes per node), more than this machine's {_gib(have)} "
+                f"of memory")
+    return None
 
 # Weight dtypes the kernels read in place (see _typedefs.pxd); narrower ones are widened once.
 _KERNEL_WEIGHTS = {np.dtype(t) for t in (np.float32, np.float64, np.int32, np.int64,
@@ -155,6 +196,18 @@ def _range_error(arr, name, n_nodes, func, given):
                      f"[0, {n_nodes}) for n_nodes={n_nodes}; {fix}.")
 
 
+def _too_large_id_error(t: np.ndarray, h: np.ndarray, hi: int, m: int, why: str, func: str):
+    """ValueError for the largest id when, without n_nodes, it implies more nodes than this
+    machine holds (ids far beyond the edge count are labels, not compact indices)."""
+    name, arr = ("tail", t) if int(t.max()) == hi else ("head", h)
+    first = int(np.flatnonzero(arr == arr.dtype.type(hi))[0])
+    raise ValueError(f"{func}: {name}[{first}] = {hi} implies n_nodes = {hi + 1} (ids run from 0 "
+                     f"to the largest one), and {why}. Ids are compact indices 0..n_nodes-1; "
+                     f"with {m} edges, ids this large are labels or a typo: relabel them with "
+                     f"labels, idx = np.unique(np.concatenate([tail, head]), "
+                     f"return_inverse=True) (tail = idx[:E], head = idx[E:]), or fix the id.")
+
+
 def _kernel_ids(tail: np.ndarray, head: np.ndarray, n_nodes: int):
     """Both id arrays in one kernel dtype (int32 when ids fit), viewing the data where possible."""
     wide = n_nodes >= INT32_LIMIT
@@ -198,6 +251,13 @@ def validate_edges(tail, head, weight, n_nodes=None, *,
                          f"edge), received lengths {t.shape[0]}, {h.shape[0]} and {w.shape[0]}.")
     kw = check_weights(w, func)
     n = check_n_nodes(n_nodes, func)
+    if n is not None:
+        why = node_memory_error(n)
+        if why:
+            raise ValueError(f"{func}: n_nodes={n} is more nodes than this machine can hold: "
+                             f"{why}. Pass the number of nodes actually used (ids 0..n_nodes-1; "
+                             f"relabel sparse ids compactly with np.unique(np.concatenate([tail, "
+                             f"head]), return_inverse=True)).")
     m = t.shape[0]
     if m:
         lo = min(int(t.min()), int(h.min()))
@@ -207,6 +267,10 @@ def validate_edges(tail, head, weight, n_nodes=None, *,
             for name, arr in (("tail", t), ("head", h)):
                 if (arr.dtype.kind == "i" and int(arr.min()) < 0) or int(arr.max()) >= limit:
                     _range_error(arr, name, limit, func, n is not None)
+        if n is None:
+            why = node_memory_error(limit)
+            if why:
+                _too_large_id_error(t, h, hi, m, why, func)
         n = limit
     elif n is None:
         n = 0
@@ -256,6 +320,10 @@ def check_threads(threads, func: str) -> int:
                         f"{type(threads).__name__} {shown(threads)}.") from None
     if t <= 0:
         return check_threads(None, func)
+    if t > MAX_THREADS:
+        raise ValueError(f"{func}: threads={t} is more than any machine has cores (at most "
+                         f"{MAX_THREADS} are accepted); pass threads=None (or <= 0) for every "
+                         f"available core, or a smaller count.")
     return t
 
 

@@ -4,6 +4,7 @@ import re
 
 import numpy as np
 import pytest
+from hypothesis import given, strategies as st
 
 import fastmst
 
@@ -181,3 +182,86 @@ def test_column_name_empty_is_a_value_error():
     with pytest.raises(TypeError, match=r"tail must be a column name \(a string\), received "
                                         r"int 0"):
         validation.check_column_name(0, "tail", "f")
+
+
+# --- scales: threads, node counts and ids beyond what any machine holds -----------------------
+
+def _peak_bytes(call):
+    """Peak bytes NumPy and Python allocated during ``call`` (tracemalloc sees NumPy's
+    buffers), and the exception it raised."""
+    import tracemalloc
+    tracemalloc.start()
+    try:
+        call()
+    except (TypeError, ValueError) as exc:
+        raised = exc
+    else:
+        raised = None
+    finally:
+        peak = tracemalloc.get_traced_memory()[1]
+        tracemalloc.stop()
+    return peak, raised
+
+
+_SCALE_CALLS = {
+    "minimum_spanning_forest": lambda **kw: MSF(*_G, **kw),
+    "check_forest": lambda **kw: fastmst.check_forest(*_G, [0, 1], **kw),
+    "sensitivity": lambda **kw: fastmst.sensitivity(*_G, _forest(), **kw),
+    "bottleneck": lambda **kw: _forest().bottleneck(0, 1, **kw),
+}
+
+
+@pytest.mark.parametrize("func", sorted(_SCALE_CALLS))
+@given(threads=st.one_of(st.integers(4097, 2**70), st.sampled_from([2**31, 2**40, 2**63])))
+def test_threads_beyond_any_machine_is_a_value_error(func, threads):
+    """``threads`` far beyond any machine: a ValueError naming the argument, the value received
+    and the fix (None for every core), not an OverflowError from a C int."""
+    with pytest.raises(ValueError) as info:
+        _SCALE_CALLS[func](threads=threads)
+    msg = str(info.value)
+    assert "threads" in msg and str(threads) in msg and "threads=None" in msg, msg
+
+
+@given(n_nodes=st.one_of(st.integers(2**40, 2**70),
+                         st.sampled_from([10**12, 2**63 - 1, 2**63, 2**64, 10**30])))
+def test_n_nodes_beyond_memory_refused_before_allocating(n_nodes):
+    """``n_nodes`` whose per-node arrays exceed this machine's memory: a ValueError that names
+    n_nodes, the value, the memory it needs, and how to fix it -- raised before anything large
+    is allocated (peak under 1 MiB, measured with tracemalloc)."""
+    for call in (lambda: MSF(*_G, n_nodes=n_nodes),
+                 lambda: fastmst.check_forest(*_G, [0, 1], n_nodes=n_nodes),
+                 lambda: fastmst.steiner_tree(*_G, terminals=[0, 3], n_nodes=n_nodes),
+                 lambda: _forest().add_edges([0], [1], [1.0], n_nodes=n_nodes)):
+        peak, exc = _peak_bytes(call)
+        assert isinstance(exc, ValueError), exc
+        msg = str(exc)
+        assert "n_nodes" in msg and str(n_nodes) in msg and "GiB" in msg, msg
+        assert peak < 2**20, peak
+
+
+@given(big=st.one_of(st.integers(2**40, 2**63 - 1), st.sampled_from([2**40, 2**62])),
+       dtype=st.sampled_from([np.int64, np.uint64]), where=st.sampled_from(["tail", "head"]))
+def test_huge_id_without_n_nodes_refused_with_relabel_hint(big, dtype, where):
+    """One typo id of 2**40 (or up to 2**63 - 1, or beyond in uint64) without ``n_nodes``
+    implies a node array no machine holds: a ValueError naming the array, the position, the
+    value and the fix (relabel compactly), before anything large is allocated."""
+    ids = {"tail": np.array([0, 1, 2], dtype=dtype), "head": np.array([1, 2, 3], dtype=dtype)}
+    ids[where][1] = big
+    peak, exc = _peak_bytes(lambda: MSF(ids["tail"], ids["head"], [1.0, 2.0, 3.0]))
+    assert isinstance(exc, ValueError), exc
+    msg = str(exc)
+    assert f"{where}[1] = {big}" in msg and "np.unique" in msg and "GiB" in msg, msg
+    assert peak < 2**20, peak
+    ids[where] = ids[where].astype(np.uint64)
+    ids[where][1] = 2**63 + 5
+    with pytest.raises(ValueError, match=rf"{where}\[1\] = {2**63 + 5}"):
+        MSF(ids["tail"].astype(np.uint64), ids["head"].astype(np.uint64), [1.0, 2.0, 3.0])
+
+
+def test_large_but_feasible_node_counts_still_solve():
+    """A million isolated nodes and sparse ids are legal: only what memory cannot hold is
+    refused."""
+    f = MSF([0, 999_999], [1, 5], [1.0, 2.0], n_nodes=1_000_000)
+    assert f.n_components == 1_000_000 - 2
+    assert MSF(np.array([0]), np.array([2_000_000]), [1.0]).n_nodes == 2_000_001
+    assert MSF(*_G, threads=64).edges.tolist() == [0, 1, 2]
