@@ -12,21 +12,11 @@ from __future__ import annotations
 import numpy as np
 
 from fastmst import validation
-from fastmst._kernels.dsu import labels_from_parent
+from fastmst._kernels.dsu import first_appearance, labels_from_parent
 from fastmst._kernels.paths import kruskal_tree, root_forest, union_parent
 from fastmst.solve import methods, totals
 
 _FUNC = "minimum_spanning_forest"
-
-
-def _first_appearance(x: np.ndarray) -> np.ndarray:
-    """Relabel ids to 0..k-1 in order of first appearance."""
-    if x.size == 0:
-        return x.astype(np.int64)
-    _, first, inv = np.unique(x, return_index=True, return_inverse=True)
-    rank = np.empty(first.shape[0], dtype=np.int64)
-    rank[np.argsort(first, kind="stable")] = np.arange(first.shape[0], dtype=np.int64)
-    return rank[inv.reshape(-1)]
 
 
 def _cycle_error(g, req: np.ndarray, at: int):
@@ -128,7 +118,8 @@ def constrained_forest(g: validation.EdgeArrays, required: np.ndarray, excluded:
     keep = np.flatnonzero(allowed)
     sub, used = _solve_subgraph(g, keep, group, n_groups, opts)
     edges = np.concatenate([req, keep[sub.edges]])
-    labels = _first_appearance(sub.labels[group])
+    labels, _ = first_appearance(np.ascontiguousarray(sub.labels[group], dtype=np.int64),
+                                 sub.n_components)
     out = forest_fields(g, methods.kernel_result(g, edges, labels, sub.n_components, maximize,
                                                  False), maximize, used)
     allowed[req] = True

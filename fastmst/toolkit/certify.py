@@ -9,7 +9,8 @@ import numpy as np
 from fastmst.solve import totals
 from fastmst.solve.solve import solve_validated
 from fastmst.toolkit.checks import validate_graph_with_forest
-from fastmst.toolkit.pathmax import heaviest_on_paths, merge_tree, rule_sorted
+from fastmst._kernels.tie_rule import sort_positions
+from fastmst.toolkit.pathmax import heaviest_on_paths, merge_tree
 
 _FUNC = "check_forest"
 
@@ -108,7 +109,7 @@ def check_forest(tail, head, weight, edges, n_nodes=None, *, maximize=None,
     g, pos, in_forest, maximize, threads = validate_graph_with_forest(
         tail, head, weight, edges, n_nodes, maximize, threads, name="edges", func=_FUNC,
         strict_maximize=False)
-    order = rule_sorted(pos, g.kweight, maximize)
+    order = sort_positions(pos, g.kweight, maximize)
     tree, cycle = merge_tree(g.ktail[order], g.khead[order], order, g.n_nodes)
     if tree is None:
         return ForestCheck(False, False, False, _empty(), _empty(), math.nan,

@@ -14,7 +14,6 @@ from dataclasses import dataclass
 import numpy as np
 
 from fastmst._kernels.paths import PathMaxIndex, kruskal_tree
-from fastmst._kernels.tie_rule import edge_order
 
 
 @dataclass(frozen=True)
@@ -27,20 +26,6 @@ class MergeTree:
     size: np.ndarray
     n_nodes: int
     index: PathMaxIndex
-
-
-def rule_sorted(positions: np.ndarray, kweight: np.ndarray, maximize: bool) -> np.ndarray:
-    """``positions`` reordered by the tie rule (weight, then position); no sort when they
-    already are (as the edges of a SpanningForest are)."""
-    if positions.size > 1:
-        w = kweight[positions]
-        ahead = (w[1:] < w[:-1]) if maximize else (w[1:] > w[:-1])
-        if np.all(ahead | ((w[1:] == w[:-1]) & (positions[1:] > positions[:-1]))):
-            return positions.astype(np.int64, copy=False)
-    pos = np.sort(positions)
-    if pos.size == 0:
-        return pos.astype(np.int64)
-    return pos[edge_order(kweight[pos], maximize)]
 
 
 def merge_tree(ftail: np.ndarray, fhead: np.ndarray, edges: np.ndarray, n_nodes: int):

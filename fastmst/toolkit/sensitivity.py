@@ -5,9 +5,9 @@ import numpy as np
 
 from fastmst import validation
 from fastmst._kernels.paths import cover_paths, root_forest
-from fastmst._kernels.tie_rule import edge_order
+from fastmst._kernels.tie_rule import edge_order, sort_positions
 from fastmst.toolkit.checks import validate_graph_with_forest
-from fastmst.toolkit.pathmax import heaviest_on_paths, merge_tree, rule_sorted
+from fastmst.toolkit.pathmax import heaviest_on_paths, merge_tree
 
 _FUNC = "sensitivity"
 
@@ -99,7 +99,7 @@ def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None,
     g, pos, in_forest, maximize, threads = validate_graph_with_forest(
         tail, head, weight, forest, None, maximize, threads, name="forest", func=_FUNC,
         strict_maximize=True)
-    fedges = rule_sorted(pos, g.kweight, maximize)
+    fedges = sort_positions(pos, g.kweight, maximize)
     ftail, fhead = g.ktail[fedges], g.khead[fedges]
     tree, cycle = merge_tree(ftail, fhead, fedges, g.n_nodes)
     if tree is None:
