@@ -345,3 +345,153 @@ def test_required_and_excluded_links(workdir, capsys):
     assert d["requirement_cost"] == pytest.approx(expect - _nx_forest_weight(LINKS))
     rows = list(csv.DictReader(open(workdir / "f.csv")))
     assert ("north", "west") in {(r["from"], r["to"]) for r in rows}
+
+
+# --- never a traceback, nothing left behind -----------------------------------------------------------
+
+def _bad_inputs(d):
+    """Files for the battery below (test fixtures, not demo data)."""
+    np.savez(d / "complex.npz", tail=np.array([0, 1]), head=np.array([1, 2]),
+             weight=np.array([1 + 2j, 3 + 0j]))
+    _write(d / "huge.csv", ["a", "b", "w"], [("x", "y", "1e308"), ("y", "z", "1e308"),
+                                             ("z", "q", "1e308")])
+    _write(d / "ints.csv", ["a", "b", "w"], [("007", "7", 1), ("8", "0x1", 2)])
+    (d / "hostile.gr").write_text("p sp 400000000 1\na 1 2 3\n")
+    (d / "hostile.mtx").write_text("%%MatrixMarket matrix coordinate real general\n"
+                                   "400000000 400000000 1\n1 2 3\n")
+    (d / "tabs.gr").write_text("p sp 3 2\na\t1 2  5 \na 2\t3 1\n")
+
+
+# (arguments, expected exit code): 1 bad data, 2 bad usage (docs/files-and-cli.md)
+BATTERY = [
+    (["solve", "complex.npz"], 1),
+    (["solve", "links.csv", "--threads", "99999999999"], 1),
+    (["solve", "links.csv", "--threads", "x"], 2),
+    (["solve", "hostile.gr", "-o", "out.csv"], 1),
+    (["solve", "hostile.mtx", "-o", "out.csv"], 1),
+    (["solve", "hostile.gr", "--declared-nodes", "12"], 1),
+    (["solve", "ints.csv", "--integer-ids"], 1),
+    (["solve", "links.csv", "-o", "links.csv"], 2),
+    (["solve", "links.csv", "-o", "./sub/../links.csv"], 2),
+    (["solve", "links.csv", "--nodes", "sites.csv", "-o", "sites.csv"], 2),
+    (["solve", "links.csv", "-o", "a.csv", "-o", "a.csv"], 2),
+    (["check", "links.csv", "links.csv", "--limit", "-1"], 2),
+    (["clusters", "links.csv", "-k", "2", "-o", "links.csv"], 2),
+    (["bench", "complex.npz"], 1),
+    (["solve", "nowhere/links.csv"], 1),
+    (["solve", "links.csv", "-o", "nodir/out.csv"], 1),
+]
+
+
+@pytest.mark.parametrize("args,code", BATTERY, ids=[" ".join(a) for a, _ in BATTERY])
+def test_bad_invocations_never_print_a_traceback(workdir, capsys, args, code):
+    """Every bad invocation prints one message without a traceback, exits with the documented
+    code, and leaves no output file and no temporary file behind."""
+    _bad_inputs(workdir)
+    (workdir / "sub").mkdir()
+    before = sorted(os.listdir(workdir))
+    links = (workdir / "links.csv").read_bytes()
+    cwd = os.getcwd()
+    os.chdir(workdir)
+    try:
+        rc = cli.main(args)
+    finally:
+        os.chdir(cwd)
+    err = capsys.readouterr().err
+    assert rc == code, (rc, err)
+    assert "Traceback" not in err and err.strip()
+    assert sorted(os.listdir(workdir)) == before
+    assert (workdir / "links.csv").read_bytes() == links
+
+
+def test_battery_through_the_real_command(workdir):
+    """The same through the installed command: no traceback on stderr for any case."""
+    _bad_inputs(workdir)
+    for args in (["solve", "complex.npz"], ["solve", "links.csv", "--threads", "99999999999"],
+                 ["solve", "huge.csv", "-o", "out.csv"], ["solve", "hostile.gr"]):
+        p = run(args, workdir)
+        assert p.returncode in (0, 1, 2) and "Traceback" not in p.stderr, (args, p.stderr)
+
+
+def test_failure_after_solving_leaves_no_output(workdir, capsys, monkeypatch):
+    """A failure after the forest is computed (here: the plot) leaves neither the new outputs
+    nor changes to existing ones: outputs are committed only once everything succeeded."""
+    from fastmst.cli import solve as solve_cmd
+
+    def broken_plot(*a, **k):
+        raise ValueError("plotting failed (simulated)")
+    monkeypatch.setattr(solve_cmd, "plot_forest", broken_plot)
+    (workdir / "old.csv").write_text("keep me\n")
+    args = ["solve", str(workdir / "links.csv"), "--nodes", str(workdir / "sites.csv"),
+            "-o", str(workdir / "new.csv"), "-o", str(workdir / "old.csv"),
+            "--plot", str(workdir / "map.png")]
+    assert cli.main(args) == 1
+    assert "plotting failed" in capsys.readouterr().err
+    assert (workdir / "old.csv").read_text() == "keep me\n"
+    assert sorted(os.listdir(workdir)) == ["links.csv", "old.csv", "sites.csv"]
+
+
+def test_huge_weights_total_is_inf_or_refused_cleanly(workdir, capsys):
+    """Weights of 1e308 whose sum overflows: the run either succeeds (total inf) or fails with
+    one message; either way no traceback and no output left behind on failure."""
+    _bad_inputs(workdir)
+    rc = cli.main(["solve", str(workdir / "huge.csv"), "-o", str(workdir / "out.csv"),
+                   "--json"])
+    out, err = capsys.readouterr()
+    assert "Traceback" not in err
+    if rc == 0:
+        assert json.loads(out)["total_weight"] == "inf"
+        assert (workdir / "out.csv").exists()
+    else:
+        assert rc == 1 and not (workdir / "out.csv").exists()
+
+
+def test_output_via_symlink_to_input_refused(workdir, capsys):
+    """-o naming the input through a symbolic link is refused (exit 2), the input untouched."""
+    os.symlink(workdir / "links.csv", workdir / "alias.csv")
+    before = (workdir / "links.csv").read_bytes()
+    assert cli.main(["solve", str(workdir / "links.csv"), "-o", str(workdir / "alias.csv")]) == 2
+    assert "is an input" in capsys.readouterr().err
+    assert (workdir / "links.csv").read_bytes() == before
+
+
+def test_integer_ids_and_declared_nodes_options(workdir, capsys):
+    """--integer-ids reads '007' as node 7; --declared-nodes confirms a header's node count."""
+    _write(workdir / "i.csv", ["a", "b", "w"], [("007", "7", 1), ("7", "8", 2)])
+    assert cli.main(["solve", str(workdir / "i.csv"), "--json"]) == 0
+    assert json.loads(capsys.readouterr().out)["nodes"] == 3       # '007', '7', '8'
+    assert cli.main(["solve", str(workdir / "i.csv"), "--json", "--integer-ids"]) == 0
+    assert json.loads(capsys.readouterr().out)["nodes"] == 2       # 7, 8
+    (workdir / "big.gr").write_text("p sp 2000000 1\na 1 2 3\n")
+    assert cli.main(["solve", str(workdir / "big.gr"), "--json"]) == 1
+    assert "--declared-nodes 2000000" in capsys.readouterr().err
+    assert cli.main(["solve", str(workdir / "big.gr"), "--json",
+                     "--declared-nodes", "2000000"]) == 0
+    assert json.loads(capsys.readouterr().out)["components"] == 1_999_999
+
+
+def test_spreadsheet_safe_option(workdir, capsys):
+    """--spreadsheet-safe prefixes text cells starting with = + - @ in CSV output."""
+    _write(workdir / "f.csv", ["a", "b", "w"], [("=cmd", "b", 1), ("b", "@c", 2)])
+    assert cli.main(["solve", str(workdir / "f.csv"), "-q", "-o", str(workdir / "plain.csv"),
+                     "-o", str(workdir / "safe.csv"), "--spreadsheet-safe"]) == 0
+    # the option applies to every CSV/TSV output of the run
+    assert "\"'=cmd\"" in (workdir / "safe.csv").read_text()
+    assert "\"'=cmd\"" in (workdir / "plain.csv").read_text()
+    assert cli.main(["solve", str(workdir / "f.csv"), "-q", "-o", str(workdir / "v.csv")]) == 0
+    assert '"=cmd"' in (workdir / "v.csv").read_text()
+
+
+def test_reading_phase_turns_into_a_spinner(monkeypatch):
+    """The reading bar does not stay at 100 % while labels are mapped: a total of None turns
+    the phase into a spinner with its own description."""
+    from fastmst.cli.progress import Reporter
+    rep = Reporter(True)
+    if rep._progress is None:
+        pytest.skip("rich not installed")
+    with rep:
+        with rep.phase("reading edges") as update:
+            update(10, 10)
+            update(10, None)
+            task = rep._progress.tasks[-1]
+            assert task.total is None and "labels" in task.description

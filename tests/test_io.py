@@ -118,20 +118,21 @@ def test_geojson_rfc7946(tmp_path):
 
 
 def test_integer_labels_noncontiguous_and_big(tmp_path):
-    """Map-style int64 ids and 1-based ids are compacted in sorted order and mapped back."""
+    """Integer ids (ids="integer"): map-style int64 ids and 1-based ids are compacted in
+    numeric order and mapped back."""
     big = [2**40 + 7, 3, 2**40 + 7, 912_345_678_901]
     p = _write_csv(tmp_path / "ids.csv", ["u", "v", "weight"],
                    [(big[0], big[1], 1), (big[1], big[3], 2), (big[2], big[3], 3)])
-    el = io.read_edges(p)
+    el = io.read_edges(p, ids="integer")
     assert el.labels.tolist() == sorted({big[0], big[1], big[3]})
     assert el.label(el.tail).tolist() == [big[0], big[1], big[2]]
     assert el.weight.dtype == np.int64
     one = _write_csv(tmp_path / "one.csv", ["u", "v", "w"], [(1, 2, 1), (2, 3, 1), (5, 3, 2)])
-    el = io.read_edges(one)
+    el = io.read_edges(one, ids="integer")
     assert el.labels.tolist() == [1, 2, 3, 5] and el.n_nodes == 4
     assert el.solve().n_components == 1  # no phantom nodes 0 or 4
     dense = _write_csv(tmp_path / "d.csv", ["u", "v", "w"], [(0, 1, 1), (1, 2, 1)])
-    assert io.read_edges(dense).labels is None
+    assert io.read_edges(dense, ids="integer").labels is None
     mixed = io.from_table(pa.table({"u": pa.array([5, 9], pa.int32()),
                                     "v": pa.array([9, 2**40], pa.int64()), "w": [1, 2]}))
     assert mixed.labels.tolist() == [5, 9, 2**40]  # int32 and int64 columns stay integers
@@ -402,10 +403,14 @@ def test_bad_node_tables(tmp_path):
 
 
 def test_decimal_ids_and_unknown_suffix(tmp_path):
-    """Decimal node ids and files of unknown format get errors that say what to do."""
+    """Decimal node ids in a typed column, and files of unknown format, get errors that say
+    what to do; in a text file '1.5' is a text label like any other."""
     p = _write_csv(tmp_path / "f.csv", ["a", "b", "w"], [(1.5, 2, 1)])
+    assert io.read_edges(p).labels.tolist() == ["1.5", "2"]
+    with pytest.raises(FileFormatError, match="not an integer"):
+        io.read_edges(p, ids="integer")
     with pytest.raises(FileFormatError, match="decimal numbers"):
-        io.read_edges(p)
+        io.from_table(pa.table({"a": [1.5], "b": [2.0], "w": [1.0]}))
     q = tmp_path / "x.dat"
     q.write_text("a,b,w\n1,2,3\n")
     with pytest.raises(ValueError, match="cannot tell the format"):
@@ -441,7 +446,7 @@ def test_progress_callback_reports_bytes(tmp_path):
     seen = []
     el = io.read_edges(p, progress=lambda done, total: seen.append((done, total)))
     assert el.n_edges == 2000
-    assert seen and seen[-1][0] == seen[-1][1] == p.stat().st_size
+    assert (p.stat().st_size, p.stat().st_size) in seen
 
 
 def test_registry_one_place_adds_a_format(tmp_path, monkeypatch):
@@ -521,3 +526,264 @@ def test_read_positions_by_position_and_by_labels(tmp_path):
     bad.write_text("u,v\nalpha,zulu\n")
     with pytest.raises(FileFormatError, match="node 'zulu' is not a node"):
         io.read_positions(bad, el)
+
+
+# --- labels are text unless the ids are declared integers ------------------------------------------
+
+# Label shapes that a type-guessing reader would change: leading zeros, hex- and float-like
+# text, true/false words, signs, surrounding spaces, unicode, null-like words.
+_TRICKY = ["007", "7", "0x1", "1", "true", "false", "True", "1e3", "1000", "+7", "-0", "0",
+           " 7", "7 ", "NA", "null", "nan", "inf", "é", "名前", "a b", "=1+2", "@x", "1.0"]
+# Text labels without line breaks (a CSV/TSV writer refuses those, see the test below) and
+# without NUL (NumPy's text dtype of .npz cannot end a string with it).
+_TEXT = st.text(st.characters(blacklist_categories=("Cs",),
+                              blacklist_characters="\r\n\x00\x0b\x0c\x1c\x1d\x1e\x85\u2028\u2029"),
+                min_size=1, max_size=6)
+_LABEL = st.one_of(st.sampled_from(_TRICKY), _TEXT,
+                   st.integers(0, 10**6).map(lambda i: f"{i:0{(i % 4) + 1}d}"),
+                   st.integers(0, 255).map(hex))
+
+
+def _csv_file(path, rows, sep=","):
+    """Rows written by Python's csv module (quoting what needs it), as a user's file would be."""
+    import csv
+    with open(path, "w", newline="", encoding="utf-8") as fh:
+        w = csv.writer(fh, delimiter=sep)
+        w.writerow(["tail", "head", "weight"])
+        w.writerows(rows)
+    return path
+
+
+def _first_appearance(picks):
+    seen = {}
+    for x in [p[0] for p in picks] + [p[1] for p in picks]:
+        seen.setdefault(x, len(seen))
+    return list(seen)
+
+
+@settings(deadline=None, derandomize=True, max_examples=60)
+@given(labels=st.lists(_LABEL, min_size=1, max_size=8, unique=True), data=st.data())
+def test_text_labels_read_exactly_and_round_trip_every_writer(tmp_path_factory, labels, data):
+    """CSV/TSV endpoint columns are read as text, exactly as written: '007' and '7' are two
+    nodes, '0x1' and 'true' stay text, and compact ids follow first appearance (tail column,
+    then head column).  Every writer (CSV, TSV, Parquet, .npz, GeoJSON) gives the labels back
+    unchanged; the forest weight equals networkx's on the labelled graph (reference library)."""
+    tmp = tmp_path_factory.mktemp("labels")
+    m = data.draw(st.integers(1, 10))
+    picks = data.draw(st.lists(st.tuples(st.sampled_from(labels), st.sampled_from(labels),
+                                         st.integers(-5, 5)), min_size=m, max_size=m))
+    for name, sep in (("e.csv", ","), ("e.tsv", "\t")):
+        el = io.read_edges(_csv_file(tmp / name, picks, sep))
+        assert el.labels.tolist() == _first_appearance(picks)
+        assert el.label(el.tail).tolist() == [p[0] for p in picks]
+        assert el.label(el.head).tolist() == [p[1] for p in picks]
+        f = el.solve()
+        assert f.weight == _nx_mst_weight([(a, b, w) for a, b, w in picks])
+    want = list(zip(el.label(f.tail).tolist(), el.label(f.head).tolist()))
+    if not want:   # self-loops only: an empty forest has no edge list to read back
+        return
+    for out in ("f.csv", "f.tsv", "f.csv.gz", "f.parquet", "f.npz"):
+        back = io.read_edges(io.write_forest(tmp / out, f, el))
+        assert list(zip(back.label(back.tail).tolist(), back.label(back.head).tolist())) == want
+    coords = np.arange(2 * el.n_nodes, dtype=float).reshape(-1, 2) % 80
+    geo = io.EdgeList(el.tail, el.head, el.weight, el.n_nodes, el.labels, coords, True)
+    doc = json.loads(io.write_forest(tmp / "f.geojson", f, geo).read_text(encoding="utf-8"))
+    assert [(x["properties"]["tail"], x["properties"]["head"]) for x in doc["features"]] == want
+
+
+def test_integer_ids_only_when_asked(tmp_path):
+    """ids="integer" reads endpoint columns as integers ('007' is node 7); the default keeps
+    them as text, also in a node table and in lists of links."""
+    p = _write_csv(tmp_path / "e.csv", ["u", "v", "w"],
+                   [("007", "7", 1), ("7", "0x1", 2), ("true", "007", 3)])
+    el = io.read_edges(p)
+    assert el.labels.tolist() == ["007", "7", "true", "0x1"] and el.n_nodes == 4
+    assert el.solve().n_components == 1
+    q = _write_csv(tmp_path / "i.csv", ["u", "v", "w"], [("007", "7", 1), ("8", "09", 2)])
+    ints = io.read_edges(q, ids="integer")
+    assert ints.labels.tolist() == [7, 8, 9] and ints.n_nodes == 3
+    with pytest.raises(FileFormatError, match=r"line 4\).*'true'.*not an integer"):
+        io.read_edges(p, ids="integer")
+    with pytest.raises(ValueError, match="unknown ids 'int'"):
+        io.read_edges(p, ids="int")
+    nodes = tmp_path / "n.csv"
+    nodes.write_text("id,x,y\n007,0,0\n7,1,0\ntrue,2,0\n0x1,3,0\n")
+    withn = io.read_edges(p, nodes=nodes)
+    assert withn.labels.tolist() == ["007", "7", "true", "0x1"]
+    assert withn.label(withn.tail).tolist() == ["007", "7", "true"]
+    assert io.read_nodes(nodes, ids="text").labels.tolist() == ["007", "7", "true", "0x1"]
+    links = tmp_path / "l.csv"
+    links.write_text("a,b\n7,007\n")
+    assert io.read_positions(links, el).tolist() == [0]
+
+
+def test_same_label_same_node_whatever_the_column_holds(tmp_path):
+    """A label is one node whether its column is all digits or not (CSV and typed tables)."""
+    p = _write_csv(tmp_path / "e.csv", ["u", "v", "w"], [("1", "2", 1), ("3", "x", 1)])
+    el = io.read_edges(p)     # column u is all digits, column v is not
+    assert el.labels.tolist() == ["1", "3", "2", "x"]
+    t = pa.table({"u": pa.array([1, 2], pa.int64()), "v": ["2", "x"], "w": [1.0, 1.0]})
+    mixed = io.from_table(t)
+    assert mixed.n_nodes == 3 and mixed.solve().n_components == 1
+
+
+def test_true_false_labels_round_trip(tmp_path):
+    """true/false labels come back as the same words, not as booleans."""
+    p = _write_csv(tmp_path / "b.csv", ["u", "v", "w"], [("true", "false", 1), ("false", "x", 2)])
+    el = io.read_edges(p)
+    out = io.write_forest(tmp_path / "f.csv", el.solve(), el)
+    assert out.read_text().splitlines()[1:] == ['"true","false",1,0', '"false","x",2,1']
+    assert io.read_edges(out).labels.tolist() == ["true", "false", "x"]
+
+
+def test_csv_writer_refuses_line_breaks_in_labels(tmp_path):
+    """A label with a line break cannot be read back from CSV at full speed: the writer refuses
+    it, naming the label and the formats that keep it (Parquet, .npz)."""
+    el = io.from_table(pa.table({"a": ["x\ny", "b"], "b": ["b", "c"], "w": [1, 2]}))
+    f = el.solve()
+    with pytest.raises(ValueError, match=r"f\.csv.*label 'x\\ny' has a line break.*Parquet"):
+        io.write_forest(tmp_path / "f.csv", f, el)
+    assert not (tmp_path / "f.csv").exists()
+    back = io.read_edges(io.write_forest(tmp_path / "f.parquet", f, el))
+    assert "x\ny" in back.labels.tolist()
+
+
+def test_progress_never_shows_done_while_work_continues(tmp_path):
+    """After the last byte is parsed the reader still checks and maps labels: it says so by a
+    call with total None (a spinner), so a bar never sits at 100 % while work continues."""
+    p = _write_csv(tmp_path / "e.csv", ["a", "b", "w"], [(f"n{i}", f"n{i + 1}", i)
+                                                         for i in range(3000)])
+    seen = []
+    io.read_edges(p, progress=lambda done, total: seen.append((done, total)))
+    full = [i for i, (d, t) in enumerate(seen) if t is not None and d == t]
+    assert full and seen[-1][1] is None and full[-1] < len(seen) - 1
+
+
+# --- hostile and awkward files ---------------------------------------------------------------------
+
+def test_header_declaring_huge_node_counts_is_refused(tmp_path):
+    """A tiny .gr or .mtx whose header declares hundreds of millions of nodes is refused before
+    anything node-sized is allocated; declared_nodes= confirms a genuinely large count."""
+    import tracemalloc
+    gr = tmp_path / "h.gr"
+    gr.write_text("p sp 400000000 1\na 1 2 3\n")
+    mtx = tmp_path / "h.mtx"
+    mtx.write_text("%%MatrixMarket matrix coordinate real general\n400000000 400000000 1\n1 2 3\n")
+    for path in (gr, mtx):
+        tracemalloc.start()
+        try:
+            with pytest.raises(FileFormatError, match=r"declares 400,000,000 nodes.*"
+                                                      r"declared_nodes=400000000"):
+                io.read_edges(path)
+            peak = tracemalloc.get_traced_memory()[1]
+        finally:
+            tracemalloc.stop()
+        assert peak < 64 * 2**20, peak     # nothing node-sized (3.2 GB) was allocated
+        with pytest.raises(FileFormatError, match="declared_nodes=5 does not match"):
+            io.read_edges(path, declared_nodes=5)
+    ok = tmp_path / "ok.gr"
+    ok.write_text("p sp 3000000 1\na 1 2 3\n")
+    with pytest.raises(FileFormatError, match="declares 3,000,000 nodes"):
+        io.read_edges(ok)
+    el = io.read_edges(ok, declared_nodes=3_000_000)
+    assert el.n_nodes == 3_000_000 and el.solve().n_components == 3_000_000 - 1
+
+
+def test_gr_lines_split_on_any_whitespace(tmp_path):
+    """.gr fields are whitespace-separated: tabs, repeated, leading and trailing spaces, CRLF."""
+    p = tmp_path / "w.gr"
+    p.write_bytes(b"c  comment\r\np sp  3\t2 \r\n  a 1\t2   5  \r\na\t2 3\t1\t\r\n")
+    el = io.read_edges(p)
+    assert el.n_nodes == 3 and el.tail.tolist() == [0, 1] and el.weight.tolist() == [5, 1]
+    bad = tmp_path / "bad.gr"
+    bad.write_text("p sp 3 2\na 1 2 5\na 2 x 1\n")
+    with pytest.raises(FileFormatError, match="line 3: node ids"):
+        io.read_edges(bad)
+
+
+# --- writing -----------------------------------------------------------------------------------------
+
+def test_replacing_a_file_keeps_its_permissions(tmp_path):
+    """Replacing an output keeps the target's mode (0600 stays 0600); a new file gets the
+    usual mode of a new file."""
+    el = io.from_table(pa.table({"a": ["x"], "b": ["y"], "w": [1.0]}))
+    out = tmp_path / "f.csv"
+    out.write_text("old\n")
+    os.chmod(out, 0o600)
+    io.write_forest(out, el.solve(), el)
+    assert (os.stat(out).st_mode & 0o777) == 0o600 and out.read_text() != "old\n"
+    umask = os.umask(0)
+    os.umask(umask)
+    new = io.write_forest(tmp_path / "g.parquet", el.solve(), el)
+    assert (os.stat(new).st_mode & 0o777) == 0o666 & ~umask
+
+
+def test_write_errors_name_the_file(tmp_path):
+    """A write that fails names the target file, not a temporary one."""
+    el = io.from_table(pa.table({"a": ["x"], "b": ["y"], "w": [1.0]}))
+    target = tmp_path / "adir.csv"
+    target.mkdir()
+    with pytest.raises(OSError, match=f"cannot write {str(target)!r}"):
+        io.write_forest(target, el.solve(), el)
+    assert sorted(os.listdir(tmp_path)) == ["adir.csv"]
+
+
+def test_spreadsheet_formulas_verbatim_by_default(tmp_path):
+    """Labels starting with = + - @ are written verbatim (they round-trip); spreadsheet_safe
+    prefixes them with an apostrophe in CSV/TSV text cells only (numbers untouched)."""
+    el = io.from_table(pa.table({"a": ["=1+2", "@x", "-y"], "b": ["+3", "ok", "=z"],
+                                 "w": [-1.0, 2.0, 3.0]}))
+    f = el.solve()
+    plain_ = io.write_forest(tmp_path / "p.csv", f, el)
+    assert set(io.read_edges(plain_).labels.tolist()) == {"=1+2", "@x", "-y", "+3", "ok", "=z"}
+    safe = io.write_forest(tmp_path / "s.csv", f, el, spreadsheet_safe=True)
+    rows = safe.read_text().splitlines()[1:]
+    assert rows[0].startswith('"\'=1+2","\'+3",-1,')
+    assert all(not c.strip('"').startswith(("=", "+", "-", "@"))
+               for r in rows for c in r.split(",")[:2])
+    pq = io.write_forest(tmp_path / "s.parquet", f, el, spreadsheet_safe=True)
+    assert "=1+2" in io.read_edges(pq).labels.tolist()   # only text formats are changed
+
+
+# --- messages ----------------------------------------------------------------------------------------
+
+def test_messages_show_plain_numbers(tmp_path):
+    """No NumPy scalar reprs (np.int64(7)) in messages about integer labels."""
+    el = io.from_table(pa.table({"a": [7, 8], "b": [8, 9], "w": [1, 2]}))
+    pairs = tmp_path / "p.parquet"
+    io.write_table(pairs, pa.table({"u": [7], "v": [9]}))
+    with pytest.raises(FileFormatError) as e:
+        io.read_positions(pairs, el)
+    assert "np." not in str(e.value) and "no edge joins 7 and 9" in str(e.value)
+    with pytest.raises(FileFormatError) as e:
+        io.read_nodes(pa.table({"id": [5, 5], "x": [0.0, 1.0], "y": [0.0, 1.0]}))
+    assert "np." not in str(e.value) and "node 5 in column 'id' appears twice" in str(e.value)
+
+
+def test_nullable_int_column_reported_as_missing():
+    """A pandas Int64 column with NA is reported as missing values, not as a float dtype."""
+    import pandas as pd
+    df = pd.DataFrame({"a": pd.array([1, None], dtype="Int64"), "b": [2, 3],
+                       "w": pd.array([1, None], dtype="Int64")})
+    with pytest.raises(FileFormatError, match=r"row 1 .*column 'a' is empty or missing"):
+        io.from_table(df)
+    df["a"] = [1, 2]
+    with pytest.raises(FileFormatError, match=r"row 1 .*column 'w' is empty or missing"):
+        io.from_table(df)
+
+
+def test_uint64_weights_read_and_odd_dtypes_refused(tmp_path):
+    """uint64 weights beyond 2**63 are read as uint64 from Parquet and .npz; complex weights
+    are refused with a message naming the file and the column."""
+    big = np.array([2**64 - 1, 2**63, 5], dtype=np.uint64)
+    t, h = np.array([0, 1, 2]), np.array([1, 2, 0])
+    pq_ = tmp_path / "u.parquet"
+    io.write_table(pq_, pa.table({"tail": t, "head": h, "weight": big}))
+    np.savez(tmp_path / "u.npz", tail=t, head=h, weight=big)
+    for p in (pq_, tmp_path / "u.npz"):
+        el = io.read_edges(p)
+        assert el.weight.dtype == np.uint64 and el.weight.tolist() == big.tolist()
+        assert el.solve().edges.tolist() == [2, 1]    # the two lightest of a triangle
+    np.savez(tmp_path / "c.npz", tail=t, head=h, weight=big.astype(complex))
+    with pytest.raises(FileFormatError, match=r"c\.npz: column 'weight' holds complex"):
+        io.read_edges(tmp_path / "c.npz")

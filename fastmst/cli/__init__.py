@@ -9,7 +9,9 @@ functions, listed in :data:`COMMANDS`.
 Exit codes: 0 success; 1 bad data (unreadable or malformed files, invalid values); 2 bad usage
 (unknown options, conflicting or missing arguments, unknown output formats); 3 ``check`` ran and
 the given forest is not a minimum spanning forest.  Errors print one message without a traceback;
-``--debug`` shows the traceback.
+``--debug`` shows the traceback.  Anything unexpected is still one message (exit 1) asking for
+a report.  Outputs are written only once everything that can fail has succeeded
+(:class:`fastmst.io.StagedOutputs`), so a failed run leaves no output behind.
 """
 from __future__ import annotations
 
@@ -64,7 +66,7 @@ def main(argv=None) -> int:
         print(f"fastmst {args.command}: error: {exc}; the command line needs its extras: "
               f"pip install \"fastmst[cli]\"", file=sys.stderr)
         return EXIT_DATA
-    except (ValueError, TypeError, OSError, MemoryError) as exc:
+    except (ValueError, TypeError, OSError, MemoryError, ArithmeticError) as exc:
         if debug:
             raise
         print(f"fastmst {args.command}: error: {exc}", file=sys.stderr)
@@ -74,3 +76,10 @@ def main(argv=None) -> int:
     except KeyboardInterrupt:
         print("fastmst: interrupted", file=sys.stderr)
         return 130
+    except Exception as exc:   # a bug: still one message, never a traceback without --debug
+        if debug:
+            raise
+        print(f"fastmst {args.command}: unexpected error ({type(exc).__name__}: {exc}); please "
+              f"report it with the command line, and run again with --debug for the "
+              f"traceback.", file=sys.stderr)
+        return EXIT_DATA

@@ -10,7 +10,8 @@ import numpy as np
 import fastmst
 from fastmst import io
 from fastmst.cli import common
-from fastmst.cli.common import CAUTION, EXIT_NOT_MINIMUM, EXIT_OK, fmt_num, jsonable, yes
+from fastmst.cli.common import (CAUTION, EXIT_NOT_MINIMUM, EXIT_OK, UsageError, fmt_num,
+                                jsonable, yes)
 
 EPILOG = """examples:
   fastmst check links.csv forest.csv
@@ -32,6 +33,8 @@ def add_parser(sub):
 
 
 def run(args) -> int:
+    if args.limit < 0:
+        raise UsageError(f"--limit {args.limit}: expected 0 or more swaps to list.")
     rep = common.reporter(args)
     with rep:
         edges = common.load_edges(args, rep)

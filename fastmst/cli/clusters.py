@@ -52,16 +52,21 @@ def run(args) -> int:
         with rep.phase("clustering"):
             labels = np.asarray(forest.clusters(k=args.k, threshold=args.threshold))
         table = io.node_table(edges, cluster=labels.astype(np.int64))
-        with rep.phase("writing"):
-            for out in args.output:
-                io.write_table(out, table)
-        if args.plot:
-            with rep.phase("plotting"):
-                plot_forest(args.plot, edges, forest, groups=cluster_groups(forest, labels),
-                            title="Single-linkage clusters",
-                            subtitle=f"{edges.source}: {int(labels.max()) + 1 if labels.size else 0}"
-                                     f" clusters (forest edges coloured by cluster; cut edges "
-                                     f"black)")
+        # outputs under temporary names, renamed onto their targets only when all succeeded
+        with io.StagedOutputs() as staged:
+            with rep.phase("writing"):
+                for out in args.output:
+                    io.write_table(staged.path(out), table,
+                                   spreadsheet_safe=args.spreadsheet_safe)
+            if args.plot:
+                n_clusters = int(labels.max()) + 1 if labels.size else 0
+                with rep.phase("plotting"):
+                    plot_forest(staged.path(args.plot), edges, forest,
+                                groups=cluster_groups(forest, labels),
+                                title="Single-linkage clusters",
+                                subtitle=f"{edges.source}: {n_clusters} clusters (forest edges "
+                                         f"coloured by cluster; cut edges black)")
+            staged.commit()
     sizes = np.bincount(labels) if labels.size else np.zeros(0, np.int64)
     top = np.argsort(-sizes, kind="stable")[:10]
     out = {"source": edges.source, "nodes": edges.n_nodes, "clusters": int(sizes.size),

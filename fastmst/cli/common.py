@@ -8,6 +8,7 @@ ran and the forest is not a minimum spanning forest).
 from __future__ import annotations
 
 import math
+import os
 import sys
 
 import numpy as np
@@ -51,6 +52,13 @@ def add_input_options(p, forest_file=False):
                                                         "first)")
     g.add_argument("--x", metavar="COLUMN", help="x or longitude column of the node table")
     g.add_argument("--y", metavar="COLUMN", help="y or latitude column of the node table")
+    g.add_argument("--integer-ids", dest="ids", action="store_const", const="integer",
+                   default="text",
+                   help="read node ids as integers (007 is node 7); by default ids are text, "
+                        "exactly as written")
+    g.add_argument("--declared-nodes", type=int, metavar="N",
+                   help="confirm the node count a .gr/.mtx header declares when it is far more "
+                        "than the file's edges name (each declared node costs memory)")
     geo = g.add_mutually_exclusive_group()
     geo.add_argument("--geographic", dest="geographic", action="store_const", const=True,
                      help="read --x/--y as longitude/latitude degrees (great-circle metres)")
@@ -88,6 +96,10 @@ def add_output_options(p, outputs=True):
                        help="write the result; the format follows the suffix (.csv, .tsv, "
                             ".csv.gz, .parquet, .npz, .geojson); repeat for several files")
         g.add_argument("--plot", metavar="FILE.png", help="draw the forest over the nodes")
+        g.add_argument("--spreadsheet-safe", action="store_true",
+                       help="in CSV/TSV outputs, put an apostrophe before text cells beginning "
+                            "with = + - @ (spreadsheet formulas); by default labels are "
+                            "written verbatim")
     g.add_argument("--json", action="store_true", help="print the summary as JSON")
     g.add_argument("--quiet", "-q", action="store_true",
                    help="no progress bars and no summary (errors and the caution still print)")
@@ -97,7 +109,9 @@ def add_output_options(p, outputs=True):
 # --- usage checks and input -----------------------------------------------------------------------
 
 def check_outputs(args, *, geojson=True):
-    """Reject unknown output suffixes (and GeoJSON where it has no meaning) before any work."""
+    """Reject unknown output suffixes (and GeoJSON where it has no meaning), outputs that name
+    an input file or another output (also through links or relative paths), before any work."""
+    check_not_inputs(args)
     for out in getattr(args, "output", []):
         try:
             name, _ = io.detect_format(out, None, valid=io.WRITE_FORMATS, func="fastmst")
@@ -110,6 +124,35 @@ def check_outputs(args, *, geojson=True):
     if plot and not plot.lower().endswith(".png"):
         raise UsageError(f"--plot {plot}: expected a file name ending in .png.")
     check_coordinates(args, bool(getattr(args, "nodes", None)))
+
+
+def _same_file(a: str, b: str) -> bool:
+    if os.path.realpath(a) == os.path.realpath(b):
+        return True
+    try:
+        return os.path.samefile(a, b)   # hard links
+    except OSError:
+        return False
+
+
+def check_not_inputs(args) -> None:
+    """Every output (-o, --plot) must differ from every input and from the other outputs."""
+    inputs = [(opt, getattr(args, dest, None)) for opt, dest in
+              (("EDGES", "edges"), ("FOREST", "forest"), ("--nodes", "nodes"),
+               ("--required", "required"), ("--excluded", "excluded"))]
+    inputs = [(opt, path) for opt, path in inputs if path]
+    outputs = [("-o", out) for out in getattr(args, "output", [])]
+    if getattr(args, "plot", None):
+        outputs.append(("--plot", args.plot))
+    for k, (opt, out) in enumerate(outputs):
+        for src_opt, src in inputs:
+            if _same_file(out, src):
+                raise UsageError(f"{opt} {out}: is an input ({src_opt} {src}); writing there "
+                                 f"would overwrite it. Choose another output name.")
+        for opt2, other in outputs[:k]:
+            if _same_file(out, other):
+                raise UsageError(f"{opt} {out}: named twice (also {opt2} {other}); give each "
+                                 f"output its own file name.")
 
 
 def check_coordinates(args, have_coords: bool):
@@ -136,13 +179,14 @@ def load_edges(args, rep) -> io.EdgeList:
     if args.nodes:
         with rep.phase("reading nodes"):
             nodes = io.read_nodes(args.nodes, id=args.node_id, x=args.x, y=args.y,
-                                  geographic=args.geographic)
+                                  geographic=args.geographic, ids=args.ids)
     elif args.x or args.y or args.node_id:
         raise UsageError("--node-id/--x/--y describe the node table; give it with --nodes FILE.")
     with rep.phase("reading edges") as update:
         edges = io.read_edges(args.edges, tail=args.tail, head=args.head, weight=args.weight,
                               format=args.format, nodes=nodes,
-                              progress=update if rep.enabled else None)
+                              progress=update if rep.enabled else None, ids=args.ids,
+                              declared_nodes=args.declared_nodes)
     return edges
 
 

@@ -46,19 +46,31 @@ class Reporter:
 
     @contextmanager
     def phase(self, name: str, total: int | None = None):
-        """Time a phase; yields ``update(done, total)`` for a bar (a spinner without totals)."""
-        task = None
+        """Time a phase; yields ``update(done, total)`` for a bar (a spinner without totals).
+
+        ``update(done, None)`` after a bar had a total means the measured part is done but the
+        phase goes on (e.g. labels are mapped after the last byte is parsed): the bar gives way
+        to a spinner, so no bar ever sits full while work continues.
+        """
+        task = [None, total is not None]   # rich task id; whether it shows a bar
         if self._progress is not None:
-            task = self._progress.add_task(name, total=total)
+            task[0] = self._progress.add_task(name, total=total)
 
         def update(done, total=None):
-            if task is not None:
-                self._progress.update(task, completed=done, total=total)
+            if task[0] is None:
+                return
+            if total is None and task[1]:
+                self._progress.remove_task(task[0])
+                task[0] = self._progress.add_task(f"{name}: checks and labels", total=None)
+                task[1] = False
+            elif total is not None:
+                self._progress.update(task[0], completed=done, total=total)
+                task[1] = True
 
         start = time.perf_counter()
         try:
             yield update
         finally:
             self.times[name] = self.times.get(name, 0.0) + time.perf_counter() - start
-            if task is not None:
-                self._progress.remove_task(task)
+            if task[0] is not None:
+                self._progress.remove_task(task[0])

@@ -50,15 +50,21 @@ def run(args) -> int:
         with rep.phase("solving"):
             forest = fastmst.minimum_spanning_forest(edges.tail, edges.head, edges.weight,
                                                      edges.n_nodes, **kwargs)
-        with rep.phase("writing"):
-            for out in args.output:
-                io.write_forest(out, forest, edges)
-        if args.plot:
-            with rep.phase("plotting"):
-                plot_forest(args.plot, edges, forest,
-                            subtitle=f"{edges.source}: {len(forest):,} of {edges.n_edges:,} "
-                                     f"edges, total weight {fmt_num(forest.weight)}")
-    summary = _summary(args, edges, forest, rep)
+        summary = _summary(args, edges, forest, rep)
+        # outputs under temporary names, renamed onto their targets only when all succeeded
+        with io.StagedOutputs() as staged:
+            with rep.phase("writing"):
+                for out in args.output:
+                    io.write_forest(staged.path(out), forest, edges,
+                                    spreadsheet_safe=args.spreadsheet_safe)
+            if args.plot:
+                with rep.phase("plotting"):
+                    plot_forest(staged.path(args.plot), edges, forest,
+                                subtitle=f"{edges.source}: {len(forest):,} of "
+                                         f"{edges.n_edges:,} edges, total weight "
+                                         f"{fmt_num(forest.weight)}")
+            staged.commit()
+    summary["seconds"] = common.seconds(rep.times)
     if args.json:
         print(json.dumps(summary, indent=2))
     elif not args.quiet:

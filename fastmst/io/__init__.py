@@ -27,7 +27,7 @@ from fastmst.io import formats as _formats  # noqa: F401  (registers every forma
 from fastmst.io import registry as _registry
 from fastmst.io.adapters import (forest_table, from_networkx, from_scipy, from_table, node_table,
                                  to_networkx)
-from fastmst.io.atomic import atomic_write
+from fastmst.io.atomic import StagedOutputs, atomic_write
 from fastmst.io.checks import (FileFormatError, check_column, check_no_missing,
                                check_unique_labels)
 from fastmst.io.edgelist import EdgeList
@@ -49,5 +49,5 @@ __all__ = ["EdgeList", "NodeTable", "FileFormatError", "FORMATS", "WRITE_FORMATS
            "read_edges", "read_nodes", "write_forest", "write_table", "write_geojson",
            "from_table", "from_scipy", "from_networkx", "to_networkx", "forest_table",
            "node_table", "read_positions", "read_forest_positions", "load_table",
-           "atomic_write", "label_array", "encode_labels", "detect_format", "Format", "register",
+           "atomic_write", "StagedOutputs", "label_array", "encode_labels", "detect_format", "Format", "register",
            "check_column", "check_no_missing", "check_unique_labels", "CSV_BLOCK_SIZE"]

@@ -12,16 +12,17 @@ from fastmst import validation
 from fastmst.io.checks import FileFormatError, table_row
 from fastmst.io.columns import choose_edge_columns
 from fastmst.io.edgelist import EdgeList, edges_from_table
-from fastmst.io.labels import all_labels, id_dtype, label_array
+from fastmst.io.labels import all_labels, check_ids, id_dtype, label_array
 from fastmst.io.nodes import NodeTable, read_nodes
 from fastmst.io.tables import is_pandas, pandas_to_arrow
 
 
-def from_table(table, *, tail=None, head=None, weight=None, nodes=None) -> EdgeList:
+def from_table(table, *, tail=None, head=None, weight=None, nodes=None,
+               ids="text") -> EdgeList:
     """An EdgeList from a pandas DataFrame or pyarrow Table (one row per edge).
 
-    Columns are chosen as in :func:`fastmst.io.read_edges`; labels of any type are mapped to
-    compact ids.
+    Columns are chosen as in :func:`fastmst.io.read_edges`, and labels follow its rule
+    (``ids``: the columns' own types, or "integer" to read text ids as integers).
     """
     import pyarrow as pa
     if isinstance(table, pa.Table):
@@ -31,12 +32,13 @@ def from_table(table, *, tail=None, head=None, weight=None, nodes=None) -> EdgeL
     else:
         raise TypeError(f"from_table: expected a pandas DataFrame or a pyarrow Table, received "
                         f"{type(table).__name__}; for files use read_edges(path).")
+    ids = check_ids(ids, "from_table")
     if nodes is not None and not isinstance(nodes, NodeTable):
-        nodes = read_nodes(nodes)
+        nodes = read_nodes(nodes, ids=ids)
     cols = choose_edge_columns(t.column_names, tail, head, weight, source, nodes is not None)
     if t.num_rows == 0:
         raise FileFormatError(f"{source}: the table has no rows; expected one row per edge.")
-    return edges_from_table(t, cols, source, table_row, nodes)
+    return edges_from_table(t, cols, source, table_row, nodes, ids)
 
 
 def from_scipy(matrix, *, symmetric=None) -> EdgeList:

@@ -15,10 +15,14 @@ import numpy as np
 
 # One exception class for malformed files and tables everywhere: it is defined in the core
 # checks so that the Dask path (which does not import fastmst.io) raises the same class.
-from fastmst.validation import FileFormatError
+from fastmst.validation import FileFormatError, shown
 
 __all__ = ["FileFormatError", "csv_row", "table_row", "existing_file", "check_column",
-           "check_no_missing", "check_no_nan", "check_unique_labels"]
+           "check_no_missing", "check_no_nan", "check_unique_labels", "check_declared_nodes",
+           "shown"]
+
+#: A header may declare this many nodes beyond twice its edges (isolated nodes) unasked.
+SPARE_NODES = 1 << 20
 
 
 def csv_row(i: int) -> str:
@@ -91,6 +95,34 @@ def check_unique_labels(labels: np.ndarray, column: str, source: str, where) -> 
     dup = np.flatnonzero(s[1:] == s[:-1])
     if dup.size:
         a, b = sorted((int(order[dup[0]]), int(order[dup[0] + 1])))
-        raise FileFormatError(f"{source}: node {s[dup[0]]!r} in column {column!r} appears twice "
+        raise FileFormatError(f"{source}: node {shown(s[dup[0]])} in column {column!r} appears "
+                              f"twice "
                               f"({where(a)} and {where(b)}); node ids must be unique. Remove the "
                               f"duplicate rows.")
+
+
+def check_declared_nodes(n: int, n_edges: int, declared, source: str, what: str) -> int:
+    """The node count ``n`` a file's header declares, checked against what the file holds.
+
+    Every declared node costs memory (labels, the solver's arrays), so a header may declare at
+    most ``2 * n_edges + SPARE_NODES`` nodes (each edge names two; the rest are isolated nodes)
+    unless the caller confirms the count: ``declared`` must then equal ``n``.  Checked before
+    anything node-sized is allocated.  ``what`` names the edges ("arcs", "stored entries").
+    """
+    limit = 2 * n_edges + SPARE_NODES
+    if declared is not None:
+        if declared != n:
+            raise FileFormatError(f"{source}: declared_nodes={shown(declared)} does not match "
+                                  f"the header, which declares {n:,} nodes; pass the header's "
+                                  f"count (CLI: --declared-nodes {n}) or fix the file.")
+        return n
+    if n > limit:
+        gib = n * 8 / 2**30
+        raise FileFormatError(f"{source}: the header declares {n:,} nodes but the file holds "
+                              f"{n_edges:,} {what}; every declared node costs memory (8 bytes "
+                              f"for its label alone, {gib:,.1f} GiB here, several times that "
+                              f"to solve), so more than {limit:,} nodes for this file are "
+                              f"refused. Fix the header, or if the graph really has {n:,} nodes "
+                              f"(most of them isolated), confirm the count: "
+                              f"declared_nodes={n} (CLI: --declared-nodes {n}).")
+    return n

@@ -35,13 +35,16 @@ def null_mask(col) -> np.ndarray:
 
 
 def numeric_column(col, name, source, where, what="weight") -> np.ndarray:
-    """A numeric pyarrow column as int64 or float64 NumPy, checked for missing cells, text that
-    is not a number and NaN; ``what`` ("weight", "coordinate") words the messages."""
+    """A numeric pyarrow column as int64, uint64 (kept: its values may pass 2**63) or float64
+    NumPy, checked for missing cells, text that is not a number and NaN; ``what`` ("weight",
+    "coordinate") words the messages."""
     import pyarrow as pa
     import pyarrow.compute as pc
     col = plain(col)
     if col.null_count:
         check_no_missing(null_mask(col), name, source, where, "read_edges")
+    if pa.types.is_uint64(col.type):
+        return to_numpy(col).astype(np.uint64, copy=False)
     if pa.types.is_integer(col.type):
         return to_numpy(pc.cast(col, pa.int64()))
     if pa.types.is_floating(col.type) or pa.types.is_decimal(col.type):

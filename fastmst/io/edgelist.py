@@ -25,7 +25,7 @@ class EdgeList:
     tail, head : ndarray of shape (E,), dtype=int32 or int64
         Compact node ids in ``[0, n_nodes)``; edge ``i`` is row ``i`` of the source.
     weight : ndarray of shape (E,)
-        Edge weights (int64 or float64 as read; float64 when computed from geometry).
+        Edge weights (int64, uint64 or float64 as read; float64 when computed from geometry).
     n_nodes : int
     labels : ndarray of shape (n_nodes,) or None
         The user's label of every compact id; None means the labels are the ids themselves.
@@ -76,23 +76,24 @@ class EdgeList:
                 f"labelled={self.labels is not None}, coords={self.coords is not None})")
 
 
-def edges_from_table(table, cols, source, where, nodes: NodeTable | None) -> EdgeList:
+def edges_from_table(table, cols, source, where, nodes: NodeTable | None,
+                     ids: str = "text") -> EdgeList:
     """An EdgeList from the (tail, head, weight) columns ``cols`` of a pyarrow table.
 
-    Without a node table, labels are encoded by the label rule of :mod:`fastmst.io.labels`;
-    with one, endpoints are looked up in it.  ``weight == "length"`` with a node table and no
+    Without a node table, labels are encoded by the label rule of :mod:`fastmst.io.labels`
+    (``ids``: "text" or "integer"); with one, endpoints are looked up in it.  ``weight == "length"`` with a node table and no
     such column computes lengths from the coordinates (great-circle metres for lon/lat).
     """
     tname, hname, wname = cols
     tcol, hcol = table.column(tname), table.column(hname)
     geometry = nodes is not None and wname == "length" and "length" not in table.column_names
     if nodes is None:
-        t, h, labels = encode_label_columns(tcol, hcol, source, where, (tname, hname))
+        t, h, labels = encode_label_columns(tcol, hcol, source, where, (tname, hname), ids)
         n = int(labels.size) if labels is not None else \
             (max(int(t.max()), int(h.max())) + 1 if t.size else 0)
         coords, geo = None, False
     else:
-        t, h = node_index(tcol, hcol, nodes, source, where, (tname, hname))
+        t, h = node_index(tcol, hcol, nodes, source, where, (tname, hname), ids)
         labels, n, coords, geo = nodes.labels, int(nodes.labels.size), nodes.coords, \
             nodes.geographic
     if geometry:

@@ -9,16 +9,18 @@ from __future__ import annotations
 
 import numpy as np
 
+from fastmst import validation
 from fastmst.io import registry
 from fastmst.io.adapters import forest_table
 from fastmst.io.atomic import atomic_write
-from fastmst.io.checks import existing_file
+from fastmst.io.checks import existing_file, shown
 from fastmst.io.edgelist import EdgeList
+from fastmst.io.labels import check_ids
 from fastmst.io.nodes import NodeTable, read_nodes
 
 
 def read_edges(path, *, tail=None, head=None, weight=None, format=None, nodes=None,
-               progress=None) -> EdgeList:
+               progress=None, ids="text", declared_nodes=None) -> EdgeList:
     """Read an edge list from a file.
 
     Parameters
@@ -39,10 +41,23 @@ def read_edges(path, *, tail=None, head=None, weight=None, format=None, nodes=No
     format : {"csv", "tsv", "parquet", "npz", "mtx", "gr"}, optional
         Any format of ``fastmst.io.FORMATS``.
     nodes : str, Path, DataFrame, pyarrow Table or NodeTable, optional
-        A node table (see :func:`read_nodes`): compact ids follow its rows, every edge endpoint
-        must appear in it, and its coordinates are kept for lengths, GeoJSON and plots.
+        A node table (see :func:`read_nodes`, read with the same ``ids``): compact ids follow
+        its rows, every edge endpoint must appear in it, and its coordinates are kept for
+        lengths, GeoJSON and plots.
     progress : callable(done_bytes, total_bytes), optional
         Called while an uncompressed or compressed CSV/TSV file is read (for progress bars).
+        Once the last byte is parsed, the checks and the label mapping still run: the reader
+        then calls ``progress(done_bytes, None)`` (no total: show a spinner, not a full bar).
+    ids : {"text", "integer"}, default "text"
+        How endpoint labels are read (:mod:`fastmst.io.labels`).  "text": as written, so
+        ``007`` and ``7`` are two nodes and ``true`` stays ``true``; compact ids in order of
+        first appearance (tail column, then head column).  Typed columns (Parquet, .npz) keep
+        their type: integer columns are integer ids.  "integer": every label must be an
+        integer (``007`` is node 7; CLI ``--integer-ids``); compact ids in numeric order.
+    declared_nodes : int, optional
+        For formats whose header declares the node count (.gr, .mtx): a header may declare at
+        most ``2 * edges + 2**20`` nodes, since every declared node costs memory; a larger
+        count is refused unless confirmed by passing it here (CLI ``--declared-nodes N``).
 
     Returns
     -------
@@ -68,28 +83,68 @@ def read_edges(path, *, tail=None, head=None, weight=None, format=None, nodes=No
                         f"or None, received {type(progress).__name__}.")
     p = existing_file(path, func)
     name, compression = registry.detect_format(p, format, func=func)
+    ids = check_ids(ids, func)
+    if declared_nodes is not None:
+        if isinstance(declared_nodes, bool) or not isinstance(declared_nodes, (int, np.integer)):
+            raise TypeError(f"{func}: declared_nodes must be an integer node count or None, "
+                            f"received {type(declared_nodes).__name__} {shown(declared_nodes)}.")
+        declared_nodes = int(declared_nodes)
+        if not registry.get(name).declares_nodes:
+            with_count = [n for n in registry.names("read") if registry.get(n).declares_nodes]
+            raise ValueError(f"{func}: declared_nodes={declared_nodes} applies to formats whose "
+                             f"header declares a node count ({', '.join(with_count)}); "
+                             f"{str(p)!r} is {name}. Drop the option.")
     if nodes is not None and not isinstance(nodes, NodeTable):
-        nodes = read_nodes(nodes)
+        nodes = read_nodes(nodes, ids=ids)
     fmt = registry.get(name)
-    request = registry.ReadRequest(tail, head, weight, nodes, progress)
+    request = registry.ReadRequest(tail, head, weight, nodes, progress, ids, declared_nodes)
     return fmt.read_edges(p, compression, request, **fmt.options)
 
 
-def write_table(path, table, *, format=None, compression=None):
+def write_table(path, table, *, format=None, compression=None, spreadsheet_safe=False):
     """Write a pyarrow Table to CSV/TSV (optionally .gz/.zst), Parquet or .npz, atomically.
 
     ``compression`` ("gzip", "zstd", "bz2") overrides the one the file name implies; formats
     other than CSV/TSV ignore it.  Returns the written Path.
+
+    Text cells are written verbatim, so every label reads back unchanged, also those that
+    begin with ``=``, ``+``, ``-`` or ``@``, which spreadsheets may run as formulas.
+    ``spreadsheet_safe=True`` (CLI ``--spreadsheet-safe``) prefixes such text cells (and those
+    beginning with a tab or carriage return) with an apostrophe in CSV/TSV output, the usual
+    defence (common practice, no source); numbers are not changed, and the labels then no
+    longer read back as they were.  A replaced file keeps its permissions.
     """
     name, comp = registry.detect_format(path, format, valid=registry.names("write_table"),
                                         func="write_table")
     fmt = registry.get(name)
     comp = compression or comp
-    return atomic_write(path, lambda tmp: fmt.write_table(table, tmp, comp, **fmt.options))
+    if validation.check_bool(spreadsheet_safe, "spreadsheet_safe", "write_table") and \
+            fmt.spreadsheet:
+        table = _formulas_neutralised(table)
+
+    def write(tmp):
+        try:
+            fmt.write_table(table, tmp, comp, **fmt.options)
+        except ValueError as exc:   # contents the format cannot carry: name the target
+            raise ValueError(f"cannot write {str(path)!r}: {exc}") from None
+    return atomic_write(path, write)
+
+
+def _formulas_neutralised(table):
+    """``table`` with an apostrophe before every text cell a spreadsheet could run."""
+    import pyarrow as pa
+    import pyarrow.compute as pc
+    cols = []
+    for col in table.columns:
+        if pa.types.is_string(col.type) or pa.types.is_large_string(col.type):
+            risky = pc.match_substring_regex(col, r"^[=+\-@\t\r]")
+            col = pc.if_else(risky, pc.binary_join_element_wise("'", col, ""), col)
+        cols.append(col)
+    return pa.table(cols, names=table.column_names)
 
 
 def write_forest(path, forest, edges: EdgeList | None = None, *, format=None, coords=None,
-                 geographic=True):
+                 geographic=True, spreadsheet_safe=False):
     """Write the forest to ``path`` in the format of its suffix, atomically.
 
     CSV/TSV/Parquet/.npz get columns tail, head, weight (named as in the input, with the user's
@@ -99,7 +154,8 @@ def write_forest(path, forest, edges: EdgeList | None = None, *, format=None, co
     ``edges`` is the EdgeList the forest was solved from.  Without one (for example the result
     of ``point_spanning_tree``), node ids are written as they are and ``coords`` of shape
     (n_nodes, 2) may give the node coordinates; ``geographic`` says whether they are
-    (longitude, latitude) degrees.  Returns the written Path.
+    (longitude, latitude) degrees.  ``spreadsheet_safe`` is that of :func:`write_table`.
+    Returns the written Path.
     """
     name, _ = registry.detect_format(path, format, valid=registry.names("write"),
                                      func="write_forest")
@@ -116,4 +172,5 @@ def write_forest(path, forest, edges: EdgeList | None = None, *, format=None, co
     fmt = registry.get(name)
     if fmt.write_forest is not None:
         return fmt.write_forest(path, forest, edges)
-    return write_table(path, forest_table(forest, edges), format=name)
+    return write_table(path, forest_table(forest, edges), format=name,
+                       spreadsheet_safe=spreadsheet_safe)

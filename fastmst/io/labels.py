@@ -3,17 +3,30 @@
 This is the one place where labels are encoded and looked up; readers, adapters, the node
 table and the command line's lists of links all use it.
 
-Label rule: without a node table, compact id ``i`` is the ``i``-th smallest label (numeric order
-for integer ids, code-point order for strings); labels that already are ``0..n-1`` stay as they
-are (``labels`` is then None).  With a node table, compact id ``i`` is row ``i`` of the table.
+**Labels are text unless the ids are declared integers.**  Text files (CSV/TSV) hand their
+endpoint columns over as text, exactly as written: ``007`` and ``7`` are two nodes, ``0x1`` and
+``true`` stay text.  ``ids="integer"`` (CLI ``--integer-ids``) reads them as integers instead
+(``007`` is node 7).  Typed sources (Parquet, ``.npz``, in-memory tables) keep their columns'
+types: integer columns are integer ids; when the two endpoint columns differ in type, both are
+compared as text.
 
-Lookup rule (:func:`lookup`): integer columns are compared as int64, columns of the same type as
-they are, anything else as text.
+**Order.**  Text labels: compact id ``i`` is the ``i``-th distinct label in order of first
+appearance, reading down the tail column and then down the head column.  Integer ids: numeric
+order, and ids that already are ``0..n-1`` stay as they are (``labels`` is then None).  With a
+node table, compact id ``i`` is row ``i`` of the table.
+
+Text labels are mapped with pyarrow's own hash kernels: one dictionary encoding per endpoint
+column (the two columns in parallel, pyarrow releases the GIL), the union of the two small
+dictionaries in first-appearance order, and one NumPy gather for the head column.
+
+Lookup rule (:func:`lookup`): integer columns are compared as int64, text looked up among
+integer ids is read as integers, columns of one type are compared as they are, anything else as
+text.
 
 >>> import numpy as np
 >>> t, h, labels = encode_labels(np.array(["b", "a"]), np.array(["c", "b"]), "<example>")
 >>> t.tolist(), h.tolist(), labels.tolist()
-([1, 0], [2, 1], ['a', 'b', 'c'])
+([0, 1], [2, 0], ['b', 'a', 'c'])
 """
 from __future__ import annotations
 
@@ -25,59 +38,42 @@ from fastmst import validation
 from fastmst.io.checks import FileFormatError, check_no_missing
 from fastmst.io.columns import chunks, null_mask, plain, to_numpy
 
+#: Values of the ``ids`` option: how endpoint labels are read.
+IDS = ("text", "integer")
+
+_INTEGER = r"^[+-]?[0-9]+$"
+
 
 def id_dtype(n: int):
     """int32 for fewer than 2**31 nodes, else int64."""
     return np.int32 if n < validation.INT32_LIMIT else np.int64
 
 
-def _is_int(arr) -> bool:
-    return getattr(arr, "dtype", None) is not None and np.dtype(arr.dtype).kind in "iu"
+def check_ids(ids, func: str) -> str:
+    """The ``ids`` option: "text" (default) or "integer"."""
+    return validation.check_choice(ids, IDS, "ids", func)
 
 
-def encode_labels(tail, head, source: str, names=("tail", "head")):
+def encode_labels(tail, head, source: str, names=("tail", "head"), ids="text"):
     """Compact ids for two NumPy label arrays; returns (tail_ids, head_ids, labels).
 
+    The label rule of this module applies (text: first appearance; integers: numeric order).
     ``labels`` is None when the labels already are the compact ids 0..n-1.
     """
-    t, h = np.asarray(tail), np.asarray(head)
-    for arr, name in ((t, names[0]), (h, names[1])):
-        if arr.dtype.kind == "f":
-            raise FileFormatError(f"{source}: node ids in column {name!r} are decimal numbers "
-                                  f"(dtype {arr.dtype}); expected integers or text labels. "
-                                  f"Write the ids without a decimal point.")
-        if arr.dtype.kind == "b":
-            raise FileFormatError(f"{source}: node ids in column {name!r} are true/false; "
-                                  f"expected integers or text labels.")
-    if t.size == 0:
-        return t.astype(np.int32), h.astype(np.int32), np.empty(0, dtype=t.dtype)
-    if _is_int(t) and _is_int(h):
-        lo = min(int(t.min()), int(h.min()))
-        hi = max(int(t.max()), int(h.max()))
-        span = hi - lo + 1
-        if span <= 4 * (t.size + h.size) + 1024:
-            present = np.zeros(span, dtype=bool)
-            present[t - lo if lo else t] = True
-            present[h - lo if lo else h] = True
-            if lo == 0 and present.all():
-                dt = id_dtype(span)
-                return t.astype(dt, copy=False), h.astype(dt, copy=False), None
-            n = int(np.count_nonzero(present))
-            remap = np.cumsum(present, dtype=np.int64) - 1
-            remap = remap.astype(id_dtype(n))
-            labels = (np.flatnonzero(present) + lo).astype(np.result_type(t.dtype, h.dtype))
-            return remap[t - lo], remap[h - lo], labels
-    both = np.concatenate([t, h]) if t.dtype == h.dtype else \
-        np.concatenate([t.astype(str), h.astype(str)])
-    labels, inverse = np.unique(both, return_inverse=True)
-    inverse = inverse.astype(id_dtype(labels.size))
-    return inverse[:t.size], inverse[t.size:], labels
+    import pyarrow as pa
+
+    def arrow(a):
+        a = np.asarray(a)
+        return pa.array(a.tolist() if a.dtype == object else a)
+    return encode_label_columns(arrow(tail), arrow(head), source, lambda i: f"entry {i}",
+                                names, ids)
 
 
-def encode_label_columns(tail, head, source, where, names):
-    """Compact ids for two pyarrow label columns of any type; returns (tail, head, labels).
+def encode_label_columns(tail, head, source, where, names, ids="text"):
+    """Compact ids for two pyarrow label columns; returns (tail, head, labels).
 
-    Missing or empty labels are a FileFormatError naming the row (``where(i)`` words it).
+    Missing or empty labels are a FileFormatError naming the row (``where(i)`` words it); with
+    ``ids="integer"`` so is text that is not an integer.
     """
     import pyarrow as pa
     import pyarrow.compute as pc
@@ -85,33 +81,90 @@ def encode_label_columns(tail, head, source, where, names):
     for col, name in ((t, names[0]), (h, names[1])):
         if col.null_count:
             check_no_missing(null_mask(col), name, source, where, "read_edges")
+        _check_label_type(col, name, source)
+    if ids == "integer":
+        t = as_integers(t, names[0], source, where)
+        h = as_integers(h, names[1], source, where)
+    if len(t) == 0:
+        return np.empty(0, np.int32), np.empty(0, np.int32), np.empty(0, dtype=object)
     if pa.types.is_integer(t.type) and pa.types.is_integer(h.type):
         if t.type != h.type:
             t, h = pc.cast(t, pa.int64()), pc.cast(h, pa.int64())
         fast = _dense_int_ids(t, h)
         if fast is not None:
             return fast
-    if pa.types.is_floating(t.type) or pa.types.is_floating(h.type):
-        return encode_labels(to_numpy(t), to_numpy(h), source, names)  # the decimal-ids error
+        ti, hi, uniq = _hashed_ids(t, h, numeric=True)
+        return ti, hi, to_numpy(uniq)
     if t.type != h.type:
         t, h = pc.cast(t, pa.string()), pc.cast(h, pa.string())
-    # Dictionary-encode each column in its own thread (one hash pass per column; pyarrow
-    # releases the GIL), merge and sort the two small dictionaries, then turn each column's
-    # codes into compact ids with one NumPy gather.
+    ti, hi, uniq = _hashed_ids(t, h, numeric=False)
+    if pa.types.is_string(uniq.type) or pa.types.is_large_string(uniq.type):
+        if pc.any(pc.equal(uniq, "")).as_py():
+            for col, name in ((t, names[0]), (h, names[1])):
+                check_no_missing(to_numpy(pc.equal(col, "")), name, source, where, "read_edges")
+    return ti, hi, to_numpy(uniq)
+
+
+def _check_label_type(col, name, source):
+    import pyarrow as pa
+    if pa.types.is_floating(col.type) or pa.types.is_decimal(col.type):
+        raise FileFormatError(f"{source}: node ids in column {name!r} are decimal numbers "
+                              f"({col.type}); expected integers or text labels. Write the ids "
+                              f"without a decimal point, or as text.")
+    if pa.types.is_boolean(col.type):
+        raise FileFormatError(f"{source}: node ids in column {name!r} are true/false values; "
+                              f"expected integers or text labels. Store them as text.")
+
+
+def as_integers(col, name, source, where):
+    """A text column of integer ids as int64 (``+7`` and ``007`` are 7); integer columns as
+    they are.  Text that is not a 64-bit integer is a FileFormatError naming the row."""
+    import pyarrow as pa
+    import pyarrow.compute as pc
+    if pa.types.is_integer(col.type):
+        return col
+    if not (pa.types.is_string(col.type) or pa.types.is_large_string(col.type)):
+        raise FileFormatError(f"{source}: node ids in column {name!r} are {col.type} values; "
+                              f"ids='integer' expects integers.")
+    ok = pc.match_substring_regex(col, _INTEGER)
+    if not pc.all(ok).as_py():
+        bad = ~to_numpy(ok)
+        i = int(np.flatnonzero(bad)[0])
+        raise FileFormatError(f"{source}: {where(i)}: node id {col[i].as_py()!r} in column "
+                              f"{name!r} is not an integer ({int(bad.sum())} such rows in all); "
+                              f"integer ids were asked for (ids='integer', CLI --integer-ids). "
+                              f"Drop that option to read the ids as text labels.")
+    try:
+        return pc.cast(pc.replace_substring_regex(col, r"^\+", ""), pa.int64())
+    except pa.ArrowInvalid:
+        raise FileFormatError(f"{source}: node ids in column {name!r} do not fit in 64 bits; "
+                              f"read them as text labels (drop ids='integer' / "
+                              f"--integer-ids).") from None
+
+
+def _hashed_ids(t, h, numeric):
+    """Compact ids through pyarrow's hash kernels; returns (tail ids, head ids, labels).
+
+    Each column is dictionary-encoded in its own thread.  The union of the two dictionaries
+    in first-appearance order starts with the tail's dictionary, so the tail's codes already
+    are compact ids; the head's codes go through one small lookup.  ``numeric`` sorts the
+    labels (integer ids are numbered in numeric order).
+    """
+    import pyarrow as pa
+    import pyarrow.compute as pc
     with ThreadPoolExecutor(2) as ex:
         (dt_, ct), (dh_, ch) = ex.map(_dictionary_codes, (t, h))
-        uniq = pc.unique(pa.chunked_array([dt_, dh_], type=t.type))
+    uniq = pc.unique(pa.chunked_array([dt_, dh_], type=dt_.type))
+    if isinstance(uniq, pa.ChunkedArray):
+        uniq = uniq.combine_chunks()
+    dt = id_dtype(len(uniq))
+    if numeric:
         uniq = uniq.take(pc.array_sort_indices(uniq))
-        dt = id_dtype(len(uniq))
-        rt = to_numpy(pc.index_in(dt_, value_set=uniq)).astype(dt)
-        rh = to_numpy(pc.index_in(dh_, value_set=uniq)).astype(dt)
-        ti, hi = ex.map(lambda a: a[0][a[1]], ((rt, ct), (rh, ch)))
-    if pa.types.is_string(t.type) or pa.types.is_large_string(t.type):
-        if len(uniq) and uniq[0].as_py() == "":   # sorted, so an empty label comes first
-            for col, name in ((t, names[0]), (h, names[1])):
-                empty = to_numpy(pc.equal(col, ""))
-                check_no_missing(empty, name, source, where, "read_edges")
-    return ti, hi, to_numpy(uniq)
+        ti = to_numpy(pc.index_in(dt_, value_set=uniq)).astype(dt)[ct]
+    else:
+        ti = ct.astype(dt, copy=False)
+    rh = to_numpy(pc.index_in(dh_, value_set=uniq)).astype(dt)
+    return ti, rh[ch], uniq
 
 
 def _dense_int_ids(t, h):
@@ -125,8 +178,6 @@ def _dense_int_ids(t, h):
     if pa.types.is_uint64(t.type) or pa.types.is_uint64(h.type):
         return None
     n = len(t)
-    if n == 0:
-        return None
     mt, mh = pc.min_max(t).as_py(), pc.min_max(h).as_py()
     lo, hi = min(mt["min"], mh["min"]), max(mt["max"], mh["max"])
     span = hi - lo + 1
@@ -162,16 +213,15 @@ def _dense_int_ids(t, h):
 
 
 def _dictionary_codes(col):
-    """(distinct values, int codes) of a pyarrow column in one hash pass."""
+    """(distinct values in first-appearance order, NumPy int32 codes) of a pyarrow column, in
+    one hash pass.  The chunks of an encoded column share one growing memo table, so every
+    chunk's codes index the last chunk's dictionary."""
     import pyarrow as pa
-    import pyarrow.compute as pc
     d = col.dictionary_encode()
     parts = d.chunks if isinstance(d, pa.ChunkedArray) else [d]
     dic = parts[-1].dictionary
-    if any(len(c.dictionary) != len(dic) for c in parts):  # not one shared dictionary
-        dic = pc.unique(col)
-        return dic, to_numpy(pc.index_in(col, value_set=dic))
-    codes = np.concatenate([c.indices.to_numpy(zero_copy_only=False) for c in parts])
+    idx = [c.indices.to_numpy(zero_copy_only=False) for c in parts]
+    codes = idx[0] if len(idx) == 1 else np.concatenate(idx)
     return dic, codes
 
 
@@ -193,7 +243,8 @@ def lookup(col, value_set):
 
     Returns (ids, missing, compared): NumPy positions (int32; -1 where missing), the boolean
     mask of cells not in ``value_set``, and ``col`` as compared (for messages).  Integer columns
-    are compared as int64, columns of one type as they are, other combinations as text.
+    are compared as int64; text looked up among integer ids is read as integers when every cell
+    is one; columns of one type are compared as they are; other combinations as text.
     """
     import pyarrow as pa
     import pyarrow.compute as pc
@@ -201,10 +252,18 @@ def lookup(col, value_set):
     if isinstance(value_set, pa.ChunkedArray):
         value_set = value_set.combine_chunks()
     if col.type != value_set.type:
-        if pa.types.is_integer(col.type) and pa.types.is_integer(value_set.type):
-            col, value_set = pc.cast(col, pa.int64()), pc.cast(value_set, pa.int64())
-        else:
-            col, value_set = pc.cast(col, pa.string()), pc.cast(value_set, pa.string())
+        text = pa.types.is_string(col.type) or pa.types.is_large_string(col.type)
+        if pa.types.is_integer(value_set.type) and text and \
+                pc.all(pc.match_substring_regex(col, _INTEGER)).as_py() is not False:
+            try:
+                col = pc.cast(pc.replace_substring_regex(col, r"^\+", ""), pa.int64())
+            except pa.ArrowInvalid:
+                pass
+        if col.type != value_set.type:
+            if pa.types.is_integer(col.type) and pa.types.is_integer(value_set.type):
+                col, value_set = pc.cast(col, pa.int64()), pc.cast(value_set, pa.int64())
+            else:
+                col, value_set = pc.cast(col, pa.string()), pc.cast(value_set, pa.string())
     idx = pc.index_in(col, value_set=value_set)
     if not idx.null_count:
         return to_numpy(idx), np.zeros(len(idx), dtype=bool), col

@@ -13,7 +13,7 @@ from fastmst import validation
 from fastmst.io.checks import (FileFormatError, check_column, check_no_missing,
                                check_unique_labels)
 from fastmst.io.columns import null_mask, numeric_column, plain, to_numpy
-from fastmst.io.labels import id_dtype, lookup
+from fastmst.io.labels import as_integers, check_ids, id_dtype, lookup
 from fastmst.io.tables import load_table
 
 _LONLAT = (("lon", "lat"), ("longitude", "latitude"), ("lng", "lat"), ("long", "lat"))
@@ -70,7 +70,7 @@ def _pick_coord_columns(names, x, y, geographic, source):
 
 
 def read_nodes(path_or_table, *, id=None, x=None, y=None, geographic=None,
-               format=None) -> NodeTable:  # noqa: A002 (``id`` names the column)
+               format=None, ids="text") -> NodeTable:  # noqa: A002 (``id`` names the column)
     """Read a node table: one row per node with its label and coordinates.
 
     Parameters
@@ -86,6 +86,10 @@ def read_nodes(path_or_table, *, id=None, x=None, y=None, geographic=None,
         Force the coordinates to be read as (longitude, latitude) degrees (True) or planar (False).
     format : {"csv", "tsv", "parquet"}, optional
         Overrides the file suffix.
+    ids : {"text", "integer"}, default "text"
+        The label rule of :func:`fastmst.io.read_edges`: the id column of a text file is read
+        as text, exactly as written (``007`` and ``7`` are two nodes); "integer" reads it as
+        integers.  Typed tables keep their column's type.
 
     Returns
     -------
@@ -104,7 +108,12 @@ def read_nodes(path_or_table, *, id=None, x=None, y=None, geographic=None,
     import pyarrow.compute as pc
     if geographic is not None:
         geographic = validation.check_bool(geographic, "geographic", "read_nodes")
-    table, source, where = load_table(path_or_table, format, "read_nodes")
+    ids = check_ids(ids, "read_nodes")
+
+    def id_column(header):
+        return [id if id is not None else ("id" if "id" in header else header[0])] \
+            if header else []
+    table, source, where = load_table(path_or_table, format, "read_nodes", id_column)
     names = table.column_names
     if id is None:
         id = "id" if "id" in names else (names[0] if names else None)
@@ -119,6 +128,11 @@ def read_nodes(path_or_table, *, id=None, x=None, y=None, geographic=None,
     if pa.types.is_floating(idcol.type):
         raise FileFormatError(f"{source}: node ids in column {id!r} are decimal numbers; "
                               f"expected integers or text labels.")
+    if ids == "integer":
+        idcol = as_integers(idcol, id, source, where)
+    elif (pa.types.is_string(idcol.type) or pa.types.is_large_string(idcol.type)) and \
+            pc.any(pc.equal(idcol, "")).as_py():
+        check_no_missing(to_numpy(pc.equal(idcol, "")), id, source, where, "read_nodes")
     labels = to_numpy(idcol)
     if len(pc.unique(idcol)) != len(idcol):   # hash check; sort only to name the rows
         check_unique_labels(labels, id, source, where)
@@ -142,19 +156,21 @@ def read_nodes(path_or_table, *, id=None, x=None, y=None, geographic=None,
     return NodeTable(labels, coords, geo, source, (id, xc, yc), idcol)
 
 
-def node_index(tcol, hcol, nodes: NodeTable, source, where, names):
+def node_index(tcol, hcol, nodes: NodeTable, source, where, names, ids="text"):
     """Compact ids (rows of ``nodes``) of two pyarrow endpoint columns; every endpoint must be
-    in the node table."""
+    in the node table.  ``ids="integer"`` reads text endpoints as integers first."""
     out = []
     for col, name in ((plain(tcol), names[0]), (plain(hcol), names[1])):
         if col.null_count:
             check_no_missing(null_mask(col), name, source, where, "read_edges")
-        ids, missing, compared = lookup(col, nodes.arrow_labels)
+        if ids == "integer":
+            col = as_integers(col, name, source, where)
+        found, missing, compared = lookup(col, nodes.arrow_labels)
         if missing.any():
             i = int(np.flatnonzero(missing)[0])
             raise FileFormatError(f"{source}: {where(i)}: node {compared[i].as_py()!r} in column "
                                   f"{name!r} is not in the node table {nodes.source} "
                                   f"({int(missing.sum())} such rows in all); add the node to "
                                   f"the node table or drop the edge.")
-        out.append(ids.astype(id_dtype(len(nodes.labels))))
+        out.append(found.astype(id_dtype(len(nodes.labels))))
     return out[0], out[1]

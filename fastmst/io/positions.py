@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from fastmst.io.checks import FileFormatError
+from fastmst.io.checks import FileFormatError, shown
 from fastmst.io.labels import all_labels, lookup
 from fastmst.io.tables import load_table
 
@@ -40,8 +40,13 @@ def read_positions(path, edges, *, all_parallel=False, func="read_positions") ->
         Positions that are not integers or not edges of ``edges``, labels that are not nodes of
         ``edges``, pairs that no edge joins.
     """
-    table, source, where = load_table(path, None, func)
+    table, source, where = load_table(path, None, func, _label_columns)
     return _positions(table, source, where, edges, all_parallel)
+
+
+def _label_columns(header):
+    """Columns of a list of links read as text labels: all but ``position``."""
+    return [c for c in header if c != "position"]
 
 
 def _positions(table, source, where, edges, all_parallel):
@@ -87,8 +92,9 @@ def _pair_positions(tcol, hcol, edges, source, where, all_parallel):
     missing = np.flatnonzero(lo == hi)
     if missing.size:
         i = int(missing[0])
-        raise FileFormatError(f"{source}: {where(i)}: no edge joins {edges.label([ids[0][i]])[0]!r}"
-                              f" and {edges.label([ids[1][i]])[0]!r} in {edges.source}.")
+        raise FileFormatError(f"{source}: {where(i)}: no edge joins "
+                              f"{shown(edges.label([ids[0][i]])[0])} and "
+                              f"{shown(edges.label([ids[1][i]])[0])} in {edges.source}.")
     if not all_parallel:
         return order[lo]
     return np.concatenate([order[x:y] for x, y in zip(lo, hi)]) if lo.size else \
@@ -102,7 +108,7 @@ def read_forest_positions(path, edges, *, func="read_forest_positions") -> np.nd
     ``position`` column and label columns, the labels must be the endpoints of the edge at each
     position (in either direction), which catches a forest computed from another edge file.
     """
-    table, source, where = load_table(path, None, func)
+    table, source, where = load_table(path, None, func, _label_columns)
     pos = _positions(table, source, where, edges, False)
     names = [n for n in table.column_names if n != "position"]
     if "position" in table.column_names and len(names) >= 2:
@@ -114,7 +120,8 @@ def read_forest_positions(path, edges, *, func="read_forest_positions") -> np.nd
         if bad.size:
             i = int(bad[0])
             raise FileFormatError(f"{source}: {where(i)}: position {pos[i]} is the edge "
-                                  f"{edges.label([et[i]])[0]!r} -- {edges.label([eh[i]])[0]!r}"
-                                  f" in {edges.source}, not the one listed; was the forest "
+                                  f"{shown(edges.label([et[i]])[0])} -- "
+                                  f"{shown(edges.label([eh[i]])[0])} in {edges.source}, not "
+                                  f"the one listed; was the forest "
                                   f"computed from another edge file?")
     return pos

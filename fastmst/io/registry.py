@@ -10,8 +10,10 @@ A format may provide any of four functions (``None`` where it cannot):
 
 ``read_edges(path, compression, request, **options) -> EdgeList``
     An edge list; ``request`` is a :class:`ReadRequest` (columns, node table, progress).
-``read_table(path, compression, **options) -> (pyarrow.Table, where)``
+``read_table(path, compression, text, **options) -> (pyarrow.Table, where)``
     A whole table (node tables, lists of links); ``where(i)`` words row ``i`` for messages.
+    ``text(header)`` names the columns that hold labels: formats that guess column types
+    (CSV/TSV) read those as text; typed formats ignore it.
 ``write_table(table, tmp_path, compression, **options) -> None``
     A pyarrow Table written to a temporary path (the caller renames it atomically).
 ``write_forest(path, forest, edges) -> Path``
@@ -40,6 +42,8 @@ class ReadRequest:
     weight: str | None = None
     nodes: object = None          # a NodeTable or None
     progress: Callable | None = None
+    ids: str = "text"             # endpoint labels: "text" or "integer" (fastmst.io.labels)
+    declared_nodes: int | None = None   # confirms a header's node count (.gr, .mtx)
 
 
 @dataclass(frozen=True)
@@ -60,6 +64,11 @@ class Format:
         See the module docstring.
     options : dict
         Fixed keyword arguments passed to the functions above.
+    spreadsheet : bool
+        Whether spreadsheets open the format as text cells (CSV/TSV); ``spreadsheet_safe``
+        writing applies to these formats only.
+    declares_nodes : bool
+        Whether a header declares the node count (``declared_nodes`` applies).
     """
     name: str
     suffixes: tuple
@@ -70,6 +79,8 @@ class Format:
     write_table: Callable | None = None
     write_forest: Callable | None = None
     options: dict = field(default_factory=dict)
+    spreadsheet: bool = False
+    declares_nodes: bool = False
 
 
 _REGISTRY: dict[str, Format] = {}

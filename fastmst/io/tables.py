@@ -26,11 +26,12 @@ def pandas_to_arrow(df):
                         f"column one type (numbers, or text labels).") from None
 
 
-def load_table(obj, format=None, func="load_table"):
+def load_table(obj, format=None, func="load_table", text=()):
     """(pyarrow Table, source name, row wording) from a file path or an in-memory table.
 
     ``where(i)`` of the returned row wording names row ``i`` as a message should (a line number
-    for text files).  ``func`` names the caller in messages.
+    for text files).  ``func`` names the caller in messages.  ``text(header)`` (or a list)
+    names label columns: text files read them as text, as written, never as guessed numbers.
     """
     import pyarrow as pa
     if isinstance(obj, pa.Table):
@@ -44,5 +45,5 @@ def load_table(obj, format=None, func="load_table"):
     name, compression = registry.detect_format(path, format, valid=registry.names("table"),
                                                func=func)
     fmt = registry.get(name)
-    table, where = fmt.read_table(path, compression, **fmt.options)
+    table, where = fmt.read_table(path, compression, text, **fmt.options)
     return table, str(path), where

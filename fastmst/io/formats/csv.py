@@ -4,13 +4,23 @@ Read with pyarrow's multi-threaded parser in blocks of :data:`CSV_BLOCK_SIZE` by
 ``.zst`` and ``.bz2`` files are read directly.  When pyarrow rejects a file, the error path
 scans it line by line to name the first bad line (a wrong field count or a number that does not
 parse).  Cells in :data:`NULLS` read as missing in numeric columns ("nan" is not among them: it
-reads as NaN and gets its own error); text labels never become missing ("NA" can be a label).
+reads as NaN and gets its own error).  Label columns (endpoints, node ids, the label pairs of
+lists of links) are read as text, exactly as written, never guessed: ``007`` stays ``007``,
+``true`` stays ``true``, ``NA`` is a label (:mod:`fastmst.io.labels` turns them into integers
+only when ``ids="integer"`` asks for it).
+
+Writing: labels are written verbatim (quoted), so every label reads back unchanged, also those
+beginning with ``=``, ``+``, ``-`` or ``@`` that spreadsheets take for formulas (see
+``spreadsheet_safe`` in :func:`fastmst.io.write_table`).  Labels with a line break are refused:
+the fast multi-threaded parser splits records at line ends, so they would not read back.
 """
 from __future__ import annotations
 
 import csv as _csv
 import io as _io
 import os
+
+import numpy as np
 
 from fastmst.io import registry
 from fastmst.io.checks import FileFormatError, csv_row
@@ -58,29 +68,32 @@ def _first_bad_line(path, delimiter, compression, numeric):
     return None
 
 
-def read_csv(path, delimiter, compression, columns, numeric, progress=None):
+def read_csv(path, delimiter, compression, columns, numeric, progress=None, text=()):
     """(table, header, chosen columns) of a CSV/TSV file.
 
     ``columns(header)`` picks the columns to read; ``numeric(cols)`` names those that must be
-    numbers (for the error scan); ``progress(done_bytes, total_bytes)`` is called while reading.
+    numbers (for the error scan); ``text`` names columns read as text, as written;
+    ``progress(done_bytes, total_bytes)`` is called while reading.
     """
     try:
-        return _read_unchecked(path, delimiter, compression, columns, numeric, progress)
+        return _read_unchecked(path, delimiter, compression, columns, numeric, progress, text)
     except OSError as exc:   # pyarrow reports corrupt or truncated compressed data this way
         how = (f"is it complete and really {compression}-compressed?" if compression else
                "is it a complete text file?")
         raise FileFormatError(f"{path}: could not be read ({exc}); {how}") from None
 
 
-def _read_unchecked(path, delimiter, compression, columns, numeric, progress=None):
+def _read_unchecked(path, delimiter, compression, columns, numeric, progress=None, text=()):
     import pyarrow as pa
     import pyarrow.csv as pcsv
     header = _header(path, delimiter, compression)
     read = pcsv.ReadOptions(use_threads=True, block_size=CSV_BLOCK_SIZE)
     parse = pcsv.ParseOptions(delimiter=delimiter)
     cols = columns(header)
-    convert = pcsv.ConvertOptions(include_columns=list(dict.fromkeys(cols)),
-                                  null_values=NULLS)
+    texts = text(header) if callable(text) else text
+    convert = pcsv.ConvertOptions(include_columns=list(dict.fromkeys(cols)), null_values=NULLS,
+                                  column_types={c: pa.string() for c in texts if c in cols},
+                                  strings_can_be_null=False)
     try:
         if progress is not None:
             src = _CountingFile(path, progress)
@@ -144,20 +157,45 @@ def read_edges(path, compression, request, *, delimiter):
     def numeric(cols):
         return [chosen["cols"][2]] if chosen["cols"][2] in cols else []
 
-    table, _, _ = read_csv(path, delimiter, compression, columns, numeric, request.progress)
-    return edges_from_table(table, chosen["cols"], str(path), csv_row, request.nodes)
+    def labels(header):
+        return chosen["cols"][:2]
+
+    table, _, _ = read_csv(path, delimiter, compression, columns, numeric, request.progress,
+                           labels)
+    if request.progress is not None:   # parsed; checks and labels follow: no total known
+        size = os.path.getsize(path)
+        request.progress(size, None)
+    return edges_from_table(table, chosen["cols"], str(path), csv_row, request.nodes,
+                            request.ids)
 
 
-def read_table(path, compression, *, delimiter):
-    """Every column of a CSV/TSV file, with its row wording."""
-    table, _, _ = read_csv(path, delimiter, compression, lambda header: header, lambda cols: [])
+def read_table(path, compression, text=(), *, delimiter):
+    """Every column of a CSV/TSV file, with its row wording; ``text(header)`` (or a list)
+    names the columns read as text."""
+    table, _, _ = read_csv(path, delimiter, compression, lambda header: header, lambda cols: [],
+                           text=text)
     return table, csv_row
 
 
 def write_table(table, tmp, compression, *, delimiter):
-    """A pyarrow Table as CSV/TSV (compressed when ``compression`` names a codec)."""
+    """A pyarrow Table as CSV/TSV (compressed when ``compression`` names a codec).
+
+    Text cells with a line break are refused (a ValueError naming the first), since the reader
+    splits records at line ends.
+    """
     import pyarrow as pa
+    import pyarrow.compute as pc
     import pyarrow.csv as pcsv
+    for name in table.column_names:
+        col = table.column(name)
+        if pa.types.is_string(col.type) or pa.types.is_large_string(col.type):
+            broken = pc.match_substring_regex(col, "[\r\n]")
+            if pc.any(broken).as_py():
+                i = int(np.flatnonzero(broken.to_numpy(zero_copy_only=False))[0])
+                raise ValueError(f"column {name!r}: label {col[i].as_py()!r} has a line break; "
+                                 f"CSV/TSV output cannot carry it (records end at line ends). "
+                                 f"Write Parquet (.parquet) or .npz, which keep every label, "
+                                 f"or remove the line breaks.")
     opts = pcsv.WriteOptions(delimiter=delimiter)
     with pa.OSFile(tmp, "wb") as raw:
         sink = pa.CompressedOutputStream(raw, compression) if compression else raw
@@ -170,4 +208,4 @@ for _name, _suffixes, _order, _delimiter in (("csv", (".csv", ".txt"), 10, ","),
                                              ("tsv", (".tsv", ".tab"), 11, "\t")):
     registry.register(registry.Format(
         _name, _suffixes, _order, compressed=True, read_edges=read_edges, read_table=read_table,
-        write_table=write_table, options={"delimiter": _delimiter}))
+        write_table=write_table, options={"delimiter": _delimiter}, spreadsheet=True))

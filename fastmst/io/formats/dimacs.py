@@ -1,8 +1,11 @@
 """DIMACS shortest-path graphs (``.gr``): ``c`` comments, one ``p sp NODES ARCS`` line and
 ``a TAIL HEAD WEIGHT`` lines with 1-based ids; both directions of a road are two parallel edges.
 
-The fast path parses the file with pyarrow; when anything is off, the error path reads it line
-by line and words the first problem.  Column and node-table options do not apply.
+Fields are separated by any run of whitespace (spaces, tabs, leading or trailing blanks, CRLF
+line ends).  pyarrow reads the lines and splits them; when anything is off, the error path reads
+the file line by line and words the first problem.  The node count of the header is checked
+against the arcs the file holds before anything node-sized is allocated
+(:func:`fastmst.io.checks.check_declared_nodes`).  Column and node-table options do not apply.
 """
 from __future__ import annotations
 
@@ -11,58 +14,92 @@ import math
 import numpy as np
 
 from fastmst.io import registry
-from fastmst.io.checks import FileFormatError
+from fastmst.io.checks import FileFormatError, check_declared_nodes
 from fastmst.io.columns import to_numpy
 from fastmst.io.edgelist import EdgeList
 from fastmst.io.labels import id_dtype
 
 
-def _skip(row):
-    return "skip"
+def _read(path, delimiter, handler):
+    import pyarrow as pa
+    import pyarrow.csv as pcsv
+    names = ["k", "u", "v", "w"] if delimiter == " " else ["line"]
+    return pcsv.read_csv(
+        str(path), read_options=pcsv.ReadOptions(column_names=names, block_size=1 << 22),
+        parse_options=pcsv.ParseOptions(delimiter=delimiter, quote_char=False,
+                                        invalid_row_handler=handler),
+        convert_options=pcsv.ConvertOptions(column_types={c: pa.string() for c in names},
+                                            strings_can_be_null=False))
+
+
+def _single_spaced(path):
+    """Fast path for files with one space between fields: (kinds, u, v, w) string columns, or
+    None when a line is laid out otherwise (then :func:`_any_whitespace` reads it)."""
+    irregular = []
+
+    def handler(row):
+        text = (row.text or "").strip()
+        if text and not text.startswith("c"):
+            irregular.append(row.number)
+        return "skip"
+    table = _read(path, " ", handler)
+    if irregular:
+        return None
+    return tuple(table.column(c) for c in "kuvw")
+
+
+def _any_whitespace(path):
+    """Every line split at runs of whitespace: (kinds, u, v, w) string columns; lines with
+    other than four fields give empty or null fields, which the checks then refuse."""
+    import pyarrow.compute as pc
+    lines = pc.utf8_trim_whitespace(_read(path, "\x1f", lambda row: "error").column("line"))
+    parts = pc.utf8_split_whitespace(lines.filter(pc.not_equal(lines, "")))
+    parts = parts.filter(pc.not_equal(pc.list_element(parts, 0), "c"))   # comments: any length
+    four = pc.equal(pc.list_value_length(parts), 4)
+    if not pc.all(four).as_py():
+        return None
+    return tuple(pc.list_element(parts, i) for i in range(4))
 
 
 def read_edges(path, compression, request):
     """An EdgeList of the arcs of a DIMACS .gr file; node ids are the file's 1-based ids."""
     import pyarrow as pa
     import pyarrow.compute as pc
-    import pyarrow.csv as pcsv
-    src = str(path)
-    try:
-        table = pcsv.read_csv(
-            src, read_options=pcsv.ReadOptions(column_names=["k", "u", "v", "w"],
-                                               block_size=1 << 22),
-            parse_options=pcsv.ParseOptions(delimiter=" ", invalid_row_handler=_skip),
-            convert_options=pcsv.ConvertOptions(column_types={c: pa.string() for c in "kuvw"}))
-    except pa.ArrowInvalid:
-        table = None
-    if table is not None:
-        kinds = table.column("k")
-        is_a = to_numpy(pc.equal(kinds, "a"))
-        is_p = to_numpy(pc.equal(kinds, "p"))
-        if int(is_p.sum()) == 1 and int(is_a.sum()):
-            prow = int(np.flatnonzero(is_p)[0])
+    ok = False
+    for reader in (_single_spaced, _any_whitespace):
+        try:
+            cols = reader(path)
+            if cols is None:
+                continue
+            kinds = cols[0]
+            is_p, is_a, is_c = (to_numpy(pc.equal(kinds, k)) for k in ("p", "a", "c"))
+            if not (int(is_p.sum()) == 1 and is_a.any() and np.all(is_p | is_a | is_c)):
+                continue
+            row = int(np.flatnonzero(is_p)[0])
+            head = [c[row].as_py() for c in cols]
+            keep = pa.array(is_a)
+            u, v, w = (c.filter(keep) for c in cols[1:])
+            if not (head[1] == "sp" and head[2].isdigit() and head[3].isdigit()
+                    and int(head[3]) == len(u) and row < int(np.flatnonzero(is_a)[0])):
+                continue
+            n = int(head[2])
+            u = to_numpy(pc.cast(u, pa.int64()))
+            v = to_numpy(pc.cast(v, pa.int64()))
             try:
-                n = int(table.column("v")[prow].as_py())
-                m = int(table.column("w")[prow].as_py())
-                arcs = table.filter(pa.array(is_a))
-                u = to_numpy(pc.cast(arcs.column("u"), pa.int64()))
-                v = to_numpy(pc.cast(arcs.column("v"), pa.int64()))
-                wcol = arcs.column("w")
-                try:
-                    w = to_numpy(pc.cast(wcol, pa.int64()))
-                except pa.ArrowInvalid:
-                    w = to_numpy(pc.cast(wcol, pa.float64()))
-                first_a = int(np.flatnonzero(is_a)[0])
-                ok = (table.column("u")[prow].as_py() == "sp" and m == u.size and prow < first_a
-                      and u.size and min(u.min(), v.min()) >= 1 and max(u.max(), v.max()) <= n
-                      and not (w.dtype.kind == "f" and np.isnan(w).any()))
-            except (pa.ArrowInvalid, ValueError, TypeError):
-                ok = False
-            if ok:
-                dt = id_dtype(n)
-                return EdgeList((u - 1).astype(dt), (v - 1).astype(dt), w, n,
-                                np.arange(1, n + 1, dtype=np.int64), source=src,
-                                columns=("tail", "head", "weight"))
+                w = to_numpy(pc.cast(w, pa.int64()))
+            except pa.ArrowInvalid:
+                w = to_numpy(pc.cast(w, pa.float64()))
+            ok = (min(u.min(), v.min()) >= 1 and max(u.max(), v.max()) <= n
+                  and not (w.dtype.kind == "f" and np.isnan(w).any()))
+        except (pa.ArrowInvalid, ValueError, TypeError, IndexError):
+            ok = False
+        break
+    if ok:
+        n = check_declared_nodes(n, int(u.size), request.declared_nodes, str(path), "arcs")
+        dt = id_dtype(n)
+        return EdgeList((u - 1).astype(dt), (v - 1).astype(dt), w, n,
+                        np.arange(1, n + 1, dtype=np.int64), source=str(path),
+                        columns=("tail", "head", "weight"))
     raise _diagnose(path)
 
 
@@ -124,4 +161,5 @@ def _diagnose(p) -> FileFormatError:
     return FileFormatError(f"{p}: the file could not be read as a DIMACS .gr file.")
 
 
-registry.register(registry.Format("gr", (".gr",), 50, read_edges=read_edges))
+registry.register(registry.Format("gr", (".gr",), 50, read_edges=read_edges,
+                                  declares_nodes=True))

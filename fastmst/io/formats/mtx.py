@@ -2,14 +2,16 @@
 
 Every stored entry is an edge (explicit zeros kept as zero-weight edges); of a symmetric file
 only one triangle is read; ids are the 1-based row/column numbers; ``pattern`` files get
-weight 1.  Column and node-table options do not apply and are ignored.
+weight 1.  The header (size and entry count) is read first and checked before anything
+node-sized is allocated (:func:`fastmst.io.checks.check_declared_nodes`).  Column and
+node-table options do not apply and are ignored.
 """
 from __future__ import annotations
 
 import numpy as np
 
 from fastmst.io import registry
-from fastmst.io.checks import FileFormatError, check_no_nan
+from fastmst.io.checks import FileFormatError, check_declared_nodes, check_no_nan
 from fastmst.io.edgelist import EdgeList
 from fastmst.io.labels import id_dtype
 
@@ -19,7 +21,6 @@ def read_edges(path, compression, request):
     import scipy.io
     try:
         rows, cols_, entries, fmt, field_, symmetry = scipy.io.mminfo(str(path))
-        m = scipy.io.mmread(str(path))
     except Exception as exc:  # scipy raises ValueError, OSError, RuntimeError for bad files
         raise FileFormatError(f"{path}: not a readable Matrix Market file ({exc}).") from None
     if fmt != "coordinate":
@@ -31,6 +32,12 @@ def read_edges(path, compression, request):
     if field_ == "complex":
         raise FileFormatError(f"{path}: complex entries cannot be edge weights; expected real, "
                               f"integer or pattern entries.")
+    rows = check_declared_nodes(int(rows), int(entries), request.declared_nodes, str(path),
+                                "stored entries")
+    try:
+        m = scipy.io.mmread(str(path))
+    except Exception as exc:
+        raise FileFormatError(f"{path}: not a readable Matrix Market file ({exc}).") from None
     m = m.tocoo()
     r, c, w = m.row.astype(np.int64), m.col.astype(np.int64), m.data
     if symmetry != "general":
@@ -45,4 +52,5 @@ def read_edges(path, compression, request):
                     np.arange(1, rows + 1, dtype=np.int64), source=str(path))
 
 
-registry.register(registry.Format("mtx", (".mtx",), 40, read_edges=read_edges))
+registry.register(registry.Format("mtx", (".mtx",), 40, read_edges=read_edges,
+                                  declares_nodes=True))

@@ -10,6 +10,12 @@ from fastmst.io.columns import choose_edge_columns
 from fastmst.io.edgelist import edges_from_table
 
 
+# NumPy dtype kinds an edge column may have: bool, integers, reals, text; and names of others
+_KINDS = "biufUS"
+_KIND_NAMES = {"c": "complex", "M": "date/time", "m": "time-span", "V": "structured",
+               "O": "Python object"}
+
+
 def _entry(i: int) -> str:
     return f"entry {i}"
 
@@ -32,24 +38,40 @@ def read_edges(path, compression, request):
         except ValueError as exc:
             raise FileFormatError(f"{path}: an array needs pickle to load ({exc}); save labels "
                                   f"as NumPy text (dtype 'U') or integers instead.") from None
-    lengths = {a.shape[0] for a in arrays.values()}
+    lengths = {a.shape[0] if a.ndim else -1 for a in arrays.values()}
     if any(a.ndim != 1 for a in arrays.values()) or len(lengths) != 1:
         shapes = {c: a.shape for c, a in arrays.items()}
         raise FileFormatError(f"{path}: arrays {shapes} must be 1-D and of one length (one "
                               f"entry per edge).")
     if lengths == {0}:
         raise FileFormatError(f"{path}: the arrays are empty; expected one entry per edge.")
+    for c, a in arrays.items():
+        if a.dtype.kind not in _KINDS:
+            kind = _KIND_NAMES.get(a.dtype.kind, "other")
+            raise FileFormatError(f"{path}: column {c!r} holds {kind} values (dtype "
+                                  f"{a.dtype}); expected integers or real numbers"
+                                  f" (weights) and integers or text (labels). Convert it, e.g. "
+                                  f"keep the real part of complex weights.")
     table = pa.table({c: pa.array(a) for c, a in arrays.items()})
-    return edges_from_table(table, cols, str(path), _entry, request.nodes)
+    return edges_from_table(table, cols, str(path), _entry, request.nodes, request.ids)
 
 
 def write_table(table, tmp, compression):
-    """A pyarrow Table as an .npz archive, text columns as dtype ``U``."""
+    """A pyarrow Table as an .npz archive, text columns as dtype ``U``.
+
+    NumPy's ``U`` dtype drops trailing NUL characters, so a text cell ending in one is refused
+    (a ValueError naming it) rather than changed.
+    """
     arrays = {}
     for name in table.column_names:
         a = table.column(name).to_numpy(zero_copy_only=False)
         if a.dtype == object:
-            a = np.asarray(a.tolist(), dtype=str)
+            values = a.tolist()
+            a = np.asarray(values, dtype=str)
+            bad = [v for v in values if isinstance(v, str) and v.endswith("\x00")]
+            if bad:
+                raise ValueError(f"column {name!r}: label {bad[0]!r} ends with a NUL character, "
+                                 f"which NumPy text arrays (.npz) drop; write Parquet instead.")
         arrays[name] = a
     with open(tmp, "wb") as fh:
         np.savez(fh, **arrays)

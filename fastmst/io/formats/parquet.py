@@ -28,11 +28,12 @@ def read_edges(path, compression, request):
     table = _read(path, [c for c in dict.fromkeys(cols) if c in names])
     if table.num_rows == 0:
         raise FileFormatError(f"{path}: the file has no rows; expected one row per edge.")
-    return edges_from_table(table, cols, str(path), table_row, request.nodes)
+    return edges_from_table(table, cols, str(path), table_row, request.nodes, request.ids)
 
 
-def read_table(path, compression):
-    """Every column of a Parquet file, with its row wording."""
+def read_table(path, compression, text=()):
+    """Every column of a Parquet file, with its row wording (the file's own column types:
+    ``text`` is not needed)."""
     return _read(path, None), table_row
 
 
