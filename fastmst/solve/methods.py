@@ -20,6 +20,9 @@ from fastmst._kernels.filter_kruskal import filter_kruskal
 from fastmst._kernels.radix import MAX_RECORDS
 from fastmst._kernels.radix_kruskal import kruskal_radix
 from fastmst._kernels.scan import forest_bound, forest_size, kruskal
+from fastmst._kernels.small import MAX_EDGES as SMALL_EDGES
+from fastmst._kernels.small import MAX_NODES as SMALL_NODES
+from fastmst._kernels.small import small_forest
 from fastmst._kernels.tie_rule import edge_order, sort_positions
 
 
@@ -78,9 +81,19 @@ def _run_scan_beyond_records(g: validation.EdgeArrays, presorted: bool,
     return kernel_result(g, edges, labels, n_components, maximize, True)
 
 
+def is_small(g: validation.EdgeArrays) -> bool:
+    """Small enough for the one-pass kernel (``fastmst._kernels.small``)."""
+    return g.n_edges <= SMALL_EDGES and g.n_nodes <= SMALL_NODES
+
+
 def run_kruskal(g: validation.EdgeArrays, presorted: bool, maximize: bool,
                 threads: int) -> KernelResult:
-    """Radix-sorted Kruskal (positions scanned directly when ``presorted``)."""
+    """Kruskal: small graphs by the one-pass kernel (merge sort and scan), larger ones
+    radix-sorted (positions scanned directly when ``presorted``)."""
+    if is_small(g):
+        r = small_forest(g.ktail, g.khead, g.kweight, g.n_nodes, maximize)
+        if r is not None:
+            return kernel_result(g, r[0], r[1], r[2], maximize, True)
     if g.n_edges >= MAX_RECORDS:
         return _run_scan_beyond_records(g, presorted, maximize)
     # Stop at (nodes with an edge) - 1 accepted edges: exact for a connected graph with
@@ -129,13 +142,17 @@ def choose_method(g: validation.EdgeArrays, presorted: bool, threads: int) -> st
     """The rule behind ``method="auto"`` (measurements in docs/performance.md).
 
     * ``presorted=True``: "kruskal", which then scans the edges in input order with no sort;
+    * up to ``SMALL_EDGES`` (4,096) edges and ``SMALL_NODES`` (65,536) nodes: "kruskal", which
+      runs the one-pass kernel of ``fastmst._kernels.small``: on such graphs the general
+      route's fixed costs (buffers, passes, threads) outweigh the work
+      (bench/bench_calls.py);
     * more than 2**32 - 1 edges: "boruvka" (the radix records hold 32-bit positions; beyond
       them Kruskal falls back to a comparison sort, while Borůvka needs no sort at all);
     * otherwise "filter-kruskal": fastest (or within the noise of the fastest) on every graph
       family and size measured, with one or two threads: edges heavier than the forest needs
       are never copied, and most edges that close a cycle are dropped before they are sorted.
     """
-    if presorted:
+    if presorted or is_small(g):
         return "kruskal"
     if g.n_edges >= MAX_RECORDS:
         return "boruvka"

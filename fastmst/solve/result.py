@@ -100,6 +100,22 @@ class SpanningForest:
         self._cache = {}
 
     @classmethod
+    def _small(cls, r: tuple, maximize: bool) -> "SpanningForest":
+        """A forest from the tuple of ``fastmst._kernels.small.small_forest`` (every field
+        already of its final type: this is the per-call cost of a small solve)."""
+        self = cls.__new__(cls)
+        (self.edges, self.labels, self.n_components, self.n_nodes, self.n_edges, self.tail,
+         self.head, self.weights) = r
+        self.maximize = maximize
+        self.method = "kruskal"
+        self.required = _NONE
+        self.required_excess = 0.0
+        self.provenance = {"function": "minimum_spanning_forest"}
+        self._free = None
+        self._cache = {}
+        return self
+
+    @classmethod
     def _from_fields(cls, fields: dict) -> "SpanningForest":
         """A forest from the field dict of the array-level solves (``fastmst.solve.constraints``,
         ``fastmst.toolkit.update``); a nested ``free`` dict becomes a forest too."""

@@ -4,6 +4,7 @@ from __future__ import annotations
 import numpy as np
 
 from fastmst import validation
+from fastmst._kernels.small import small_forest
 from fastmst._kernels.tie_rule import first_unsorted
 from fastmst.solve.constraints import constrained_forest, forest_fields, run
 from fastmst.solve.methods import METHODS
@@ -67,6 +68,17 @@ def minimum_spanning_forest(tail, head, weight, n_nodes=None, *, method="auto",
     >>> f.edges.tolist(), f.weight, f.n_components
     ([0, 2, 3], 7.0, 1)
     """
+    # Small graphs in one C call (fastmst._kernels.small): only for arguments whose checks are
+    # this cheap; the kernel itself checks the arrays and declines (None) anything it would
+    # have to refuse or cannot read in place, which then takes the general route below and
+    # gets its error there.  Threads do not matter to a serial kernel, but are checked.
+    if (required is None and excluded is None and presorted is False
+            and (maximize is False or maximize is True)
+            and (threads is None or (type(threads) is int and threads <= validation.MAX_THREADS))
+            and type(method) is str and (method == "auto" or method == "kruskal")):
+        r = small_forest(tail, head, weight, n_nodes, maximize)
+        if r is not None:
+            return SpanningForest._small(r, maximize)
     g = validation.validate_edges(tail, head, weight, n_nodes, func=_FUNC)
     method = validation.check_choice(method, METHODS, "method", _FUNC)
     presorted = validation.check_bool(presorted, "presorted", _FUNC)
