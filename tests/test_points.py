@@ -92,18 +92,19 @@ def clustered(n, d):
     return centres[RNG.integers(0, 8, n)] + RNG.normal(0, 0.5, (n, d))
 
 
-@pytest.mark.parametrize("name,X", [
-    ("uniform-2d", RNG.random((2000, 2))),
-    ("uniform-3d", RNG.random((1500, 3))),
-    ("clustered-2d", clustered(1500, 2)),
-    ("clustered-3d", clustered(1000, 3)),
-    ("wide-range", RNG.random((800, 2)) * np.array([1e6, 1e-3])),
+@pytest.mark.parametrize("name,X,route", [
+    ("uniform-2d", RNG.random((2000, 2)), "delaunay"),
+    ("uniform-3d", RNG.random((1500, 3)), "delaunay"),
+    ("clustered-2d", clustered(1500, 2), "delaunay"),
+    ("clustered-3d", clustered(1000, 3), "delaunay"),
+    # nearly a line (aspect 1e-9): some points closer than 1e-6 of the extent, repaired
+    ("wide-range", RNG.random((800, 2)) * np.array([1e6, 1e-3]), "delaunay+close-points"),
 ])
-def test_euclidean_total_matches_scipy(name, X):
+def test_euclidean_total_matches_scipy(name, X, route):
     """Total length equals scipy.sparse.csgraph.minimum_spanning_tree on the pdist matrix."""
     t = fastmst.point_spanning_tree(X)
     assert_spanning_tree(t, len(X))
-    assert t.method == "delaunay"
+    assert t.method == route
     # reference: scipy.sparse.csgraph.minimum_spanning_tree(squareform(pdist(X)))
     assert t.weight == pytest.approx(scipy_total(X), rel=1e-12)
 
@@ -307,7 +308,9 @@ def test_great_circle_matches_brute_force(name, LL):
     t = fastmst.point_spanning_tree(LL, metric="great-circle")
     assert_spanning_tree(t, len(LL))
     if name in ("equator", "meridian", "parallel"):
-        assert t.method == "circle-chain"
+        # every site on one circle: still a candidate route (cocircular input is triangulated
+        # or chained), not the O(n^2) dense one
+        assert t.method != "dense-prim"
     for i, j, w in zip(t.tail[:50], t.head[:50], t.weights[:50]):
         # reference: independent haversine (math); the pole/antimeridian copies are one point
         assert w == pytest.approx(hav_math(LL[i], LL[j]), rel=1e-9, abs=1e-6)
@@ -389,22 +392,42 @@ def test_great_circle_coarse_grid(rows):
     assert t.weight == pytest.approx(nx_total(LL, hav_math), rel=1e-11, abs=1e-5)
 
 
-def test_near_coincident_points_stay_on_fast_route():
-    """Points closer than Qhull's precision are linked in, not dropped; totals match references."""
+def test_near_coincident_points_are_repaired_exactly():
+    """Points closer than 1e-6 of the extent (where Qhull's triangulation cannot be trusted)
+    are paired with every point, the rest triangulated again; totals match references."""
     r = np.random.default_rng(12)
     B = r.random((250, 2))
     X = np.vstack([B, B[:80] + r.normal(0, 1e-13, (80, 2)), B[:40] + 1e-9])
     t = fastmst.point_spanning_tree(X)
-    assert t.method == "delaunay"
+    assert t.method == "delaunay+close-points"
+    assert t.provenance["candidate_pairs"] < len(X) * (len(X) - 1) // 2
     assert_spanning_tree(t, len(X))
     # reference: networkx MST of all pairs (distances below 1e-8 would be dropped by scipy)
     assert t.weight == pytest.approx(nx_total(X, euclid), rel=1e-12)
     LL = np.column_stack([r.uniform(-180, 180, 200), r.uniform(-80, 80, 200)])
     LL = np.vstack([LL, LL[:60] + 1e-12])
     s = fastmst.point_spanning_tree(LL, metric="great-circle")
-    assert s.method == "sphere-hull"
+    assert s.method == "sphere-caps+close-points"
     # reference: networkx MST of all pairs under the `math` haversine
     assert s.weight == pytest.approx(nx_total(LL, hav_math), rel=1e-11)
+
+
+def test_untrusted_triangulation_falls_back_and_says_why():
+    """Too many close points for the repair budget: exact dense Prim, the reason recorded."""
+    from fastmst.geometry import points as P
+    r = np.random.default_rng(16)
+    B = r.random((300, 2)) * 1e3 + 5e5
+    X = np.vstack([B, B + 1e-7])
+    old = P._REPAIR_PAIRS
+    try:
+        P._REPAIR_PAIRS = 10                     # force the fallback on a small set
+        t = fastmst.point_spanning_tree(X)
+    finally:
+        P._REPAIR_PAIRS = old
+    assert t.method == "dense-prim"
+    assert "closer than" in t.provenance["fallback"]
+    # reference: scipy MST on pdist (no zero lengths here)
+    assert t.weight == pytest.approx(scipy_total(X), rel=1e-12)
 
 
 def test_great_circle_radius_and_kwargs():

@@ -20,7 +20,8 @@ import numpy as np
 from fastmst import validation
 from fastmst._kernels.points import METRIC_CODES, dense_prim
 from fastmst.geometry import checks
-from fastmst.geometry.geodesy import EARTH_RADIUS_M, haversine_m
+from fastmst.geometry.geodesy import (EARTH_RADIUS_M, cos_lat, haversine_m, local_frame,
+                                      wrap_lon)
 from fastmst.solve.result import SpanningForest
 from fastmst.solve.solve import solve_trusted
 
@@ -30,6 +31,10 @@ _FUNC = "point_spanning_tree"
 _SMALL = 8          # at most this many distinct points: every pair is a candidate
 _CHAIN_WINDOW = 2   # sorted-chain fallbacks link each point to this many successors
 _RANK_TOL = 1e-9    # relative singular value below which a direction counts as flat
+_CLOSE = 1e-6      # closer pairs (in units of the half extent) make a triangulation untrusted
+_REPAIR_PAIRS = 4_000_000    # suspect points x all points, at most this many extra pairs
+_HEMI_COS = 0.05    # one stereographic projection when every site is within ~87 deg of the centre
+_CAP_ARC = np.pi / 3         # pairs in neither polar cap are at least 60 degrees apart
 
 
 def pair_position(tail, head, n_points: int) -> np.ndarray:
@@ -95,7 +100,7 @@ def _principal(Y: np.ndarray):
     return C, vt, rank
 
 
-def _flat_enough(C, Y, vt_k, t, h, cyclic_order=None):
+def _flat_enough(C, Y, vt_k, t, h):
     """May the pairs (t, h) found for the projection Y = C @ vt_k.T stand for the points C?
 
     Each point lies within ``eps`` of the line or plane (the largest residual).  Lengths then
@@ -110,32 +115,49 @@ def _flat_enough(C, Y, vt_k, t, h, cyclic_order=None):
     return bool(d.size) and float(d.min()) > 1e9 * eps
 
 
-def _attach_orphans(P: np.ndarray, t: np.ndarray, h: np.ndarray):
-    """Link points Qhull left out of every simplex (nearly coincident with another point, within
-    its precision) to their nearest triangulated point and to that point's neighbours."""
-    m = P.shape[0]
+def _centre_scale(U: np.ndarray) -> np.ndarray:
+    """U moved to the centre of its bounding box and scaled by a power of two into [-1, 1].
+
+    Qhull's tolerances are relative to the largest coordinate: handed raw projected metres
+    (x ~ 5e5, y ~ 7e6) it cannot tell points a few metres apart from one another and leaves
+    some out.  The translation rounds each coordinate once, to half a unit in the last place
+    of the *centred* value (exact where it keeps the binade, as for a cluster far from the
+    origin); the scaling is exact.
+    """
+    lo = U.min(axis=0)
+    hi = U.max(axis=0)
+    V = U - (lo * 0.5 + hi * 0.5)                      # no overflow near +-1.8e308
+    span = float(np.abs(V).max())
+    if span > 0.0 and np.isfinite(span):
+        V = np.ldexp(V, -int(np.frexp(span)[1]))
+    return V
+
+
+def _suspect_points(V: np.ndarray, t: np.ndarray, h: np.ndarray):
+    """Points that make Qhull's triangulation (pairs t, h) of the centred and scaled points V
+    untrustworthy: (sorted indices, reason), or (empty, None) when there are none.
+
+    Qhull works to a tolerance relative to the largest coordinate (about 1e-15 after
+    ``_centre_scale``); Delaunay tests compare squared lengths, so points closer together than
+    about the square root of that (3e-8 of the extent) can be triangulated wrongly even when
+    Qhull keeps them, and nearly coincident points are left out.  Suspect: every point left out
+    of all simplices, and the later point of every pair within ``_CLOSE`` (1e-6 of the half
+    extent, a factor of about 1e3 above that limit in squared terms).  Without them no two
+    points are that close.
+    """
+    from scipy.spatial import cKDTree
+    m = V.shape[0]
     covered = np.zeros(m, dtype=bool)
     covered[t] = True
     covered[h] = True
-    orphans = np.flatnonzero(~covered)
-    if orphans.shape[0] == 0:
-        return t, h
-    from scipy.spatial import cKDTree
-    kept = np.flatnonzero(covered)
-    _, near = cKDTree(P[kept]).query(P[orphans])
-    near = kept[near]
-    src = np.concatenate([t, h])
-    dst = np.concatenate([h, t])
-    order = np.argsort(src, kind="stable")
-    dst = dst[order]
-    indptr = np.zeros(m + 1, dtype=np.int64)
-    np.cumsum(np.bincount(src, minlength=m), out=indptr[1:])
-    deg = indptr[near + 1] - indptr[near]
-    owner = np.repeat(np.arange(orphans.shape[0]), deg)
-    offs = np.arange(owner.shape[0]) - np.repeat(np.cumsum(deg) - deg, deg)
-    nbr = dst[indptr[near][owner] + offs]
-    return (np.concatenate([t, orphans, orphans[owner]]),
-            np.concatenate([h, near, nbr]))
+    close = cKDTree(V, balanced_tree=False, compact_nodes=False).query_pairs(
+        _CLOSE, output_type="ndarray")
+    left = np.flatnonzero(~covered)
+    if left.shape[0] == 0 and close.shape[0] == 0:
+        return left, None
+    bad = np.union1d(left, close.max(axis=1) if close.shape[0] else left)
+    return bad, (f"{left.shape[0]} of {m} points left out by Qhull, {close.shape[0]} pairs "
+                 f"closer than {_CLOSE:g} of the extent")
 
 
 def _spatial_order(P: np.ndarray) -> np.ndarray:
@@ -160,10 +182,52 @@ def _spatial_order(P: np.ndarray) -> np.ndarray:
     return np.argsort(key, kind="stable")
 
 
-def _delaunay_pairs(U: np.ndarray):
+def _simplex_pairs(simp: np.ndarray):
+    k = simp.shape[1]
+    ts, hs = [], []
+    for a in range(k):
+        for b in range(a + 1, k):
+            ts.append(simp[:, a])
+            hs.append(simp[:, b])
+    return np.concatenate(ts), np.concatenate(hs)
+
+
+def _flat_pairs(V: np.ndarray, why: list, repair: bool):
+    """Candidates for points Qhull cannot triangulate in their own dimension: projected onto
+    their line (a sorted chain) or plane (a planar triangulation) when that is an isometry to
+    within rounding (``_flat_enough``); None otherwise."""
+    m, d = V.shape
+    C, vt, rank = _principal(V)
+    if rank >= d:
+        why.append(f"Qhull could not triangulate {m} points in {d}-D")
+        return None
+    if rank <= 1:
+        Y = C @ vt[:1].T
+        t, h = _chain_pairs(Y[:, 0])
+        if _flat_enough(C, Y, vt[:1], t[:m - 1], h[:m - 1]):
+            return t, h, "chain"
+        why.append("nearly but not exactly collinear points")
+        return None
+    Y = C @ vt[:rank].T
+    got = _delaunay_pairs(Y, why, repair)
+    if got is None:
+        return None
+    if not _flat_enough(C, Y, vt[:rank], got[0], got[1]):
+        why.append("nearly but not exactly coplanar points")
+        return None
+    return got[0], got[1], got[2] + "-projected"
+
+
+def _delaunay_pairs(U: np.ndarray, why: list, repair: bool = True):
     """Candidate pairs (indices into U) containing the Euclidean MST of distinct points U.
 
-    Returns (tail, head, route) or None when only the dense route is safe.
+    Returns (tail, head, route), or None when only the dense route is safe (the reason
+    appended to ``why``).  Qhull sees U centred and scaled (``_centre_scale``).  When
+    ``_suspect_points`` names points D, the others K (no two of them close) are triangulated
+    again, and each point of D is paired with every point (while that is at most
+    ``_REPAIR_PAIRS`` pairs): exact, since the minimum spanning tree of K + D lies in
+    MST(K) + {pairs with an end in D} (a pair of K outside MST(K) is the longest edge of a
+    cycle in K, so also in K + D), and the triangulation of K contains MST(K).
     """
     from scipy.spatial import Delaunay, QhullError
     m, d = U.shape
@@ -171,48 +235,69 @@ def _delaunay_pairs(U: np.ndarray):
         return (*_all_pairs(m), "all-pairs")
     if d == 1:
         return (*_chain_pairs(U[:, 0]), "chain")
-    order = _spatial_order(U) if m > 20000 else None
+    V = _centre_scale(U)
+    order = _spatial_order(V) if m > 20000 else None
     try:
-        tri = Delaunay(U if order is None else U[order])
+        tri = Delaunay(V if order is None else V[order])
+        simp = tri.simplices.astype(np.int64)
     except QhullError:
-        C, vt, rank = _principal(U)
-        if rank >= d:
-            return None
-        if rank <= 1:
-            Y = C @ vt[:1].T
-            t, h = _chain_pairs(Y[:, 0])
-            return (t, h, "chain") if _flat_enough(C, Y, vt[:1], t[:m - 1], h[:m - 1]) \
-                else None
-        Y = C @ vt[:rank].T
-        got = _delaunay_pairs(Y)
-        if got is None or not _flat_enough(C, Y, vt[:rank], got[0], got[1]):
-            return None
-        return got[0], got[1], got[2] + "-projected"
-    simp = tri.simplices.astype(np.int64)
+        simp = None
+    if simp is None or (simp.size and int(simp.max()) >= m):
+        # no triangulation, or one through Qhull's point at infinity (nearly flat input)
+        return _flat_pairs(V, why, repair)
     if order is not None:
         simp = order[simp]
-    ts, hs = [], []
-    for a in range(d + 1):
-        for b in range(a + 1, d + 1):
-            ts.append(simp[:, a])
-            hs.append(simp[:, b])
-    t, h = _attach_orphans(U, np.concatenate(ts), np.concatenate(hs))
-    return t, h, "delaunay"
+    t, h = _simplex_pairs(simp)
+    bad, reason = _suspect_points(V, t, h)
+    if reason is None:
+        return t, h, "delaunay"
+    k = bad.shape[0]
+    if not repair or k * m > _REPAIR_PAIRS:
+        why.append(reason)
+        return None
+    keep = np.setdiff1d(np.arange(m, dtype=np.int64), bad)
+    got = _delaunay_pairs(U[keep], why, repair=False)
+    if got is None:
+        return None
+    return (np.concatenate([keep[got[0]], np.repeat(bad, m)]),
+            np.concatenate([keep[got[1]], np.tile(np.arange(m, dtype=np.int64), k)]),
+            got[2] + "+close-points")
 
 
 def _unit_vectors(lonlat: np.ndarray) -> np.ndarray:
     lon = np.radians(lonlat[:, 0])
-    lat = np.radians(lonlat[:, 1])
-    c = np.cos(lat)
-    return np.column_stack([c * np.cos(lon), c * np.sin(lon), np.sin(lat)])
+    c = cos_lat(lonlat[:, 1])
+    return np.column_stack([c * np.cos(lon), c * np.sin(lon), np.sin(np.radians(lonlat[:, 1]))])
 
 
-def _sphere_pairs(U: np.ndarray):
-    """Candidate pairs containing the great-circle MST of distinct (lon, lat) points U."""
+def _hemisphere_frame(U: np.ndarray):
+    """(drop, east, north) of ``local_frame`` about the sites' mean direction when every site
+    lies within acos(_HEMI_COS), about 87 degrees, of it; else None."""
+    P = _unit_vectors(U)
+    c = P.mean(axis=0)
+    norm = float(np.sqrt((c * c).sum()))
+    if norm < 1e-3:
+        return None
+    lon0 = float(np.degrees(np.arctan2(c[1], c[0])))
+    lat0 = float(np.degrees(np.arctan2(c[2], np.hypot(c[0], c[1]))))
+    drop, east, north = local_frame(U, lon0, lat0)
+    return (drop, east, north) if float((1.0 - drop).min()) > _HEMI_COS else None
+
+
+def _stereographic(drop, east, north) -> np.ndarray:
+    """Stereographic projection from the antipode of the frame's centre (``1 + up = 2 - drop``):
+    circles on the sphere go to circles in the plane, empty caps to empty discs."""
+    s = 2.0 - drop
+    return np.column_stack([east / s, north / s])
+
+
+def _hull_pairs(U: np.ndarray, why: list):
+    """Candidate pairs from the convex hull of the unit vectors (the spherical Delaunay
+    triangulation), or the cyclic order when every site is on one circle: (tail, head, route),
+    or None (the reason appended to ``why``).  Like ``_delaunay_pairs``, the hull is used only
+    when ``_suspect_points`` finds nothing against it."""
     from scipy.spatial import ConvexHull, QhullError
     m = U.shape[0]
-    if m <= _SMALL:
-        return (*_all_pairs(m), "all-pairs")
     P = _unit_vectors(U)
     order = _spatial_order(P) if m > 20000 else None
     try:
@@ -227,14 +312,80 @@ def _sphere_pairs(U: np.ndarray):
             t, h = _chain_pairs(np.arctan2(Y[:, 1], Y[:, 0]), cyclic=True)
             if _flat_enough(C, Y, vt[:2], t[:m], h[:m]):
                 return t, h, "circle-chain"
+        why.append(f"Qhull could not build the hull of {m} unit vectors")
         return None
     simp = hull.simplices.astype(np.int64)
     if order is not None:
         simp = order[simp]
-    ts = [simp[:, 0], simp[:, 0], simp[:, 1]]
-    hs = [simp[:, 1], simp[:, 2], simp[:, 2]]
-    t, h = _attach_orphans(P, np.concatenate(ts), np.concatenate(hs))
+    t, h = _simplex_pairs(simp)
+    reason = _suspect_points(P, t, h)[1]
+    if reason is not None:
+        why.append(reason + " (unit vectors)")
+        return None
     return t, h, "sphere-hull"
+
+
+def _cap_pairs(U: np.ndarray, why: list):
+    """Global sets: two stereographic caps, certified; (tail, head, route) or None.
+
+    Sites at latitude <= 30 are projected from the north pole, sites at latitude >= -30 from
+    the south pole, each planar Delaunay triangulation computed as for Euclidean points.  A
+    chord MST edge (p, q) has an empty diametral ball; when the projection pole lies outside
+    that ball (the pole opposite the side of the chord's midpoint always does) the ball's cap
+    maps to an empty disc through p and q, so (p, q) is a planar Delaunay edge.  A pair in
+    neither cap has one site above 30 degrees north and one below 30 south: at least 60 degrees
+    apart.  So when the tree found has no edge as long as 60 degrees, no uncovered pair can
+    shorten it; otherwise the convex hull's pairs are added (route "sphere-caps+hull").
+    """
+    m = U.shape[0]
+    ts, hs, extra = [], [], ""
+    for cap, lat0 in ((np.flatnonzero(U[:, 1] <= 30.0), -90.0),
+                      (np.flatnonzero(U[:, 1] >= -30.0), 90.0)):
+        if cap.shape[0] < 2:
+            continue
+        got = _delaunay_pairs(_stereographic(*local_frame(U[cap], 0.0, lat0)), why)
+        if got is None:
+            return None
+        ts.append(cap[got[0]])
+        hs.append(cap[got[1]])
+        extra = "+close-points" if got[2].endswith("+close-points") else extra
+    t, h = _canonical(np.concatenate(ts), np.concatenate(hs), m)
+    arc = haversine_m(U[t, 0], U[t, 1], U[h, 0], U[h, 1], radius=1.0)
+    f = solve_trusted(t, h, arc, m)
+    if f.n_components == 1 and float(arc[f.edges].max()) < _CAP_ARC * (1.0 - 1e-9):
+        return t, h, "sphere-caps" + extra
+    got = _hull_pairs(U, why)
+    if got is None:
+        return None
+    return (np.concatenate([t, got[0]]), np.concatenate([h, got[1]]),
+            "sphere-caps+hull" + extra)
+
+
+def _sphere_pairs(U: np.ndarray, why: list):
+    """Candidate pairs containing the great-circle MST of distinct normalised (lon, lat) U:
+    (tail, head, route) or None (the reason appended to ``why``).
+
+    Chord length grows with arc length, so the great-circle MST is the chord MST of the unit
+    vectors, a subgraph of their spherical Delaunay triangulation.  Sites within a hemisphere
+    are turned so that their mean direction is a pole and projected stereographically from the
+    opposite pole (from differences of degrees: sites centimetres apart keep their precision);
+    the planar Delaunay triangulation of the projection contains the tree (see ``_cap_pairs``).
+    Global sets use two such caps; one circle, or a failed triangulation, the hull route.
+    """
+    m = U.shape[0]
+    if m <= _SMALL:
+        return (*_all_pairs(m), "all-pairs")
+    frame = _hemisphere_frame(U)
+    if frame is not None:
+        got = _delaunay_pairs(_stereographic(*frame), why)
+        if got is not None:
+            extra = "+close-points" if got[2].endswith("+close-points") else ""
+            return got[0], got[1], "sphere-stereographic" + extra
+    else:
+        got = _cap_pairs(U, why)
+        if got is not None:
+            return got
+    return _hull_pairs(U, why)
 
 
 def _canonical(t, h, n):
@@ -259,12 +410,12 @@ def _euclid_lengths(X, t, h, squared):
 
 
 def _normalise_lonlat(LL: np.ndarray) -> np.ndarray:
-    """Longitudes into [-180, 180) (only where outside), a pole's longitude set to 0."""
+    """Longitudes into [-180, 180) (exactly, only where outside), a pole's longitude set to 0."""
     out = LL + 0.0                                      # copy; -0.0 becomes 0.0
     lon = out[:, 0]
     wrap = (lon < -180.0) | (lon >= 180.0)
     if wrap.any():
-        lon[wrap] = np.mod(lon[wrap] + 180.0, 360.0) - 180.0
+        lon[wrap] = wrap_lon(lon[wrap])
     lon[np.abs(out[:, 1]) == 90.0] = 0.0
     return out
 
@@ -475,15 +626,28 @@ def _too_far(w, metric):
                          f"back.")
 
 
+def _sphere_dense_coords(X: np.ndarray) -> np.ndarray:
+    """Coordinates whose Euclidean distances are the chords, for dense Prim: the unit vectors
+    minus the sites' mean direction in its own frame when they fit in a hemisphere (kept to
+    full relative precision for sites metres apart), else the plain unit vectors."""
+    frame = _hemisphere_frame(X) if X.shape[0] >= 2 else None
+    if frame is None:
+        return _unit_vectors(X)
+    drop, east, north = frame
+    return np.column_stack([-drop, east, north])
+
+
 def _build(X, n, d, metric, kwargs, limit, threads):
     route = None
     length = None
+    info = {"candidate_pairs": None, "fallback": None}
+    why = []
     if metric == "great-circle":
         radius = float(kwargs.get("radius", EARTH_RADIUS_M))
         X = _normalise_lonlat(X)
         if n >= 2:
             U, reps, zt, zh = _group_duplicates(X)
-            got = _sphere_pairs(U)
+            got = _sphere_pairs(U, why)
             if got is not None:
                 t, h = _canonical(np.concatenate([zt, reps[got[0]]]),
                                   np.concatenate([zh, reps[got[1]]]), n)
@@ -493,7 +657,7 @@ def _build(X, n, d, metric, kwargs, limit, threads):
     elif metric in ("euclidean", "sqeuclidean") and not kwargs and d <= 3:
         if n >= 2:
             U, reps, zt, zh = _group_duplicates(X + 0.0)
-            got = _delaunay_pairs(U)
+            got = _delaunay_pairs(U, why)
             if got is not None:
                 t, h = _canonical(np.concatenate([zt, reps[got[0]]]),
                                   np.concatenate([zh, reps[got[1]]]), n)
@@ -507,18 +671,22 @@ def _build(X, n, d, metric, kwargs, limit, threads):
         f = solve_trusted(t, h, w, n)
         route = "all-pairs"
     elif route is not None:
+        info["candidate_pairs"] = int(t.shape[0])
         w = length(t, h)
         f = solve_trusted(t, h, w, n)
         if f.n_components != 1:       # a candidate set must span; never trust one that does not
+            why.append("the candidate set did not span")
             route = None
     if route is None:
         route = "dense-prim"
+        info["candidate_pairs"] = n * (n - 1) // 2
+        info["fallback"] = "; ".join(why) or None
         if length is not None and n > 20000:
-            warnings.warn(f"{_FUNC}: the {metric} candidate set could not be built for these "
-                          f"{n} points (Qhull failed: extreme coordinate ranges?); running "
-                          f"exact dense Prim, O(n^2).", RuntimeWarning, stacklevel=3)
+            warnings.warn(f"{_FUNC}: no trustworthy {metric} candidate set for these {n} "
+                          f"points ({info['fallback']}); running exact dense Prim, O(n^2) "
+                          f"time.", RuntimeWarning, stacklevel=3)
         if metric == "great-circle":     # chord length ranks pairs as arc length does
-            t, h, w = _dense_tree(_unit_vectors(X), "euclidean", {}, threads)
+            t, h, w = _dense_tree(_sphere_dense_coords(X), "euclidean", {}, threads)
         else:
             t, h, w = _dense_tree(X, metric, kwargs, threads)
         order = np.argsort(pair_position(t, h, n), kind="stable")
@@ -534,4 +702,4 @@ def _build(X, n, d, metric, kwargs, limit, threads):
         tt, hh, ww = tt[f.edges], hh[f.edges], ww[f.edges]
     return SpanningForest(pair_position(tt, hh, n), tt, hh, ww, n, n * (n - 1) // 2,
                           f.n_components, f.labels, False, route,
-                          provenance={"function": _FUNC, "metric": metric})
+                          provenance={"function": _FUNC, "metric": metric, **info})
