@@ -327,11 +327,12 @@ def test_edge_cases():
 
 
 def test_auto_rule():
-    """The documented auto rule: presorted -> kruskal, otherwise filter-kruskal."""
+    """The documented auto rule: presorted or small -> kruskal, otherwise filter-kruskal."""
     g = validation.validate_edges([0, 1], [1, 2], [1.0, 2.0])
     assert choose_method(g, True, 2) == "kruskal"
-    assert choose_method(g, False, 1) == "filter-kruskal"
-    assert fastmst.minimum_spanning_forest([0, 1], [1, 2], [1.0, 2.0]).method == "filter-kruskal"
+    assert choose_method(g, False, 1) == "kruskal"      # small: the one-pass kernel
+    assert choose_method(SimpleNamespace(n_edges=5000, n_nodes=9), False, 1) == "filter-kruskal"
+    assert fastmst.minimum_spanning_forest([0, 1], [1, 2], [1.0, 2.0]).method == "kruskal"
     # beyond 2**32 - 1 edges (32-bit record positions) the rule picks Borůvka, which needs no sort
     assert choose_method(SimpleNamespace(n_edges=2**32), False, 1) == "boruvka"
     assert choose_method(SimpleNamespace(n_edges=2**32 - 1), False, 1) == "filter-kruskal"
