@@ -1,12 +1,16 @@
 """Exact minimum spanning trees of point sets: Euclidean, great-circle, and any cdist metric.
 
-Three routes, all exact (the same tree the complete graph of all pairs gives):
+Three kinds of route, all exact (the tree of the complete graph of all pairs, see
+``point_spanning_tree``'s Notes for what that means in float64):
 
-* Euclidean (and squared Euclidean) in 1-D, 2-D and 3-D: the Delaunay triangulation is the
-  candidate set (every minimum spanning tree edge is a Delaunay edge), then Kruskal.
-* Great-circle on (longitude, latitude): the convex hull of the points on the unit sphere is
-  their spherical Delaunay triangulation; chord length grows with arc length, so the same
-  argument holds on the sphere.
+* Euclidean (and squared Euclidean) in 1-D, 2-D and 3-D: the Delaunay triangulation of the
+  centred and scaled points is the candidate set (every minimum spanning tree edge is a
+  Delaunay edge), then Kruskal.  Points Qhull cannot resolve (left out, or closer than 1e-6 of
+  the extent) are paired with every point over a triangulation of the rest, or dense Prim runs.
+* Great-circle on (longitude, latitude): chord length grows with arc length, and the chord
+  tree is a subgraph of the spherical Delaunay triangulation, which a stereographic projection
+  turns into a planar one (one projection for sites within a hemisphere, two polar caps
+  otherwise).
 * Any other metric, or Euclidean above 3-D: dense Prim over all pairs, O(n^2) time and O(n)
   memory, distances computed on the fly (native kernels for euclidean, sqeuclidean, cityblock,
   chebyshev and minkowski; ``scipy.spatial.distance.cdist`` one row at a time for the rest).
@@ -567,25 +571,50 @@ def point_spanning_tree(points, *, metric: str = "euclidean", max_length=None,
     Notes
     -----
     *Tie rule.*  Pairs are ordered by (length, smaller index, larger index), a total order;
-    the tree is the unique minimum spanning tree under it, whichever route runs.  Duplicate
+    the tree is the unique minimum spanning tree under it, whichever route runs (up to the
+    rounding caveat under *What is guaranteed*).  Duplicate
     points are joined by zero-length edges (the duplicates of a point hang off its first
     occurrence).
 
     *Routes.*  Euclidean in 2-D/3-D uses the Delaunay triangulation of the distinct points
-    (``scipy.spatial.Delaunay``) as candidates, O(n log n) expected.  Collinear or coplanar
-    input, where the triangulation does not exist, is projected onto its own line or plane
-    (an isometry), where a sorted chain or a lower-dimensional triangulation is exact.  Up to 8
-    distinct points, every pair is a candidate.  Great-circle uses the convex hull of the unit
-    vectors (``scipy.spatial.ConvexHull``); points all on one circle (the equator, a meridian,
-    a parallel) use their cyclic order.  Other metrics, and Euclidean above 3-D, run dense
-    Prim: O(n^2 d) time, O(n) memory, practical to ~100k points.  ``method`` tells which ran.
-    The candidate graphs contain the minimum spanning tree in exact arithmetic; distances are
-    float64, so two pairs whose lengths differ only in the last bits may be ranked by rounding.
+    (``scipy.spatial.Delaunay`` on the points moved to their bounding box's centre and scaled
+    by a power of two) as candidates, O(n log n) expected (``"delaunay"``).  Qhull's output is
+    used only if it keeps every point and no two points lie within 1e-6 of the set's half
+    extent; otherwise those points are paired with every point and the others triangulated
+    again (``"delaunay+close-points"``, while that is at most 4 million extra pairs), or dense
+    Prim runs (``"dense-prim"``; ``provenance["fallback"]`` says why).  Collinear or coplanar
+    input is projected onto its own line or plane (an isometry to within rounding), where a
+    sorted chain or a lower-dimensional triangulation is exact (``"chain"``,
+    ``"delaunay-projected"``).  Up to 8 distinct points, every pair is a candidate
+    (``"all-pairs"``).  Great-circle: sites within a hemisphere are turned so that their mean
+    direction is a pole and projected stereographically from the opposite pole, which maps the
+    spherical Delaunay triangulation to the planar one (``"sphere-stereographic"``); other sets
+    use two polar caps the same way, certified by the tree having no link of 60 degrees or more
+    (``"sphere-caps"``), else adding the convex hull of the unit vectors
+    (``"sphere-caps+hull"``).  Other metrics, and Euclidean above 3-D, run dense Prim: O(n^2 d)
+    time, O(n) memory, practical to ~100k points.  ``method`` tells which ran;
+    ``provenance["candidate_pairs"]`` how many pairs the tree was chosen from.
+
+    *What is guaranteed.*  Lengths are float64, computed from the coordinates as given:
+    Euclidean as the square root of the squared coordinate differences summed in coordinate
+    order; great-circle by ``fastmst.geometry.geodesy.haversine_m`` (differences taken in
+    degrees, so sites centimetres apart keep about 15 significant digits; nearly antipodal
+    sites fewer, as arcsin is flat there).  The candidate set
+    contains a minimum spanning tree of the complete graph under the exact distances between
+    the given coordinates (for the triangulation routes: provided Qhull's triangulation of
+    points it keeps, none within 1e-6 of the extent of another, is a Delaunay triangulation),
+    and the tree returned is the minimum spanning tree of the candidate set under the float64
+    lengths and the tie rule.  So the tree's total is within about 1e-15 (relative) of the
+    minimum over all spanning trees under the same float64 lengths, and it is exactly the
+    all-pairs tree unless two competing lengths differ only in their last bits, where rounding
+    may decide instead of the tie rule.  Great-circle sets that fit no hemisphere and have a
+    link of 60 degrees or more take their long links from Qhull's hull of unit vectors,
+    accurate to about 1e-15 of the radius.
 
     *Great-circle lengths* are haversine distances on a sphere of the IUGG mean Earth radius,
-    6 371 008.8 m (``fastmst.geometry.geodesy``): a spherical approximation of the ellipsoid, within
-    about 0.5 %.  Longitudes may be any value (a link across the antimeridian gets its short
-    length); a pole is one point whatever its longitude.
+    6 371 008.8 m (``fastmst.geometry.geodesy``): a spherical approximation of the ellipsoid,
+    within about 0.5 %.  Longitudes may be any value (a link across the antimeridian gets its
+    short length); a pole is one point whatever its longitude.
 
     Caution: a spanning tree has no redundancy; one cut isolates part of the network.  Use it
     to compare and plan layouts, and leave the design of utilities and roads to local codes and
