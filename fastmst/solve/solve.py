@@ -59,7 +59,10 @@ def minimum_spanning_forest(tail, head, weight, n_nodes=None, *, method="auto",
     thereby totally ordered by (weight, position), the minimum spanning forest under that order is
     unique, and every method, thread count, run and machine returns the same ``edges``.
     Kruskal runs in O(E log E) for the sort plus O(E alpha(V)) for the scan; Borůvka in
-    O(E log V).
+    O(E log V).  Graphs of up to 4,096 edges and 65,536 nodes given as plain contiguous NumPy
+    arrays (int32/int64 ids, a 32- or 64-bit weight dtype) are solved in one C call that makes
+    the same checks (``method`` "kruskal"): a few microseconds per call; the result is the
+    same as every other method's.
 
     Examples
     --------
