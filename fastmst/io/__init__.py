@@ -5,9 +5,11 @@ Readers return an :class:`EdgeList`: compact node ids ``0..n_nodes-1`` in ``tail
 speak the user's ids again.  Writers replace a file only with a complete new one: they write a
 temporary file beside the target and rename it, so a failure leaves the old file untouched.
 
-Label rule: without a node table, compact id ``i`` is the ``i``-th smallest label (numeric order
-for integer ids, code-point order for strings).  With a node table, compact id ``i`` is row ``i``
-of the node table, so nodes without edges are kept as isolated nodes.
+Label rule (:mod:`fastmst.io.labels`): labels in text files are text, exactly as written, unless
+``ids="integer"`` says the ids are integers.  Without a node table, compact id ``i`` is the
+``i``-th distinct text label in order of first appearance (tail column, then head column), or
+the ``i``-th smallest integer id.  With a node table, compact id ``i`` is row ``i`` of the node
+table, so nodes without edges are kept as isolated nodes.
 
 This module is the public face; the work is done in its modules:
 
