@@ -75,16 +75,17 @@ def bound_in_dtype(t: int | float, dtype: np.dtype, upper: bool):
             return None if t < info.min else dtype.type(min(t, info.max))
         return None if t > info.max else dtype.type(max(t, info.min))
     big = float(np.finfo(dtype).max)
-    try:
-        c = dtype.type(t)
-    except OverflowError:                     # an int beyond float64
-        c = dtype.type(math.inf if t > 0 else -math.inf)
-    if np.isinf(c) and not (isinstance(t, float) and math.isinf(t)):
-        c = dtype.type(big if t > 0 else -big)  # a finite t beyond the dtype's range
-    if upper and float(c) > t:
-        c = np.nextafter(c, dtype.type(-math.inf))
-    elif not upper and float(c) < t:
-        c = np.nextafter(c, dtype.type(math.inf))
+    with np.errstate(over="ignore"):          # beyond the dtype's range is handled below
+        try:
+            c = dtype.type(t)
+        except OverflowError:                 # an int beyond float64
+            c = dtype.type(math.inf if t > 0 else -math.inf)
+        if np.isinf(c) and not (isinstance(t, float) and math.isinf(t)):
+            c = dtype.type(big if t > 0 else -big)  # a finite t beyond the dtype's range
+        if upper and float(c) > t:
+            c = np.nextafter(c, dtype.type(-math.inf))
+        elif not upper and float(c) < t:
+            c = np.nextafter(c, dtype.type(math.inf))
     return c
 
 
