@@ -35,8 +35,10 @@ def _weights(rng, m, dtype):
         return w.astype(dtype)
     info = np.iinfo(dtype)
     pool = np.array([info.min, info.min + 1, 0, 1, 2, info.max - 1, info.max], dtype=dtype)
-    small_vals = rng.integers(max(info.min, -3), min(info.max, 6), m, endpoint=True)
-    return np.where(rng.random(m) < 0.3, rng.choice(pool, m), small_vals).astype(dtype)
+    out = rng.integers(max(info.min, -3), min(info.max, 6), m, endpoint=True).astype(dtype)
+    extreme = rng.random(m) < 0.3
+    out[extreme] = rng.choice(pool, m)[extreme]          # stays in the dtype: no float detour
+    return out
 
 
 def _graph(seed, m, n, id_dtype, weight_dtype):
@@ -201,3 +203,20 @@ def test_threads_do_not_change_the_small_route():
     ref = MSF(tail, head, weight, threads=1)
     for threads in (None, 0, -3, 2, 64):
         assert_same_forest(ref, MSF(tail, head, weight, threads=threads))
+
+
+@pytest.mark.parametrize("m", [1, 2, 17, 120, 1000, 2000, small.MAX_EDGES])
+@pytest.mark.parametrize("weight_dtype", WEIGHT_DTYPES[:6])
+@pytest.mark.parametrize("id_dtype", [np.int32, np.int64])
+def test_small_route_at_every_size_up_to_the_limit(m, weight_dtype, id_dtype):
+    """Fixed sizes up to MAX_EDGES (hypothesis may draw few large ones): the one-pass route
+    runs and equals the general route and SciPy, minimum and maximum forests."""
+    tail, head, weight = _graph(m, m, max(2, m // 3), id_dtype, weight_dtype)
+    assert small.small_forest(tail, head, weight, None, False) is not None
+    for maximize in (False, True):
+        fast = MSF(tail, head, weight, maximize=maximize)
+        assert fast.method == "kruskal"
+        assert_same_forest(fast, MSF(tail, head, weight, maximize=maximize,
+                                     method="filter-kruskal"))
+        assert set(fast.edges.tolist()) == scipy_forest(tail, head, weight, fast.n_nodes,
+                                                        maximize)
