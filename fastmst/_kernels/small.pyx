@@ -15,6 +15,12 @@ anything else, and for any input it would have to reject (an id out of range, a 
 it returns None and the caller takes the general route, which validates again and words the
 error.  So the checks the API promises are all made, and their messages live in one place
 (``fastmst.validation``).
+
+The nogil kernels take pointers from ``PyArray_DATA`` rather than typed memoryviews: here the
+arrays are tiny and the call is the cost, and acquiring the eight memoryviews of a call
+measured 1.3 us against 0.1 us for the pointers (on the project's machine), more than half of
+the whole one-pass solve of a 120-edge graph.  The ``def`` checks dtype, layout and length
+before any pointer is taken.
 """
 import numpy as np
 cimport numpy as cnp
