@@ -220,3 +220,15 @@ def test_small_route_at_every_size_up_to_the_limit(m, weight_dtype, id_dtype):
                                      method="filter-kruskal"))
         assert set(fast.edges.tolist()) == scipy_forest(tail, head, weight, fast.n_nodes,
                                                         maximize)
+
+
+def test_small_route_from_many_threads_at_once():
+    """The one-pass kernel releases the GIL and keeps no state between calls: eight Python
+    threads solving different graphs at once get the results of serial calls."""
+    from concurrent.futures import ThreadPoolExecutor
+    graphs = [_graph(s, 300 + 50 * s, 100, np.int64, np.float64) for s in range(8)]
+    serial = [MSF(*g) for g in graphs]
+    with ThreadPoolExecutor(8) as pool:
+        for _ in range(5):
+            for got, want in zip(pool.map(lambda g: MSF(*g), graphs), serial):
+                assert_same_forest(got, want)
