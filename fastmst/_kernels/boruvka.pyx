@@ -7,6 +7,9 @@ increasing id order (contraction by relabelling), and the surviving edges (betwe
 components) are compacted, keeping their position order.  Every step is either order-independent
 or serial, so the forest and the labels are identical for every thread count.  The GIL is
 released throughout.  Without OpenMP the same code runs serially.
+
+Weights are compared through the tie rule's keys of their bits (``tie_rule.rank_key``), so the
+kernel is compiled for two id widths and two key widths, whatever the weight dtype.
 """
 import numpy as np
 cimport numpy as cnp
@@ -16,9 +19,9 @@ from libc.stdlib cimport free, malloc
 from libc.string cimport memmove
 
 from fastmst._kernels._atomics cimport cas64, load64, load_relaxed, store_relaxed, prefetch_w
-from fastmst._kernels._typedefs cimport check_edge_arrays, index_t, weight_t
+from fastmst._kernels._typedefs cimport check_edge_arrays, index_t
 from fastmst._kernels.dsu cimport dsu_find, label_first_appearance
-from fastmst._kernels.tie_rule cimport rule_before, weight_after
+from fastmst._kernels.tie_rule cimport rank_key, ukey_t
 from fastmst._kernels.tie_rule import weight_bits
 
 cnp.import_array()
@@ -32,38 +35,42 @@ cdef enum:
     MAX_ROUNDS = 128
 
 
-cdef inline void _offer(int64_t* best, weight_t* hint, Py_ssize_t c, int64_t i, weight_t wi,
-                        const weight_t* weight, const int64_t* pos, bint maximize) noexcept nogil:
-    """Atomically lower best[c] to edge index i when i is lighter.
+cdef inline void _offer(int64_t* best, ukey_t* hint, Py_ssize_t c, int64_t i, ukey_t ki,
+                        const ukey_t* bits, const int64_t* pos, int kind,
+                        bint comp) noexcept nogil:
+    """Atomically lower best[c] to edge index i (rule key ``ki``) when i comes first.
 
-    ``hint[c]`` is the weight of some edge that was best[c] at some moment; best[c] only gets
-    lighter, so an edge strictly heavier than the hint is rejected without touching best[c] or
-    gathering its weight (one random read instead of three dependent ones).
+    Edges are compared by their rule keys (``tie_rule.rank_key`` of the weight bits, the
+    ascending order of the rule) and then by index, which is position order.  ``hint[c]`` is
+    the key of some edge that was best[c] at some moment; best[c] only comes earlier, so an
+    edge whose key is above the hint is rejected without touching best[c] or gathering its
+    weight (one random read instead of three dependent ones).
     """
     cdef int64_t cur
-    cdef weight_t wc = wi
-    load_relaxed(&hint[c], &wc)
-    if weight_after(wi, wc, maximize):
+    cdef ukey_t kc = ki
+    load_relaxed(&hint[c], &kc)
+    if ki > kc:
         return
     cur = load64(&best[c])
     while True:
         if cur >= 0:
-            wc = weight[pos[cur] if pos != NULL else cur]
-            if not rule_before(wi, i, wc, cur, maximize):
+            kc = <ukey_t>rank_key(bits[pos[cur] if pos != NULL else cur], kind, comp)
+            if ki > kc or (ki == kc and i > cur):
                 return
         if cas64(&best[c], cur, i):
-            store_relaxed(&hint[c], &wi)
+            store_relaxed(&hint[c], &ki)
             return
         cur = load64(&best[c])
 
 
-cdef Py_ssize_t _boruvka(const index_t* tail, const index_t* head, const weight_t* weight,
-                         Py_ssize_t n, Py_ssize_t m, bint maximize, int threads,
-                         weight_t* hint, weight_t worst,
-                         int64_t* out, index_t* final_label, Py_ssize_t* n_final) noexcept nogil:
+cdef Py_ssize_t _boruvka(const index_t* tail, const index_t* head, const ukey_t* bits,
+                         int kind, Py_ssize_t n, Py_ssize_t m, bint maximize, int threads,
+                         ukey_t* hint, int64_t* out, index_t* final_label,
+                         Py_ssize_t* n_final) noexcept nogil:
     """Parallel Borůvka.
 
-    IN: tail, head, weight (m edges, read in place), n, maximize, threads.
+    IN: tail, head, bits (the weight bits of m edges, of key kind ``kind``, read in place), n,
+    maximize, threads.  SCRATCH: hint (n + 1 keys).
     OUT: out (accepted positions, returns how many), final_label (n: component of each node,
     numbered arbitrarily but deterministically), n_final (number of components).
     Returns -1 when memory runs out.
@@ -93,6 +100,7 @@ cdef Py_ssize_t _boruvka(const index_t* tail, const index_t* head, const weight_
     cdef Py_ssize_t* chunk = <Py_ssize_t*>malloc((threads + 1) * sizeof(Py_ssize_t))
     cdef index_t* mp
     cdef index_t x
+    cdef ukey_t key, worst = <ukey_t>(-1)   # the last key of the order
     cdef bint owned = False
     if best == NULL or to == NULL or maps == NULL or chunk == NULL:
         free(best); free(to); free(maps); free(chunk)
@@ -107,10 +115,9 @@ cdef Py_ssize_t _boruvka(const index_t* tail, const index_t* head, const weight_
                 prefetch_w(&hint[cu[i + 16]])
                 prefetch_w(&hint[cv[i + 16]])
             if cu[i] != cv[i]:
-                _offer(best, hint, cu[i], i, weight[pos[i] if pos != NULL else i], weight, pos,
-                       maximize)
-                _offer(best, hint, cv[i], i, weight[pos[i] if pos != NULL else i], weight, pos,
-                       maximize)
+                key = <ukey_t>rank_key(bits[pos[i] if pos != NULL else i], kind, maximize)
+                _offer(best, hint, cu[i], i, key, bits, pos, kind, maximize)
+                _offer(best, hint, cv[i], i, key, bits, pos, kind, maximize)
         # 2. hook: c -> the other end of its pick; a mutual pair keeps the smaller id as root
         for c in range(nc):
             b = best[c]
@@ -226,24 +233,6 @@ cdef Py_ssize_t _boruvka(const index_t* tail, const index_t* head, const weight_
     return count
 
 
-cdef Py_ssize_t _run(const index_t* tail, const index_t* head, const weight_t[::1] weight,
-                     Py_ssize_t n, bint maximize, int threads, int64_t* out,
-                     index_t* final_label, Py_ssize_t* n_final) except -2:
-    """Allocate the per-component hints for ``weight``'s dtype and run ``_boruvka``.
-
-    The one step that depends on the weight dtype, so that only it is specialised per dtype.
-    """
-    cdef Py_ssize_t m = weight.shape[0], count
-    # the hint starts at the worst weight of the graph (every edge is at least as light)
-    hint_a = np.empty(n + 1, dtype=np.asarray(weight).dtype)
-    cdef weight_t[::1] hint = hint_a
-    cdef weight_t worst = np.asarray(weight).min() if maximize else np.asarray(weight).max()
-    with nogil:
-        count = _boruvka(tail, head, &weight[0], n, m, maximize, threads, &hint[0], worst, out,
-                         final_label, n_final)
-    return count
-
-
 def boruvka(const index_t[::1] tail, const index_t[::1] head, cnp.ndarray weight not None,
             Py_ssize_t n_nodes, bint maximize=False, int threads=1):
     """Minimum (or maximum) spanning forest by parallel Borůvka rounds.
@@ -269,7 +258,7 @@ def boruvka(const index_t[::1] tail, const index_t[::1] head, cnp.ndarray weight
     n_components : int
     """
     cdef Py_ssize_t m = tail.shape[0], n = n_nodes, count = 0, nfin = 0, k = 0
-    weight_bits(weight, m, "boruvka")
+    bits, kind = weight_bits(weight, m, "boruvka")
     check_edge_arrays(m, head.shape[0], -1, n_nodes, "boruvka")
     cdef int nt = max(1, min(threads, m // MIN_EDGES_PER_THREAD + 1))
     dtype = np.int32 if index_t is int32_t else np.int64
@@ -284,31 +273,24 @@ def boruvka(const index_t[::1] tail, const index_t[::1] head, cnp.ndarray weight
         return out[:0], labels, 0
     if m == 0 or n == 1:
         return out[:0], np.arange(n, dtype=np.int64), n
-    cdef const float[::1] w_f4
-    cdef const double[::1] w_f8
-    cdef const int32_t[::1] w_i4
-    cdef const int64_t[::1] w_i8
-    cdef const uint32_t[::1] w_u4
-    cdef const uint64_t[::1] w_u8
-    cdef str code = weight.dtype.kind + str(weight.dtype.itemsize)
-    if code == "f8":
-        w_f8 = weight
-        count = _run(&tail[0], &head[0], w_f8, n, maximize, nt, &o[0], &lb[0], &nfin)
-    elif code == "f4":
-        w_f4 = weight
-        count = _run(&tail[0], &head[0], w_f4, n, maximize, nt, &o[0], &lb[0], &nfin)
-    elif code == "i8":
-        w_i8 = weight
-        count = _run(&tail[0], &head[0], w_i8, n, maximize, nt, &o[0], &lb[0], &nfin)
-    elif code == "i4":
-        w_i4 = weight
-        count = _run(&tail[0], &head[0], w_i4, n, maximize, nt, &o[0], &lb[0], &nfin)
-    elif code == "u8":
-        w_u8 = weight
-        count = _run(&tail[0], &head[0], w_u8, n, maximize, nt, &o[0], &lb[0], &nfin)
+    cdef int code = kind
+    cdef const uint32_t[::1] b32
+    cdef const uint64_t[::1] b64
+    cdef uint32_t[::1] h32
+    cdef uint64_t[::1] h64
+    hint_a = np.empty(n + 1, dtype=bits.dtype)   # per-component key of the best edge so far
+    if bits.dtype == np.uint32:
+        b32 = bits
+        h32 = hint_a
+        with nogil:
+            count = _boruvka(&tail[0], &head[0], &b32[0], code, n, m, maximize, nt, &h32[0],
+                             &o[0], &lb[0], &nfin)
     else:
-        w_u4 = weight
-        count = _run(&tail[0], &head[0], w_u4, n, maximize, nt, &o[0], &lb[0], &nfin)
+        b64 = bits
+        h64 = hint_a
+        with nogil:
+            count = _boruvka(&tail[0], &head[0], &b64[0], code, n, m, maximize, nt, &h64[0],
+                             &o[0], &lb[0], &nfin)
     if count < 0:
         raise MemoryError("boruvka: out of memory for the per-round edge arrays; use "
                           "method='kruskal', which needs less extra memory.")

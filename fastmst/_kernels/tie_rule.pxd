@@ -5,8 +5,6 @@
 # run time: radix.pyx cimports it while tie_rule.pyx imports radix (for edge_order).
 from libc.stdint cimport int64_t, uint32_t, uint64_t
 
-from fastmst._kernels._typedefs cimport weight_t
-
 # The weight bits the key map reads: uint32 for 4-byte weights, uint64 for 8-byte ones.
 ctypedef fused ukey_t:
     uint32_t
@@ -66,17 +64,3 @@ cdef inline void keys_to_bits(uint64_t* k, Py_ssize_t n, int kind, bint compleme
     cdef Py_ssize_t i
     for i in range(n):
         k[i] = bits_of(k[i] + kmin, kind, complement, width)
-
-
-cdef inline bint rule_before(weight_t wa, int64_t a, weight_t wb, int64_t b,
-                             bint maximize) noexcept nogil:
-    """Edge a (weight ``wa``) comes before edge b in the rule order; a, b are positions or any
-    numbers in position order.  ``==`` makes -0.0 and +0.0 tie, as the key map does."""
-    if wa == wb:
-        return a < b
-    return wa > wb if maximize else wa < wb
-
-
-cdef inline bint weight_after(weight_t wa, weight_t wb, bint maximize) noexcept nogil:
-    """Weight ``wa`` comes strictly after ``wb`` in the rule order (whatever the positions)."""
-    return wa < wb if maximize else wa > wb
