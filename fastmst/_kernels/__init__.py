@@ -5,3 +5,6 @@ memoryviews; ``.pxd`` files export the primitives other kernels ``cimport`` and 
 describe the ``def`` layer.  Nothing here is public API: ``fastmst.solve`` and the toolkit call
 these functions on arrays that ``fastmst.validation`` has already checked.
 """
+
+# First of all: the thread policy sets the OpenMP wait policy before the runtime loads.
+from fastmst._kernels import threads  # noqa: E402,F401

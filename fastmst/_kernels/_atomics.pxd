@@ -1,4 +1,4 @@
-# Atomic and scheduling helpers shared by the parallel kernels (cimport them).
+# Atomic, scheduling and OpenMP helpers shared by the parallel kernels (cimport them).
 #
 # Relaxed and acquire/release atomics through the GCC and clang builtins; without them the
 # fallbacks are plain loads and stores, correct only single-threaded (the build without
@@ -58,6 +58,12 @@ cdef extern from *:
     #define FASTMST_STORE_RELAXED(p, v) (*(p) = *(v))
     #define FASTMST_PREFETCH_W(p) ((void)0)
     #endif
+    #ifdef _OPENMP
+    #include <omp.h>
+    #define FASTMST_OMP_MAX_THREADS() omp_get_max_threads()
+    #else
+    #define FASTMST_OMP_MAX_THREADS() 0
+    #endif
     """
     # Borůvka: lowest edge per component by compare-and-swap
     bint cas64 "fastmst_cas64"(int64_t* p, int64_t expected, int64_t desired) noexcept nogil
@@ -72,3 +78,6 @@ cdef extern from *:
     Py_ssize_t getz "fastmst_getz"(const Py_ssize_t* p) noexcept nogil
     void putz "fastmst_putz"(Py_ssize_t* p, Py_ssize_t v) noexcept nogil
     void yield_cpu "FASTMST_YIELD"() noexcept nogil
+    # The OpenMP default team size (OMP_NUM_THREADS, omp_set_num_threads as threadpoolctl
+    # calls it); 0 in a build without OpenMP
+    int omp_max_threads "FASTMST_OMP_MAX_THREADS"() noexcept nogil

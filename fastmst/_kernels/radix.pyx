@@ -21,6 +21,7 @@ from libc.stdint cimport int64_t, uint8_t, uint32_t, uint64_t
 from libc.stdlib cimport free, malloc
 from libc.string cimport memcpy
 
+from fastmst._kernels._atomics cimport omp_max_threads
 from fastmst._kernels.radix cimport Rec, digit_hist, digit_kp, rec_less
 from fastmst._kernels.tie_rule cimport ukey_t, rank_key
 
@@ -341,3 +342,10 @@ def sort_buckets(uint8_t[::1] raw, const Py_ssize_t[::1] bounds, int next_shift,
     with nogil:
         for b in prange(first, last, num_threads=threads, schedule="dynamic"):
             sort_bucket(a + bounds[b], bounds[b + 1] - bounds[b], next_shift)
+
+
+def openmp_max_threads():
+    """``omp_get_max_threads()`` of the calling thread: the team size OpenMP would use by
+    default (``OMP_NUM_THREADS``, or the limit ``threadpoolctl.threadpool_limits`` set); 0 when
+    the kernels were built without OpenMP."""
+    return omp_max_threads()

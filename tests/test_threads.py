@@ -1,0 +1,119 @@
+"""The thread policy (``fastmst/_kernels/threads.py``): the default thread count follows the
+ecosystem's OpenMP controls, idle threads wait passively unless the user chose otherwise, and
+the forest does not depend on either.
+
+Sources: the OpenMP API specification 5.2 (OpenMP ARB, 2021): ``OMP_NUM_THREADS`` sets the
+initial nthreads-var that ``omp_get_max_threads`` returns and ``omp_set_num_threads`` changes
+(sections 21.1.2, 18.2.1-18.2.2); ``OMP_DISPLAY_ENV=true`` makes the runtime print its ICVs
+when it starts, among them ``OMP_WAIT_POLICY`` (sections 21.7, 21.1.5).  threadpoolctl's
+``threadpool_limits(limits, user_api="openmp")`` calls ``omp_set_num_threads`` of every OpenMP
+runtime loaded (threadpoolctl documentation, "threadpool_limits").
+"""
+import os
+import subprocess
+import sys
+
+import numpy as np
+import pytest
+
+import fastmst
+from fastmst import validation
+from fastmst._kernels import radix, threads
+
+threadpoolctl = pytest.importorskip("threadpoolctl")
+
+OPENMP = radix.openmp_max_threads() > 0
+
+
+def _fresh(code, **env):
+    """Run ``code`` in a fresh interpreter with ``env`` added to (or, for None values, removed
+    from) the environment; return its stdout and stderr."""
+    e = dict(os.environ)
+    for k, v in env.items():
+        if v is None:
+            e.pop(k, None)
+        else:
+            e[k] = v
+    run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, env=e,
+                         timeout=120)
+    assert run.returncode == 0, run.stderr[-2000:]
+    return run.stdout, run.stderr
+
+
+PRINT_DEFAULT = ("import os, fastmst; from fastmst import validation; "
+                 "from fastmst._kernels import threads; "
+                 "print(validation.check_threads(None, 'f'), threads.wait_policy(), "
+                 "os.environ.get('OMP_WAIT_POLICY'))")
+
+
+@pytest.mark.skipif(not OPENMP, reason="built without OpenMP: the kernels run on one thread")
+@pytest.mark.parametrize("n", [1, 3])
+def test_omp_num_threads_sets_the_default(n):
+    """OMP_NUM_THREADS=n gives threads=None n threads (OpenMP 5.2, 21.1.2)."""
+    out, _ = _fresh(PRINT_DEFAULT, OMP_NUM_THREADS=str(n))
+    assert out.split()[0] == str(n)
+
+
+@pytest.mark.skipif(not OPENMP, reason="built without OpenMP: the kernels run on one thread")
+def test_default_is_omp_get_max_threads():
+    """Without controls the default is the runtime's own team size (omp_get_max_threads)."""
+    assert validation.check_threads(None, "f") == radix.openmp_max_threads()
+    assert validation.check_threads(0, "f") == radix.openmp_max_threads()
+
+
+@pytest.mark.skipif(not OPENMP, reason="built without OpenMP: the kernels run on one thread")
+@pytest.mark.parametrize("limit", [1, 2])
+def test_threadpool_limits_sets_the_default(limit):
+    """threadpoolctl finds the runtime the kernels use and its limit becomes the default; the
+    limit is lifted on exit (threadpoolctl's documented contract)."""
+    before = validation.check_threads(None, "f")
+    assert any(i["user_api"] == "openmp" for i in threadpoolctl.threadpool_info())
+    with threadpoolctl.threadpool_limits(limits=limit, user_api="openmp"):
+        assert validation.check_threads(None, "f") == limit
+    assert validation.check_threads(None, "f") == before
+
+
+def test_same_forest_under_every_control():
+    """The forest is the same with the default, threads=1, threadpool_limits(1) and an
+    explicit count, for every method (identical edges: the rule makes the forest unique)."""
+    rng = np.random.default_rng(7)
+    n, m = 3000, 40_000
+    tail = rng.integers(0, n, m)
+    head = rng.integers(0, n, m)
+    weight = rng.integers(0, 50, m).astype(np.float64)    # many ties
+    for method in fastmst.METHODS:
+        ref = fastmst.minimum_spanning_forest(tail, head, weight, n, method=method, threads=1)
+        assert np.array_equal(
+            fastmst.minimum_spanning_forest(tail, head, weight, n, method=method).edges,
+            ref.edges)
+        with threadpoolctl.threadpool_limits(limits=1, user_api="openmp"):
+            assert np.array_equal(
+                fastmst.minimum_spanning_forest(tail, head, weight, n, method=method).edges,
+                ref.edges)
+        assert np.array_equal(
+            fastmst.minimum_spanning_forest(tail, head, weight, n, method=method,
+                                            threads=3).edges, ref.edges)
+
+
+@pytest.mark.skipif(not OPENMP, reason="built without OpenMP: no wait policy to set")
+@pytest.mark.skipif(not sys.platform.startswith("linux"), reason="GNU OpenMP (Linux)")
+def test_passive_wait_unless_the_user_chose():
+    """Without a user setting, the runtime starts with OMP_WAIT_POLICY PASSIVE (as its
+    OMP_DISPLAY_ENV report shows, OpenMP 5.2, 21.7) and the environment is left as it was;
+    an explicit OMP_WAIT_POLICY or GOMP_SPINCOUNT is kept."""
+    out, err = _fresh(PRINT_DEFAULT, OMP_DISPLAY_ENV="true", OMP_WAIT_POLICY=None,
+                      GOMP_SPINCOUNT=None)
+    assert "OMP_WAIT_POLICY = 'PASSIVE'" in err
+    assert out.split()[1:] == ["passive", "None"]
+    out, err = _fresh(PRINT_DEFAULT, OMP_DISPLAY_ENV="true", OMP_WAIT_POLICY="active",
+                      GOMP_SPINCOUNT=None)
+    assert "OMP_WAIT_POLICY = 'ACTIVE'" in err
+    assert "user: OMP_WAIT_POLICY=active" in out
+    out, _ = _fresh(PRINT_DEFAULT, OMP_WAIT_POLICY=None, GOMP_SPINCOUNT="1000")
+    assert "user: GOMP_SPINCOUNT=1000" in out
+
+
+def test_policy_is_reported():
+    """wait_policy names what is in force; the module is loaded before any kernel."""
+    assert threads.wait_policy() == "passive" or threads.wait_policy().startswith(
+        ("user: ", "runtime default"))
