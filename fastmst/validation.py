@@ -17,6 +17,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from fastmst._kernels import threads as kernel_threads
+
 INT32_LIMIT = 2**31
 
 #: ``threads`` above this is refused: more than any machine has cores, and beyond it OpenMP's
@@ -308,8 +310,7 @@ def check_choice(value, valid, name: str, func: str) -> str:
 def check_threads(threads, func: str) -> int:
     """Resolve ``threads`` (None or <= 0 means all available cores) to a positive count."""
     if threads is None:
-        return max(1, len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity")
-                   else (os.cpu_count() or 1))
+        return kernel_threads.default_threads()  # OMP_NUM_THREADS, threadpoolctl apply
     if isinstance(threads, (bool, np.bool_)):
         raise TypeError(f"{func}: threads must be an integer or None, received "
                         f"{type(threads).__name__} {shown(threads)}.")
