@@ -15,9 +15,10 @@ appearance, reading down the tail column and then down the head column.  Integer
 order, and ids that already are ``0..n-1`` stay as they are (``labels`` is then None).  With a
 node table, compact id ``i`` is row ``i`` of the table.
 
-Text labels are mapped with pyarrow's own hash kernels: one dictionary encoding per endpoint
-column (the two columns in parallel, pyarrow releases the GIL), the union of the two small
-dictionaries in first-appearance order, and one NumPy gather for the head column.
+Text labels are mapped by :func:`fastmst._kernels.labels.text_ids`, which reads the Arrow
+string buffers in place and numbers labels by first appearance (exact byte comparison; the
+same ids for every thread count).  Integer ids that need hashing, and text columns beyond the
+kernel's int32 id range, go through pyarrow's dictionary encoding.
 
 Lookup rule (:func:`lookup`): integer columns are compared as int64, text looked up among
 integer ids is read as integers, columns of one type are compared as they are, anything else as
@@ -35,6 +36,7 @@ from concurrent.futures import ThreadPoolExecutor
 import numpy as np
 
 from fastmst import validation
+from fastmst._kernels import labels as label_kernel
 from fastmst.io.checks import FileFormatError, check_no_missing
 from fastmst.io.columns import chunks, null_mask, plain, to_numpy
 
@@ -97,7 +99,11 @@ def encode_label_columns(tail, head, source, where, names, ids="text"):
         return ti, hi, to_numpy(uniq)
     if t.type != h.type:
         t, h = pc.cast(t, pa.string()), pc.cast(h, pa.string())
-    ti, hi, uniq = _hashed_ids(t, h, numeric=False)
+    fast = _text_ids(t, h)
+    if fast is not None:
+        ti, hi, uniq = fast
+    else:
+        ti, hi, uniq = _hashed_ids(t, h, numeric=False)
     if pa.types.is_string(uniq.type) or pa.types.is_large_string(uniq.type):
         if pc.any(pc.equal(uniq, "")).as_py():
             for col, name in ((t, names[0]), (h, names[1])):
@@ -165,6 +171,23 @@ def _hashed_ids(t, h, numeric):
         ti = ct.astype(dt, copy=False)
     rh = to_numpy(pc.index_in(dh_, value_set=uniq)).astype(dt)
     return ti, rh[ch], uniq
+
+
+def _text_ids(t, h):
+    """Text label columns through the label kernel: (tail ids, head ids, labels as a pyarrow
+    large_string array), or None when the columns are not text or too long for int32 ids."""
+    import pyarrow as pa
+    text = (pa.types.is_string, pa.types.is_large_string)
+    if not any(f(t.type) for f in text) or not any(f(h.type) for f in text):
+        return None
+    threads = validation.check_threads(None, "read_edges")
+    if 2 * len(t) * threads >= validation.INT32_LIMIT - 1:
+        return None
+    parts = list(getattr(t, "chunks", [t])) + list(getattr(h, "chunks", [h]))
+    ti, hi, offsets, data = label_kernel.text_ids(parts, len(t), threads)
+    uniq = pa.LargeStringArray.from_buffers(offsets.size - 1, pa.py_buffer(offsets),
+                                            pa.py_buffer(data))
+    return ti, hi, uniq
 
 
 def _dense_int_ids(t, h):

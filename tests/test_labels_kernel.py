@@ -1,0 +1,104 @@
+"""fastmst._kernels.labels.text_ids against two outside references.
+
+References: NumPy's ``np.unique(..., return_index=True)`` (distinct labels with the index of
+their first occurrence, reordered by that index: first-appearance numbering), and pyarrow's
+own ``dictionary_encode`` (whose dictionary is in first-appearance order) for the same rows.
+"""
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+pa = pytest.importorskip("pyarrow")
+
+from fastmst._kernels import labels as K  # noqa: E402
+from fastmst.io import labels as L  # noqa: E402
+
+
+def reference(values):
+    """(ids, labels) by first appearance, through np.unique (reference: NumPy)."""
+    arr = np.array(values, dtype=object)
+    uniq, first, inverse = np.unique(arr, return_index=True, return_inverse=True)
+    order = np.argsort(first, kind="stable")
+    rank = np.empty(order.size, dtype=np.int64)
+    rank[order] = np.arange(order.size)
+    return rank[inverse.ravel()], uniq[order]
+
+
+def chunked(values, cuts, large, sliced):
+    """``values`` as Arrow chunks split at ``cuts``; ``sliced`` makes each chunk a slice (offset
+    > 0) of a longer array, so the kernel must honour the chunk offset."""
+    typ = pa.large_string() if large else pa.string()
+    bounds = [0] + sorted(c % (len(values) + 1) for c in cuts) + [len(values)]
+    out = []
+    for lo, hi in zip(bounds[:-1], bounds[1:]):
+        part = values[lo:hi]
+        if sliced:
+            out.append(pa.array(["pad", "x" * 20] + part + ["tail"], type=typ)[2:2 + len(part)])
+        else:
+            out.append(pa.array(part, type=typ))
+    return out
+
+
+def label_arrays(offsets, data):
+    return pa.LargeStringArray.from_buffers(offsets.size - 1, pa.py_buffer(offsets),
+                                            pa.py_buffer(data)).to_pylist()
+
+
+# short (packed into one word), exactly 8/9 bytes, long, empty, unicode, embedded NUL
+label = st.one_of(st.sampled_from(["", "a", "b", "ab", "abcdefgh", "abcdefghi", "a\0", "\0",
+                                   "é", "ключ", "节点-1", "x" * 40, "x" * 41]),
+                  st.text(max_size=3), st.text(min_size=7, max_size=30))
+
+
+@settings(max_examples=150, deadline=None)
+@given(tail=st.lists(label, min_size=0, max_size=60), head=st.lists(label, min_size=0, max_size=60),
+       cuts=st.lists(st.integers(0, 200), max_size=4), large=st.booleans(), sliced=st.booleans(),
+       threads=st.sampled_from([1, 2, 3, 4]))
+def test_text_ids_match_numpy_first_appearance(tail, head, cuts, large, sliced, threads):
+    n = min(len(tail), len(head))
+    tail, head = tail[:n], head[:n]
+    ids, labels = reference(tail + head)
+    parts = chunked(tail, cuts, large, sliced) + chunked(head, cuts[::-1], not large, sliced)
+    ti, hi, offsets, data = K.text_ids(parts, n, threads)
+    assert ti.dtype == np.int32 and hi.dtype == np.int32
+    assert ti.tolist() == ids[:n].tolist()
+    assert hi.tolist() == ids[n:].tolist()
+    assert label_arrays(offsets, data) == list(labels)
+
+
+@pytest.mark.parametrize("n_labels", [1, 1000, 70_000])
+def test_text_ids_same_for_every_thread_count_and_match_arrow(n_labels):
+    """Many rows across several internal pieces (more than 65536 rows) and table growth;
+    reference: pyarrow dictionary_encode (first-appearance dictionary)."""
+    rng = np.random.default_rng(n_labels)
+    names = np.array([f"n{i}" if i % 3 else f"label-{i:09d}-long" for i in range(n_labels)])
+    rows = names[rng.integers(0, n_labels, 150_000)].tolist()
+    col = pa.chunked_array([pa.array(rows[:70_000]), pa.array(rows[70_000:])])
+    enc = col.combine_chunks().dictionary_encode()
+    want = enc.indices.to_numpy()
+    results = [K.text_ids(col.chunks + col.chunks, len(col), t) for t in (1, 2, 3, 8)]
+    for ti, hi, offsets, data in results:
+        assert np.array_equal(ti, want)
+        assert np.array_equal(hi, want)
+        assert label_arrays(offsets, data) == enc.dictionary.to_pylist()
+
+
+def test_encode_label_columns_uses_first_appearance_order():
+    tail = pa.chunked_array([pa.array(["b", "a"]), pa.array(["b"])])
+    head = pa.chunked_array([pa.array(["c", "a", "d"], type=pa.large_string())])
+    t, h, labels = L.encode_label_columns(tail, head, "<t>", lambda i: f"row {i}",
+                                          ("tail", "head"))
+    assert t.tolist() == [0, 1, 0] and h.tolist() == [2, 1, 3]
+    assert labels.tolist() == ["b", "a", "c", "d"]
+
+
+def test_text_ids_refuses_nulls_and_other_types():
+    with pytest.raises(ValueError, match="missing labels"):
+        K.text_ids([pa.array(["a", None])], 1, 1)
+    with pytest.raises(TypeError, match="string or large_string"):
+        K.text_ids([pa.array([1, 2])], 1, 1)
+    with pytest.raises(ValueError, match="n_tail"):
+        K.text_ids([pa.array(["a"])], 2, 1)
+    with pytest.raises(ValueError, match="threads"):
+        K.text_ids([pa.array(["a"])], 1, 0)
