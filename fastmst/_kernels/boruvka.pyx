@@ -12,7 +12,6 @@ Weights are compared through the tie rule's keys of their bits (``tie_rule.rank_
 kernel is compiled for two id widths and two key widths, whatever the weight dtype.
 """
 import numpy as np
-cimport numpy as cnp
 from cython.parallel cimport parallel, prange, threadid
 from libc.stdint cimport int32_t, int64_t, uint32_t, uint64_t
 from libc.stdlib cimport free, malloc
@@ -24,7 +23,6 @@ from fastmst._kernels.dsu cimport dsu_find, label_first_appearance
 from fastmst._kernels.tie_rule cimport rank_key, ukey_t
 from fastmst._kernels.tie_rule import weight_bits
 
-cnp.import_array()
 
 #: Edges per thread below which fewer threads are used (each round enters several parallel
 #: regions; on a busy machine each costs a wake-up).  Tests lower it.
@@ -233,7 +231,7 @@ cdef Py_ssize_t _boruvka(const index_t* tail, const index_t* head, const ukey_t*
     return count
 
 
-def boruvka(const index_t[::1] tail, const index_t[::1] head, cnp.ndarray weight not None,
+def boruvka(const index_t[::1] tail, const index_t[::1] head, weight,
             Py_ssize_t n_nodes, bint maximize=False, int threads=1):
     """Minimum (or maximum) spanning forest by parallel Borůvka rounds.
 

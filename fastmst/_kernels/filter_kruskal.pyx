@@ -29,7 +29,6 @@ The union-find is the rank-in-parent-word layout of ``dsu.pxd`` (``rp_*``): a fi
 after it read nothing but the parent array.
 """
 import numpy as np
-cimport numpy as cnp
 from cython.parallel cimport parallel, prange, threadid
 from libc.stdint cimport int32_t, int64_t, uint8_t, uint32_t, uint64_t
 
@@ -43,7 +42,6 @@ from fastmst._kernels import radix
 from fastmst._kernels.radix_kruskal import kruskal_radix
 from fastmst._kernels.tie_rule import key_range, weight_bits, weights_from_keys
 
-cnp.import_array()
 
 
 ctypedef struct Rate:
@@ -597,7 +595,7 @@ cdef Py_ssize_t _fk_stream(_Bits bits, const index_t[::1] tail,
     return count
 
 
-def filter_kruskal(const index_t[::1] tail, const index_t[::1] head, cnp.ndarray weight not None,
+def filter_kruskal(const index_t[::1] tail, const index_t[::1] head, weight,
                    Py_ssize_t n_nodes, bint maximize=False, Py_ssize_t target=-1,
                    int threads=1, Py_ssize_t threshold=0, Py_ssize_t chunk=0):
     """Filter-Kruskal minimum spanning forest over streamed chunks (see the module notes).

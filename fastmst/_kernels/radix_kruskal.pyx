@@ -7,7 +7,6 @@ scanned, so buckets after the last edge the forest needs are never sorted.  With
 ``presorted=True`` the weights are already in rule order and the positions are scanned directly.
 """
 import numpy as np
-cimport numpy as cnp
 from cython.parallel cimport parallel, threadid
 from libc.stdint cimport int32_t, int64_t, uint8_t, uint32_t
 
@@ -17,7 +16,6 @@ from fastmst._kernels.radix cimport Rec, prefetch, sort_bucket
 from fastmst._kernels import radix
 from fastmst._kernels.tie_rule import key_range, weight_bits
 
-cnp.import_array()
 
 #: Below this many edges the sort/scan pipeline of kruskal_radix runs on one thread (too short
 #: to pay for waking a second one).  Tests lower it to run the parallel code on small graphs.
@@ -138,7 +136,7 @@ cdef Py_ssize_t _kruskal_buckets(Rec* a, const Py_ssize_t* bounds, int shift,
     return shared_count[0]
 
 
-def kruskal_radix(const index_t[::1] tail, const index_t[::1] head, cnp.ndarray weight not None,
+def kruskal_radix(const index_t[::1] tail, const index_t[::1] head, weight,
                   Py_ssize_t n_nodes, bint maximize=False, Py_ssize_t target=-1,
                   int threads=1, bint presorted=False):
     """Cache-aware Kruskal: radix split, lazy bucket sort, prefetching scan, early exit.

@@ -30,12 +30,10 @@ its inverse, ``key_range``, the rule order (``edge_order``, ``sort_positions``) 
 every kernel that reads weights as bits.
 """
 import numpy as np
-cimport numpy as cnp
 from libc.stdint cimport uint32_t, uint64_t
 
 from fastmst._kernels import radix
 
-cnp.import_array()
 
 #: The weight dtypes the kernels read in place (native byte order).
 KERNEL_DTYPES = frozenset(np.dtype(t) for t in (np.float32, np.float64, np.int32, np.int64,
@@ -199,7 +197,7 @@ cdef Py_ssize_t _first_unsorted(const ukey_t[::1] bits, int kind, bint descendin
     return -1
 
 
-def first_unsorted(cnp.ndarray weight not None, bint descending=False):
+def first_unsorted(weight, bint descending=False):
     """Position of the first weight that breaks the rule order, or -1 when it holds.
 
     Weights in position order are rule-sorted exactly when their keys are non-decreasing:
