@@ -12,6 +12,7 @@ runtime loaded (threadpoolctl documentation, "threadpool_limits").
 import os
 import subprocess
 import sys
+import tempfile
 
 import numpy as np
 import pytest
@@ -27,7 +28,8 @@ OPENMP = radix.openmp_max_threads() > 0
 
 def _fresh(code, **env):
     """Run ``code`` in a fresh interpreter with ``env`` added to (or, for None values, removed
-    from) the environment; return its stdout and stderr."""
+    from) the environment, outside the checkout (so that the package under test is imported,
+    not an unbuilt source tree); return its stdout and stderr."""
     e = dict(os.environ)
     for k, v in env.items():
         if v is None:
@@ -35,7 +37,7 @@ def _fresh(code, **env):
         else:
             e[k] = v
     run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, env=e,
-                         timeout=120)
+                         timeout=120, cwd=tempfile.gettempdir())
     assert run.returncode == 0, run.stderr[-2000:]
     return run.stdout, run.stderr
 

@@ -50,6 +50,11 @@ if _WAIT == "passive":
     os.environ["OMP_WAIT_POLICY"] = "PASSIVE"
 try:
     from fastmst._kernels import radix
+except ImportError as exc:
+    raise ImportError(
+        f"fastmst: the compiled kernels are missing beside {os.path.dirname(__file__)} ({exc}); "
+        f"this is a source checkout that was not built: run `pip install .` (and import fastmst "
+        f"from outside the checkout) or `python setup.py build_ext --inplace`.") from exc
 finally:
     if _WAIT == "passive":
         del os.environ["OMP_WAIT_POLICY"]
