@@ -6,6 +6,7 @@ toolkit functions that take a SpanningForest <- geometry, io, dask <- plot, demo
 """
 import ast
 import subprocess
+import tempfile
 import sys
 from pathlib import Path
 
@@ -136,5 +137,5 @@ def test_every_module_imports_in_a_fresh_interpreter(order):
     elif order == "leaves-first":
         mods = sorted(mods, key=lambda m: (-m.count("."), m))
     run = subprocess.run([sys.executable, "-c", _FRESH, order, *mods], capture_output=True,
-                         text=True)
+                         text=True, cwd=tempfile.gettempdir())
     assert run.returncode == 0, f"order {order}: {run.stderr[-2000:]}"
