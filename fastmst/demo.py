@@ -128,12 +128,9 @@ def run(out_dir="fastmst-demo-output", *, n_sites=30_000, seed=2024, reporter=No
             rel = np.where(forest.weights > 0, margin / forest.weights, np.inf)
         finite = np.flatnonzero(np.isfinite(rel))
         risky = finite[np.lexsort((pos[finite], rel[finite]))][:10]
-    table = io.forest_table(forest, edges)
-    table = table.append_column("surface", pa.array(f_surface))
-    table = table.append_column("length_m", pa.array(f_length))
-    props = {"surface": f_surface, "length_m": f_length}
+    table = io.forest_table(forest, edges)   # carries surface and length_m from the input
     table = table.append_column("margin", pa.array(margin))
-    props["margin"] = margin
+    props = {"surface": f_surface, "length_m": f_length, "margin": margin}
     files = []
     with phase("writing"):
         io.write_table(out / "backbone.csv", table)

@@ -45,6 +45,17 @@ def add_input_options(p, forest_file=False):
                         "with --nodes computes lengths from the coordinates")
     g.add_argument("--format", choices=io.FORMATS,
                    help="input format (default: from the file suffix)")
+    g.add_argument("--link-id", metavar="COLUMN",
+                   help="column naming each link by a unique id; lists of links (--required, "
+                        "--excluded, a forest to check) may then name links by it")
+    g.add_argument("--keep-columns", metavar="LIST", default="all",
+                   help="input columns carried to every output under their own names: 'all' "
+                        "(default), 'none', or names separated by commas")
+    g.add_argument("--delimiter", metavar="CHAR",
+                   help="CSV/TSV field separator when it is not the suffix's own, e.g. ';' "
+                        "(write '\\t' for a tab)")
+    g.add_argument("--decimal-comma", action="store_true",
+                   help="CSV/TSV numbers use a decimal comma (12,5)")
     g.add_argument("--nodes", metavar="FILE",
                    help="node table (CSV/Parquet): id, lon/lat or x/y columns; needed for "
                         "lengths, GeoJSON and --plot")
@@ -182,12 +193,48 @@ def load_edges(args, rep) -> io.EdgeList:
                                   geographic=args.geographic, ids=args.ids)
     elif args.x or args.y or args.node_id:
         raise UsageError("--node-id/--x/--y describe the node table; give it with --nodes FILE.")
+    delimiter = args.delimiter
+    if delimiter is not None and delimiter in ("\\t", "tab"):
+        delimiter = "\t"
     with rep.phase("reading edges") as update:
         edges = io.read_edges(args.edges, tail=args.tail, head=args.head, weight=args.weight,
                               format=args.format, nodes=nodes,
                               progress=update if rep.enabled else None, ids=args.ids,
-                              declared_nodes=args.declared_nodes)
+                              declared_nodes=args.declared_nodes,
+                              keep_columns=keep_columns(args.keep_columns),
+                              link_id=args.link_id, delimiter=delimiter,
+                              decimal_comma=args.decimal_comma)
     return edges
+
+
+def keep_columns(text: str):
+    """--keep-columns: "all", "none" or names separated by commas."""
+    if text == "all":
+        return "all"
+    if text == "none":
+        return ()
+    names = [n.strip() for n in text.split(",")]
+    if not all(names):
+        raise UsageError(f"--keep-columns {text!r}: expected 'all', 'none' or column names "
+                         f"separated by commas (route_type,length_m).")
+    return tuple(names)
+
+
+def guessed_note(edges) -> str | None:
+    """A note naming the columns the default rule took, and how to choose others; None when
+    every column was given."""
+    if not edges.guessed:
+        return None
+    roles = dict(zip(("tail", "head", "weight"), edges.columns))
+    taken = ", ".join(f"{r} {roles[r]!r}" for r in edges.guessed)
+    note = f"took {taken} by default; choose with " + \
+        "/".join(f"--{r}" for r in edges.guessed) + " COLUMN"
+    if "tail" in edges.guessed and edges.n_edges > 2 and \
+            np.unique(edges.tail).size == edges.n_edges:
+        note += (f"; column {roles['tail']!r} holds a different value on every row, as an id "
+                 f"column does: if it names links, pass --link-id {roles['tail']} and the "
+                 f"endpoint columns with --tail/--head")
+    return note
 
 
 # --- printing -------------------------------------------------------------------------------------

@@ -68,7 +68,11 @@ def run(args) -> int:
     if args.json:
         print(json.dumps(summary, indent=2))
     elif not args.quiet:
-        rows = [("nodes", fmt_num(edges.n_nodes)), ("edges", fmt_num(edges.n_edges)),
+        rows = []
+        note = common.guessed_note(edges)
+        if note:
+            rows.append(("columns", note))
+        rows += [("nodes", fmt_num(edges.n_nodes)), ("edges", fmt_num(edges.n_edges)),
                 ("components", fmt_num(forest.n_components)),
                 ("forest edges", fmt_num(len(forest))),
                 ("total weight", fmt_num(forest.weight))]

@@ -10,7 +10,7 @@ import numpy as np
 
 from fastmst import validation
 from fastmst.io.checks import FileFormatError, table_row
-from fastmst.io.columns import choose_edge_columns
+from fastmst.io.columns import carried_columns, choose_edge_columns, guessed_roles
 from fastmst.io.edgelist import EdgeList, edges_from_table
 from fastmst.io.labels import all_labels, check_ids, id_dtype, label_array
 from fastmst.io.nodes import NodeTable, read_nodes
@@ -18,11 +18,12 @@ from fastmst.io.tables import is_pandas, pandas_to_arrow
 
 
 def from_table(table, *, tail=None, head=None, weight=None, nodes=None,
-               ids="text") -> EdgeList:
+               ids="text", keep_columns="all", link_id=None) -> EdgeList:
     """An EdgeList from a pandas DataFrame or pyarrow Table (one row per edge).
 
     Columns are chosen as in :func:`fastmst.io.read_edges`, and labels follow its rule
-    (``ids``: the columns' own types, or "integer" to read text ids as integers).
+    (``ids``: the columns' own types, or "integer" to read text ids as integers);
+    ``keep_columns`` and ``link_id`` as there (the other columns keep their own types).
     """
     import pyarrow as pa
     if isinstance(table, pa.Table):
@@ -36,9 +37,15 @@ def from_table(table, *, tail=None, head=None, weight=None, nodes=None,
     if nodes is not None and not isinstance(nodes, NodeTable):
         nodes = read_nodes(nodes, ids=ids)
     cols = choose_edge_columns(t.column_names, tail, head, weight, source, nodes is not None)
+    carry = carried_columns(t.column_names, cols, keep_columns, link_id, source, "from_table")
     if t.num_rows == 0:
         raise FileFormatError(f"{source}: the table has no rows; expected one row per edge.")
-    return edges_from_table(t, cols, source, table_row, nodes, ids)
+    if link_id is not None:   # link ids are names: compared as text, as in files
+        import pyarrow as pa
+        i = t.column_names.index(link_id)
+        t = t.set_column(i, link_id, t.column(i).cast(pa.string()))
+    return edges_from_table(t, cols, source, table_row, nodes, ids, carry, link_id,
+                            guessed_roles(tail, head, weight))
 
 
 def from_scipy(matrix, *, symmetric=None) -> EdgeList:
@@ -167,10 +174,14 @@ def to_networkx(forest, edges: EdgeList | None = None):
     return g
 
 
-def forest_table(forest, edges: EdgeList):
-    """The forest as a pyarrow Table: tail, head (user labels), weight, position (input row).
+def forest_table(forest, edges: EdgeList, columns=None):
+    """The forest as a pyarrow Table, one row per forest edge in the forest's order: tail,
+    head (user labels), weight, position (input row), then the input's carried columns.
 
-    The columns are named as in the input (``edges.columns``).
+    The first three are named as in the input (``edges.columns``); the carried columns
+    (``edges.attributes``: a link id, a route type, a length, ...) keep their names and
+    types, so every output format carries the same columns under the same names.
+    ``columns`` chooses among the carried columns (None: all; ``[]``: none).
     """
     import pyarrow as pa
     tn, hn, wn = edges.columns
@@ -180,7 +191,33 @@ def forest_table(forest, edges: EdgeList):
             hn: label_array(edges.label(forest.head)),
             wn: pa.array(np.asarray(forest.weights)),
             "position": pa.array(np.asarray(forest.edges, dtype=np.int64))}
+    attrs = edges.attributes if columns is None else \
+        chosen_attributes(edges, columns, "forest_table")
+    if attrs is not None and attrs.num_columns:
+        if attrs.num_rows != edges.n_edges:
+            raise ValueError(f"forest_table: {edges.source} carries {attrs.num_rows} rows of "
+                             f"columns for {edges.n_edges} edges; the EdgeList was modified.")
+        taken = attrs.take(pa.array(np.asarray(forest.edges, dtype=np.int64)))
+        for name in taken.column_names:
+            if name not in cols:
+                cols[name] = taken.column(name)
     return pa.table(cols)
+
+
+def chosen_attributes(edges: EdgeList, columns, func: str):
+    """The carried columns of ``edges`` named in ``columns`` (a list of names), as a table or
+    None; a name that is not carried is a ValueError listing those that are."""
+    if isinstance(columns, str) or not hasattr(columns, "__iter__"):
+        raise TypeError(f"{func}: columns must be a list of column names (or None for all), "
+                        f"received {type(columns).__name__}.")
+    names = list(columns)
+    have = [] if edges.attributes is None else edges.attributes.column_names
+    for c in names:
+        if c not in have:
+            raise ValueError(f"{func}: column {c!r} is not carried by {edges.source}; the "
+                             f"carried columns are {', '.join(map(repr, have)) or 'none'} "
+                             f"(read_edges(keep_columns=...) chooses them).")
+    return edges.attributes.select(names) if names else None
 
 
 def node_table(edges: EdgeList, **columns):

@@ -10,6 +10,10 @@ import numpy as np
 
 from fastmst.io.checks import FileFormatError, check_column, check_no_missing, check_no_nan
 
+#: Cells read as missing in numeric columns of text files ("nan" is not among them: it reads
+#: as NaN and gets its own error).
+NULLS = ["", "NA", "N/A", "n/a", "NULL", "null", "None", "#N/A"]
+
 
 def plain(col):
     """Dictionary-encoded columns (pandas categoricals) decoded to their values."""
@@ -99,3 +103,69 @@ def choose_edge_columns(names, tail, head, weight, source, geometry):
     if not (geometry and weight == "length" and "length" not in names):
         check_column(weight, names, source, "weight", "read_edges")
     return tail, head, weight
+
+
+def carried_columns(names, cols, keep, link_id, source, func="read_edges") -> list:
+    """The input columns carried to every output besides (tail, head, weight) ``cols``.
+
+    ``keep`` is "all" (every other column) or a sequence of names (an empty one carries none);
+    ``link_id`` names the column that names each link, always carried.  A column named
+    ``position`` is never carried: outputs use that name for the edge's row in the input.
+    """
+    if isinstance(keep, str):
+        if keep != "all":
+            raise ValueError(f"{func}: keep_columns must be 'all' or a list of column names, "
+                             f"received {keep!r}. Pass ['{keep}'] to keep that one column.")
+        chosen = [n for n in names if n not in cols]
+    else:
+        try:
+            chosen = list(keep)
+        except TypeError:
+            raise TypeError(f"{func}: keep_columns must be 'all' or a list of column names, "
+                            f"received {type(keep).__name__}.") from None
+        for c in chosen:
+            check_column(c, names, source, "keep_columns", func)
+    if link_id is not None:
+        check_column(link_id, names, source, "link_id", func)
+        if link_id in cols:
+            raise FileFormatError(f"{source}: the link-id column {link_id!r} is also an "
+                                  f"endpoint or weight column; name links by another column "
+                                  f"(--link-id) or choose --tail/--head/--weight.")
+        chosen = [link_id] + [c for c in chosen if c != link_id]
+    return [c for c in dict.fromkeys(chosen) if c not in cols and c != "position"]
+
+
+# a number as written in a file: no leading zeros (007 stays text), optional fraction/exponent
+_NUMBER = r"^[-+]?(0|[1-9][0-9]*)([.,][0-9]+)?([eE][-+]?[0-9]+)?$"
+
+
+def typed_text_column(col, decimal_comma=False):
+    """A text column of a CSV/TSV file as numbers when every cell is a number as written (no
+    leading zeros, so ``007`` keeps its text), else unchanged.  Empty cells and the null
+    markers stay missing in numbers.  Integers become int64, others float64; with
+    ``decimal_comma`` a ``,`` is the decimal separator (``12,5``)."""
+    import pyarrow as pa
+    import pyarrow.compute as pc
+    col = plain(col)
+    if not (pa.types.is_string(col.type) or pa.types.is_large_string(col.type)):
+        return col
+    missing = pc.is_in(col, value_set=pa.array(NULLS))
+    present = pc.filter(col, pc.invert(missing))
+    if len(present) == 0:
+        return col
+    pattern = _NUMBER if decimal_comma else _NUMBER.replace("[.,]", "[.]")
+    if not pc.all(pc.match_substring_regex(present, pattern)).as_py():
+        return col
+    values = pc.if_else(missing, pa.scalar(None, col.type), col)
+    if decimal_comma:
+        values = pc.replace_substring(values, ",", ".")
+    integer = pc.all(pc.match_substring_regex(present, r"^[-+]?[0-9]+$")).as_py()
+    try:
+        return pc.cast(values, pa.int64() if integer else pa.float64())
+    except (pa.ArrowInvalid, pa.ArrowNotImplementedError):   # e.g. beyond int64
+        return col
+
+
+def guessed_roles(tail, head, weight) -> tuple:
+    """Which of the column roles were not given (so taken by the default rule)."""
+    return tuple(r for r, v in (("tail", tail), ("head", head), ("weight", weight)) if v is None)

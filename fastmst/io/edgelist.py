@@ -10,6 +10,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from fastmst.geometry.geodesy import edge_lengths
+from fastmst.io.checks import FileFormatError
 from fastmst.io.columns import numeric_column
 from fastmst.io.labels import encode_label_columns
 from fastmst.io.nodes import NodeTable, node_index
@@ -37,6 +38,15 @@ class EdgeList:
         Where the edges came from (file name or a description), for messages.
     columns : tuple of str
         Names for the tail, head and weight columns of output files (the input's names).
+    attributes : pyarrow.Table or None
+        The input's other columns, one row per edge, carried to every output under their own
+        names (``keep_columns`` of the readers chooses them); None when there are none.
+    link_id : str or None
+        The column of ``attributes`` that names each link (``link_id=`` of the readers, CLI
+        ``--link-id``), so that lists of links may name them by id.
+    guessed : tuple of str
+        Which of "tail", "head", "weight" were not given and were taken by the default rule
+        (the first two columns; ``weight``, else the third), for messages.
 
     Examples
     --------
@@ -57,6 +67,9 @@ class EdgeList:
     geographic: bool = False
     source: str = "<edges>"
     columns: tuple = ("tail", "head", "weight")
+    attributes: object = None
+    link_id: str | None = None
+    guessed: tuple = ()
 
     @property
     def n_edges(self) -> int:
@@ -77,13 +90,32 @@ class EdgeList:
 
 
 def edges_from_table(table, cols, source, where, nodes: NodeTable | None,
-                     ids: str = "text") -> EdgeList:
+                     ids: str = "text", carry=(), link_id=None, guessed=()) -> EdgeList:
     """An EdgeList from the (tail, head, weight) columns ``cols`` of a pyarrow table.
+
+    ``carry`` names the table's other columns kept as ``attributes`` (``link_id`` among them);
+    ``guessed`` is recorded as it is.
 
     Without a node table, labels are encoded by the label rule of :mod:`fastmst.io.labels`
     (``ids``: "text" or "integer"); with one, endpoints are looked up in it.  ``weight == "length"`` with a node table and no
     such column computes lengths from the coordinates (great-circle metres for lon/lat).
     """
+    try:
+        return _edges_from_table(table, cols, source, where, nodes, ids, carry, link_id, guessed)
+    except FileFormatError as exc:
+        if not guessed:
+            raise
+        roles = dict(zip(("tail", "head", "weight"), cols))
+        taken = ", ".join(f"{r} {roles[r]!r}" for r in guessed)
+        were = "columns" if len(guessed) > 1 else "column"
+        raise FileFormatError(f"{exc} The {were} {taken} {'were' if len(guessed) > 1 else 'was'} "
+                              f"taken by default (the first two "
+                              f"columns; 'weight', else the third); choose others with "
+                              f"{'/'.join(r + '=' for r in guessed)} (CLI "
+                              f"{'/'.join('--' + r for r in guessed)} COLUMN).") from None
+
+
+def _edges_from_table(table, cols, source, where, nodes, ids, carry, link_id, guessed):
     tname, hname, wname = cols
     tcol, hcol = table.column(tname), table.column(hname)
     geometry = nodes is not None and wname == "length" and "length" not in table.column_names
@@ -100,4 +132,26 @@ def edges_from_table(table, cols, source, where, nodes: NodeTable | None,
         w = edge_lengths(coords, t, h, metric="great-circle" if geo else "euclidean")
     else:
         w = numeric_column(table.column(wname), wname, source, where)
-    return EdgeList(t, h, w, n, labels, coords, geo, source, (tname, hname, wname))
+    attributes = table.select(list(carry)) if len(carry) else None
+    if link_id is not None:
+        check_unique_link_ids(attributes.column(link_id), link_id, source, where)
+    return EdgeList(t, h, w, n, labels, coords, geo, source, (tname, hname, wname), attributes,
+                    link_id, tuple(guessed))
+
+
+def check_unique_link_ids(col, name, source, where) -> None:
+    """Every link id must name one link: no missing and no repeated ids."""
+    import pyarrow.compute as pc
+    if col.null_count:
+        i = int(np.flatnonzero(col.is_null().to_numpy(zero_copy_only=False))[0])
+        raise FileFormatError(f"{source}: {where(i)}: the link-id column {name!r} is empty; "
+                              f"every link needs an id to be named by it.")
+    counts = pc.value_counts(col)
+    dup = pc.filter(counts, pc.greater(counts.field("counts"), 1))
+    if len(dup):
+        v = dup[0]["values"].as_py()
+        rows = np.flatnonzero(pc.equal(col, dup[0]["values"]).to_numpy(zero_copy_only=False))
+        raise FileFormatError(f"{source}: link id {v!r} in column {name!r} names "
+                              f"{len(rows)} links ({where(int(rows[0]))} and "
+                              f"{where(int(rows[1]))}); a link id must name exactly one link. "
+                              f"Make the ids unique or name links by another column.")

@@ -7,26 +7,30 @@ untouched.
 """
 from __future__ import annotations
 
+import dataclasses
+
 import numpy as np
 
 from fastmst import validation
 from fastmst.io import registry
-from fastmst.io.adapters import forest_table
+from fastmst.io.adapters import chosen_attributes, forest_table, from_table
 from fastmst.io.atomic import atomic_write
 from fastmst.io.checks import existing_file, shown
 from fastmst.io.edgelist import EdgeList
 from fastmst.io.labels import check_ids
 from fastmst.io.nodes import NodeTable, read_nodes
+from fastmst.io.tables import is_pandas
 
 
 def read_edges(path, *, tail=None, head=None, weight=None, format=None, nodes=None,
-               progress=None, ids="text", declared_nodes=None) -> EdgeList:
+               progress=None, ids="text", declared_nodes=None, keep_columns="all",
+               link_id=None, delimiter=None, decimal_comma=False) -> EdgeList:
     """Read an edge list from a file.
 
     Parameters
     ----------
-    path : str or Path
-        The file.  The format comes from the suffix unless ``format`` is given:
+    path : str, Path, pandas.DataFrame or pyarrow.Table
+        The file (a table in memory is read by :func:`fastmst.io.from_table`).  The format comes from the suffix unless ``format`` is given:
         ``.csv``/``.txt`` (comma), ``.tsv``/``.tab`` (tab), each optionally compressed
         (``.gz``, ``.zst``); ``.parquet``; ``.npz`` (arrays ``tail``, ``head``, ``weight``);
         ``.mtx`` (Matrix Market, through ``scipy.io``; every stored entry is an edge, explicit
@@ -58,6 +62,19 @@ def read_edges(path, *, tail=None, head=None, weight=None, format=None, nodes=No
         For formats whose header declares the node count (.gr, .mtx): a header may declare at
         most ``2 * edges + 2**20`` nodes, since every declared node costs memory; a larger
         count is refused unless confirmed by passing it here (CLI ``--declared-nodes N``).
+    keep_columns : "all" or list of str, default "all"
+        The input's other columns carried to every output under their own names (CSV/TSV,
+        Parquet and tables; CLI ``--keep-columns``): "all", or the names to keep (``[]`` for
+        none).  In CSV/TSV they are read as text, then as numbers where every cell is a number
+        as written (``007`` keeps its text).  A column named ``position`` is not carried (the
+        outputs' own column of that name is the edge's row in the input).
+    link_id : str, optional
+        A column naming each link by a unique id (CLI ``--link-id``): carried as text, and
+        lists of required or excluded links may name links by it (:func:`read_links`).
+    delimiter : str, optional
+        CSV/TSV field separator when it is not the format's own (``";"``; CLI ``--delimiter``).
+    decimal_comma : bool, default False
+        CSV/TSV numbers written with a decimal comma (``12,5``; CLI ``--decimal-comma``).
 
     Returns
     -------
@@ -78,6 +95,14 @@ def read_edges(path, *, tail=None, head=None, weight=None, format=None, nodes=No
     (6 371 008.8 m); they approximate ellipsoidal distances to within about 0.5 %.
     """
     func = "read_edges"
+    if is_pandas(path) or _is_arrow_table(path):   # a table in memory: from_table reads it
+        if format is not None or progress is not None or declared_nodes is not None or \
+                delimiter is not None or decimal_comma:
+            raise ValueError("read_edges: format, progress, declared_nodes, delimiter and "
+                             "decimal_comma apply to files; a table in memory takes the column "
+                             "options only (fastmst.io.from_table). Drop those options.")
+        return from_table(path, tail=tail, head=head, weight=weight, nodes=nodes, ids=ids,
+                          keep_columns=keep_columns, link_id=link_id)
     if progress is not None and not callable(progress):
         raise TypeError(f"{func}: progress must be a function progress(done_bytes, total_bytes) "
                         f"or None, received {type(progress).__name__}.")
@@ -97,8 +122,27 @@ def read_edges(path, *, tail=None, head=None, weight=None, format=None, nodes=No
     if nodes is not None and not isinstance(nodes, NodeTable):
         nodes = read_nodes(nodes, ids=ids)
     fmt = registry.get(name)
-    request = registry.ReadRequest(tail, head, weight, nodes, progress, ids, declared_nodes)
+    decimal_comma = validation.check_bool(decimal_comma, "decimal_comma", func)
+    if delimiter is not None:
+        if not isinstance(delimiter, str):
+            raise TypeError(f"{func}: delimiter must be one character such as ';', received "
+                            f"{type(delimiter).__name__} {shown(delimiter)}.")
+        if len(delimiter) != 1 or delimiter in "\r\n\"":
+            raise ValueError(f"{func}: delimiter must be one character other than a quote or a "
+                             f"line break, received {delimiter!r}; for tabs pass '\\t'.")
+        if not registry.get(name).options.get("delimiter"):
+            raise ValueError(f"{func}: delimiter={delimiter!r} applies to CSV/TSV files; "
+                             f"{str(p)!r} is {name}. Drop the option.")
+    if link_id is not None and not isinstance(link_id, str):
+        raise TypeError(f"{func}: link_id must be a column name, received "
+                        f"{type(link_id).__name__} {shown(link_id)}.")
+    request = registry.ReadRequest(tail, head, weight, nodes, progress, ids, declared_nodes,
+                                   keep_columns, link_id, delimiter, decimal_comma)
     return fmt.read_edges(p, compression, request, **fmt.options)
+
+
+def _is_arrow_table(obj) -> bool:
+    return type(obj).__module__.startswith("pyarrow") and hasattr(obj, "column_names")
 
 
 def write_table(path, table, *, format=None, compression=None, spreadsheet_safe=False):
@@ -144,12 +188,15 @@ def _formulas_neutralised(table):
 
 
 def write_forest(path, forest, edges: EdgeList | None = None, *, format=None, coords=None,
-                 geographic=True, spreadsheet_safe=False):
+                 geographic=True, spreadsheet_safe=False, columns=None):
     """Write the forest to ``path`` in the format of its suffix, atomically.
 
-    CSV/TSV/Parquet/.npz get columns tail, head, weight (named as in the input, with the user's
-    labels) and ``position`` (the edge's row in the input, from 0).  ``.geojson`` gets RFC 7946
-    LineStrings and needs (longitude, latitude) node coordinates.
+    Every format gets the table of :func:`fastmst.io.forest_table`: columns tail, head, weight
+    (named as in the input, with the user's labels), ``position`` (the edge's row in the
+    input, from 0) and the input's carried columns (``edges.attributes``: link id, route type,
+    ...) under their own names.  ``columns`` chooses which carried columns are written (None:
+    all of them; ``[]``: none).  ``.geojson`` gets RFC 7946 LineStrings and needs (longitude,
+    latitude) node coordinates.
 
     ``edges`` is the EdgeList the forest was solved from.  Without one (for example the result
     of ``point_spanning_tree``), node ids are written as they are and ``coords`` of shape
@@ -170,6 +217,9 @@ def write_forest(path, forest, edges: EdgeList | None = None, *, format=None, co
         edges = EdgeList(forest.tail, forest.head, forest.weights, forest.n_nodes, coords=xy,
                          geographic=bool(geographic) and xy is not None, source="the forest")
     fmt = registry.get(name)
+    if columns is not None:   # the writers carry every column of edges.attributes
+        edges = dataclasses.replace(edges, attributes=chosen_attributes(edges, columns,
+                                                                        "write_forest"))
     if fmt.write_forest is not None:
         return fmt.write_forest(path, forest, edges)
     return write_table(path, forest_table(forest, edges), format=name,

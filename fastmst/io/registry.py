@@ -44,6 +44,10 @@ class ReadRequest:
     progress: Callable | None = None
     ids: str = "text"             # endpoint labels: "text" or "integer" (fastmst.io.labels)
     declared_nodes: int | None = None   # confirms a header's node count (.gr, .mtx)
+    keep_columns: object = "all"  # other columns carried to outputs: "all" or a tuple of names
+    link_id: str | None = None    # column naming each link (carried, read as text)
+    delimiter: str | None = None  # CSV/TSV: a field separator other than the format's own
+    decimal_comma: bool = False   # CSV/TSV: numbers written with a decimal comma (12,5)
 
 
 @dataclass(frozen=True)

@@ -24,11 +24,11 @@ import numpy as np
 
 from fastmst.io import registry
 from fastmst.io.checks import FileFormatError, csv_row
-from fastmst.io.columns import choose_edge_columns
+from fastmst.io.columns import (NULLS, carried_columns, choose_edge_columns, guessed_roles,
+                                typed_text_column)
 from fastmst.io.edgelist import edges_from_table
 
 CSV_BLOCK_SIZE = 1 << 22   # bytes per parsing block: fewer, larger chunks than pyarrow's 1 MiB
-NULLS = ["", "NA", "N/A", "n/a", "NULL", "null", "None", "#N/A"]
 
 
 def _header(path, delimiter, compression):
@@ -43,7 +43,7 @@ def _header(path, delimiter, compression):
     return next(_csv.reader([first], delimiter=delimiter))
 
 
-def _first_bad_line(path, delimiter, compression, numeric):
+def _first_bad_line(path, delimiter, compression, numeric, decimal_comma=False):
     """Error path only: find the first line whose field count or number is wrong."""
     import pyarrow as pa
     with pa.input_stream(str(path), compression=compression) as s:
@@ -61,29 +61,33 @@ def _first_bad_line(path, delimiter, compression, numeric):
             for name in numeric:
                 v = row[idx[name]]
                 try:
-                    float(v)
+                    float(v.replace(",", ".") if decimal_comma else v)
                 except ValueError:
                     return (f"{csv_row(lineno - 2)}: value {v!r} in column {name!r} is "
                             f"not a number; expected a number such as 12.5. Fix or drop that row")
     return None
 
 
-def read_csv(path, delimiter, compression, columns, numeric, progress=None, text=()):
+def read_csv(path, delimiter, compression, columns, numeric, progress=None, text=(),
+             decimal_comma=False):
     """(table, header, chosen columns) of a CSV/TSV file.
 
     ``columns(header)`` picks the columns to read; ``numeric(cols)`` names those that must be
     numbers (for the error scan); ``text`` names columns read as text, as written;
-    ``progress(done_bytes, total_bytes)`` is called while reading.
+    ``progress(done_bytes, total_bytes)`` is called while reading; ``decimal_comma`` reads
+    ``12,5`` as 12.5 in number columns.
     """
     try:
-        return _read_unchecked(path, delimiter, compression, columns, numeric, progress, text)
+        return _read_unchecked(path, delimiter, compression, columns, numeric, progress, text,
+                               decimal_comma)
     except OSError as exc:   # pyarrow reports corrupt or truncated compressed data this way
         how = (f"is it complete and really {compression}-compressed?" if compression else
                "is it a complete text file?")
         raise FileFormatError(f"{path}: could not be read ({exc}); {how}") from None
 
 
-def _read_unchecked(path, delimiter, compression, columns, numeric, progress=None, text=()):
+def _read_unchecked(path, delimiter, compression, columns, numeric, progress=None, text=(),
+                    decimal_comma=False):
     import pyarrow as pa
     import pyarrow.csv as pcsv
     header = _header(path, delimiter, compression)
@@ -93,7 +97,8 @@ def _read_unchecked(path, delimiter, compression, columns, numeric, progress=Non
     texts = text(header) if callable(text) else text
     convert = pcsv.ConvertOptions(include_columns=list(dict.fromkeys(cols)), null_values=NULLS,
                                   column_types={c: pa.string() for c in texts if c in cols},
-                                  strings_can_be_null=False)
+                                  strings_can_be_null=False,
+                                  decimal_point="," if decimal_comma else ".")
     try:
         if progress is not None:
             src = _CountingFile(path, progress)
@@ -109,7 +114,8 @@ def _read_unchecked(path, delimiter, compression, columns, numeric, progress=Non
             table = pcsv.read_csv(source, read_options=read, parse_options=parse,
                                   convert_options=convert)
     except pa.ArrowInvalid as exc:
-        where = _first_bad_line(path, delimiter, compression, [c for c in numeric(cols) if c])
+        where = _first_bad_line(path, delimiter, compression, [c for c in numeric(cols) if c],
+                                decimal_comma)
         msg = where or f"the file could not be parsed ({exc})"
         raise FileFormatError(f"{path}: {msg}.") from None
     if table.num_rows == 0:
@@ -146,27 +152,38 @@ class _CountingFile:
 
 
 def read_edges(path, compression, request, *, delimiter):
-    """An EdgeList from a CSV/TSV file (columns as chosen by ``request``)."""
+    """An EdgeList from a CSV/TSV file (columns as chosen by ``request``; the other columns
+    it keeps are read as text, then as numbers where every cell is one, see
+    :func:`fastmst.io.columns.typed_text_column`)."""
     chosen = {}
+    delimiter = request.delimiter or delimiter
 
     def columns(header):
         chosen["cols"] = choose_edge_columns(header, request.tail, request.head, request.weight,
                                              str(path), request.nodes is not None)
-        return [x for x in chosen["cols"] if x in header]
+        chosen["carry"] = carried_columns(header, chosen["cols"], request.keep_columns,
+                                          request.link_id, str(path))
+        return [x for x in chosen["cols"] if x in header] + chosen["carry"]
 
     def numeric(cols):
         return [chosen["cols"][2]] if chosen["cols"][2] in cols else []
 
     def labels(header):
-        return chosen["cols"][:2]
+        return list(chosen["cols"][:2]) + chosen["carry"]
 
     table, _, _ = read_csv(path, delimiter, compression, columns, numeric, request.progress,
-                           labels)
+                           labels, request.decimal_comma)
     if request.progress is not None:   # parsed; checks and labels follow: no total known
         size = os.path.getsize(path)
         request.progress(size, None)
+    for name in chosen["carry"]:
+        if name != request.link_id:
+            i = table.column_names.index(name)
+            table = table.set_column(i, name, typed_text_column(table.column(name),
+                                                                request.decimal_comma))
     return edges_from_table(table, chosen["cols"], str(path), csv_row, request.nodes,
-                            request.ids)
+                            request.ids, chosen["carry"], request.link_id,
+                            guessed_roles(request.tail, request.head, request.weight))
 
 
 def read_table(path, compression, text=(), *, delimiter):

@@ -1,9 +1,10 @@
-"""Parquet: columnar files read with pyarrow; only the chosen columns are read."""
+"""Parquet: columnar files read with pyarrow; only the chosen columns (the edge columns and
+those carried to outputs) are read, in their own types."""
 from __future__ import annotations
 
 from fastmst.io import registry
 from fastmst.io.checks import FileFormatError, table_row
-from fastmst.io.columns import choose_edge_columns
+from fastmst.io.columns import carried_columns, choose_edge_columns, guessed_roles
 from fastmst.io.edgelist import edges_from_table
 
 
@@ -25,10 +26,13 @@ def read_edges(path, compression, request):
         raise FileFormatError(f"{path}: not a readable Parquet file ({exc}).") from None
     cols = choose_edge_columns(names, request.tail, request.head, request.weight, str(path),
                                request.nodes is not None)
-    table = _read(path, [c for c in dict.fromkeys(cols) if c in names])
+    carry = carried_columns(names, cols, request.keep_columns, request.link_id, str(path))
+    table = _read(path, [c for c in dict.fromkeys(cols) if c in names] + carry)
     if table.num_rows == 0:
         raise FileFormatError(f"{path}: the file has no rows; expected one row per edge.")
-    return edges_from_table(table, cols, str(path), table_row, request.nodes, request.ids)
+    return edges_from_table(table, cols, str(path), table_row, request.nodes, request.ids,
+                            carry, request.link_id,
+                            guessed_roles(request.tail, request.head, request.weight))
 
 
 def read_table(path, compression, text=()):
