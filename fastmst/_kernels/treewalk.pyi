@@ -1,0 +1,11 @@
+"""Stubs for fastmst._kernels.treewalk (sides beyond tree edges; the light shallow tree walk)."""
+import numpy as np
+from numpy.typing import NDArray
+
+def sides_beyond(pnode: NDArray[np.int64], depth: NDArray[np.int64], root: int
+                 ) -> tuple[NDArray[np.int64], NDArray[np.int64], NDArray[np.int64]]: ...
+def light_shallow_walk(indptr: NDArray[np.int64], adj: NDArray[np.int64],
+                       adjw: NDArray[np.float64], adjpos: NDArray[np.int64], root: int,
+                       dist: NDArray[np.float64], spt_parent: NDArray[np.int64],
+                       spt_pos: NDArray[np.int64], alpha: float
+                       ) -> tuple[NDArray[np.int64], NDArray[np.int64], NDArray[np.float64]]: ...

@@ -1,0 +1,14 @@
+"""Designs beyond one tree: failure analysis, backup links, capacitated and shallow trees.
+
+=================  ==============================================================================
+``failures``       ``link_failures``: every forest link's cheapest replacement, or a bridge
+``checks``         argument checks shared by these functions
+=================  ==============================================================================
+
+Outputs are planning aids: resilience requirements (diverse routing, shared ducts and
+common-mode failures that a graph does not see), capacities and limits come from local codes and
+licensed engineers.
+"""
+from fastmst.design.failures import LinkFailures, link_failures
+
+__all__ = ["LinkFailures", "link_failures"]
