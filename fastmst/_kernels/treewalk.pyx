@@ -205,3 +205,72 @@ def light_shallow_walk(const int64_t[::1] indptr, const int64_t[::1] adj,
         _light_shallow_walk(indptr, adj, adjw, adjpos, root, dist, spt_parent, spt_pos, alpha,
                             dv, pv, qv, tv, sv, cv)
     return parent, ppos, d
+
+
+cdef void _tree_distances(const int64_t[::1] parent, const double[::1] pw, int64_t root,
+                          int64_t[::1] start, int64_t[::1] child, int64_t[::1] queue,
+                          double[::1] dist) noexcept nogil:
+    cdef int64_t n = parent.shape[0]
+    cdef int64_t i, v, k, head_q = 0, tail_q = 1
+    for i in range(n + 1):
+        start[i] = 0
+    for i in range(n):
+        dist[i] = INFINITY
+        if parent[i] >= 0:
+            start[parent[i] + 1] += 1
+    for i in range(n):
+        start[i + 1] += start[i]
+    for i in range(n):
+        if parent[i] >= 0:
+            child[start[parent[i]]] = i
+            start[parent[i]] += 1
+    for i in range(n, 0, -1):
+        start[i] = start[i - 1]
+    start[0] = 0
+    dist[root] = 0.0
+    queue[0] = root
+    while head_q < tail_q:
+        v = queue[head_q]
+        head_q += 1
+        for k in range(start[v], start[v + 1]):
+            i = child[k]
+            dist[i] = dist[v] + pw[i]
+            queue[tail_q] = i
+            tail_q += 1
+
+
+def tree_distances(const int64_t[::1] parent, const double[::1] pw, Py_ssize_t root):
+    """Distances from ``root`` down a tree given by parent pointers.
+
+    Parameters
+    ----------
+    parent : ndarray of shape (n,), dtype=int64
+        Parent of every node (-1 at the root and at nodes outside the tree); must form a tree
+        rooted at ``root`` (nodes whose parent chain does not reach ``root`` stay at inf).
+    pw : ndarray of shape (n,), dtype=float64
+        Length of the link to the parent.
+    root : int
+
+    Returns
+    -------
+    dist : ndarray of shape (n,), dtype=float64
+        Sum of link lengths from ``root`` (inf where not reached), added from the root down.
+    """
+    cdef int64_t n = parent.shape[0]
+    if pw.shape[0] != n:
+        raise ValueError("tree_distances: parent and pw must have one length.")
+    if root < 0 or root >= n:
+        raise ValueError(f"tree_distances: root must be a node in [0, {n}), received {root}.")
+    if n and (int(np.min(parent)) < -1 or int(np.max(parent)) >= n):
+        raise ValueError("tree_distances: parents must be -1 or nodes.")
+    if parent[root] != -1:
+        raise ValueError("tree_distances: the root's parent must be -1.")
+    start = np.empty(n + 1, dtype=np.int64)
+    child = np.empty(max(n, 1), dtype=np.int64)
+    queue = np.empty(max(n, 1), dtype=np.int64)
+    dist = np.empty(n, dtype=np.float64)
+    cdef int64_t[::1] st = start, ch = child, qu = queue
+    cdef double[::1] dv = dist
+    with nogil:
+        _tree_distances(parent, pw, root, st, ch, qu, dv)
+    return dist

@@ -2,6 +2,7 @@
 
 =================  ==============================================================================
 ``failures``       ``link_failures``: every forest link's cheapest replacement, or a bridge
+``shallow``        ``light_shallow_tree``: routes within alpha x shortest, weight near the MST
 ``checks``         argument checks shared by these functions
 =================  ==============================================================================
 
@@ -10,5 +11,6 @@ common-mode failures that a graph does not see), capacities and limits come from
 licensed engineers.
 """
 from fastmst.design.failures import LinkFailures, link_failures
+from fastmst.design.shallow import ShallowTree, light_shallow_tree
 
-__all__ = ["LinkFailures", "link_failures"]
+__all__ = ["LinkFailures", "link_failures", "ShallowTree", "light_shallow_tree"]

@@ -1,0 +1,179 @@
+"""shallow: trees from a central site whose routes stay within a factor of the shortest path
+and whose weight stays within a factor of the minimum spanning tree."""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from fastmst import validation
+from fastmst._kernels.treewalk import light_shallow_walk, tree_distances
+from fastmst.design.checks import check_alpha, check_node, check_nonnegative
+from fastmst.solve import minimum_spanning_forest
+
+_FUNC = "light_shallow_tree"
+
+
+@dataclass(frozen=True)
+class ShallowTree:
+    """A light approximate shortest-path tree from a root.
+
+    Attributes
+    ----------
+    position : ndarray of shape (K,), dtype=int64
+        The tree's links (input positions), ascending.
+    reason : ndarray of shape (K,), dtype=str
+        Why each link is there: ``"tree"`` (a minimum spanning tree link) or ``"shortcut"``
+        (a shortest-path link grafted to keep a site's route short).
+    parent : ndarray of shape (V,), dtype=int64
+        Every site's next node towards the root (-1 at the root and at unreached sites).
+    distance : ndarray of shape (V,), dtype=float64
+        Route length from the root along the tree (inf where unreached).
+    shortest : ndarray of shape (V,), dtype=float64
+        Shortest-path distance from the root over all usable links (inf where unreached).
+    root : int
+    alpha : float
+    weight : float
+        Total weight of the tree's links (float64 sum).
+    mst_weight : float
+        Total weight of the minimum spanning tree of the root's component (float64 sum).
+    unreached : int
+        Sites with no usable route to the root (left out).
+    """
+    position: np.ndarray
+    reason: np.ndarray
+    parent: np.ndarray
+    distance: np.ndarray
+    shortest: np.ndarray
+    root: int
+    alpha: float
+    weight: float
+    mst_weight: float
+    unreached: int
+
+    def __len__(self) -> int:
+        return int(self.position.shape[0])
+
+    @property
+    def stretch(self) -> np.ndarray:
+        """distance / shortest per site (1 where both are 0, nan where unreached)."""
+        with np.errstate(divide="ignore", invalid="ignore"):
+            s = self.distance / self.shortest
+        s[(self.distance == 0) & (self.shortest == 0)] = 1.0
+        s[~np.isfinite(self.shortest)] = np.nan
+        return s
+
+
+def best_links(g, usable: np.ndarray):
+    """The tie-rule-first usable link of every unordered node pair (no self-loops).
+
+    Returns (a, b, w, pos): a < b, float64 lengths, input positions; sorted by pair."""
+    keep = np.flatnonzero(usable & (g.ktail != g.khead))
+    a = np.minimum(g.ktail[keep], g.khead[keep]).astype(np.int64)
+    b = np.maximum(g.ktail[keep], g.khead[keep]).astype(np.int64)
+    w = g.weight[keep]
+    order = np.lexsort((keep, w, b, a))
+    a, b, keep = a[order], b[order], keep[order]
+    first = np.ones(a.shape[0], dtype=bool)
+    first[1:] = (a[1:] != a[:-1]) | (b[1:] != b[:-1])
+    return a[first], b[first], g.weight[keep[first]].astype(np.float64), keep[first]
+
+
+def shortest_paths(n: int, a, b, w, pos, root: int):
+    """Dijkstra from ``root`` (scipy.sparse.csgraph.dijkstra) over the pair links: distances,
+    parent node and parent link position of every node (-1 at the root and where unreached)."""
+    from scipy.sparse import csr_array
+    from scipy.sparse.csgraph import dijkstra
+    m = csr_array((np.concatenate([w, w]), (np.concatenate([a, b]), np.concatenate([b, a]))),
+                  shape=(n, n))
+    dist, pred = dijkstra(m, directed=True, indices=root, return_predecessors=True)
+    pred = pred.astype(np.int64)
+    pred[pred < 0] = -1
+    spos = np.full(n, -1, dtype=np.int64)
+    v = np.flatnonzero(pred >= 0)
+    lo, hi = np.minimum(v, pred[v]), np.maximum(v, pred[v])
+    key = a * n + b                     # a, b sorted by pair, so key is sorted
+    spos[v] = pos[np.searchsorted(key, lo * n + hi)]
+    return dist, pred, spos
+
+
+def light_shallow_tree(tail, head, weight, root, *, alpha=2.0, n_nodes=None, excluded=None):
+    """A light approximate shortest-path tree (Khuller, Raghavachari and Young 1995).
+
+    Every site's route to ``root`` along the tree is at most ``alpha`` times its shortest-path
+    distance, and the tree weighs at most ``1 + 2 / (alpha - 1)`` times the minimum spanning
+    tree of the root's component.
+
+    Parameters
+    ----------
+    tail, head, weight : array_like of shape (E,)
+        The candidate links; weights (lengths, costs) must be >= 0.
+    root : int
+        The central site.
+    alpha : float, default 2.0
+        The allowed stretch, > 1: near 1 gives a shortest-path tree, large values the minimum
+        spanning tree.
+    n_nodes : int, optional
+    excluded : array_like of int or boolean mask, optional
+        Links that may not be used.
+
+    Returns
+    -------
+    ShallowTree
+
+    Notes
+    -----
+    The minimum spanning tree is walked depth first, relaxing each tree link on the way down
+    and back up; where a site's current route exceeds ``alpha`` times its shortest-path
+    distance, its shortest path from the root is grafted on (Khuller, Raghavachari and Young,
+    "Balancing minimum spanning trees and shortest-path trees", Algorithmica 14, 1995,
+    Theorem 1 gives both bounds).  Shortest paths come from ``scipy.sparse.csgraph.dijkstra``
+    (O(E + V log V)); the walk is O(V).  Distances are float64 sums, so the stretch bound
+    holds up to float64 rounding of those sums.
+
+    Examples
+    --------
+    >>> from fastmst.design import light_shallow_tree
+    >>> t = light_shallow_tree([0, 1, 2, 0], [1, 2, 3, 3], [1.0, 1.0, 1.0, 2.0], 0, alpha=1.4)
+    >>> t.position.tolist(), t.reason.tolist(), t.distance.tolist()
+    ([0, 1, 3], ['tree', 'tree', 'shortcut'], [0.0, 1.0, 2.0, 2.0])
+    """
+    g = validation.validate_edges(tail, head, weight, n_nodes, func=_FUNC)
+    root = check_node(root, g.n_nodes, "root", _FUNC, allow_none=False)
+    alpha = check_alpha(alpha, _FUNC)
+    usable = np.ones(g.n_edges, dtype=bool)
+    if excluded is not None:
+        usable[validation.check_positions(excluded, g.n_edges, "excluded", _FUNC)] = False
+    check_nonnegative(g, usable, _FUNC, "a light shallow tree")
+    n = g.n_nodes
+    a, b, w, pos = best_links(g, usable)
+    dist, spt_parent, spt_pos = shortest_paths(n, a, b, w, pos, root)
+    # the minimum spanning forest of the pair links (the tie-rule-first link of each pair is
+    # the one a minimum spanning forest of all usable links would take)
+    forest = minimum_spanning_forest(a, b, w, n)
+    fa, fb, fw = a[forest.edges], b[forest.edges], w[forest.edges]
+    fpos = pos[forest.edges]
+    src = np.concatenate([fa, fb])
+    order = np.argsort(src, kind="stable")
+    adj = np.concatenate([fb, fa])[order]
+    adjw = np.concatenate([fw, fw])[order]
+    adjpos = np.concatenate([fpos, fpos])[order]
+    indptr = np.zeros(n + 1, dtype=np.int64)
+    np.cumsum(np.bincount(src, minlength=n), out=indptr[1:])
+    parent, ppos, _ = light_shallow_walk(indptr, adj, adjw, adjpos, root, dist, spt_parent,
+                                         spt_pos, alpha)
+    chosen = ppos >= 0
+    pw = np.zeros(n, dtype=np.float64)
+    pw[chosen] = g.weight[ppos[chosen]].astype(np.float64)
+    distance = tree_distances(parent, pw, root)
+    position = np.sort(ppos[chosen])
+    in_mst = np.zeros(g.n_edges, dtype=bool)
+    in_mst[fpos] = True
+    reason = np.where(in_mst[position], "tree", "shortcut")
+    reached = np.isfinite(dist)
+    mst_links = reached[fa]
+    return ShallowTree(position=position, reason=reason, parent=parent, distance=distance,
+                       shortest=dist, root=root, alpha=alpha,
+                       weight=float(pw[chosen].sum()),
+                       mst_weight=float(fw[mst_links].sum()),
+                       unreached=int(n - np.count_nonzero(reached)))
