@@ -17,6 +17,7 @@ import fastmst
 ROOT = Path(fastmst.__file__).resolve().parent
 #: Optional dependencies: modules needing them are imported only when they are installed.
 OPTIONAL = {"fastmst.dask": ("dask", "distributed", "pandas"), "fastmst.dask.checks": ("pandas",)}
+OPTIONAL.update({f"fastmst.nxbackend.{m}": ("networkx",) for m in ("graph", "spanning", "interface")})
 
 
 def _module_name(path: Path) -> str:
