@@ -8,6 +8,7 @@ networkx (``networkx.minimum_spanning_tree`` on a MultiGraph, which keeps parall
 """
 from __future__ import annotations
 
+import contextlib
 import os
 import signal
 
@@ -25,6 +26,8 @@ import networkx as nx  # noqa: E402
 
 import fastmst  # noqa: E402
 import fastmst.dask as fdask  # noqa: E402
+from fastmst.dask import chunks as fchunks  # noqa: E402
+from fastmst.dask import filter_kruskal  # noqa: E402
 from fastmst.validation import FileFormatError  # noqa: E402
 
 
@@ -89,14 +92,38 @@ def assert_identical(got, want):
     assert got.weights.dtype == want.weights.dtype and got.tail.dtype == want.tail.dtype
 
 
-# plan, max_task_edges: the single-task solve, the filter tree, Borůvka rounds to a final solve,
-# and the automatic combination (Borůvka rounds, then the filter).
-PLANS = [("auto", None), ("filter", 300), ("boruvka", 200), ("auto", 400)]
+@contextlib.contextmanager
+def many_levels():
+    """Filter-Kruskal with few light edges per level and a thin sample, so that small graphs
+    take several levels (thresholds inside runs of tied weights, a sample that runs out)."""
+    saved = filter_kruskal.LIGHT_PER_NODE, fchunks.SAMPLE_ROWS, fchunks.MIN_SAMPLE_PER_PARTITION
+    filter_kruskal.LIGHT_PER_NODE, fchunks.SAMPLE_ROWS = 0.25, 256
+    fchunks.MIN_SAMPLE_PER_PARTITION = 8
+    try:
+        yield
+    finally:
+        (filter_kruskal.LIGHT_PER_NODE, fchunks.SAMPLE_ROWS,
+         fchunks.MIN_SAMPLE_PER_PARTITION) = saved
+
+
+def solve(edges, plan, budget=None, **kwargs):
+    """The distributed solve; plan "levels" is "filter-kruskal" under ``many_levels``."""
+    if plan == "levels":
+        with many_levels():
+            got = fdask.minimum_spanning_forest(edges, plan="filter-kruskal", **kwargs)
+        assert len(got.dask_plan["passes"]) >= 4, got.dask_plan["summary"]
+        return got
+    return fdask.minimum_spanning_forest(edges, plan=plan, max_task_edges=budget, **kwargs)
+
+
+# plan, max_task_edges: the default (filter-kruskal, two levels here), filter-kruskal with many
+# levels, the filter tree, Borůvka rounds to a final solve.
+PLANS = [("auto", None), ("levels", None), ("filter", 300), ("boruvka", 200)]
 
 
 @pytest.mark.parametrize("n_parts,plan,budget", [
     (2, "auto", None), (2, "boruvka", 200), (7, "filter", 300), (7, "boruvka", 200),
-    (7, "auto", 400), (50, "filter", 300), (50, "auto", 1200)])
+    (7, "levels", None), (50, "filter", 300), (50, "levels", None)])
 def test_random_graph_matches_in_memory(client, tmp_path, n_parts, plan, budget):
     """Random multigraphs with tied weights, 2 to 50 Parquet partitions, every plan: identical
     edges and labels to the in-memory solve; total weight equal to networkx's."""
@@ -104,48 +131,46 @@ def test_random_graph_matches_in_memory(client, tmp_path, n_parts, plan, budget)
     path = write_parquet(tmp_path / "g", t, h, w, random_cuts(t.shape[0], n_parts, n_parts))
     ddf = dd.read_parquet(path)
     assert ddf.npartitions == n_parts
-    got = fdask.minimum_spanning_forest(ddf, plan=plan, max_task_edges=budget, split_every=3)
+    got = solve(ddf, plan, budget, split_every=3)
     want = fastmst.minimum_spanning_forest(t, h, w)
     assert_identical(got, want)
     # Reference: networkx.minimum_spanning_tree (Kruskal) on the same multigraph.
     assert got.weight == pytest.approx(networkx_weight(t, h, w))
-    if budget is not None and plan != "filter":
+    if plan == "boruvka":
         assert got.dask_plan["rounds"], "expected at least one Borůvka round"
 
 
 @pytest.mark.parametrize("n_parts,plan,budget", [(3, "auto", None), (50, "boruvka", 1500),
-                                                 (11, "auto", 300)])
+                                                 (11, "levels", None)])
 def test_grid_graph_matches_in_memory(client, tmp_path, n_parts, plan, budget):
     """A 30 x 40 grid with integer weights 0..3 (heavy ties): identical to the in-memory
     solve; a connected grid's spanning tree has rows*cols - 1 edges (recalled from memory:
     any spanning tree of a connected graph on V nodes has V - 1 edges)."""
     t, h, w = grid_graph(30, 40, seed=n_parts)
     path = write_parquet(tmp_path / "g", t, h, w, random_cuts(t.shape[0], n_parts, 5))
-    got = fdask.minimum_spanning_forest(dd.read_parquet(path), plan=plan,
-                                        max_task_edges=budget, split_every=4)
+    got = solve(dd.read_parquet(path), plan, budget, split_every=4)
     assert_identical(got, fastmst.minimum_spanning_forest(t, h, w))
     assert len(got) == 30 * 40 - 1 and got.n_components == 1
     assert got.weight == pytest.approx(networkx_weight(t, h, w))
 
 
-@pytest.mark.parametrize("plan,budget", [("filter", 300), ("auto", 400)])
+@pytest.mark.parametrize("plan,budget", [("filter", 300), ("boruvka", 400), ("levels", None)])
 def test_maximize(client, tmp_path, plan, budget, monkeypatch):
     """maximize=True: identical to the in-memory maximum spanning forest; weight as networkx's
     maximum_spanning_tree.  Borůvka candidates are min-reduced in several component ranges
     (ranges of at least 100 components here instead of 65536, to have more than one)."""
-    monkeypatch.setattr(fdask, "_MIN_RANGE", 100)
+    monkeypatch.setattr(fdask.boruvka, "MIN_RANGE", 100)
     t, h, w = random_graph(3, n=500, m=3000)
     path = write_parquet(tmp_path / "g", t, h, w, random_cuts(t.shape[0], 6, 1))
-    got = fdask.minimum_spanning_forest(dd.read_parquet(path), maximize=True, plan=plan,
-                                        max_task_edges=budget)
+    got = solve(dd.read_parquet(path), plan, budget, maximize=True)
     assert got.maximize
-    if plan == "auto":
+    if plan == "boruvka":
         assert got.dask_plan["rounds"][0]["component_ranges"] == 5  # ceil(500 / 100)
     assert_identical(got, fastmst.minimum_spanning_forest(t, h, w, maximize=True))
     assert got.weight == pytest.approx(networkx_weight(t, h, w, maximize=True))
 
 
-@pytest.mark.parametrize("plan,budget", [("auto", None), ("boruvka", 200), ("auto", 400)])
+@pytest.mark.parametrize("plan,budget", [("auto", None), ("boruvka", 200), ("levels", None)])
 def test_empty_partitions_and_isolated_nodes(client, tmp_path, plan, budget):
     """Empty Parquet files first, in the middle and last, and nodes with no edge at all
     (n_nodes above the largest id, and unused ids below it): identical forest and labels."""
@@ -157,7 +182,7 @@ def test_empty_partitions_and_isolated_nodes(client, tmp_path, plan, budget):
     path = write_parquet(tmp_path / "g", t, h, w, cuts)
     ddf = dd.read_parquet(path)
     assert ddf.npartitions == 9
-    got = fdask.minimum_spanning_forest(ddf, n_nodes=450, plan=plan, max_task_edges=budget)
+    got = solve(ddf, plan, budget, n_nodes=450)
     want = fastmst.minimum_spanning_forest(t, h, w, n_nodes=450)
     assert_identical(got, want)
     assert got.n_components >= 450 - 400 + 400 // 7
@@ -170,7 +195,7 @@ def test_single_partition(client, tmp_path):
     ddf = dd.read_parquet(path)
     assert ddf.npartitions == 1
     for plan, budget in PLANS:
-        got = fdask.minimum_spanning_forest(ddf, plan=plan, max_task_edges=budget)
+        got = solve(ddf, plan, budget)
         assert_identical(got, fastmst.minimum_spanning_forest(t, h, w))
 
 
@@ -182,8 +207,7 @@ def test_duplicate_edges_across_partitions(client, tmp_path):
                   np.concatenate([w, w[::-1], w]))
     path = write_parquet(tmp_path / "g", t3, h3, w3, [600, 1200])
     for plan, budget in PLANS:
-        got = fdask.minimum_spanning_forest(dd.read_parquet(path), plan=plan,
-                                            max_task_edges=budget)
+        got = solve(dd.read_parquet(path), plan, budget)
         want = fastmst.minimum_spanning_forest(t3, h3, w3)
         assert_identical(got, want)
         assert got.edges.max() < 600  # every winner is a first copy
@@ -214,10 +238,12 @@ def test_local_scheduler_without_client(tmp_path):
     """client=False: the local threaded scheduler runs the same tasks, same answer."""
     t, h, w = random_graph(8, n=200, m=900)
     path = write_parquet(tmp_path / "g", t, h, w, [100, 500])
+    want = fastmst.minimum_spanning_forest(t, h, w)
     with dask.config.set(scheduler="threads"):
         got = fdask.minimum_spanning_forest(dd.read_parquet(path), plan="boruvka",
                                             max_task_edges=100, client=False)
-    assert_identical(got, fastmst.minimum_spanning_forest(t, h, w))
+        assert_identical(got, want)
+        assert_identical(solve(dd.read_parquet(path), "levels", client=False), want)
 
 
 def _read_or_die(path, marker_dir, index, kill_on_read):
@@ -236,9 +262,11 @@ def _read_or_die(path, marker_dir, index, kill_on_read):
     return pd.read_parquet(path)
 
 
-def test_worker_killed_mid_run(client, tmp_path):
-    """A worker process killed (SIGKILL) inside a Borůvka round: Dask reruns its tasks on the
-    surviving or restarted worker and the forest is still identical."""
+@pytest.mark.parametrize("plan", ["levels", "boruvka"])
+def test_worker_killed_mid_run(client, tmp_path, plan):
+    """A worker process killed (SIGKILL) in the third pass (a Filter-Kruskal level, or a
+    Borůvka round): Dask reruns its tasks on the surviving or restarted worker and the forest
+    is still identical."""
     t, h, w = random_graph(9, n=500, m=3000)
     path = write_parquet(tmp_path / "g", t, h, w, random_cuts(t.shape[0], 8, 2))
     markers = tmp_path / "markers"
@@ -247,9 +275,10 @@ def test_worker_killed_mid_run(client, tmp_path):
     chunks = [dask.delayed(_read_or_die)(os.path.join(path, f), str(markers), i, 3)
               for i, f in enumerate(files)]
     before = set(client.scheduler_info()["workers"])
-    got = fdask.minimum_spanning_forest(chunks, plan="boruvka", max_task_edges=200)
+    got = solve(chunks, plan, 200)
     assert (markers / "killed").exists(), "the worker was not killed; the test proved nothing"
-    assert got.dask_plan["rounds"]
+    if plan == "boruvka":
+        assert len(got.dask_plan["rounds"]) >= 2
     assert_identical(got, fastmst.minimum_spanning_forest(t, h, w))
     client.wait_for_workers(2, timeout=60)
     assert set(client.scheduler_info()["workers"]) != before  # a new worker replaced the dead

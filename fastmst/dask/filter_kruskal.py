@@ -1,0 +1,199 @@
+"""Plan "filter-kruskal" (the default): distributed Filter-Kruskal with the forest on the client.
+
+Edges are totally ordered by the rule (weight key, global edge id) of
+``fastmst._kernels.tie_rule``.  A *threshold* is one (key, id) pair; the edges below it form a
+prefix of that order.  Level ``k`` of the plan:
+
+1. From the validation pass's sample, keep the sampled edges whose endpoints lie in different
+   current components (a uniform sample of the edges still in play) and choose the threshold
+   ``T_k`` below which about ``LIGHT_PER_NODE * n_k`` of them lie (``n_k`` components left);
+   when the estimated rest is no more than that, ``T_k`` is "no bound" and this level is the
+   last.
+2. One pass over the partitions: each task keeps the edges in the band ``[T_{k-1}, T_k)``
+   whose endpoints lie in different components of the broadcast labels (a ``np.take`` on
+   the band only) and returns them: the *light* edges.  Edges below ``T_{k-1}`` are all
+   inside components already (every light edge of an earlier level joined its endpoints),
+   so they need no lookup; edges at or above ``T_k`` are left for later levels.
+3. The client solves the light edges' forest over the ``n_k`` components with the in-memory
+   kernels (positions in partition order are global ids, so ties fall as in the in-memory
+   solve).  Because the light edges are a prefix of the rule order among the edges still in
+   play, every forest edge found belongs to the final forest (the cut property) and the rest
+   are discarded (the cycle property).  The components are contracted and the new labels
+   broadcast for the next level.
+
+The forest edges of successive levels come in rule order, level after level, so the result
+needs no final sort.  Per-task memory is one partition plus the broadcast labels (4 bytes per
+node); the client holds the labels, the forest and one level's light edges.
+"""
+from __future__ import annotations
+
+import time
+
+import numpy as np
+
+import dask
+
+from fastmst._kernels.tie_rule import weight_keys
+from fastmst.dask import boruvka, chunks
+from fastmst.solve.solve import solve_trusted
+
+#: Light edges per component left, chosen per level (measured on bench/bench_dask.py: see
+#: docs/dask.md).  The client solves about this many edges per node at the first level.
+LIGHT_PER_NODE = 2.0
+#: Levels at most; the last one takes every edge left (progress is guaranteed before that,
+#: this only bounds the passes when the sample is too thin to steer).
+MAX_LEVELS = 32
+
+
+def _below(keys, gids, bound):
+    """Mask of the edges (keys, global ids) strictly below the threshold ``bound``."""
+    tk, tid = np.uint64(bound[0]), np.int64(bound[1])
+    return (keys < tk) | ((keys == tk) & (gids < tid))
+
+
+def band(chunk, names, offset, labels, wdtype, maximize, lower, upper):
+    """Task of one level: the partition's edges in ``[lower, upper)`` whose endpoints lie in
+    different components of ``labels`` (None: every node its own component).
+
+    ``lower``/``upper`` are (key, global id) thresholds or None (no bound).  Returns the kept
+    edges as a record (global ids ascending) and the counts (rows read, rows in the band).
+    """
+    t, h, w = chunks.edge_arrays(chunk, names, wdtype)
+    m = t.shape[0]
+    if lower is None and upper is None:
+        idx = None
+    else:
+        keys = weight_keys(w, maximize)
+        gids = np.arange(offset, offset + m, dtype=np.int64)
+        mask = np.ones(m, dtype=bool) if lower is None else ~_below(keys, gids, lower)
+        if upper is not None:
+            mask &= _below(keys, gids, upper)
+        del keys, gids
+        idx = np.flatnonzero(mask)
+        del mask
+    tb, hb = (t, h) if idx is None else (t[idx], h[idx])
+    in_band = m if idx is None else int(idx.shape[0])
+    if labels is None:
+        diff = tb != hb
+    else:
+        diff = np.take(labels, tb) != np.take(labels, hb)
+    keep = np.flatnonzero(diff)
+    del diff
+    if idx is not None:
+        keep = idx[keep]
+    rec = {"id": keep + offset, "t": t[keep], "h": h[keep], "w": w[keep]}
+    return rec, {"read": int(m), "band": in_band}
+
+
+class Sample:
+    """The validation pass's sample on the client: rule keys, global ids, endpoints and how
+    many edges each sampled row stands for."""
+
+    def __init__(self, stats, offsets, kdt, maximize):
+        parts = [(s["sample"], int(offsets[i]), s["m"] / max(1, s["sample"]["row"].shape[0]))
+                 for i, s in enumerate(stats) if s["m"]]
+        if parts:
+            self.gid = np.concatenate([p["row"] + off for p, off, _ in parts])
+            self.t = np.concatenate([p["t"].astype(np.int64) for p, _, _ in parts])
+            self.h = np.concatenate([p["h"].astype(np.int64) for p, _, _ in parts])
+            w = np.concatenate([p["w"].astype(kdt) for p, _, _ in parts])
+            self.key = weight_keys(w, maximize)
+            self.per = np.concatenate([np.full(p["row"].shape[0], r) for p, _, r in parts])
+        else:
+            z = np.empty(0, np.int64)
+            self.gid, self.t, self.h = z, z, z
+            self.key, self.per = np.empty(0, np.uint64), np.empty(0, np.float64)
+
+    def keep_remaining(self, labels):
+        """Drop the sampled edges that are inside one component now (for good)."""
+        if labels is None:
+            keep = self.t != self.h
+        else:
+            keep = labels[self.t] != labels[self.h]
+        for name in ("gid", "t", "h", "key", "per"):
+            setattr(self, name, getattr(self, name)[keep])
+
+    def threshold(self, target):
+        """``(estimated edges left, threshold)``: the (key, id) below which about ``target``
+        of the edges left lie, or None when the estimate is at most ``target`` (or too few
+        sampled edges are left to steer by)."""
+        left = float(self.per.sum())
+        if left <= target or self.gid.shape[0] < 2:
+            return left, None
+        order = np.lexsort((self.gid, self.key))
+        i = int(np.searchsorted(np.cumsum(self.per[order]), target, side="right"))
+        i = min(max(i, 1), order.shape[0] - 1)  # at least one sampled edge is light
+        j = order[i]
+        return left, (int(self.key[j]), int(self.gid[j]))
+
+
+def solve(run, parts, names, offsets, n, n_edges, kdt, maximize, stats, run_id, column_bytes):
+    """Run the levels; return the forest records in rule order, the final labels, the number
+    of components and the per-pass details."""
+    sample = Sample(stats, offsets, kdt, maximize)
+    ldt = boruvka.label_dtype(n)
+    labels = None
+    n_comp = n
+    lower = None
+    chosen = []
+    passes = []
+    level = 0
+    while n_edges and n_comp > 1:
+        start = time.perf_counter()
+        if level:
+            sample.keep_remaining(labels)
+        left, upper = sample.threshold(LIGHT_PER_NODE * n_comp)
+        if level == 0:
+            left = float(n_edges)
+        if level + 1 >= MAX_LEVELS:
+            upper = None
+        shared = run.share(labels, f"{run_id}-{level}")
+        tasks = [dask.delayed(band, pure=True)(p, names, int(offsets[i]), shared, kdt,
+                                               maximize, lower, upper,
+                                               dask_key_name=f"fastmst-level-{run_id}-{level}-{i}")
+                 for i, p in enumerate(parts)]
+        label = f"level {level + 1}" + (" (final)" if upper is None else "")
+        out = run.run(tasks, label)
+        del shared, tasks
+        pass_seconds = run.phases[-1][1]
+        recs = [r for r, _ in out if r["id"].shape[0]]
+        in_band = sum(c["band"] for _, c in out)
+        rows_read = sum(c["read"] for _, c in out)
+        light = {k: np.concatenate([r[k] for r in recs]) for k in ("id", "t", "h", "w")} \
+            if recs else None
+        del out, recs
+        client_start = time.perf_counter()
+        before = n_comp
+        n_light = 0 if light is None else int(light["id"].shape[0])
+        if n_light:
+            if labels is None:
+                ct, ch = light["t"], light["h"]
+            else:
+                ct, ch = np.take(labels, light["t"]), np.take(labels, light["h"])
+            # Valid by construction (ids checked in the validation pass, or labels); the
+            # light edges are in global id order, so positions break ties as ids do.
+            f = solve_trusted(ct, ch, light["w"], n_comp, maximize=maximize, threads=None)
+            del ct, ch
+            pos = f.edges
+            chosen.append({k: v[pos] for k, v in light.items()})
+            del light
+            new = f.labels.astype(ldt)
+            labels = new if labels is None else np.take(new, labels)
+            n_comp = int(f.n_components)
+            del f, new
+        client_seconds = time.perf_counter() - client_start
+        passes.append({"pass": len(passes) + 1, "kind": "final" if upper is None else "level",
+                       "seconds": round(time.perf_counter() - start, 3),
+                       "dask_seconds": round(pass_seconds, 3),
+                       "client_seconds": round(client_seconds, 3),
+                       "rows_read": int(rows_read),
+                       "column_bytes_read": int(column_bytes),
+                       "edges_estimated_left": int(round(left)),
+                       "edges_in_band": int(in_band), "edges_kept": n_light,
+                       "forest_edges": int(before - n_comp),
+                       "components_before": int(before), "components_after": int(n_comp)})
+        level += 1
+        if upper is None:
+            break
+        lower = upper
+    return chosen, labels, n_comp, passes
