@@ -85,7 +85,10 @@ def constrained_forest(g: validation.EdgeArrays, required: np.ndarray, excluded:
     ``SpanningForest`` fields.
 
     The required edges are joined first (contracted); the rest of the forest is the optimal
-    forest of the contracted graph without the excluded edges, under the same tie rule.  The
+    forest of the contracted graph without the excluded edges, under the same tie rule.  This
+    is the one meaning of required and excluded in fastmst: ``check_forest``,
+    ``sensitivity``, ``SpanningForest.clusters``/``add_edges`` and the command line measure a
+    forest against this optimum (docs/toolkit.md, "Required and excluded links").  The
     result's ``required_excess`` is its weight minus the weight of the optimal forest of the
     graph without the excluded edges (that one minus this one when maximizing): what the
     requirement costs; that forest's fields are under ``free``.  ``method``, ``presorted``
@@ -107,7 +110,7 @@ def constrained_forest(g: validation.EdgeArrays, required: np.ndarray, excluded:
         sub, used = _solve_subgraph(g, keep, None, g.n_nodes, opts)
         r = methods.kernel_result(g, keep[sub.edges], sub.labels, sub.n_components, maximize,
                                   True)
-        return forest_fields(g, r, maximize, used, provenance=provenance)
+        return forest_fields(g, r, maximize, used, provenance=provenance, excluded=exc)
     rt = np.ascontiguousarray(g.ktail[req], dtype=np.int64)
     rh = np.ascontiguousarray(g.khead[req], dtype=np.int64)
     _, _, _, _, cycle = kruskal_tree(rt, rh, g.n_nodes)
@@ -127,7 +130,7 @@ def constrained_forest(g: validation.EdgeArrays, required: np.ndarray, excluded:
     sub, used = _solve_subgraph(g, free_keep, None, g.n_nodes, opts)
     free = forest_fields(g, methods.kernel_result(g, free_keep[sub.edges], sub.labels,
                                                   sub.n_components, maximize, True),
-                         maximize, used)
-    out.update(required=req, required_excess=excess(out, free, maximize),
+                         maximize, used, excluded=exc)
+    out.update(required=req, excluded=exc, required_excess=excess(out, free, maximize),
                provenance=provenance, free=free)
     return out

@@ -46,6 +46,10 @@ class SpanningForest:
     required : ndarray of shape (R,), dtype=int64
         Positions of the edges the forest was required to contain, ascending; empty when
         nothing was required.  ``add_edges`` keeps them.
+    excluded : ndarray of shape (X,), dtype=int64
+        Positions of the edges the forest was forbidden to use, ascending; empty when nothing
+        was excluded.  ``add_edges``, ``check_forest``, ``sensitivity`` and ``clusters`` honour
+        both lists (see docs/toolkit.md, "Required and excluded links").
     required_excess : float
         What the ``required`` edges of ``minimum_spanning_forest`` cost: this forest's weight
         minus that of the optimal forest without the requirement (the reverse when maximizing),
@@ -77,11 +81,11 @@ class SpanningForest:
 
     __slots__ = ("edges", "tail", "head", "weights", "n_nodes", "n_edges", "n_components",
                  "labels", "maximize", "method", "required", "required_excess", "provenance",
-                 "_free", "_cache")
+                 "excluded", "_free", "_cache")
 
     def __init__(self, edges, tail, head, weights, n_nodes, n_edges, n_components, labels,
                  maximize=False, method="", *, required=None, required_excess=0.0,
-                 provenance=None, free=None):
+                 provenance=None, free=None, excluded=None):
         self.edges = edges
         self.tail = tail
         self.head = head
@@ -93,6 +97,7 @@ class SpanningForest:
         self.maximize = bool(maximize)
         self.method = method
         self.required = _NONE if required is None else required
+        self.excluded = _NONE if excluded is None else excluded
         self.required_excess = float(required_excess)
         self.provenance = ({"function": "minimum_spanning_forest"} if provenance is None
                            else provenance)
@@ -109,6 +114,7 @@ class SpanningForest:
         self.maximize = maximize
         self.method = "kruskal"
         self.required = _NONE
+        self.excluded = _NONE
         self.required_excess = 0.0
         self.provenance = {"function": "minimum_spanning_forest"}
         self._free = None
@@ -128,6 +134,7 @@ class SpanningForest:
         return {k: getattr(self, k) for k in self.__slots__ if k != "_cache"}
 
     def __setstate__(self, state):
+        self.excluded = _NONE          # forests pickled before the field existed
         for k, v in state.items():
             setattr(self, k, v)
         self._cache = {}
@@ -225,15 +232,19 @@ class SpanningForest:
         """
         return _bottleneck.bottleneck(self, a, b, threads)
 
-    def add_edges(self, tail, head, weight, n_nodes=None) -> "SpanningForest":
+    def add_edges(self, tail, head, weight, n_nodes=None, *, required=None,
+                  excluded=None) -> "SpanningForest":
         """Optimal forest of the old graph plus new edges, from this forest and the new edges.
 
         The new edges get positions ``n_edges, n_edges + 1, ...``; node ids may extend past
         ``n_nodes`` (or pass ``n_nodes``).  By the cycle property an edge left out of this
         forest stays out, so only the F forest edges and the K new ones are solved: O((F + K)
         log(F + K)).  The result is identical to a full solve of the combined graph, tie rule
-        included, and keeps ``maximize`` and any ``required`` edges of this forest (the
-        excluded ones are not in it to begin with).
+        included, and keeps ``maximize`` and the ``required`` and ``excluded`` edges of this
+        forest.  ``required`` and ``excluded`` name new edges by their index in ``tail``
+        (0..K-1; or boolean masks of length K): required new edges join the forest, excluded
+        ones never do; the result's ``required``/``excluded`` hold their positions
+        (``n_edges + index``) beside the old ones.
 
         Examples
         --------
@@ -243,7 +254,8 @@ class SpanningForest:
         >>> g.edges.tolist(), g.weight
         ([0, 2], 3.0)
         """
-        return SpanningForest._from_fields(_update.add_edges(self, tail, head, weight, n_nodes))
+        return SpanningForest._from_fields(_update.add_edges(self, tail, head, weight, n_nodes,
+                                                             required, excluded))
 
     def clusters(self, k=None, threshold=None):
         """Single-linkage flat clusters: labels after cutting the heaviest forest edges.
@@ -273,5 +285,8 @@ class SpanningForest:
         >>> f = fastmst.minimum_spanning_forest([0, 1, 2], [1, 2, 3], [0.5, 9.0, 1.0])
         >>> f.clusters(k=2).tolist(), f.clusters(threshold=0.7).tolist()
         ([0, 0, 1, 1], [0, 0, 1, 2])
+
+        A forest solved with ``required`` edges never has them cut: the clusters are cut from
+        its other edges only, so ``k`` is at most ``n_components`` plus their number.
         """
         return _clusters.clusters(self, k, threshold)

@@ -12,14 +12,20 @@ import numpy as np
 from fastmst import validation
 from fastmst.solve.result import SpanningForest
 
+_NONE = np.empty(0, dtype=np.int64)
+
 
 def validate_graph_with_forest(tail, head, weight, forest, n_nodes, maximize, threads, *,
-                               name: str, func: str, strict_maximize: bool):
+                               name: str, func: str, strict_maximize: bool, required=None,
+                               excluded=None):
     """Shared checks of the functions that take a graph and a forest of it.
 
     ``forest`` is a SpanningForest (its ``maximize``, ``n_nodes`` and edge count are used and
     checked against the graph), an array of edge positions or a boolean mask.  With
     ``strict_maximize`` an explicit ``maximize`` that contradicts a SpanningForest is an error.
+
+    ``required``/``excluded`` (positions or boolean masks) default to those of a
+    SpanningForest, else to none; a position in both is a ValueError.
 
     Returns
     -------
@@ -29,9 +35,13 @@ def validate_graph_with_forest(tail, head, weight, forest, n_nodes, maximize, th
     in_forest : ndarray of shape (E,), dtype=bool
     maximize : bool
     threads : int
+    req, exc : ndarray of int64
+        The required and excluded positions, ascending and unique.
     """
     expected_edges = None
+    constraints = (_NONE, _NONE)
     if isinstance(forest, SpanningForest):
+        constraints = (forest.required, forest.excluded)
         if maximize is None:
             maximize = forest.maximize
         elif strict_maximize and bool(maximize) != forest.maximize:
@@ -51,7 +61,46 @@ def validate_graph_with_forest(tail, head, weight, forest, n_nodes, maximize, th
                          f"edges, received {g.n_edges}; pass the same edge list.")
     pos = validation.check_positions(forest, g.n_edges, name, func)
     in_forest = check_unique_positions(pos, g.n_edges, name, func)
-    return g, pos, in_forest, maximize, threads
+    req = np.unique(validation.check_positions(
+        constraints[0] if required is None else required, g.n_edges, "required", func))
+    exc = np.unique(validation.check_positions(
+        constraints[1] if excluded is None else excluded, g.n_edges, "excluded", func))
+    both = np.intersect1d(req, exc)
+    if both.size:
+        raise ValueError(f"{func}: positions {both[:10].tolist()} are both required and "
+                         f"excluded; an edge can be only one of them. Remove them from one list.")
+    return g, pos, in_forest, maximize, threads, req, exc
+
+
+def constrained_order(fedges: np.ndarray, req: np.ndarray) -> np.ndarray:
+    """Forest positions (``fedges`` in tie-rule order) with the required ones first.
+
+    A merge tree built in this order makes the "heaviest" edge of a tree path its heaviest
+    edge that is not required, and a required one only when the path has nothing else: the
+    cycle condition of the optimum under constraints, where required edges are contracted.
+    """
+    if req.size == 0:
+        return fedges
+    is_req = np.isin(fedges, req)
+    return np.concatenate([fedges[is_req], fedges[~is_req]])
+
+
+def weight_gap(high: np.ndarray, low: np.ndarray) -> np.ndarray:
+    """high - low (``high >= low`` elementwise, one weight dtype) as float64, the exact
+    difference rounded once; equal values (infinities included) give 0.
+
+    Integer weights are subtracted in uint64, modulo 2**64: the exact difference lies in
+    [0, 2**64), so the wrapped result is exact, and one conversion rounds it.  Float weights
+    are subtracted in float64, which rounds the exact difference once (float32 widens
+    exactly); an overflow gives inf.
+    """
+    if high.dtype.kind in "iu":
+        with np.errstate(over="ignore"):
+            return (high.astype(np.uint64) - low.astype(np.uint64)).astype(np.float64)
+    h = high.astype(np.float64)
+    lo = low.astype(np.float64)
+    with np.errstate(invalid="ignore", over="ignore"):
+        return np.where(h == lo, 0.0, h - lo)
 
 
 def check_unique_positions(pos: np.ndarray, n_edges: int, name: str, func: str) -> np.ndarray:

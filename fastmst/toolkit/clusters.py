@@ -25,22 +25,39 @@ def clusters(forest, k=None, threshold=None) -> np.ndarray:
                          f"threshold={validation.shown(threshold)}.")
     n = forest.n_nodes
     f = len(forest)
+    # Required edges are never cut: they join their sites in every cluster set.
+    fixed = np.isin(forest.edges, forest.required) if forest.required.size else None
+    cuttable = f if fixed is None else f - int(np.count_nonzero(fixed))
     if k is not None:
-        k = check_cluster_count(k, max(forest.n_components, 1), max(n, 1), func)
-        keep = f - (k - forest.n_components)
+        high = max(n, 1) if fixed is None else max(forest.n_components + cuttable, 1)
+        k = check_cluster_count(k, max(forest.n_components, 1), high, func,
+                                required=f - cuttable)
+        cut = k - forest.n_components
+        if fixed is None:
+            kept = np.arange(f - cut)
+        else:   # the cut heaviest edges that are not required (forest order is tie-rule order)
+            free = np.flatnonzero(~fixed)
+            mask = np.ones(f, dtype=bool)
+            mask[free[free.size - cut:]] = False
+            kept = np.flatnonzero(mask)
     else:
         t = validation.check_real_exact(threshold, "threshold", func)
         # forest.weights is in tie-rule order: ascending (descending when maximize).
-        keep = count_within(forest.weights, t, forest.maximize)
-    ft = np.ascontiguousarray(forest.tail[:keep], dtype=np.int64)
-    fh = np.ascontiguousarray(forest.head[:keep], dtype=np.int64)
+        kept = np.arange(count_within(forest.weights, t, forest.maximize))
+        if fixed is not None:
+            mask = fixed.copy()
+            mask[kept] = True
+            kept = np.flatnonzero(mask)
+    ft = np.ascontiguousarray(forest.tail[kept], dtype=np.int64)
+    fh = np.ascontiguousarray(forest.head[kept], dtype=np.int64)
     if n == 0:
         return np.empty(0, dtype=np.int64)
     return labels_from_parent(union_parent(ft, fh, n))[0]
 
 
-def check_cluster_count(k, low: int, high: int, func: str) -> int:
-    """Number of clusters k, an integer in [low, high]."""
+def check_cluster_count(k, low: int, high: int, func: str, required: int = 0) -> int:
+    """Number of clusters k, an integer in [low, high] (``required``: how many forest edges
+    may not be cut, for the message)."""
     if isinstance(k, (bool, np.bool_)) or not isinstance(k, (int, np.integer)):
         raise TypeError(f"{func}: k must be an integer number of clusters, received "
                         f"{type(k).__name__} {validation.shown(k)}.")
@@ -48,6 +65,10 @@ def check_cluster_count(k, low: int, high: int, func: str) -> int:
     if not low <= k <= high:
         why = (f" (the graph already has {low} connected components, and each is at least one "
                f"cluster)" if low > 1 else "")
+        if required:
+            edges = "edge is" if required == 1 else "edges are"
+            raise ValueError(f"{func}: k = {k} is out of range; expected {low} <= k <= {high}: "
+                             f"{required} required forest {edges} never cut{why}.")
         raise ValueError(f"{func}: k = {k} is out of range; expected {low} <= k <= {high}, the "
                          f"number of nodes{why}.")
     return k

@@ -6,32 +6,14 @@ import numpy as np
 from fastmst import validation
 from fastmst._kernels.paths import cover_paths, root_forest
 from fastmst._kernels.tie_rule import edge_order, sort_positions
-from fastmst.toolkit.checks import validate_graph_with_forest
+from fastmst.toolkit.checks import constrained_order, validate_graph_with_forest, weight_gap
 from fastmst.toolkit.pathmax import heaviest_on_paths, merge_tree
 
 _FUNC = "sensitivity"
 
 
-def _margin(high: np.ndarray, low: np.ndarray) -> np.ndarray:
-    """high - low (``high >= low`` elementwise, one weight dtype) as float64, the exact
-    difference rounded once; equal values (infinities included) give 0.
-
-    Integer weights are subtracted in uint64, modulo 2**64: the exact difference lies in
-    [0, 2**64), so the wrapped result is exact, and one conversion rounds it.  Float weights
-    are subtracted in float64, which rounds the exact difference once (float32 widens
-    exactly); an overflow gives inf.
-    """
-    if high.dtype.kind in "iu":
-        with np.errstate(over="ignore"):
-            return (high.astype(np.uint64) - low.astype(np.uint64)).astype(np.float64)
-    h = high.astype(np.float64)
-    lo = low.astype(np.float64)
-    with np.errstate(invalid="ignore", over="ignore"):
-        return np.where(h == lo, 0.0, h - lo)
-
-
 def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None,
-                return_partner=False):
+                return_partner=False, required=None, excluded=None):
     """Per-edge sensitivity of an optimal spanning forest (Tarjan 1982).
 
     Parameters
@@ -48,6 +30,13 @@ def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None,
         answer does not depend on it.
     return_partner : bool
         Also return, for each edge, the edge it would swap with at its margin.
+    required, excluded : array_like of int or boolean mask of shape (E,), optional
+        The constraints the forest was solved under, as for ``minimum_spanning_forest``;
+        default those of a SpanningForest, else none.  Margins are then those of the optimum
+        under the constraints: a required edge stays and an excluded one stays out at any
+        weight (margin inf, partner -1), a forest edge is only replaced by an allowed edge, and
+        a non-tree edge only replaces an edge that is not required (inf when its whole tree
+        path is required).
 
     Returns
     -------
@@ -96,10 +85,18 @@ def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None,
     >>> fastmst.sensitivity(t, h, w, f).tolist()
     [3.0, 2.0, 2.0, inf]
     """
-    g, pos, in_forest, maximize, threads = validate_graph_with_forest(
+    g, pos, in_forest, maximize, threads, req, exc = validate_graph_with_forest(
         tail, head, weight, forest, None, maximize, threads, name="forest", func=_FUNC,
-        strict_maximize=True)
-    fedges = sort_positions(pos, g.kweight, maximize)
+        strict_maximize=True, required=required, excluded=excluded)
+    missing = req[~in_forest[req]]
+    used = exc[in_forest[exc]]
+    if missing.size or used.size:
+        what = (f"lacks the required edge at position {missing[0]}" if missing.size else
+                f"uses the excluded edge at position {used[0]}")
+        raise ValueError(f"{_FUNC}: the forest {what}; pass the forest solved under these "
+                         f"constraints (minimum_spanning_forest(..., required=, excluded=)), or "
+                         f"the constraints it was solved under.")
+    fedges = constrained_order(sort_positions(pos, g.kweight, maximize), req)
     ftail, fhead = g.ktail[fedges], g.khead[fedges]
     tree, cycle = merge_tree(ftail, fhead, fedges, g.n_nodes)
     if tree is None:
@@ -110,18 +107,24 @@ def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None,
     return_partner = validation.check_bool(return_partner, "return_partner", _FUNC)
     out = np.full(g.n_edges, np.inf, dtype=np.float64)
     partner = np.full(g.n_edges, -1, dtype=np.int64) if return_partner else None
-    non = np.flatnonzero(~in_forest & (g.ktail != g.khead))
+    allowed = ~in_forest & (g.ktail != g.khead)
+    allowed[exc] = False
+    non = np.flatnonzero(allowed)
     idx = heaviest_on_paths(tree, g.ktail[non], g.khead[non], threads)
     if non.size and idx.min() == -1:
         p = int(non[np.flatnonzero(idx == -1)[0]])
         raise ValueError(f"{_FUNC}: the forest does not span the graph: the edge at position "
                          f"{p} ({g.tail[p]}-{g.head[p]}) joins two of its trees. Pass the optimal "
-                         f"spanning forest of this graph (minimum_spanning_forest(...)).")
+                         f"spanning forest of this graph (minimum_spanning_forest(...)) and "
+                         f"the same required/excluded edges.")
     heavy = fedges[idx]
     # Forest weights gathered once: the per-edge lookups then stay in a V-sized array.
     hw = g.kweight[fedges][idx]
     nw = g.kweight[non]
     worse = (nw > hw) if maximize else (nw < hw)
+    stuck = np.isin(heavy, req) if req.size else None   # paths of required edges only
+    if stuck is not None:
+        worse &= ~stuck
     if worse.any():
         i = int(np.flatnonzero(worse)[0])
         raise ValueError(f"{_FUNC}: the forest is not {'maximum' if maximize else 'minimum'}: "
@@ -129,10 +132,16 @@ def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None,
                          f"{validation.shown(g.weight[non[i]])}) beats the forest edge at "
                          f"position {heavy[i]} (weight {validation.shown(g.weight[heavy[i]])}) "
                          f"on its tree path. check_forest(...) lists "
-                         f"every such pair; minimum_spanning_forest(...) gives the optimum.")
-    out[non] = _margin(hw, nw) if maximize else _margin(nw, hw)
+                         f"every such pair; minimum_spanning_forest(...) gives the optimum "
+                         f"(with the same required=/excluded= when the forest was solved under "
+                         f"constraints).")
+    out[non] = weight_gap(hw, nw) if maximize else weight_gap(nw, hw)
     if return_partner:
         partner[non] = heavy
+    if stuck is not None:      # its tree path is all required: it can never enter
+        out[non[stuck]] = np.inf
+        if return_partner:
+            partner[non[stuck]] = -1
     del idx, heavy, worse, hw, nw
     if fedges.size:
         # Lightest first (heaviest first when maximizing).  Equal weights give equal margins,
@@ -151,8 +160,12 @@ def sensitivity(tail, head, weight, forest, *, maximize=None, threads=None,
         has = cover >= 0
         f_has = fedges[has]
         c_has = ranked[cover[has]]
-        out[f_has] = _margin(g.kweight[f_has], g.kweight[c_has]) if maximize else \
-            _margin(g.kweight[c_has], g.kweight[f_has])
+        out[f_has] = weight_gap(g.kweight[f_has], g.kweight[c_has]) if maximize else \
+            weight_gap(g.kweight[c_has], g.kweight[f_has])
         if return_partner:
             partner[f_has] = c_has
+    if req.size:               # required edges stay at any weight
+        out[req] = np.inf
+        if return_partner:
+            partner[req] = -1
     return (out, partner) if return_partner else out
