@@ -99,8 +99,10 @@ def test_geojson_rfc7946(tmp_path):
     feats = doc["features"]
     assert [x["geometry"]["type"] for x in feats] == ["LineString"] * 2
     assert feats[0]["geometry"]["coordinates"] == [[10.0, 50.0], [10.5, 50.1]]
-    assert {(x["properties"]["tail"], x["properties"]["head"]) for x in feats} == \
+    # properties are named as in CSV output: the input's column names (t, h, w), position
+    assert {(x["properties"]["t"], x["properties"]["h"]) for x in feats} == \
         {("p", "q"), ("q", "r")}
+    assert [x["id"] for x in feats] == [x["properties"]["position"] for x in feats]
     # A link across the antimeridian is cut at +-180 (RFC 7946, section 3.1.9).
     fiji = io.from_table(pa.table({"t": ["w"], "h": ["e"], "w": [1.0]}),
                          nodes=pa.table({"id": ["w", "e"], "lon": [179.0, -179.0],
@@ -473,9 +475,10 @@ def test_registry_one_place_adds_a_format(tmp_path, monkeypatch):
 def test_format_lists_come_from_the_registry():
     """FORMATS/WRITE_FORMATS and the CLI's --format choices are the registry's lists."""
     from fastmst import cli
-    assert io.FORMATS == registry.names("read") == ("csv", "tsv", "parquet", "npz", "mtx", "gr")
+    assert io.FORMATS == registry.names("read") == ("csv", "tsv", "parquet", "npz", "mtx", "gr",
+                                                    "gpkg")
     assert io.WRITE_FORMATS == registry.names("write") == ("csv", "tsv", "parquet", "npz",
-                                                           "geojson")
+                                                           "geojson", "gpkg")
     solve = cli.build_parser()._subparsers._group_actions[0].choices["solve"]
     fmt = next(a for a in solve._actions if a.dest == "format")
     assert tuple(fmt.choices) == io.FORMATS

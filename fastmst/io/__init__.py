@@ -19,6 +19,7 @@ This module is the public face; the work is done in its modules:
 ``nodes``          node tables (labels with coordinates)
 ``registry``       the file formats and format detection; ``formats/`` has one module per format
 ``files``          ``read_edges``, ``write_table``, ``write_forest`` through the registry
+``layers``         GIS line and point layers (pyogrio), ``snapping`` joins line end points
 ``positions``      edges named in a file by position or by label pairs
 ``adapters``       pandas/pyarrow, SciPy and networkx in; tables and graphs out
 ``atomic``         atomic file writing
@@ -36,7 +37,9 @@ from fastmst.io.edgelist import EdgeList
 from fastmst.io.files import read_edges, write_forest, write_table
 from fastmst.io.formats.csv import CSV_BLOCK_SIZE
 from fastmst.io.formats.geojson import write_geojson
+from fastmst.io.formats.gpkg import write_geopackage
 from fastmst.io.labels import encode_labels, label_array
+from fastmst.io.layers import read_line_layer, read_point_layer
 from fastmst.io.nodes import NodeTable, read_nodes
 from fastmst.io.positions import read_forest_positions, read_positions
 from fastmst.io.registry import Format, detect_format, register
@@ -49,6 +52,7 @@ WRITE_FORMATS = _registry.names("write")
 
 __all__ = ["EdgeList", "NodeTable", "FileFormatError", "FORMATS", "WRITE_FORMATS",
            "read_edges", "read_nodes", "write_forest", "write_table", "write_geojson",
+           "read_line_layer", "read_point_layer", "write_geopackage",
            "from_table", "from_scipy", "from_networkx", "to_networkx", "forest_table",
            "node_table", "read_positions", "read_forest_positions", "load_table",
            "atomic_write", "StagedOutputs", "label_array", "encode_labels", "detect_format", "Format", "register",
