@@ -16,6 +16,7 @@ from fastmst.plot import plot_forest
 EPILOG = """examples:
   fastmst clusters sensors.csv -k 5 -o clusters.csv
   fastmst clusters sensors.csv --threshold 250 -o clusters.parquet
+  fastmst clusters links.csv -k 8 --required must.csv -o clusters.csv   # never cut must.csv
 """
 
 # one colour per cluster on maps, cycled after ten; cut edges are black
@@ -34,6 +35,7 @@ def add_parser(sub):
     cut.add_argument("-k", type=int, metavar="K", help="number of clusters")
     cut.add_argument("--threshold", type=float, metavar="W",
                      help="cut every forest edge heavier than W")
+    common.add_constraint_options(p.add_argument_group("links (required links are never cut)"))
     common.add_output_options(p)
     p.set_defaults(run=run)
 
@@ -46,9 +48,10 @@ def run(args) -> int:
     with rep:
         edges = common.load_edges(args, rep)
         common.check_coordinates(args, edges.coords is not None)
+        constraints, links = common.read_constraints(args, edges, rep)
         with rep.phase("solving"):
             forest = fastmst.minimum_spanning_forest(edges.tail, edges.head, edges.weight,
-                                                     edges.n_nodes)
+                                                     edges.n_nodes, **constraints)
         with rep.phase("clustering"):
             labels = np.asarray(forest.clusters(k=args.k, threshold=args.threshold))
         table = io.node_table(edges, cluster=labels.astype(np.int64))
@@ -74,12 +77,14 @@ def run(args) -> int:
            "largest": [{"cluster": int(c), "size": int(sizes[c])} for c in top],
            "written": list(args.output) + ([args.plot] if args.plot else []),
            "seconds": common.seconds(rep.times)}
+    if links:
+        out["links"] = links
     if args.json:
         print(json.dumps(out, indent=2))
     elif not args.quiet:
         rows = [("nodes", fmt_num(edges.n_nodes)), ("clusters", fmt_num(sizes.size)),
                 ("largest", ", ".join(f"#{c}: {sizes[c]:,}" for c in top)),
-                ("time", common.times_text(rep.times))]
+                ("time", common.times_text(rep.times))] + common.constraint_rows(links)
         if out["written"]:
             rows.append(("wrote", ", ".join(out["written"])))
         common.print_block(f"fastmst clusters: {edges.source}", rows)

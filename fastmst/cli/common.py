@@ -16,6 +16,7 @@ import numpy as np
 import fastmst
 from fastmst import io
 from fastmst.cli.progress import Reporter
+from fastmst.io.links import read_links
 
 CAUTION = ("Caution: a spanning tree has no redundancy - one failed link disconnects every site "
            "beyond it. Designs for utilities or roads need review by licensed engineers under "
@@ -92,11 +93,75 @@ def add_solver_options(p):
     g.add_argument("--method", default="auto", choices=tuple(fastmst.METHODS),
                    help="algorithm (default auto); every method gives the same forest")
     g.add_argument("--threads", type=int, metavar="N", help="worker threads (default: all cores)")
+    add_constraint_options(g)
+
+
+def add_constraint_options(g):
+    """--required and --excluded (same meaning in every command)."""
     g.add_argument("--required", metavar="FILE",
-                   help="links that must be in the forest: a file with a 'position' column or "
-                        "tail/head label columns")
+                   help="links that must be in the forest: a file naming them by link id "
+                        "(--link-id), by 'position', or by site pair (tail/head labels; a pair "
+                        "with several links takes its lightest)")
     g.add_argument("--excluded", metavar="FILE",
-                   help="links that may not be used (every parallel link of a listed pair)")
+                   help="links that may not be used, named the same way; a site pair excludes "
+                        "every link between its two sites")
+
+
+def read_constraints(args, edges, rep):
+    """(keyword arguments required=/excluded= for the toolkit calls, summary dict) of
+    --required/--excluded; the summary counts the links and names pairs that matched several
+    links."""
+    kwargs, info = {}, {}
+    if not (getattr(args, "required", None) or getattr(args, "excluded", None)):
+        return kwargs, info
+    with rep.phase("reading links"):
+        for opt, parallel in (("required", "lightest"), ("excluded", "all")):
+            path = getattr(args, opt, None)
+            if not path:
+                continue
+            links = read_links(path, edges, parallel=parallel, func=f"--{opt}")
+            kwargs[opt] = links.positions
+            d = {"file": path, "rows": links.rows, "links": int(np.unique(links.positions).size),
+                 "named_by": links.named_by}
+            if links.named_by == "pair":
+                d["pairs_with_several_links"] = [
+                    {"tail": jsonable(a), "head": jsonable(b), "links": c}
+                    for a, b, c in links.several]
+            info[opt] = d
+    return kwargs, info
+
+
+def constraint_rows(info) -> list:
+    """Summary rows for --required/--excluded: counts, how links were named, several-link
+    pairs."""
+    rows = []
+    for opt in ("required", "excluded"):
+        d = info.get(opt)
+        if not d:
+            continue
+        text = f"{plural(d['links'], 'link')} from {plural(d['rows'], 'row')} of {d['file']}, " \
+               f"named by {d['named_by']}"
+        several = d.get("pairs_with_several_links", [])
+        if d["named_by"] == "pair":
+            text += ("; a pair excludes every link between its sites" if opt == "excluded" else
+                     "; a pair with several links takes its lightest")
+        if several:
+            shown_ = ", ".join(f"{s['tail']} -- {s['head']} ({s['links']} links)"
+                               for s in several[:5])
+            more = f", ... {len(several) - 5} more" if len(several) > 5 else ""
+            text += f"; {plural(len(several), 'pair')} matched several links: {shown_}{more}"
+        rows.append((f"{opt} links", text))
+    return rows
+
+
+def plural(n, word: str, words: str | None = None) -> str:
+    """``n`` and the word in the singular or plural: ``1 link``, ``2 links``, ``1,234 links``.
+
+    >>> plural(1, "link"), plural(2, "arc"), plural(3, "pair", "pairs")
+    ('1 link', '2 arcs', '3 pairs')
+    """
+    words = words or word + "s"
+    return f"{fmt_num(n)} {word if n == 1 else words}"
 
 
 def add_output_options(p, outputs=True):
@@ -155,6 +220,9 @@ def check_not_inputs(args) -> None:
     outputs = [("-o", out) for out in getattr(args, "output", [])]
     if getattr(args, "plot", None):
         outputs.append(("--plot", args.plot))
+    for opt in ("unconnected", "swaps_output"):
+        if getattr(args, opt, None):
+            outputs.append(("--" + opt.replace("_", "-"), getattr(args, opt)))
     for k, (opt, out) in enumerate(outputs):
         for src_opt, src in inputs:
             if _same_file(out, src):
@@ -244,6 +312,8 @@ def fmt_num(x) -> str:
 
     >>> fmt_num(1234567), fmt_num(11.5), fmt_num(2.0), fmt_num(float("inf"))
     ('1,234,567', '11.5', '2', 'inf')
+    >>> fmt_num(12876312.4), fmt_num(0.30000000000000004), fmt_num(2.5e-7)
+    ('12,876,312.4', '0.3', '2.5e-07')
     """
     if isinstance(x, (int, np.integer)):
         return f"{int(x):,}"
@@ -252,7 +322,10 @@ def fmt_num(x) -> str:
         return str(x)
     if x == int(x) and abs(x) < 1e15:
         return f"{int(x):,}"
-    return f"{x:,.6g}" if abs(x) >= 1e6 or abs(x) < 1e-3 else f"{x:,.4f}".rstrip("0")
+    if abs(x) < 1e-3:
+        return f"{x:.6g}"
+    text = f"{x:,.2f}" if abs(x) >= 1e6 else f"{x:,.4f}"
+    return text.rstrip("0").rstrip(".")
 
 
 def print_block(title, rows, out=None):
@@ -280,6 +353,21 @@ def jsonable(x):
         x = x.item()
     if isinstance(x, float) and not math.isfinite(x):
         return str(x)
+    return x
+
+
+def derived(x):
+    """A value computed from the input (a total, a difference, a saving) for JSON: rounded to
+    15 significant digits, the precision float64 keeps for any decimal input, so that sums and
+    differences of decimal costs read as decimals (12.3, not 12.299999999999997); integers,
+    non-finite values and text as :func:`jsonable`.
+
+    >>> derived(45.3 - 33.0), derived(0.1 + 0.2), derived(12876312.37), derived(7)
+    (12.3, 0.3, 12876312.37, 7)
+    """
+    x = jsonable(x)
+    if isinstance(x, float) and math.isfinite(x):
+        return float(f"{x:.15g}")
     return x
 
 

@@ -8,7 +8,7 @@ import sys
 
 import fastmst
 from fastmst import io
-from fastmst.cli import common
+from fastmst.cli import common, summaries
 from fastmst.cli.common import CAUTION, EXIT_OK, fmt_num, jsonable
 from fastmst.plot import plot_forest
 
@@ -29,34 +29,44 @@ def add_parser(sub):
     common.add_input_options(p)
     common.add_solver_options(p)
     common.add_output_options(p)
+    summaries.add_summary_options(p.add_argument_group("summaries"))
     p.set_defaults(run=run)
 
 
 def run(args) -> int:
     common.check_outputs(args)
+    summaries.check_summary_options(args)
     rep = common.reporter(args)
     with rep:
         edges = common.load_edges(args, rep)
         common.check_coordinates(args, edges.coords is not None)
         kwargs = dict(method=args.method, maximize=args.maximize, threads=args.threads)
-        if args.required or args.excluded:
-            with rep.phase("reading links"):
-                if args.required:
-                    kwargs["required"] = io.read_positions(args.required, edges,
-                                                           func="--required")
-                if args.excluded:
-                    kwargs["excluded"] = io.read_positions(args.excluded, edges,
-                                                           all_parallel=True, func="--excluded")
+        constraints, links = common.read_constraints(args, edges, rep)
+        kwargs.update(constraints)
         with rep.phase("solving"):
             forest = fastmst.minimum_spanning_forest(edges.tail, edges.head, edges.weight,
                                                      edges.n_nodes, **kwargs)
         summary = _summary(args, edges, forest, rep)
+        if links:
+            summary["links"] = links
+        groups = None
+        if args.group_by:
+            sums = [c.strip() for c in args.sum.split(",")] if args.sum else []
+            groups = summaries.group_sums(io.forest_table(forest, edges), args.group_by, sums,
+                                          _weight_name(edges))
+            summary["groups"] = groups
+        lost_table, lost = summaries.unconnected(edges, forest)
+        summary["unconnected"] = lost
         # outputs under temporary names, renamed onto their targets only when all succeeded
         with io.StagedOutputs() as staged:
             with rep.phase("writing"):
                 for out in args.output:
                     io.write_forest(staged.path(out), forest, edges,
                                     spreadsheet_safe=args.spreadsheet_safe)
+                if args.unconnected:
+                    io.write_table(staged.path(args.unconnected), lost_table if lost_table
+                                   is not None else io.node_table(edges).slice(0, 0),
+                                   spreadsheet_safe=args.spreadsheet_safe)
             if args.plot:
                 with rep.phase("plotting"):
                     plot_forest(staged.path(args.plot), edges, forest,
@@ -82,12 +92,16 @@ def run(args) -> int:
             rows.append(("lightest edge" if forest.maximize else "heaviest edge",
                          f"{a} -- {b}, weight {fmt_num(forest.weights[i])} (edge position "
                          f"{forest.edges[i]})"))
+        rows.append(summaries.unconnected_row(lost))
+        rows += common.constraint_rows(links)
         if "requirement_cost" in summary:
             rows.append(("requirement cost", fmt_num(summary["requirement_cost"])))
         rows += [("method", forest.method), ("time", common.times_text(rep.times))]
         if summary["written"]:
             rows.append(("wrote", ", ".join(summary["written"])))
         common.print_block(f"fastmst solve: {edges.source}", rows)
+        for line in summaries.group_lines(groups or [], args.group_by, _weight_name(edges)):
+            print(line)
     if not args.json:
         print(CAUTION, file=sys.stdout if not args.quiet else sys.stderr)
     return EXIT_OK
@@ -104,11 +118,18 @@ def _summary(args, edges, forest, rep) -> dict:
                     "weight": jsonable(forest.weights[i]), "position": int(forest.edges[i])}
     d = {"source": edges.source, "nodes": edges.n_nodes, "edges": edges.n_edges,
          "components": forest.n_components, "forest_edges": len(forest),
-         "total_weight": jsonable(forest.weight), "maximize": forest.maximize,
+         "total_weight": common.derived(forest.weight), "maximize": forest.maximize,
          "method": forest.method, "heaviest_edge" if not forest.maximize else "lightest_edge":
          heaviest, "seconds": common.seconds(rep.times)}
     if args.required:
-        d["requirement_cost"] = jsonable(forest.required_excess)
-    d["written"] = list(args.output) + ([args.plot] if args.plot else [])
+        d["requirement_cost"] = common.derived(forest.required_excess)
+    d["written"] = list(args.output) + ([args.plot] if args.plot else []) + \
+        ([args.unconnected] if args.unconnected else [])
     d["caution"] = CAUTION
     return d
+
+
+def _weight_name(edges) -> str:
+    """The weight column's name in the forest table (as ``io.forest_table`` names it)."""
+    t, h, w = edges.columns
+    return "weight" if w in (t, h) else w
