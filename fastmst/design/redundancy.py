@@ -1,0 +1,219 @@
+"""redundancy: the cheapest extra links that keep a tree design connected after any single link
+failure (weighted tree augmentation to 2-edge-connectivity)."""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from fastmst import validation
+from fastmst.design.checks import check_nonnegative, graph_and_design
+from fastmst.design.shallow import best_links
+
+_FUNC = "backup_links"
+#: Largest number of candidate links the exact mode (scipy.optimize.milp) accepts.
+EXACT_LIMIT = 5_000
+#: Largest coverage matrix (links x tree links on their paths) the LP bound is built for.
+LP_LIMIT = 20_000_000
+
+
+@dataclass(frozen=True)
+class BackupLinks:
+    """Backup links for a tree design.
+
+    Attributes
+    ----------
+    forest : ndarray of shape (F,), dtype=int64
+        The design's links (input positions).
+    position : ndarray of shape (K,), dtype=int64
+        The chosen backup links (input positions), ascending.
+    weight : float
+        Total weight of the backup links (float64 sum).
+    lower_bound : float or None
+        A certified lower bound on the cheapest possible set of backup links: the value of a
+        feasible dual solution of the LP relaxation (None when not computed).
+    optimal : bool
+        True in exact mode: ``weight`` is the optimum.
+    single_points : ndarray of shape (S,), dtype=int64
+        Design links that no candidate link can back up (bridges of the candidate graph): they
+        stay single points of failure.
+    method : str
+        ``"frederickson-jaja"`` (2-approximation) or ``"exact"``.
+    """
+    forest: np.ndarray
+    position: np.ndarray
+    weight: float
+    lower_bound: float | None
+    optimal: bool
+    single_points: np.ndarray
+    method: str
+
+    def __len__(self) -> int:
+        return int(self.position.shape[0])
+
+
+def _paths(pnode, depth, pedge, a, b):
+    """For every link (a[k], b[k]) in one tree: the indices (into the forest) of the tree links
+    on its path, as CSR (indptr, edges), and how many of them lie on a[k]'s side of the
+    lowest common ancestor (the first ``side[k]`` of its entries)."""
+    indptr = np.zeros(a.size + 1, dtype=np.int64)
+    side = np.zeros(a.size, dtype=np.int64)
+    out = []
+    pn, dp, pe = pnode.tolist(), depth.tolist(), pedge.tolist()
+    for k, (u, v) in enumerate(zip(a.tolist(), b.tolist())):
+        left, right = [], []
+        while dp[u] > dp[v]:
+            left.append(pe[u])
+            u = pn[u]
+        while dp[v] > dp[u]:
+            right.append(pe[v])
+            v = pn[v]
+        while u != v:
+            left.append(pe[u])
+            right.append(pe[v])
+            u, v = pn[u], pn[v]
+        side[k] = len(left)
+        out += left
+        out += right
+        indptr[k + 1] = len(out)
+    return indptr, np.asarray(out, dtype=np.int64), side
+
+
+def _up_path_cover(indptr, edges, side, c, needed):
+    """Frederickson and JaJa's reduction: every candidate link (u, v) splits into its two
+    halves, u up to the lowest common ancestor and v up to it, each at the link's full cost;
+    the cheapest set of halves covering every coverable tree link is a minimum-cost
+    arborescence of their digraph, and costs at most twice the optimum (each link of an
+    optimal solution gives two halves).  Halves are ancestor-descendant paths of a rooted
+    tree, so the covering matrix is a network matrix, totally unimodular, and its LP has an
+    integral optimum: scipy.optimize.milp (HiGHS) proves it at the root of its search.
+    Returns the indices of the links with a chosen half."""
+    n_links = indptr.size - 1
+    start, stop = indptr[:-1], indptr[1:]
+    half_ptr = np.empty(2 * n_links + 1, dtype=np.int64)
+    half_ptr[0] = 0
+    half_ptr[1::2] = start + side
+    half_ptr[2::2] = stop
+    # the half columns: 2k (u's side) and 2k + 1 (v's side), both at cost c[k]
+    return np.unique(_exact(half_ptr, edges, np.repeat(c, 2), needed) // 2)
+
+
+def _lp_bound(indptr, edges, c, needed):
+    """Certified lower bound of the LP relaxation min c x, A x >= 1 (needed rows), 0 <= x <= 1,
+    from the dual solution of scipy.optimize.linprog (HiGHS): y >= 0 from its marginals and
+    z = max(0, A^T y - c) make a feasible dual, whose value sum(y) - sum(z) bounds the LP and
+    so the optimum from below, whatever the solver's tolerances."""
+    from scipy.optimize import linprog
+    A, rows = _matrix(indptr, edges, needed)
+    if rows.size == 0:
+        return 0.0
+    res = linprog(c, A_ub=-A, b_ub=-np.ones(rows.size), bounds=(0, 1), method="highs")
+    if res.status != 0:
+        return None
+    y = np.maximum(-np.asarray(res.ineqlin.marginals, dtype=np.float64), 0.0)
+    z = np.maximum(A.T @ y - c, 0.0)
+    return float(max(y.sum() - z.sum(), 0.0))
+
+
+def _matrix(indptr, edges, needed):
+    """The coverage matrix (needed tree links x candidate links) as CSR, and the row ids."""
+    from scipy.sparse import csr_array
+    rows = np.flatnonzero(needed)
+    remap = np.full(needed.size, -1, dtype=np.int64)
+    remap[rows] = np.arange(rows.size)
+    col = np.repeat(np.arange(indptr.size - 1), np.diff(indptr))
+    r = remap[edges]
+    keep = r >= 0
+    A = csr_array((np.ones(int(keep.sum())), (r[keep], col[keep])),
+                  shape=(rows.size, indptr.size - 1))
+    A.sum_duplicates()
+    A.data[:] = 1.0
+    return A, rows
+
+
+def _exact(indptr, edges, c, needed):
+    """The optimum by scipy.optimize.milp (HiGHS branch and bound): indices of the links."""
+    from scipy.optimize import Bounds, LinearConstraint, milp
+    A, rows = _matrix(indptr, edges, needed)
+    if rows.size == 0:
+        return np.empty(0, dtype=np.int64)
+    res = milp(c, constraints=LinearConstraint(A, lb=np.ones(rows.size), ub=np.inf),
+               integrality=np.ones(c.size), bounds=Bounds(0, 1))
+    if res.status != 0:
+        raise ValueError(f"{_FUNC}: the exact solver stopped without an optimum "
+                         f"({res.message}).")
+    return np.flatnonzero(res.x > 0.5)
+
+
+def backup_links(tail, head, weight, forest=None, *, n_nodes=None, excluded=None, exact=False,
+                 lower_bound=True):
+    """Cheapest extra links so that a tree design survives any single link failure.
+
+    Parameters
+    ----------
+    tail, head, weight : array_like of shape (E,)
+        Candidate links and their costs (>= 0).
+    forest : SpanningForest, or array_like of int or boolean mask of shape (E,), optional
+        The design: a spanning forest of the usable links.  Default: the minimum spanning
+        forest of the usable links.
+    n_nodes : int, optional
+    excluded : array_like of int or boolean mask, optional
+        Links that may not be used.
+    exact : bool, default False
+        Find the optimum with ``scipy.optimize.milp`` (at most ``EXACT_LIMIT`` candidate
+        links): an NP-hard problem, for small instances.  Otherwise the 2-approximation.
+    lower_bound : bool, default True
+        Compute the certified LP lower bound (``scipy.optimize.linprog``).
+
+    Returns
+    -------
+    BackupLinks
+
+    Notes
+    -----
+    The design plus the backup links is 2-edge-connected within each tree of the design, apart
+    from the ``single_points`` that no candidate covers.  A candidate link (u, v) backs up the
+    design links on the tree path from u to v; the problem is weighted tree augmentation.  The
+    2-approximation is that of Frederickson and JaJa, "Approximation algorithms for several
+    graph augmentation problems", SIAM J. Computing 10(2), 1981: each candidate becomes two
+    arcs from the lowest common ancestor of its ends down to each end, tree links point to
+    the root, and a minimum-cost arborescence picks links whose cost is at most twice the
+    optimum.  Here that arborescence is found as its equivalent covering of the tree links by
+    the candidates' halves (each end up to the common ancestor), an LP with a totally
+    unimodular matrix solved to an integral optimum by ``scipy.optimize.milp``.  Of several
+    parallel candidates only the cheapest (the earliest position among equal costs) is
+    considered.
+
+    Running time: the tree paths of the candidates are walked in Python (their total length L)
+    and HiGHS solves an LP with L nonzeros: this function is for designs of thousands to tens
+    of thousands of sites, not millions.
+    """
+    exact = validation.check_bool(exact, "exact", _FUNC)
+    lower_bound = validation.check_bool(lower_bound, "lower_bound", _FUNC)
+    d = graph_and_design(tail, head, weight, forest, n_nodes, excluded, _FUNC)
+    g = d.g
+    check_nonnegative(g, d.usable, _FUNC, "backup link selection")
+    cand = d.usable & ~d.in_forest
+    a, b, c, pos = best_links(g, cand)
+    if exact and a.size > EXACT_LIMIT:
+        raise ValueError(f"{_FUNC}: exact=True takes at most {EXACT_LIMIT} candidate links, "
+                         f"this graph has {a.size}; use exact=False (the 2-approximation with "
+                         f"its lower bound).")
+    indptr, edges, side = _paths(d.pnode, d.depth, d.pedge, a, b)
+    covered_edge = np.zeros(d.fpos.size, dtype=bool)
+    covered_edge[edges] = True
+    single = np.sort(d.fpos[~covered_edge])
+    bound = None
+    if lower_bound or exact:
+        if edges.size <= LP_LIMIT:
+            bound = _lp_bound(indptr, edges, c, covered_edge)
+    if exact:
+        chosen = np.sort(pos[_exact(indptr, edges, c, covered_edge)])
+        method = "exact"
+    else:
+        chosen = np.sort(pos[_up_path_cover(indptr, edges, side, c, covered_edge)])
+        method = "frederickson-jaja"
+    wsum = float(g.weight[chosen].astype(np.float64).sum()) if chosen.size else 0.0
+    return BackupLinks(forest=np.sort(d.fpos), position=chosen, weight=wsum,
+                       lower_bound=bound if lower_bound else None, optimal=exact,
+                       single_points=single, method=method)
