@@ -7,6 +7,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from fastmst import validation
+from fastmst._kernels.tie_rule import edge_order
 from fastmst._kernels.treewalk import light_shallow_walk, tree_distances
 from fastmst.design.checks import check_alpha, check_node, check_nonnegative
 from fastmst.solve import minimum_spanning_forest
@@ -69,10 +70,10 @@ def best_links(g, usable: np.ndarray):
 
     Returns (a, b, w, pos): a < b, float64 lengths, input positions; sorted by pair."""
     keep = np.flatnonzero(usable & (g.ktail != g.khead))
+    keep = keep[edge_order(g.kweight[keep], False)]          # tie-rule order
     a = np.minimum(g.ktail[keep], g.khead[keep]).astype(np.int64)
     b = np.maximum(g.ktail[keep], g.khead[keep]).astype(np.int64)
-    w = g.weight[keep]
-    order = np.lexsort((keep, w, b, a))
+    order = np.argsort(a * g.n_nodes + b, kind="stable")     # by pair, tie-rule order within
     a, b, keep = a[order], b[order], keep[order]
     first = np.ones(a.shape[0], dtype=bool)
     first[1:] = (a[1:] != a[:-1]) | (b[1:] != b[:-1])
