@@ -73,37 +73,67 @@ def generate(out, edges, nodes, files, seed=0):
           flush=True)
 
 
+def _io_self():
+    """Bytes this process has read through system calls (rchar) and from storage
+    (read_bytes), from /proc/self/io."""
+    out = {}
+    with open("/proc/self/io") as fh:
+        for line in fh:
+            key, _, value = line.partition(":")
+            out[key] = int(value)
+    return out["rchar"], out["read_bytes"]
+
+
 def solve_dask(data, workers, memory_limit, n_files=None, n_nodes=None, plan="auto",
-               split_every=8, max_task_edges=None, progress=False, check=False):
+               split_every=8, max_task_edges=None, progress=False, check=False,
+               light_per_node=None):
     import dask.dataframe as dd
     from distributed import Client, LocalCluster
 
     import fastmst.dask
+    from fastmst.dask import filter_kruskal
 
+    if light_per_node is not None:
+        filter_kruskal.LIGHT_PER_NODE = light_per_node
     files = _files(data, n_files)
     with LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
                       memory_limit=memory_limit, dashboard_address=None) as cluster, \
             Client(cluster) as client:
         ddf = dd.read_parquet(files)
+        io_before = client.run(_io_self)
         start = time.perf_counter()
         forest = fastmst.dask.minimum_spanning_forest(
             ddf, n_nodes, plan=plan, split_every=split_every, max_task_edges=max_task_edges,
             progress=progress)
         seconds = time.perf_counter() - start
+        io_after = client.run(_io_self)
         peaks = client.run(_peak_rss_self)
         restarts = len(client.scheduler_info()["workers"])
     info = forest.dask_plan
-    result = {"step": "dask", "files": len(files), "edges": forest.n_edges,
-              "nodes": forest.n_nodes, "workers": workers, "memory_limit": memory_limit,
-              "seconds": round(seconds, 1),
+    rchar = sum(io_after[w][0] - io_before[w][0] for w in io_after if w in io_before)
+    disk = sum(io_after[w][1] - io_before[w][1] for w in io_after if w in io_before)
+    passes = info["passes"] if plan in ("auto", "filter-kruskal") else []
+    n_passes = len(passes) or (1 + len(info["rounds"]) + bool(info["final"]))
+    result = {"step": "dask", "plan": info["plan"], "files": len(files),
+              "file_bytes": sum(os.path.getsize(f) for f in files),
+              "edges": forest.n_edges, "nodes": forest.n_nodes, "workers": workers,
+              "memory_limit": memory_limit, "seconds": round(seconds, 1),
               "peak_rss_per_worker_GiB": sorted(round(v / 2**30, 2) for v in peaks.values()),
               "peak_rss_client_GiB": round(_peak_rss_self() / 2**30, 2),
               "workers_at_end": restarts, "method": forest.method,
-              "n_partitions": info["n_partitions"], "max_task_edges": info["max_task_edges"],
-              "rounds": info["rounds"], "final": info["final"],
-              "phases": [(label, round(s, 1)) for label, s in info["phases"]],
+              "n_partitions": info["n_partitions"], "passes": n_passes,
+              "workers_rchar_bytes": rchar, "workers_storage_read_bytes": disk,
+              "rchar_bytes_per_pass": round(rchar / n_passes),
+              "per_pass": [{k: p.get(k) for k in ("pass", "kind", "seconds", "dask_seconds",
+                                                  "client_seconds", "column_bytes_read",
+                                                  "edges_in_band", "edges_kept",
+                                                  "components_after")} for p in passes],
+              "phases": info["phases"], "summary": info["summary"],
               "forest_edges": len(forest), "n_components": forest.n_components,
               "weight": forest.weight}
+    if plan not in ("auto", "filter-kruskal"):
+        result.update(max_task_edges=info["max_task_edges"], rounds=info["rounds"],
+                      final=info["final"])
     if check:
         import fastmst
         t, h, w = _load(files)
@@ -112,6 +142,36 @@ def solve_dask(data, workers, memory_limit, n_files=None, n_nodes=None, plan="au
                                                 and np.array_equal(want.labels, forest.labels))
     print(json.dumps(result), flush=True)
     return result
+
+
+def compare(data, workers, memory_limit, n_files=None, plan="auto", light_per_node=None):
+    """The in-memory path (Parquet load + solve) and the Dask path on the same files, each in
+    a fresh process, one after the other; prints both lines, the load average, and the ratio."""
+    import subprocess
+    here = os.path.abspath(__file__)
+    common = ["--data", data] + (["--files", str(n_files)] if n_files else [])
+    lines = {}
+    load = [os.getloadavg()[0]]
+    for step, extra in (("inmemory", []),
+                        ("dask", ["--workers", str(workers), "--memory-limit", memory_limit,
+                                  "--plan", plan]
+                         + (["--light-per-node", str(light_per_node)]
+                            if light_per_node is not None else []))):
+        run = subprocess.run([sys.executable, here, step] + common + extra,
+                             capture_output=True, text=True, check=True)
+        lines[step] = json.loads(run.stdout.strip().splitlines()[-1])
+        print(run.stdout.strip().splitlines()[-1], flush=True)
+        load.append(os.getloadavg()[0])
+    mem = lines["inmemory"]
+    base = mem["load_seconds"] + mem["solve_seconds"]
+    same = (mem["forest_edges"] == lines["dask"]["forest_edges"]
+            and mem["n_components"] == lines["dask"]["n_components"]
+            and mem["weight"] == lines["dask"]["weight"])
+    print(json.dumps({"step": "compare", "edges": mem["edges"], "inmemory_seconds": base,
+                      "dask_seconds": lines["dask"]["seconds"],
+                      "ratio_dask_over_inmemory": round(lines["dask"]["seconds"] / base, 2),
+                      "same_size_components_weight": same,
+                      "load_average_1min": [round(x, 2) for x in load]}), flush=True)
 
 
 def _load(files):
@@ -179,6 +239,14 @@ def main(argv=None):
     d.add_argument("--max-task-edges", type=int, default=None)
     d.add_argument("--progress", action="store_true")
     d.add_argument("--check", action="store_true", help="compare with the in-memory solve")
+    d.add_argument("--light-per-node", type=float, default=None)
+    c = sub.add_parser("compare", help="inmemory, then dask, each in a fresh process")
+    c.add_argument("--data", required=True)
+    c.add_argument("--workers", type=int, default=2)
+    c.add_argument("--memory-limit", default="3GiB")
+    c.add_argument("--files", type=int, default=None)
+    c.add_argument("--plan", default="auto")
+    c.add_argument("--light-per-node", type=float, default=None)
     m = sub.add_parser("inmemory")
     m.add_argument("--data", required=True)
     m.add_argument("--files", type=int, default=None)
@@ -190,7 +258,9 @@ def main(argv=None):
     elif a.cmd == "dask":
         solve_dask(a.data, a.workers, a.memory_limit, a.files, plan=a.plan,
                    split_every=a.split_every, max_task_edges=a.max_task_edges,
-                   progress=a.progress, check=a.check)
+                   progress=a.progress, check=a.check, light_per_node=a.light_per_node)
+    elif a.cmd == "compare":
+        compare(a.data, a.workers, a.memory_limit, a.files, a.plan, a.light_per_node)
     elif a.cmd == "inmemory":
         solve_in_memory(a.data, a.files, a.scipy)
     else:

@@ -6,9 +6,9 @@ prefix of that order.  Level ``k`` of the plan:
 
 1. From the validation pass's sample, keep the sampled edges whose endpoints lie in different
    current components (a uniform sample of the edges still in play) and choose the threshold
-   ``T_k`` below which about ``LIGHT_PER_NODE * n_k`` of them lie (``n_k`` components left);
-   when the estimated rest is no more than that, ``T_k`` is "no bound" and this level is the
-   last.
+   ``T_k`` below which about ``LIGHT_PER_NODE * n`` of them lie (``n`` nodes: the client
+   solves that many edges per level); when the estimated rest is no more than that, ``T_k``
+   is "no bound" and this level is the last.
 2. One pass over the partitions: each task keeps the edges in the band ``[T_{k-1}, T_k)``
    whose endpoints lie in different components of the broadcast labels (a ``np.take`` on
    the band only) and returns them: the *light* edges.  Edges below ``T_{k-1}`` are all
@@ -37,18 +37,23 @@ from fastmst._kernels.tie_rule import weight_keys
 from fastmst.dask import boruvka, chunks
 from fastmst.solve.solve import solve_trusted
 
-#: Light edges per component left, chosen per level (measured on bench/bench_dask.py: see
-#: docs/dask.md).  The client solves about this many edges per node at the first level.
+#: Light edges per node: each level's threshold is chosen so that the client solves about
+#: ``LIGHT_PER_NODE * n_nodes`` edges (measured on bench/bench_dask.py: see docs/dask.md).
 LIGHT_PER_NODE = 2.0
 #: Levels at most; the last one takes every edge left (progress is guaranteed before that,
 #: this only bounds the passes when the sample is too thin to steer).
 MAX_LEVELS = 32
 
 
-def _below(keys, gids, bound):
-    """Mask of the edges (keys, global ids) strictly below the threshold ``bound``."""
-    tk, tid = np.uint64(bound[0]), np.int64(bound[1])
-    return (keys < tk) | ((keys == tk) & (gids < tid))
+def _below(keys, offset, bound):
+    """Mask of the edges strictly below the threshold ``bound``: rule keys ``keys`` of the
+    edges whose global ids are ``offset, offset + 1, ...``."""
+    tk = np.uint64(bound[0])
+    below = keys < tk
+    tied = np.flatnonzero(keys == tk)  # few: the threshold's own weight
+    if tied.shape[0]:
+        below[tied] = tied + offset < bound[1]
+    return below
 
 
 def band(chunk, names, offset, labels, wdtype, maximize, lower, upper):
@@ -64,11 +69,10 @@ def band(chunk, names, offset, labels, wdtype, maximize, lower, upper):
         idx = None
     else:
         keys = weight_keys(w, maximize)
-        gids = np.arange(offset, offset + m, dtype=np.int64)
-        mask = np.ones(m, dtype=bool) if lower is None else ~_below(keys, gids, lower)
+        mask = np.ones(m, dtype=bool) if lower is None else ~_below(keys, offset, lower)
         if upper is not None:
-            mask &= _below(keys, gids, upper)
-        del keys, gids
+            mask &= _below(keys, offset, upper)
+        del keys
         idx = np.flatnonzero(mask)
         del mask
     tb, hb = (t, h) if idx is None else (t[idx], h[idx])
@@ -142,7 +146,7 @@ def solve(run, parts, names, offsets, n, n_edges, kdt, maximize, stats, run_id, 
         start = time.perf_counter()
         if level:
             sample.keep_remaining(labels)
-        left, upper = sample.threshold(LIGHT_PER_NODE * n_comp)
+        left, upper = sample.threshold(max(1.0, LIGHT_PER_NODE * n))
         if level == 0:
             left = float(n_edges)
         if level + 1 >= MAX_LEVELS:
@@ -175,8 +179,12 @@ def solve(run, parts, names, offsets, n, n_edges, kdt, maximize, stats, run_id, 
             f = solve_trusted(ct, ch, light["w"], n_comp, maximize=maximize, threads=None)
             del ct, ch
             pos = f.edges
-            chosen.append({k: v[pos] for k, v in light.items()})
-            del light
+            # The solve already gathered the forest's weights (and, on the first level, its
+            # endpoints): one random gather of the ids, and of the endpoints on later levels.
+            chosen.append({"id": light["id"][pos], "w": f.weights,
+                           "t": f.tail if labels is None else light["t"][pos],
+                           "h": f.head if labels is None else light["h"][pos]})
+            del light, pos
             new = f.labels.astype(ldt)
             labels = new if labels is None else np.take(new, labels)
             n_comp = int(f.n_components)

@@ -77,17 +77,17 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
     A first pass reads every partition to validate it, count its rows (the offsets that make
     global edge ids) and draw a uniform sample of about 2**20 rows in all.
 
-    "filter-kruskal" then runs levels of one pass each.  With ``n`` components left, the
-    sample gives a threshold in the (weight, edge id) order below which about ``2 n`` of the
-    edges still joining different components lie; each task returns those *light* edges of its
-    partition (label lookups only for the edges in the threshold band), the client solves their
-    forest with the in-memory kernels (all of it belongs to the answer), contracts the
+    "filter-kruskal" then runs levels of one pass each.  The sample gives a threshold in the
+    (weight, edge id) order below which about ``2 * n_nodes`` of the edges still joining
+    different components lie; each task returns those *light* edges of its partition (label
+    lookups only for the edges between the previous threshold and this one), the client solves
+    their forest with the in-memory kernels (all of it belongs to the answer), contracts the
     components and broadcasts the labels (4 bytes per node, once per pass).  When the sample
-    says the rest is no more than ``2 n`` edges, the level takes everything left and is the
-    last.  On random graphs with four or more edges per node this is two levels.  Each pass
-    costs one read of the partitions and O(rows) work per task; nothing is persisted between
-    passes.  Tasks hold one partition and the labels; the client holds the labels, the forest
-    and one level's light edges (about 24 bytes per edge).
+    says the rest is no more than ``2 * n_nodes`` edges, the level takes everything left and
+    is the last: on random graphs with 2.5 to 8 edges per node, two levels.  Each pass costs
+    one read of the partitions and O(rows) work per task; nothing is persisted between passes.
+    Tasks hold one partition and the labels; the client holds the labels, the forest and one
+    level's light edges (see docs/dask.md for measured peaks).
 
     Ties are broken exactly as in the in-memory function, so the forest is unique and does not
     depend on the partitioning, the order tasks run in, or retries after a worker is lost.
