@@ -4,8 +4,9 @@ Everything here is invented: the district, its villages and farms, its roads, th
 classes and their costs per metre.  The district is placed in the open North Atlantic (around
 32 W, 44 N) so that no real place is implied.  The scenario exercises the whole file path:
 it writes a site table and a candidate-trench table as CSV, reads them back through
-``fastmst.io``, solves the cheapest backbone, ranks its riskiest links by ``fastmst.sensitivity``
-(the smallest relative cost rise that changes the design), and writes CSV, GeoJSON, a PNG map,
+``fastmst.io``, solves the cheapest backbone, lists its nearly tied cost choices by ``fastmst.sensitivity``
+(the trenches whose smallest relative cost rise changes the design; ``fastmst margins`` gives
+the same for any file), and writes CSV, GeoJSON, a PNG map,
 a JSON summary and a README to the output folder.  ``fastmst demo`` (:mod:`fastmst.cli.demo`)
 runs it from the command line.
 """
@@ -127,10 +128,10 @@ def run(out_dir="fastmst-demo-output", *, n_sites=30_000, seed=2024, reporter=No
         with np.errstate(divide="ignore", invalid="ignore"):
             rel = np.where(forest.weights > 0, margin / forest.weights, np.inf)
         finite = np.flatnonzero(np.isfinite(rel))
-        risky = finite[np.lexsort((pos[finite], rel[finite]))][:10]
+        near = finite[np.lexsort((pos[finite], rel[finite]))][:10]
     table = io.forest_table(forest, edges)   # carries surface and length_m from the input
     table = table.append_column("margin", pa.array(margin))
-    props = {"surface": f_surface, "length_m": f_length, "margin": margin}
+    props = {"margin": margin}     # the carried columns (surface, length_m) come with the table
     files = []
     with phase("writing"):
         io.write_table(out / "backbone.csv", table)
@@ -141,7 +142,7 @@ def run(out_dir="fastmst-demo-output", *, n_sites=30_000, seed=2024, reporter=No
         groups = (np.array([index[x] for x in f_surface.tolist()], dtype=np.int64),
                   [n for n, _, _ in SURFACES], [c for _, _, c in SURFACES])
         with phase("plotting"):
-            plot_forest(out / "backbone.png", edges, forest, groups=groups, highlight=risky,
+            plot_forest(out / "backbone.png", edges, forest, groups=groups, highlight=near,
                         title=SCENARIO,
                         footnote="Invented data: no real place, network or price. A spanning "
                                  "tree has no redundancy; designs need review by licensed "
@@ -156,10 +157,10 @@ def run(out_dir="fastmst-demo-output", *, n_sites=30_000, seed=2024, reporter=No
         by_surface[name] = {"cost_per_m": rate, "trenches": int(sel.sum()),
                             "km": round(float(f_length[sel].sum()) / 1000, 3),
                             "cost": round(float(forest.weights[sel].sum()), 2)}
-    riskiest = []
-    for i in risky.tolist():
+    nearly_tied = []
+    for i in near.tolist():
         a, b = edges.label([forest.tail[i], forest.head[i]]).tolist()
-        riskiest.append({"from": a, "to": b, "surface": str(f_surface[i]),
+        nearly_tied.append({"from": a, "to": b, "surface": str(f_surface[i]),
                          "cost": float(forest.weights[i]), "margin": float(margin[i]),
                          "margin_percent": round(100 * float(rel[i]), 4),
                          "position": int(pos[i])})
@@ -173,7 +174,7 @@ def run(out_dir="fastmst-demo-output", *, n_sites=30_000, seed=2024, reporter=No
         "by_surface": by_surface,
         "sensitivity": "computed",
         "bridges": int(np.isinf(margin).sum()),
-        "riskiest": riskiest, "files": files,
+        "nearly_tied_cost_choices": nearly_tied, "files": files,
         "seconds": {k: round(v, 4) for k, v in (rep.times.items() if rep else [])},
         "cautions": CAUTIONS,
     }
@@ -208,9 +209,10 @@ def format_summary(s) -> str:
         lines.append(f"    {name:<15} {d['cost_per_m']:>6.0f}/m  {d['trenches']:>6,} trenches  "
                      f"{d['km']:>8,.1f} km  {d['cost']:>14,.0f}")
     lines.append("")
-    if s["riskiest"]:
-        lines.append("  riskiest links (smallest cost rise, in percent, that changes the design):")
-        for r in s["riskiest"]:
+    if s["nearly_tied_cost_choices"]:
+        lines.append("  nearly tied cost choices (smallest cost rise, in percent, that changes "
+                     "the design):")
+        for r in s["nearly_tied_cost_choices"]:
             lines.append(f"    {r['from']} -- {r['to']}  {r['surface']:<14} cost "
                          f"{r['cost']:>10,.0f}  may rise {r['margin']:>9,.2f} "
                          f"({r['margin_percent']:.3f} %)")

@@ -205,7 +205,7 @@ def _too_large_id_error(t: np.ndarray, h: np.ndarray, hi: int, m: int, why: str,
     first = int(np.flatnonzero(arr == arr.dtype.type(hi))[0])
     raise ValueError(f"{func}: {name}[{first}] = {hi} implies n_nodes = {hi + 1} (ids run from 0 "
                      f"to the largest one), and {why}. Ids are compact indices 0..n_nodes-1; "
-                     f"with {m} edges, ids this large are labels or a typo: relabel them with "
+                     f"with {m} {'edge' if m == 1 else 'edges'}, ids this large are labels or a typo: relabel them with "
                      f"labels, idx = np.unique(np.concatenate([tail, head]), "
                      f"return_inverse=True) (tail = idx[:E], head = idx[E:]), or fix the id.")
 

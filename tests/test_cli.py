@@ -264,7 +264,7 @@ def test_demo_default_folder(tmp_path):
     assert len(back) == summary["backbone_trenches"] == 1500 - summary["components"]
     doc = json.loads((out / "backbone.geojson").read_text())
     assert len(doc["features"]) == len(back)
-    assert summary["sensitivity"] == "computed" and len(summary["riskiest"]) == 10
+    assert summary["sensitivity"] == "computed" and len(summary["nearly_tied_cost_choices"]) == 10
     assert "margin" in back[0]
 
 

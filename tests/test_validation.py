@@ -84,12 +84,20 @@ _API = {
     "check_forest": [
         (lambda: fastmst.check_forest(*_G, edges=["a"]), TypeError, "edges", "dtype <U1"),
         (lambda: fastmst.check_forest(*_G, edges=[7]), ValueError, "edges", "= 7"),
+        (lambda: fastmst.check_forest(*_G, edges=[0], required=["a"]), TypeError, "required",
+         "dtype <U1"),
+        (lambda: fastmst.check_forest(*_G, edges=[0], excluded=[9]), ValueError, "excluded",
+         "= 9"),
     ],
     "sensitivity": [
         (lambda: fastmst.sensitivity(*_G, forest=_forest(), return_partner="yes"), TypeError,
          "return_partner", "str 'yes'"),
         (lambda: fastmst.sensitivity(*_G, forest=_forest(), maximize=True), ValueError,
          "maximize", "maximize=True"),
+        (lambda: fastmst.sensitivity(*_G, forest=_forest(), required=[0.5]), TypeError,
+         "required", "dtype float64"),
+        (lambda: fastmst.sensitivity(*_G, forest=_forest(), excluded=[9]), ValueError,
+         "excluded", "= 9"),
     ],
     "single_linkage": [
         (lambda: fastmst.single_linkage("f"), TypeError, "SpanningForest", "received str"),
@@ -125,7 +133,16 @@ _API = {
         (lambda: _forest().clusters(k=np.int64(9)), ValueError, "k", "k = 9"),
         (lambda: _forest().clusters(threshold="a"), TypeError, "threshold", "str 'a'"),
     ],
+    "SpanningForest.path": [
+        (lambda: _forest().path(0.5, 1), TypeError, "a", "dtype float64"),
+        (lambda: _forest().path(0, 9), ValueError, "b", "node id 9"),
+        (lambda: _forest().path([0, 1], [1, 2]), ValueError, "single node ids", "shapes (2,)"),
+    ],
     "SpanningForest.add_edges": [
+        (lambda: _forest().add_edges([0], [1], [1.0], required=[0.5]), TypeError, "required",
+         "dtype float64"),
+        (lambda: _forest().add_edges([0], [1], [1.0], excluded=[3]), ValueError, "excluded",
+         "= 3"),
         (lambda: _forest().add_edges([0.5], [1], [1.0]), TypeError, "tail", "dtype float64"),
         (lambda: _forest().add_edges([0], [1], [np.nan]), ValueError, "weight[0]", "NaN"),
     ],

@@ -1,7 +1,8 @@
-"""The ``fastmst`` command: solve, check, clusters, bench and demo.
+"""The ``fastmst`` command: solve, check, clusters, margins, path, what-if, bench and demo.
 
 One module per subcommand (:mod:`~fastmst.cli.solve`, :mod:`~fastmst.cli.check`,
-:mod:`~fastmst.cli.clusters`, :mod:`~fastmst.cli.bench`, :mod:`~fastmst.cli.demo`), each with
+:mod:`~fastmst.cli.clusters`, :mod:`~fastmst.cli.margins`, :mod:`~fastmst.cli.path`,
+:mod:`~fastmst.cli.whatif`, :mod:`~fastmst.cli.bench`, :mod:`~fastmst.cli.demo`), each with
 ``add_parser(subparsers)`` and ``run(args) -> exit code``; shared options, exit codes and the
 caution are in :mod:`~fastmst.cli.common`.  Adding a command: a new module with those two
 functions, listed in :data:`COMMANDS`.
@@ -19,10 +20,12 @@ import argparse
 import sys
 
 import fastmst
-from fastmst.cli import bench, check, clusters, demo, solve
+from fastmst.cli import bench, check, clusters, demo, margins, path, solve, whatif
+from fastmst.cli import backup, failures, feeders, shallow
 from fastmst.cli.common import EXIT_DATA, EXIT_USAGE, UsageError
 
-COMMANDS = (solve, check, clusters, bench, demo)
+COMMANDS = (solve, check, clusters, margins, path, whatif, failures, backup, feeders, shallow,
+            bench, demo)
 
 
 def build_parser() -> argparse.ArgumentParser:

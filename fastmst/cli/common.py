@@ -16,7 +16,6 @@ import numpy as np
 import fastmst
 from fastmst import io
 from fastmst.cli.progress import Reporter
-from fastmst.io.links import read_links
 
 CAUTION = ("Caution: a spanning tree has no redundancy - one failed link disconnects every site "
            "beyond it. Designs for utilities or roads need review by licensed engineers under "
@@ -119,7 +118,7 @@ def read_constraints(args, edges, rep):
             path = getattr(args, opt, None)
             if not path:
                 continue
-            links = read_links(path, edges, parallel=parallel, func=f"--{opt}")
+            links = io.read_links(path, edges, parallel=parallel, func=f"--{opt}")
             kwargs[opt] = links.positions
             d = {"file": path, "rows": links.rows, "links": int(np.unique(links.positions).size),
                  "named_by": links.named_by}
@@ -380,3 +379,44 @@ def edge_json(edges, p) -> dict:
 
 def yes(b) -> str:
     return "yes" if b else "NO"
+
+
+# --- commands that analyse a design ----------------------------------------------------------------
+
+def solve_design(args, edges, rep):
+    """(forest, links summary): the optimal forest of ``edges`` under --required/--excluded
+    (and --maximize when the command has it)."""
+    constraints, links = read_constraints(args, edges, rep)
+    with rep.phase("solving"):
+        forest = fastmst.minimum_spanning_forest(
+            edges.tail, edges.head, edges.weight, edges.n_nodes,
+            maximize=bool(getattr(args, "maximize", False)), **constraints)
+    return forest, links
+
+
+def node_id(edges, label, opt: str) -> int:
+    """The compact id of the site called ``label`` (compared as text, as written)."""
+    names = edges.label(np.arange(edges.n_nodes))
+    hits = np.flatnonzero(np.asarray([str(x) for x in names.tolist()], dtype=object) == label)
+    if hits.size == 0:
+        raise ValueError(f"{opt} {label!r}: no site of that name in {edges.source} "
+                         f"({plural(edges.n_nodes, 'site')}); site names are compared as "
+                         f"written.")
+    return int(hits[0])
+
+
+def link_json(edges, p, weight=None) -> dict:
+    """Link ``p`` as JSON: :func:`edge_json` plus its link id when there is one."""
+    d = edge_json(edges, p)
+    if weight is not None:
+        d["weight"] = jsonable(weight)
+    if edges.link_id is not None:
+        d[edges.link_id] = edges.attributes.column(edges.link_id)[int(p)].as_py()
+    return d
+
+
+def link_text(d, edges) -> str:
+    """A link of :func:`link_json` for the screen."""
+    ident = f"{d[edges.link_id]} " if edges.link_id is not None else ""
+    return f"{ident}{d['tail']} -- {d['head']} (weight {fmt_num(d['weight'])}, position " \
+           f"{d['position']})"

@@ -20,13 +20,15 @@ class Reporter:
         if self.enabled:
             try:
                 from rich.console import Console
-                from rich.progress import (BarColumn, DownloadColumn, Progress, SpinnerColumn,
-                                           TextColumn, TimeElapsedColumn)
+                from rich.progress import (BarColumn, DownloadColumn, Progress, ProgressColumn,
+                                           SpinnerColumn, TextColumn, TimeElapsedColumn)
             except ImportError:  # rich is in the "cli" extra; without it, no bars
                 self.enabled = False
             else:
                 self._progress = Progress(SpinnerColumn(), TextColumn("{task.description}"),
-                                          BarColumn(), DownloadColumn(), TimeElapsedColumn(),
+                                          _only_measured(BarColumn(), ProgressColumn),
+                                          _only_measured(DownloadColumn(), ProgressColumn),
+                                          TimeElapsedColumn(),
                                           console=Console(file=sys.stderr), transient=True)
 
     @classmethod
@@ -74,3 +76,15 @@ class Reporter:
             self.times[name] = self.times.get(name, 0.0) + time.perf_counter() - start
             if task[0] is not None:
                 self._progress.remove_task(task[0])
+
+
+def _only_measured(column, base):
+    """``column`` (a bar, a byte count) shown only for tasks with a known total: a phase
+    without measured progress shows its spinner and elapsed time, never an empty bar or
+    ``0/? bytes``."""
+    class Measured(base):
+        def render(self, task):
+            if task.total is None:
+                return ""
+            return column.render(task)
+    return Measured()

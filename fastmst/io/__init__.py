@@ -21,6 +21,7 @@ This module is the public face; the work is done in its modules:
 ``files``          ``read_edges``, ``write_table``, ``write_forest`` through the registry
 ``layers``         GIS line and point layers (pyogrio), ``snapping`` joins line end points
 ``positions``      edges named in a file by position or by label pairs
+``links``          lists of links named by link id, position or site pair (``read_links``)
 ``adapters``       pandas/pyarrow, SciPy and networkx in; tables and graphs out
 ``atomic``         atomic file writing
 ``checks``         file and table checks, ``FileFormatError``
@@ -28,8 +29,8 @@ This module is the public face; the work is done in its modules:
 """
 from fastmst.io import formats as _formats  # noqa: F401  (registers every format)
 from fastmst.io import registry as _registry
-from fastmst.io.adapters import (forest_table, from_networkx, from_scipy, from_table, node_table,
-                                 to_networkx)
+from fastmst.io.adapters import (edge_table, forest_table, from_networkx, from_scipy, from_table,
+                                 node_table, to_networkx)
 from fastmst.io.atomic import StagedOutputs, atomic_write
 from fastmst.io.checks import (FileFormatError, check_column, check_no_missing,
                                check_unique_labels)
@@ -39,6 +40,7 @@ from fastmst.io.formats.csv import CSV_BLOCK_SIZE
 from fastmst.io.formats.geojson import write_geojson
 from fastmst.io.formats.gpkg import write_geopackage
 from fastmst.io.labels import encode_labels, label_array
+from fastmst.io.links import LinkList, read_links
 from fastmst.io.layers import read_line_layer, read_point_layer
 from fastmst.io.nodes import NodeTable, read_nodes
 from fastmst.io.positions import read_forest_positions, read_positions
@@ -55,5 +57,6 @@ __all__ = ["EdgeList", "NodeTable", "FileFormatError", "FORMATS", "WRITE_FORMATS
            "read_line_layer", "read_point_layer", "write_geopackage",
            "from_table", "from_scipy", "from_networkx", "to_networkx", "forest_table",
            "node_table", "read_positions", "read_forest_positions", "load_table",
+           "read_links", "LinkList", "edge_table",
            "atomic_write", "StagedOutputs", "label_array", "encode_labels", "detect_format", "Format", "register",
            "check_column", "check_no_missing", "check_unique_labels", "CSV_BLOCK_SIZE"]

@@ -1,7 +1,8 @@
 """Edge lists from in-memory objects, and forests back to tables and graphs.
 
 ``from_table`` (pandas/pyarrow), ``from_scipy`` (sparse matrices), ``from_networkx``; the way
-back: ``to_networkx``, ``forest_table`` (the forest as a pyarrow Table in the user's labels) and
+back: ``to_networkx``, ``forest_table`` (the forest as a pyarrow Table in the user's labels),
+``edge_table`` (any links in the same layout) and
 ``node_table`` (one row per node with values such as cluster numbers).
 """
 from __future__ import annotations
@@ -198,6 +199,29 @@ def forest_table(forest, edges: EdgeList, columns=None):
             raise ValueError(f"forest_table: {edges.source} carries {attrs.num_rows} rows of "
                              f"columns for {edges.n_edges} edges; the EdgeList was modified.")
         taken = attrs.take(pa.array(np.asarray(forest.edges, dtype=np.int64)))
+        for name in taken.column_names:
+            if name not in cols:
+                cols[name] = taken.column(name)
+    return pa.table(cols)
+
+
+def edge_table(edges: EdgeList, positions=None, columns=None):
+    """Links of ``edges`` as a pyarrow Table, in the layout of :func:`forest_table`: tail,
+    head (user labels), weight, position, then the carried columns (``columns`` chooses among
+    them).  ``positions``: which links, in that order (default all, in input order)."""
+    import pyarrow as pa
+    pos = (np.arange(edges.n_edges, dtype=np.int64) if positions is None else
+           validation.check_positions(positions, edges.n_edges, "positions", "edge_table"))
+    tn, hn, wn = edges.columns
+    if wn in (tn, hn):
+        wn = "weight"
+    cols = {tn: label_array(edges.label(edges.tail[pos])),
+            hn: label_array(edges.label(edges.head[pos])),
+            wn: pa.array(np.asarray(edges.weight)[pos]), "position": pa.array(pos)}
+    attrs = edges.attributes if columns is None else \
+        chosen_attributes(edges, columns, "edge_table")
+    if attrs is not None and attrs.num_columns:
+        taken = attrs.take(pa.array(pos))
         for name in taken.column_names:
             if name not in cols:
                 cols[name] = taken.column(name)

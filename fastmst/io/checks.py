@@ -101,6 +101,10 @@ def check_unique_labels(labels: np.ndarray, column: str, source: str, where) -> 
                               f"duplicate rows.")
 
 
+# singular of the words ``check_declared_nodes`` counts with ("holds 1 arc", not "1 arcs")
+_SINGULAR = {"arcs": "arc", "stored entries": "stored entry", "edges": "edge"}
+
+
 def check_declared_nodes(n: int, n_edges: int, declared, source: str, what: str) -> int:
     """The node count ``n`` a file's header declares, checked against what the file holds.
 
@@ -118,6 +122,7 @@ def check_declared_nodes(n: int, n_edges: int, declared, source: str, what: str)
         return n
     if n > limit:
         gib = n * 8 / 2**30
+        what = _SINGULAR.get(what, what) if n_edges == 1 else what
         raise FileFormatError(f"{source}: the header declares {n:,} nodes but the file holds "
                               f"{n_edges:,} {what}; every declared node costs memory (8 bytes "
                               f"for its label alone, {gib:,.1f} GiB here, several times that "

@@ -77,7 +77,8 @@ def choose_edge_columns(names, tail, head, weight, source, geometry):
     name lengths computed from coordinates rather than a column.
     """
     if len(names) < 2 and (tail is None or head is None):
-        raise FileFormatError(f"{source}: found {len(names)} column(s) "
+        raise FileFormatError(f"{source}: found {len(names)} "
+                              f"{'column' if len(names) == 1 else 'columns'} "
                               f"({', '.join(map(repr, names)) or 'none'}); expected at least "
                               f"tail and head columns and a weight. Is the separator right "
                               f"(CSV ',' or TSV tab)?")

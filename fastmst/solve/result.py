@@ -2,7 +2,7 @@
 
 Every field is declared in the class (``__slots__``, no ``__dict__``); nothing is attached from
 outside.  The forest's methods call the toolkit's array engines, which sit below this module:
-``fastmst.toolkit.pathmax`` (merge tree), ``bottleneck``, ``clusters`` and ``update``.
+``fastmst.toolkit.pathmax`` (merge tree), ``bottleneck``, ``paths``, ``clusters`` and ``update``.
 """
 from __future__ import annotations
 
@@ -11,6 +11,7 @@ import numpy as np
 from fastmst.solve import totals
 from fastmst.toolkit import bottleneck as _bottleneck
 from fastmst.toolkit import clusters as _clusters
+from fastmst.toolkit import paths as _paths
 from fastmst.toolkit import update as _update
 
 _NONE = np.empty(0, dtype=np.int64)
@@ -231,6 +232,22 @@ class SpanningForest:
         ([3.0, 3.0, -inf], [3, 3, -1])
         """
         return _bottleneck.bottleneck(self, a, b, threads)
+
+    def path(self, a, b):
+        """Input positions of the forest edges on the path from node ``a`` to node ``b``.
+
+        In order from ``a``; an empty array when ``a == b``; None when the two nodes lie in
+        different components.  For a forest solved with ``required``/``excluded`` edges this
+        is the path of that design.  The heaviest of them is ``bottleneck(a, b)``.
+
+        Examples
+        --------
+        >>> import fastmst
+        >>> f = fastmst.minimum_spanning_forest([0, 1, 2, 0], [1, 2, 3, 3], [1.0, 4.0, 2.0, 3.0])
+        >>> f.path(0, 2).tolist(), f.path(1, 1).tolist()
+        ([3, 2], [])
+        """
+        return _paths.forest_path(self, a, b)
 
     def add_edges(self, tail, head, weight, n_nodes=None, *, required=None,
                   excluded=None) -> "SpanningForest":

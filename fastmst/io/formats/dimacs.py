@@ -155,8 +155,10 @@ def _diagnose(p) -> FileFormatError:
         return FileFormatError(f"{p}: no 'p sp NODES ARCS' header line; is this a DIMACS "
                                f"shortest-path .gr file?")
     if n_arcs != header[2]:
-        return FileFormatError(f"{p}: the header on line {header[0]} says {header[2]} arcs but "
-                               f"the file has {n_arcs} 'a' lines; fix the count or the file "
+        arcs = "arc" if header[2] == 1 else "arcs"
+        lines = "line" if n_arcs == 1 else "lines"
+        return FileFormatError(f"{p}: the header on line {header[0]} says {header[2]} {arcs} but "
+                               f"the file has {n_arcs} 'a' {lines}; fix the count or the file "
                                f"(was it cut short?).")
     return FileFormatError(f"{p}: the file could not be read as a DIMACS .gr file.")
 
