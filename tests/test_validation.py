@@ -7,6 +7,7 @@ import pytest
 from hypothesis import given, strategies as st
 
 import fastmst
+from fastmst import design
 
 MSF = fastmst.minimum_spanning_forest
 
@@ -162,6 +163,22 @@ _API = {
     ],
     "read_nodes": [
         (lambda: fastmst.read_nodes(3), TypeError, "read_nodes", "received int"),
+    ],
+    "design.link_failures": [
+        (lambda: design.link_failures(*_G, root="a"), TypeError, "root", "str 'a'"),
+        (lambda: design.link_failures(*_G, root=9), ValueError, "root", "= 9"),
+    ],
+    "design.backup_links": [
+        (lambda: design.backup_links(*_G, exact="yes"), TypeError, "exact", "str 'yes'"),
+        (lambda: design.backup_links(*_G, excluded=[9]), ValueError, "excluded", "= 9"),
+    ],
+    "design.capacitated_tree": [
+        (lambda: design.capacitated_tree(*_G, 0, "3"), TypeError, "capacity", "str '3'"),
+        (lambda: design.capacitated_tree(*_G, 0, -1), ValueError, "capacity", "-1"),
+    ],
+    "design.light_shallow_tree": [
+        (lambda: design.light_shallow_tree(*_G, 0, alpha="2"), TypeError, "alpha", "str '2'"),
+        (lambda: design.light_shallow_tree(*_G, 0, alpha=0.5), ValueError, "alpha", "0.5"),
     ],
 }
 
