@@ -21,6 +21,8 @@ from itertools import chain
 import networkx as nx
 import numpy as np
 
+from fastmst.nxbackend.gcpause import paused
+
 _INT32_LIMIT = 2**31
 
 
@@ -162,6 +164,7 @@ def from_networkx(G) -> NxEdges:
         raise TypeError(f"fastmst networkx backend: expected a networkx graph (nx.Graph, "
                         f"nx.MultiGraph, ...) or a graph converted by this backend; received "
                         f"{type(G).__name__}. Build one with nx.Graph(edges) first.")
-    if _plain(G) and not G.is_directed():
-        return _fast(G)
-    return _general(G)
+    with paused():
+        if _plain(G) and not G.is_directed():
+            return _fast(G)
+        return _general(G)

@@ -25,6 +25,7 @@ from __future__ import annotations
 import networkx as nx
 import numpy as np
 
+from fastmst.nxbackend.gcpause import paused
 from fastmst.nxbackend.graph import NxEdges, from_networkx
 from fastmst.nxbackend.weights import first_nan, read_weights
 from fastmst.solve import minimum_spanning_forest
@@ -70,14 +71,16 @@ def forest_positions(g: NxEdges, weight, maximize: bool, ignore_nan) -> np.ndarr
     return f.edges if kept is None else kept[f.edges]
 
 
-def edge_tuples(g: NxEdges, positions: np.ndarray, keys, data):
-    """The forest's edges as networkx's Kruskal yields them."""
-    columns = [g.nodes[g.tail[positions]].tolist(), g.nodes[g.head[positions]].tolist()]
-    if keys and g.keys is not None:
-        columns.append(g.keys[positions].tolist())
-    if data:
-        columns.append(g.data[positions].tolist())
-    return zip(*columns)
+def edge_tuples(g: NxEdges, positions: np.ndarray, keys, data) -> list:
+    """The forest's edges as networkx's Kruskal yields them (a list, built with the garbage
+    collector paused: see ``fastmst.nxbackend.gcpause``)."""
+    with paused():
+        columns = [g.nodes[g.tail[positions]].tolist(), g.nodes[g.head[positions]].tolist()]
+        if keys and g.keys is not None:
+            columns.append(g.keys[positions].tolist())
+        if data:
+            columns.append(g.data[positions].tolist())
+        return list(zip(*columns))
 
 
 def _edges(g: NxEdges, maximize: bool, algorithm, weight, keys, data, ignore_nan):
@@ -99,10 +102,12 @@ def _tree(G, maximize: bool, weight, algorithm, ignore_nan):
     if positions is None:
         func = nx.maximum_spanning_tree if maximize else nx.minimum_spanning_tree
         return func(H, weight, algorithm, ignore_nan, backend="networkx")
-    T = H.__class__()
-    T.graph.update(H.graph)
-    T.add_nodes_from(H.nodes.items())
-    T.add_edges_from(edge_tuples(g, positions, True, True))
+    edges = edge_tuples(g, positions, True, True)
+    with paused():
+        T = H.__class__()
+        T.graph.update(H.graph)
+        T.add_nodes_from(H.nodes.items())
+        T.add_edges_from(edges)
     return T
 
 
