@@ -96,7 +96,7 @@ def assert_identical(got, want):
         want.n_components, want.n_nodes, want.n_edges, want.maximize)
 
 
-@settings(max_examples=40)
+@settings(max_examples=30)
 @given(partitioned_graphs())
 def test_every_plan_identical_to_in_memory(graph):
     """Default plan, Filter-Kruskal forced into several levels, the filter tree and Borůvka
