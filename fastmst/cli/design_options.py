@@ -11,34 +11,8 @@ import numpy as np
 from fastmst import io
 from fastmst.cli import common
 from fastmst.cli.common import CAUTION, UsageError
+from fastmst.demo_design import DESIGN_CAUTION, plot_links
 from fastmst.io.labels import all_labels, label_array, lookup
-from fastmst.plot import plot_forest
-
-DESIGN_CAUTION = ("Planning aid only: resilience requirements (diverse routing, shared ducts and "
-                  "common-mode failures that a graph does not see), capacities and limits come "
-                  "from local codes and licensed engineers.")
-
-#: map colours of the ``why`` classes
-COLOURS = {"tree": "#1b4f9c", "backup": "#d62728", "feeder": "#ff7f0e", "branch": "#1b4f9c",
-           "shortcut": "#2ca02c", "single point": "#000000"}
-
-
-class Links:
-    """A set of links drawn by :func:`fastmst.plot.plot_forest` (tail, head, weights, edges)."""
-
-    maximize = False
-    required = excluded = None
-
-    def __init__(self, edges, positions):
-        self.n_nodes = edges.n_nodes
-        self.edges = np.asarray(positions, dtype=np.int64)
-        self.tail = edges.tail[self.edges]
-        self.head = edges.head[self.edges]
-        self.weights = edges.weight[self.edges]
-
-    def __len__(self):
-        return int(self.edges.shape[0])
-
 
 def add_design_options(p, *, root: str | None, design: bool):
     """--required/--excluded (and --design, --root: "required", "optional" or None)."""
@@ -175,16 +149,6 @@ def write_outputs(args, edges, table, positions, why, rep, *, title, subtitle):
                 plot_links(staged.path(args.plot), edges, positions, why, title=title,
                            subtitle=subtitle)
         staged.commit()
-
-
-def plot_links(path, edges, positions, why, *, title, subtitle=None, footnote=None):
-    """A map of the links coloured by their ``why`` class over all candidates (grey)."""
-    why = np.asarray(why, dtype=str)
-    names = [k for k in COLOURS if (why == k).any()]
-    idx = np.array([names.index(w) for w in why.tolist()], dtype=np.int64)
-    return plot_forest(path, edges, Links(edges, positions),
-                       groups=(idx, names, [COLOURS[k] for k in names]), title=title,
-                       subtitle=subtitle, footnote=footnote or DESIGN_CAUTION)
 
 
 def finish(args, title, rows, summary, rep) -> int:

@@ -1,0 +1,137 @@
+"""The demo's design part (invented Low Marren scenario): what single trench cuts cost, backup
+trenches around the invented exchange, and routes kept short from it; maps of link sets
+coloured by why each link is there (also used by the design subcommands)."""
+from __future__ import annotations
+
+import numpy as np
+
+from fastmst import io
+from fastmst.design import backup_links, light_shallow_tree, link_failures
+from fastmst.plot import plot_forest
+
+DESIGN_CAUTION = ("Planning aid only: resilience requirements (diverse routing, shared ducts and "
+                  "common-mode failures that a graph does not see), capacities and limits come "
+                  "from local codes and licensed engineers.")
+
+#: map colours of the ``why`` classes
+COLOURS = {"tree": "#1b4f9c", "backup": "#d62728", "feeder": "#ff7f0e", "branch": "#1b4f9c",
+           "shortcut": "#2ca02c", "single point": "#000000"}
+
+#: sites around the invented exchange given backup trenches in the demo
+BACKUP_SITES = 3_000
+
+
+class Links:
+    """A set of links drawn by :func:`fastmst.plot.plot_forest` (tail, head, weights, edges)."""
+
+    maximize = False
+    required = excluded = None
+
+    def __init__(self, edges, positions):
+        self.n_nodes = edges.n_nodes
+        self.edges = np.asarray(positions, dtype=np.int64)
+        self.tail = edges.tail[self.edges]
+        self.head = edges.head[self.edges]
+        self.weights = edges.weight[self.edges]
+
+    def __len__(self):
+        return int(self.edges.shape[0])
+
+
+def plot_links(path, edges, positions, why, *, title, subtitle=None, footnote=None):
+    """A map of the links coloured by their ``why`` class over all candidates (grey)."""
+    why = np.asarray(why, dtype=str)
+    names = [k for k in COLOURS if (why == k).any()]
+    idx = np.array([names.index(w) for w in why.tolist()], dtype=np.int64)
+    return plot_forest(path, edges, Links(edges, positions),
+                       groups=(idx, names, [COLOURS[k] for k in names]), title=title,
+                       subtitle=subtitle, footnote=footnote or DESIGN_CAUTION)
+
+
+def resilience(out, edges, forest, *, phase, plot=True, currency="cost units (invented)"):
+    """Failure analysis of the backbone, backup trenches for the sites nearest the invented
+    exchange, and a shallow tree from it; writes resilience.csv (and resilience.png).
+    Returns the summary part."""
+    import pyarrow as pa
+    xy = edges.coords
+    centre = xy.mean(axis=0)
+    exchange = int(np.argmin(np.hypot(*(xy - centre).T)))
+    with phase("failure analysis"):
+        fail = link_failures(edges.tail, edges.head, edges.weight, forest, root=exchange)
+    finite = np.flatnonzero(~fail.bridge)
+    with phase("backup trenches"):
+        # the sites nearest the exchange, with the trenches among them
+        near = np.argsort(np.hypot(*(xy - xy[exchange]).T), kind="stable")[:BACKUP_SITES]
+        inside = np.zeros(edges.n_nodes, dtype=bool)
+        inside[near] = True
+        keep = np.flatnonzero(inside[edges.tail] & inside[edges.head])
+        remap = np.full(edges.n_nodes, -1, dtype=np.int64)
+        remap[near] = np.arange(near.size)
+        local = io.EdgeList(remap[edges.tail[keep]], remap[edges.head[keep]],
+                            edges.weight[keep], int(near.size), labels=edges.label(near),
+                            coords=xy[near], geographic=edges.geographic,
+                            source="trenches near the exchange",
+                            columns=edges.columns)
+        back = backup_links(local.tail, local.head, local.weight, n_nodes=local.n_nodes)
+    with phase("shallow tree"):
+        shallow = light_shallow_tree(edges.tail, edges.head, edges.weight, exchange, alpha=1.5)
+    single = np.isin(back.forest, back.single_points)
+    pos = np.concatenate([back.forest, back.position])
+    why = np.concatenate([np.where(single, "single point", "tree"),
+                          np.full(len(back), "backup")])
+    ta, tb = local.label(local.tail[pos]), local.label(local.head[pos])
+    table = pa.table({"from": pa.array(ta.tolist()), "to": pa.array(tb.tolist()),
+                      "cost": pa.array(np.asarray(local.weight[pos])),
+                      "position": pa.array(keep[pos]),
+                      "why": pa.array(np.where(why == "single point", "tree", why).tolist()),
+                      "single_point": pa.array(single.tolist() + [False] * len(back))})
+    io.write_table(out / "resilience.csv", table)
+    files = ["resilience.csv"]
+    tree_w = float(local.weight[back.forest].sum())
+    if plot:
+        with phase("plotting"):
+            plot_links(out / "resilience.png", local, pos, why,
+                       title="Invented scenario: Low Marren - backup trenches near the exchange",
+                       subtitle=f"{local.n_nodes:,} sites nearest the exchange: backup "
+                                f"trenches (red) {back.weight:,.0f}, lower bound "
+                                f"{back.lower_bound:,.0f}, backbone {tree_w:,.0f}",
+                       footnote="Invented data. " + DESIGN_CAUTION)
+        files.append("resilience.png")
+    cut = int(np.argmax(fail.sites_cut_off)) if len(fail) else -1
+    return {
+        "exchange": str(edges.label([exchange])[0]),
+        "bridges": fail.n_bridges,
+        "worst_cut_sites": int(fail.sites_cut_off[cut]) if cut >= 0 else 0,
+        "dearest_repair": float(fail.cost_increase[finite].max()) if finite.size else 0.0,
+        "median_repair": float(np.median(fail.cost_increase[finite])) if finite.size else 0.0,
+        "backup_sites": int(local.n_nodes), "backup_backbone_cost": round(tree_w, 2),
+        "backup_trenches": len(back), "backup_cost": round(back.weight, 2),
+        "backup_lower_bound": round(back.lower_bound, 2) if back.lower_bound else 0.0,
+        "backup_single_points": int(back.single_points.size),
+        "shallow_alpha": shallow.alpha,
+        "shallow_weight_ratio": round(shallow.weight / shallow.mst_weight, 4),
+        "shallow_worst_stretch": round(float(np.nanmax(shallow.stretch)), 4),
+        "shallow_shortcuts": int((shallow.reason == "shortcut").sum()),
+        "files": files, "caution": DESIGN_CAUTION,
+    }
+
+
+def resilience_lines(r) -> list:
+    """The design part of the demo summary, as text lines."""
+    return [
+        "",
+        f"  single trench cuts (backbone, seen from the exchange {r['exchange']}):",
+        f"    trenches with no alternative route   {r['bridges']:,} (worst cuts off "
+        f"{r['worst_cut_sites']:,} sites)",
+        f"    repair cost rise: median {r['median_repair']:,.0f}, dearest "
+        f"{r['dearest_repair']:,.0f}",
+        f"  backup trenches for the {r['backup_sites']:,} sites nearest the exchange "
+        f"(Frederickson-JaJa 2-approximation):",
+        f"    {r['backup_trenches']:,} trenches, cost {r['backup_cost']:,.0f} (lower bound "
+        f"{r['backup_lower_bound']:,.0f}; backbone there {r['backup_backbone_cost']:,.0f}), "
+        f"{r['backup_single_points']:,} single points left",
+        f"  routes from the exchange within {r['shallow_alpha']:g} x the shortest: tree weight "
+        f"{r['shallow_weight_ratio']:.3f} x the backbone, worst stretch "
+        f"{r['shallow_worst_stretch']:.3f}, {r['shallow_shortcuts']:,} shortcut trenches",
+        "  " + r["caution"],
+    ]
