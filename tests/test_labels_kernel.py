@@ -15,6 +15,14 @@ from fastmst._kernels import labels as K  # noqa: E402
 from fastmst.io import labels as L  # noqa: E402
 
 
+@pytest.fixture(scope="module")
+def monkeypatch_module():
+    """A monkeypatch that hypothesis examples may share (undone after the module)."""
+    mp = pytest.MonkeyPatch()
+    yield mp
+    mp.undo()
+
+
 def reference(values):
     """(ids, labels) by first appearance, through np.unique (reference: NumPy)."""
     arr = np.array(values, dtype=object)
@@ -54,8 +62,11 @@ label = st.one_of(st.sampled_from(["", "a", "b", "ab", "abcdefgh", "abcdefghi", 
 @settings(max_examples=150, deadline=None)
 @given(tail=st.lists(label, min_size=0, max_size=60), head=st.lists(label, min_size=0, max_size=60),
        cuts=st.lists(st.integers(0, 200), max_size=4), large=st.booleans(), sliced=st.booleans(),
-       threads=st.sampled_from([1, 2, 3, 4]))
-def test_text_ids_match_numpy_first_appearance(tail, head, cuts, large, sliced, threads):
+       threads=st.sampled_from([1, 2, 3, 4]), piece=st.sampled_from([1, 3, 7, 64, 1 << 22]))
+def test_text_ids_match_numpy_first_appearance(tail, head, cuts, large, sliced, threads, piece,
+                                               monkeypatch_module):
+    """Every piece size (rounds of the partition passes that split chunks and span several)."""
+    monkeypatch_module.setattr(K, "PIECE_ROWS", piece)
     n = min(len(tail), len(head))
     tail, head = tail[:n], head[:n]
     ids, labels = reference(tail + head)
@@ -67,10 +78,12 @@ def test_text_ids_match_numpy_first_appearance(tail, head, cuts, large, sliced, 
     assert label_arrays(offsets, data) == list(labels)
 
 
+@pytest.mark.parametrize("piece", [50_000, 1 << 22])
 @pytest.mark.parametrize("n_labels", [1, 1000, 70_000])
-def test_text_ids_same_for_every_thread_count_and_match_arrow(n_labels):
-    """Many rows across several internal pieces (more than 65536 rows) and table growth;
-    reference: pyarrow dictionary_encode (first-appearance dictionary)."""
+def test_text_ids_same_for_every_thread_count_and_match_arrow(n_labels, piece, monkeypatch):
+    """Many rows in one or several rounds (``PIECE_ROWS``), tables that grow, labels new in
+    later rounds; reference: pyarrow dictionary_encode (first-appearance dictionary)."""
+    monkeypatch.setattr(K, "PIECE_ROWS", piece)
     rng = np.random.default_rng(n_labels)
     names = np.array([f"n{i}" if i % 3 else f"label-{i:09d}-long" for i in range(n_labels)])
     rows = names[rng.integers(0, n_labels, 150_000)].tolist()

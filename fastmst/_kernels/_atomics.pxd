@@ -1,4 +1,4 @@
-# Atomic, scheduling and OpenMP helpers shared by the parallel kernels (cimport them).
+# Atomic, scheduling, prefetch and OpenMP helpers shared by the kernels (cimport them).
 #
 # Relaxed and acquire/release atomics through the GCC and clang builtins; without them the
 # fallbacks are plain loads and stores, correct only single-threaded (the build without
@@ -40,6 +40,7 @@ cdef extern from *:
     }
     #define FASTMST_LOAD_RELAXED(p, out) __atomic_load((p), (out), __ATOMIC_RELAXED)
     #define FASTMST_STORE_RELAXED(p, v) __atomic_store((p), (v), __ATOMIC_RELAXED)
+    #define FASTMST_PREFETCH(p) __builtin_prefetch((const void*)(p))
     #define FASTMST_PREFETCH_W(p) __builtin_prefetch((const void*)(p), 1)
     #else
     /* No atomics known: only correct single-threaded (the build without OpenMP). */
@@ -56,6 +57,7 @@ cdef extern from *:
     static inline void fastmst_putz(Py_ssize_t* p, Py_ssize_t v) { *p = v; }
     #define FASTMST_LOAD_RELAXED(p, out) (*(out) = *(p))
     #define FASTMST_STORE_RELAXED(p, v) (*(p) = *(v))
+    #define FASTMST_PREFETCH(p) ((void)0)
     #define FASTMST_PREFETCH_W(p) ((void)0)
     #endif
     #ifdef _OPENMP
@@ -70,6 +72,8 @@ cdef extern from *:
     int64_t load64 "fastmst_load64"(const int64_t* p) noexcept nogil
     void load_relaxed "FASTMST_LOAD_RELAXED"(...) noexcept nogil
     void store_relaxed "FASTMST_STORE_RELAXED"(...) noexcept nogil
+    # Cache hints: read (scans, label tables) and write (Borůvka's hints)
+    void prefetch "FASTMST_PREFETCH"(const void* p) noexcept nogil
     void prefetch_w "FASTMST_PREFETCH_W"(const void* p) noexcept nogil
     # Filter-Kruskal: buckets claimed by the sort-ahead helpers
     bint claim8 "fastmst_claim8"(uint8_t* p, uint8_t expected, uint8_t desired) noexcept nogil

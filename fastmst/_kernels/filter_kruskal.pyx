@@ -32,10 +32,10 @@ import numpy as np
 from cython.parallel cimport parallel, prange, threadid
 from libc.stdint cimport int32_t, int64_t, uint8_t, uint32_t, uint64_t
 
-from fastmst._kernels._atomics cimport claim8, get8, put8, getz, putz, yield_cpu
+from fastmst._kernels._atomics cimport claim8, get8, put8, getz, prefetch, putz, yield_cpu
 from fastmst._kernels._typedefs cimport check_edge_arrays, index_t
 from fastmst._kernels.dsu cimport rp_find, rp_link, rp_root, rp_standard_parents
-from fastmst._kernels.radix cimport (Rec, digit_hist, digit_kp, prefetch, rec_less, sort_bucket,
+from fastmst._kernels.radix cimport (Rec, digit_hist, digit_kp, rec_less, sort_bucket,
                                      sort_records)
 from fastmst._kernels.tie_rule cimport rank_key, ukey_t
 from fastmst._kernels import radix

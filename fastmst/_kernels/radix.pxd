@@ -19,17 +19,6 @@ cdef inline bint rec_less(const Rec* x, const Rec* y) noexcept nogil:
     return x.key < y.key or (x.key == y.key and x.pos < y.pos)
 
 
-cdef extern from *:
-    """
-    #if defined(__GNUC__) || defined(__clang__)
-    #define FASTMST_PREFETCH(p) __builtin_prefetch((const void*)(p))
-    #else
-    #define FASTMST_PREFETCH(p) ((void)0)
-    #endif
-    """
-    void prefetch "FASTMST_PREFETCH"(const void* p) noexcept nogil
-
-
 cdef void sort_records(Rec* a, Py_ssize_t n, int top_bits) noexcept nogil
 cdef void split_top(Rec* a, Py_ssize_t n, int top_bits, Py_ssize_t* bounds,
                     int* next_shift) noexcept nogil

@@ -12,7 +12,8 @@ from libc.stdint cimport int32_t, int64_t, uint8_t, uint32_t
 
 from fastmst._kernels._typedefs cimport check_edge_arrays, index_t
 from fastmst._kernels.dsu cimport dsu_find, dsu_link
-from fastmst._kernels.radix cimport Rec, prefetch, sort_bucket
+from fastmst._kernels._atomics cimport prefetch
+from fastmst._kernels.radix cimport Rec, sort_bucket
 from fastmst._kernels import radix
 from fastmst._kernels.tie_rule import key_range, weight_bits
 
