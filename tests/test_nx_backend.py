@@ -351,6 +351,34 @@ def test_registered_with_networkx():
         assert "fastmst" in getattr(nx, name).backends
 
 
+_AUTOMATIC = """
+import networkx as nx
+from fastmst.nxbackend import interface
+calls = []
+for name in ("maximum_spanning_tree", "minimum_spanning_edges"):
+    func = getattr(interface, name)
+    setattr(interface, name, lambda *a, _f=func, _n=name, **k: calls.append(_n) or _f(*a, **k))
+G = nx.cycle_graph(5)
+T = nx.maximum_spanning_tree(G)
+E = list(nx.minimum_spanning_edges(G))
+print(sorted(calls), len(T.edges), len(E))
+"""
+
+
+@needs_backend
+def test_automatic_dispatch_from_environment():
+    """No code change: NETWORKX_BACKEND_PRIORITY sends the *_edges functions to the backend,
+    NETWORKX_BACKEND_PRIORITY_GENERATORS the *_tree functions (networkx files functions that
+    return graphs as generators)."""
+    env = dict(os.environ, NETWORKX_BACKEND_PRIORITY="fastmst",
+               NETWORKX_BACKEND_PRIORITY_GENERATORS="fastmst")
+    run = subprocess.run([sys.executable, "-c", _AUTOMATIC], capture_output=True, text=True,
+                         cwd=tempfile.gettempdir(), env=env)
+    assert run.returncode == 0, run.stderr[-2000:]
+    assert run.stdout.split() == ["['maximum_spanning_tree',", "'minimum_spanning_edges']",
+                                  "4", "4"]
+
+
 @needs_backend
 @pytest.mark.slow
 def test_networkx_mst_tests():
