@@ -11,6 +11,7 @@ from fastmst.toolkit.sensitivity import sensitivity
 from fastmst.toolkit.linkage import single_linkage
 from fastmst.geometry.points import point_spanning_tree
 from fastmst.geometry.steiner import SteinerTree, steiner_tree
+from fastmst.plot import plot_forest
 
 __version__ = "0.1.0"
 
@@ -18,3 +19,4 @@ __all__ = ["DisjointSet", "METHODS", "SpanningForest", "minimum_spanning_forest"
 __all__ += ["EdgeList", "read_edges", "read_nodes", "write_forest"]
 __all__ += ["ForestCheck", "check_forest", "sensitivity", "single_linkage"]
 __all__ += ["point_spanning_tree", "SteinerTree", "steiner_tree"]
+__all__ += ["plot_forest"]

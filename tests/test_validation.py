@@ -70,6 +70,11 @@ def _forest(maximize=False):
     return fastmst.minimum_spanning_forest(*_G, maximize=maximize)
 
 
+def _mapped():
+    """The edges of _G with node coordinates (for maps and GIS output)."""
+    return fastmst.EdgeList(*map(np.asarray, _G), 4, coords=np.arange(8.0).reshape(4, 2))
+
+
 def _geodesy():
     from fastmst.geometry import geodesy
     return geodesy
@@ -163,6 +168,24 @@ _API = {
     ],
     "read_nodes": [
         (lambda: fastmst.read_nodes(3), TypeError, "read_nodes", "received int"),
+    ],
+    "plot_forest": [
+        (lambda: fastmst.plot_forest(None, _mapped(), _forest(), required=[0.5]), TypeError,
+         "required", "dtype float64"),
+        (lambda: fastmst.plot_forest(None, _mapped(), _forest(), excluded=[9]), ValueError,
+         "excluded[0]", "= 9"),
+    ],
+    "read_line_layer": [
+        (lambda: fastmst.io.read_line_layer("links.gpkg", snap_tolerance="1"), TypeError,
+         "snap_tolerance", "str '1'"),
+        (lambda: fastmst.io.read_line_layer("links.gpkg", snap_tolerance=-1), ValueError,
+         "snap_tolerance", "-1.0"),
+    ],
+    "write_geopackage": [
+        (lambda: fastmst.io.write_geopackage("f.gpkg", _forest(), "edges"), TypeError,
+         "edges", "received str"),
+        (lambda: fastmst.io.write_geopackage("f.gpkg", _forest(), _mapped(), clusters=[0, 1]),
+         ValueError, "clusters", "shape (2,)"),
     ],
     "design.link_failures": [
         (lambda: design.link_failures(*_G, root="a"), TypeError, "root", "str 'a'"),
