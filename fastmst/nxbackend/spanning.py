@@ -1,7 +1,7 @@
 """The four networkx spanning-forest functions on the compiled solve.
 
 ``minimum_spanning_edges``, ``maximum_spanning_edges``, ``minimum_spanning_tree`` and
-``maximum_spanning_tree`` with networkx's signatures and semantics (networkx 3.6), for
+``maximum_spanning_tree`` with networkx's signatures and semantics (networkx 3.4 to 3.6), for
 ``algorithm="kruskal"``:
 
 * the result is networkx's own, edge for edge: networkx's Kruskal sorts the edges stably by
