@@ -21,6 +21,7 @@ import numpy as np
 
 import fastmst
 from fastmst import io
+from fastmst.demo_design import resilience, resilience_lines
 from fastmst.geometry.geodesy import haversine_m
 from fastmst.plot import plot_forest
 
@@ -94,7 +95,8 @@ def generate(n_sites: int = 30_000, seed: int = 2024):
     sites = {"id": ids, "lon": np.round(lonlat[:, 0], 7), "lat": np.round(lonlat[:, 1], 7),
              "kind": kind}
     names = np.array([name for name, _, _ in SURFACES])
-    trenches = {"from": ids[a], "to": ids[b], "surface": names[surface],
+    link_ids = np.array([f"T{i:06d}" for i in range(a.size)])
+    trenches = {"link_id": link_ids, "from": ids[a], "to": ids[b], "surface": names[surface],
                 "length_m": np.round(length, 2), "cost": cost}
     return sites, trenches
 
@@ -114,7 +116,7 @@ def run(out_dir="fastmst-demo-output", *, n_sites=30_000, seed=2024, reporter=No
     with phase("reading edges"):
         nodes = io.read_nodes(out / "sites.csv")
         edges = io.read_edges(out / "trenches.csv", tail="from", head="to", weight="cost",
-                              nodes=nodes)
+                              nodes=nodes, link_id="link_id")
     with phase("solving"):
         forest = edges.solve()
     surf_names = np.asarray(trenches["surface"])
@@ -124,7 +126,9 @@ def run(out_dir="fastmst-demo-output", *, n_sites=30_000, seed=2024, reporter=No
     f_length = lengths[pos]
     with phase("sensitivity"):
         sens = np.asarray(fastmst.sensitivity(edges.tail, edges.head, edges.weight, forest))
-        margin = sens[pos]
+        # margins are differences of costs with two decimals: written to 15 significant
+        # digits, so that 2308.47 is not written as 2308.4700000000003
+        margin = np.array([float(f"{x:.15g}") for x in sens[pos].tolist()])
         with np.errstate(divide="ignore", invalid="ignore"):
             rel = np.where(forest.weights > 0, margin / forest.weights, np.inf)
         finite = np.flatnonzero(np.isfinite(rel))
@@ -178,14 +182,17 @@ def run(out_dir="fastmst-demo-output", *, n_sites=30_000, seed=2024, reporter=No
         "seconds": {k: round(v, 4) for k, v in (rep.times.items() if rep else [])},
         "cautions": CAUTIONS,
     }
+    summary["resilience"] = resilience(out, edges, forest, phase=phase, plot=plot)
+    files += summary["resilience"]["files"]
     with open(out / "summary.json", "w", encoding="utf-8") as fh:
         json.dump(summary, fh, indent=2)
     (out / "README.txt").write_text(
         f"{SCENARIO}.\nEverything in this folder is invented: no real place, network or price.\n"
         f"Made by `fastmst demo --sites {n_sites} --seed {seed}`.\n\n"
         "sites.csv         site id, longitude, latitude (WGS 84 degrees), kind\n"
-        "trenches.csv      candidate trenches: from, to, surface, length_m, cost\n"
-        "backbone.csv      the cheapest backbone (position = row in trenches.csv, from 0)\n"
+        "trenches.csv      candidate trenches: link_id, from, to, surface, length_m, cost\n"
+        "backbone.csv      the cheapest backbone: from, to, cost, position (row in trenches.csv,\n"
+        "                  from 0), link_id, surface, length_m, margin\n"
         "backbone.geojson  the backbone as RFC 7946 LineStrings\n"
         "backbone.png      map: backbone by surface over all candidates (grey)\n"
         "summary.json      the figures printed on screen\n\n" + CAUTIONS + "\n",
@@ -219,6 +226,8 @@ def format_summary(s) -> str:
         lines.append(f"  links with no alternative route at any cost: {s['bridges']:,}")
     else:
         lines.append(f"  sensitivity: {s['sensitivity']}")
+    if "resilience" in s:
+        lines += resilience_lines(s["resilience"])
     lines += ["", f"  wrote to {s['output_folder']}/: " + ", ".join(s["files"])]
     if s["seconds"]:
         lines.append("  time: " + " | ".join(f"{k} {v:.2f} s" for k, v in s["seconds"].items()))

@@ -114,8 +114,9 @@ def _table(edges, margin, rel, partner, in_forest, bridge, required, excluded):
     bridge, required, excluded."""
     import pyarrow as pa
     t = io.edge_table(edges)
-    for name, col in (("chosen", in_forest), ("margin", margin),
-                      ("margin_percent", np.where(np.isfinite(rel), 100 * rel, np.inf)),
+    for name, col in (("chosen", in_forest), ("margin", common.derived_array(margin)),
+                      ("margin_percent", common.derived_array(
+                          np.where(np.isfinite(rel), 100 * rel, np.inf))),
                       ("alternative", partner), ("bridge", bridge), ("required", required),
                       ("excluded", excluded)):
         if name in t.column_names:

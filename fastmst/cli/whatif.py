@@ -101,8 +101,8 @@ def run(args) -> int:
            "total_after": derived(after.weight),
            "saving_from_redesign": derived(old_at_new - after.weight),
            "links_entering": len(entering), "links_leaving": len(leaving),
-           "entering": [common.link_json(edges, p, new_weight[p]) for p in entering],
-           "leaving": [common.link_json(edges, p, new_weight[p]) for p in leaving],
+           "entering": [_change(edges, p, new_weight) for p in entering],
+           "leaving": [_change(edges, p, new_weight) for p in leaving],
            "by_category": _by_category(category, before, after, edges.weight, new_weight),
            "written": list(args.output), "seconds": common.seconds(rep.times),
            "caution": CAUTION}
@@ -129,7 +129,9 @@ def run(args) -> int:
             print(f"    {k:<20} {d['links_before']:>8,} -> {d['links_after']:<8,}")
         for word, lst in (("enters", out["entering"]), ("leaves", out["leaving"])):
             for d in lst[:args.limit]:
-                print(f"  {word}: {common.link_text(d, edges)}")
+                print(f"  {word}: {common.link_text(d, edges)}"
+                      + (f", new weight {fmt_num(d['new_weight'])}"
+                         if d["new_weight"] != d["weight"] else ""))
             if len(lst) > args.limit:
                 print(f"  ... {plural(len(lst) - args.limit, 'more link')} {word[:-1]} "
                       f"(see --json)")
@@ -146,3 +148,10 @@ def _by_category(category, before, after, weight, new_weight) -> dict:
                   "weight_before": derived(float(np.asarray(weight, dtype=np.float64)[b].sum())),
                   "weight_after": derived(float(new_weight[a].sum()))}
     return out
+
+
+def _change(edges, p, new_weight) -> dict:
+    """A link entering or leaving: its input weight and its weight in the scenario."""
+    d = common.link_json(edges, p)
+    d["new_weight"] = derived(new_weight[p])
+    return d
