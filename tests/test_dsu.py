@@ -66,11 +66,24 @@ def test_path_compression_repoints_every_node_on_the_path():
 
 
 def test_errors_and_empty():
-    """Bad arguments raise TypeError/ValueError naming the problem; n=0 is a valid empty set."""
+    """Bad sizes raise TypeError/ValueError naming the problem."""
     with pytest.raises(TypeError, match="n must be an integer"):
         DisjointSet(2.0)
     with pytest.raises(ValueError, match="n must be >= 0"):
         DisjointSet(-1)
+
+
+@pytest.mark.parametrize("n", [2**40, 2**62, 2**70, np.int64(2**62)])
+def test_huge_n_is_refused_before_allocating(n):
+    """n beyond this machine's memory (or any address space) is a ValueError that says how
+    much it would need, raised before the arrays are allocated (a MemoryError or a numpy
+    'array is too big' error would come from the allocation)."""
+    with pytest.raises(ValueError, match=r"DisjointSet\(n\): n=\d+ elements would need .* GiB"):
+        DisjointSet(n)
+
+
+def test_element_errors_and_empty():
+    """Bad elements raise TypeError/ValueError naming the problem; n=0 is a valid empty set."""
     ds = DisjointSet(3)
     with pytest.raises(ValueError, match=r"x=3 is out of range; expected 0 <= x < 3"):
         ds.find(3)

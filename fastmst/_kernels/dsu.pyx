@@ -1,4 +1,6 @@
 """Disjoint set (union-find) with union by rank and true path compression."""
+import os
+
 import numpy as np
 from libc.stdint cimport int32_t, int64_t, uint8_t
 
@@ -7,6 +9,19 @@ from fastmst._kernels.dsu cimport dsu_find, dsu_link, label_first_appearance
 
 
 _INT32_LIMIT = 2 ** 31
+
+
+def _element_bytes(n):
+    """Bytes per element of a DisjointSet of ``n``: parent (4 or 8), rank (1), size (8)."""
+    return (8 if n >= _INT32_LIMIT else 4) + 1 + 8
+
+
+def _memory_bytes():
+    """Physical memory of this machine, or None where it cannot be read."""
+    try:
+        return int(os.sysconf("SC_PHYS_PAGES")) * int(os.sysconf("SC_PAGE_SIZE"))
+    except (AttributeError, ValueError, OSError):
+        return None
 
 
 cdef index_t _find_grow(index_t* parent, int64_t* size, uint8_t* rank,
@@ -66,6 +81,16 @@ cdef class DisjointSet:
         if n < 0:
             raise ValueError(f"DisjointSet(n): n must be >= 0, received {n}; pass the number of "
                              f"elements.")
+        need = n * _element_bytes(n)
+        have = _memory_bytes()
+        if need >= 2**63 or (have is not None and need > have):
+            where = ("beyond any address space" if have is None or need >= 2**63 else
+                     f"more than this machine's {have / 2**30:,.1f} GiB of memory")
+            raise ValueError(f"DisjointSet(n): n={n} elements would need "
+                             f"{need / 2**30:,.1f} GiB ({_element_bytes(n)} bytes each), "
+                             f"{where}; expected n at most "
+                             f"{(have or 2**63) // _element_bytes(n):,}. Pass the number of "
+                             f"elements actually used (ids 0..n-1).")
         self.n = n
         self._n_sets = n
         self._wide = n >= _INT32_LIMIT

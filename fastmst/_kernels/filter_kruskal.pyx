@@ -27,36 +27,28 @@ chunking and any thread count.
 
 The union-find is the rank-in-parent-word layout of ``dsu.pxd`` (``rp_*``): a find and the link
 after it read nothing but the parent array.
+
+Files: this module holds the passes over the edges (count, copy, collect, distribute) and the
+stream driver; ``fk_scan.pxd`` the work on one bucket's records (scan, filter, pivot
+recursion); ``fk_buckets.pxd`` the sort-ahead pipeline over a chunk's buckets.
 """
 import numpy as np
-from cython.parallel cimport parallel, prange, threadid
+from cython.parallel cimport prange
 from libc.stdint cimport int32_t, int64_t, uint8_t, uint32_t, uint64_t
 
-from fastmst._kernels._atomics cimport claim8, get8, put8, getz, prefetch, putz, yield_cpu
-from fastmst._kernels._typedefs cimport check_edge_arrays, index_t
-from fastmst._kernels.dsu cimport rp_find, rp_link, rp_root, rp_standard_parents
-from fastmst._kernels.radix cimport (Rec, digit_hist, digit_kp, rec_less, sort_bucket,
-                                     sort_records)
+from fastmst._kernels._typedefs cimport index_t
+from fastmst._kernels.dsu cimport rp_root, rp_standard_parents
+from fastmst._kernels.fk_buckets cimport Rate, chunk_buckets
+from fastmst._kernels.fk_scan cimport both_giant
+from fastmst._kernels.radix cimport Rec, digit_hist, digit_kp
 from fastmst._kernels.tie_rule cimport rank_key, ukey_t
 from fastmst._kernels import radix
-from fastmst._kernels.radix_kruskal import kruskal_radix
-from fastmst._kernels.tie_rule import key_range, weight_bits, weights_from_keys
+from fastmst._kernels.radix_kruskal import check_record_inputs, kruskal_radix
+from fastmst._kernels.tie_rule import key_range, weights_from_keys
 
-
-
-ctypedef struct Rate:
-    Py_ssize_t scanned
-    Py_ssize_t accepted
-    Py_ssize_t window
-    bint filtering
 
 #: Scanned edges between two decisions on filtering (tests lower it to filter small graphs).
 FILTER_WINDOW = 8192
-
-
-cdef inline bint _both_giant(const uint64_t* giant, index_t u, index_t v) noexcept nogil:
-    """Are u and v both marked members of the largest tree (``giant``: one bit per node)?"""
-    return ((giant[u >> 6] >> (u & 63)) & (giant[v >> 6] >> (v & 63)) & 1) != 0
 
 
 cdef void _mark_giant(const index_t* parent, Py_ssize_t n, index_t g, uint64_t* giant,
@@ -76,244 +68,6 @@ cdef void _mark_giant(const index_t* parent, Py_ssize_t n, index_t g, uint64_t* 
             if x < n and rp_root(parent, <index_t>x) == g:
                 word = word | ((<uint64_t>1) << b)
         giant[w] = word
-
-
-cdef Py_ssize_t _scan_slots(const Rec* a, Py_ssize_t n, const index_t* side,
-                            index_t* parent, int64_t* op, index_t* ot,
-                            index_t* oh, uint64_t* ow, Py_ssize_t count,
-                            Py_ssize_t target, const uint64_t* giant) noexcept nogil:
-    """Kruskal scan of sorted slot records ``a[:n]``; accepted edges are appended to the
-    output arrays (position, endpoints, shifted key) from ``count`` on.  Returns the new count
-    (stops at ``target``).  The slot of record i + 32 and the parents of record i + 12 are
-    prefetched."""
-    cdef Py_ssize_t i
-    cdef uint32_t s
-    cdef index_t u, v, ru, rv
-    for i in range(n):
-        if i + 32 < n:
-            prefetch(&side[3 * a[i + 32].pos])
-        if i + 12 < n:
-            s = a[i + 12].pos
-            prefetch(&parent[side[3 * s + 1]])
-            prefetch(&parent[side[3 * s + 2]])
-        s = a[i].pos
-        u = side[3 * s + 1]
-        v = side[3 * s + 2]
-        if _both_giant(giant, u, v):
-            continue
-        ru = rp_find(parent, u)
-        rv = rp_find(parent, v)
-        if ru != rv:
-            rp_link(parent, ru, rv)
-            op[count] = <uint32_t>side[3 * s]
-            ot[count] = u
-            oh[count] = v
-            ow[count] = a[i].key
-            count += 1
-            if count >= target:
-                return count
-    return count
-
-
-cdef Py_ssize_t _filter_slots(Rec* a, Py_ssize_t n, const index_t* side, index_t* parent,
-                              const uint64_t* giant) noexcept nogil:
-    """Keep (stably, in place) the slot records whose endpoints are in different trees."""
-    cdef Py_ssize_t i, k = 0
-    cdef uint32_t s
-    for i in range(n):
-        if i + 32 < n:
-            prefetch(&side[3 * a[i + 32].pos])
-        if i + 12 < n:
-            s = a[i + 12].pos
-            prefetch(&parent[side[3 * s + 1]])
-            prefetch(&parent[side[3 * s + 2]])
-        s = a[i].pos
-        if _both_giant(giant, side[3 * s + 1], side[3 * s + 2]):
-            continue
-        if rp_find(parent, side[3 * s + 1]) != rp_find(parent, side[3 * s + 2]):
-            a[k] = a[i]
-            k += 1
-    return k
-
-
-cdef inline const Rec* _median3(const Rec* x, const Rec* y, const Rec* z) noexcept nogil:
-    if rec_less(x, y):
-        if rec_less(y, z):
-            return y
-        return z if rec_less(x, z) else x
-    if rec_less(x, z):
-        return x
-    return z if rec_less(y, z) else y
-
-
-cdef Py_ssize_t _partition(Rec* a, Py_ssize_t n) noexcept nogil:
-    """Partition around a pseudo-median of nine evenly spaced records (Tukey's ninther).
-
-    Records lighter than the pivot go first; returns their number, which is at least 4 and
-    at most n - 5 for n >= 9 (composites are distinct).
-    """
-    cdef Py_ssize_t s = n // 9, i, j
-    cdef Rec pivot, tmp
-    pivot = _median3(_median3(&a[0], &a[s], &a[2 * s]),
-                     _median3(&a[3 * s], &a[4 * s], &a[5 * s]),
-                     _median3(&a[6 * s], &a[7 * s], &a[8 * s]))[0]
-    i = 0
-    j = n - 1
-    while True:
-        while i <= j and rec_less(&a[i], &pivot):
-            i += 1
-        while i <= j and not rec_less(&a[j], &pivot):
-            j -= 1
-        if i >= j:
-            return i
-        tmp = a[i]
-        a[i] = a[j]
-        a[j] = tmp
-        i += 1
-        j -= 1
-
-
-cdef Py_ssize_t _fk_recurse(Rec* a, Py_ssize_t n, int top_bits, const index_t* side,
-                            index_t* parent, int64_t* op, index_t* ot,
-                            index_t* oh, uint64_t* ow, Py_ssize_t count, Py_ssize_t target,
-                            Py_ssize_t threshold, int depth, const uint64_t* giant) noexcept nogil:
-    """The paper's recursion on slot records ``a[:n]`` (one bucket too large for the cache).
-
-    Partition around a pivot; recurse on the light side; drop heavy records whose endpoints
-    the light side already joined; recurse on the survivors.  Below ``threshold`` records (or
-    past a recursion depth of 64, against adversarial pivots) radix sort and scan.
-    """
-    cdef Py_ssize_t nl, nh
-    while True:
-        if count >= target or n == 0:
-            return count
-        if n <= threshold or depth > 64:
-            sort_records(a, n, top_bits)
-            return _scan_slots(a, n, side, parent, op, ot, oh, ow, count,
-                               target, giant)
-        nl = _partition(a, n)
-        count = _fk_recurse(a, nl, top_bits, side, parent, op, ot, oh, ow,
-                            count, target, threshold, depth + 1, giant)
-        if count >= target:
-            return count
-        nh = _filter_slots(a + nl, n - nl, side, parent, giant)
-        a = a + nl
-        n = nh
-        depth += 1
-
-
-#: Records a helper may sort ahead of the scan (kept small enough to stay in the shared cache).
-cdef Py_ssize_t SORT_AHEAD = 1 << 18
-
-# States of a bucket in the sort-ahead pipeline of _chunk_buckets.
-cdef enum:
-    FREE = 0       # nobody has it
-    HELPING = 1    # a helper thread is sorting it
-    OWNED = 2      # the scanning thread took it (sorts it itself if needed)
-    READY = 3      # sorted by a helper
-
-
-cdef Py_ssize_t _bucket_run(Rec* a, const Py_ssize_t* bounds, Py_ssize_t nbk,
-                            uint8_t* state, uint8_t* stop, Py_ssize_t* progress, int shift,
-                            int top_bits,
-                            const index_t* side, index_t* parent, int64_t* op,
-                            index_t* ot, index_t* oh, uint64_t* ow, Py_ssize_t count,
-                            Py_ssize_t target, Py_ssize_t threshold, Rate* rate,
-                            const uint64_t* giant) noexcept nogil:
-    """Filter, sort and scan the ``nbk`` buckets ``a[bounds[b]:bounds[b+1]]`` in key order.
-
-    ``shift < 0`` means every bucket holds a single key in slot order (already sorted).  With
-    ``state`` (not NULL), helper threads may sort buckets ahead: bucket b is taken with a
-    compare-and-swap FREE -> OWNED, or, when a helper has it, waited for until READY (the
-    filter keeps the order, so a presorted bucket stays sorted); ``stop`` is raised once
-    filtering starts, so that buckets are sorted after the filter has shrunk them.  A bucket
-    is filtered first while fewer than a quarter of the recently scanned edges join two trees:
-    the filter costs about one scan, a scanned edge about a scan plus a sort, so the filter
-    pays below roughly that rate (measured; see docs/performance.md).
-    """
-    cdef Py_ssize_t b, lo, nb, before
-    cdef bint presorted
-    for b in range(nbk):
-        lo = bounds[b]
-        nb = bounds[b + 1] - lo
-        if nb == 0:
-            continue
-        presorted = False
-        if progress != NULL:
-            putz(progress, lo)
-        if state != NULL and not claim8(&state[b], FREE, OWNED):
-            while get8(&state[b]) != READY:
-                yield_cpu()
-            presorted = True
-        if rate.filtering:
-            nb = _filter_slots(a + lo, nb, side, parent, giant)
-        before = count
-        if nb > threshold and shift >= 0 and not presorted:
-            count = _fk_recurse(a + lo, nb, top_bits, side, parent, op, ot,
-                                oh, ow, count, target, threshold, 0, giant)
-        else:
-            if nb > 1 and shift >= 0 and not presorted:
-                sort_bucket(a + lo, nb, shift)
-            count = _scan_slots(a + lo, nb, side, parent, op, ot, oh, ow,
-                                count, target, giant)
-        if count >= target:
-            break
-        rate.scanned += nb
-        rate.accepted += count - before
-        if rate.scanned >= rate.window:
-            rate.filtering = 4 * rate.accepted < rate.scanned
-            rate.scanned = 0
-            rate.accepted = 0
-            if rate.filtering and stop != NULL:
-                put8(stop, 1)
-    return count
-
-
-cdef Py_ssize_t _chunk_buckets(Rec* a, const Py_ssize_t* bounds, Py_ssize_t nbk, int shift,
-                               int top_bits, const index_t* side, index_t* parent,
-                               int64_t* op, index_t* ot, index_t* oh,
-                               uint64_t* ow, Py_ssize_t count, Py_ssize_t target,
-                               Py_ssize_t threshold, Rate* rate, const uint64_t* giant,
-                               uint8_t* state, int threads) noexcept nogil:
-    """Process the ``nbk`` buckets of a chunk in key order (``_bucket_run``).
-
-    With several threads and while the scans still accept many edges (no filtering), thread 0
-    scans while the others sort buckets ahead of it, each taking a bucket by compare-and-swap;
-    nobody waits for a whole wave, so a helper that the OS deschedules (a busy machine) delays
-    at most the one bucket it holds.  Helpers stay within ``SORT_AHEAD`` records of the scan.
-    Who sorts a bucket does not change the result.
-    SCRATCH: ``state`` (nbk + 1 bytes; the last is the stop flag).
-    """
-    cdef Py_ssize_t b, nb
-    cdef Py_ssize_t[1] shared
-    cdef Py_ssize_t[1] progress
-    cdef int tid
-    if threads <= 1 or shift < 0 or rate.filtering:
-        return _bucket_run(a, bounds, nbk, NULL, NULL, NULL, shift, top_bits, side, parent, op,
-                           ot, oh, ow, count, target, threshold, rate, giant)
-    for b in range(nbk + 1):
-        state[b] = FREE
-    shared[0] = count
-    progress[0] = 0
-    with parallel(num_threads=threads):
-        tid = threadid()
-        if tid == 0:
-            shared[0] = _bucket_run(a, bounds, nbk, state, state + nbk, progress, shift,
-                                    top_bits, side, parent, op, ot, oh, ow, shared[0], target,
-                                    threshold, rate, giant)
-            put8(state + nbk, 1)
-        else:
-            b = 0
-            while b < nbk and not get8(state + nbk):
-                if bounds[b] > getz(progress) + SORT_AHEAD:
-                    yield_cpu()  # far enough ahead of the scan: let others run meanwhile
-                    continue
-                nb = bounds[b + 1] - bounds[b]
-                if 1 < nb <= threshold and claim8(&state[b], FREE, HELPING):
-                    sort_bucket(a + bounds[b], nb, shift)
-                    put8(&state[b], READY)
-                b = b + 1
-    return shared[0]
 
 
 cdef void _scatter(const ukey_t* bits, const index_t* tail, const index_t* head, Py_ssize_t m,
@@ -372,7 +126,7 @@ cdef void _collect(const ukey_t* bits, const index_t* tail, const index_t* head,
             d = digit_kp(k, <uint32_t>i, s, 0x7FF)
             # the common cases (outside the range, or both ends in the largest tree) take no
             # branch on the random key; only the rest go to the finds
-            if ((d >= d0) & (d < d1) & (not _both_giant(giant, tail[i], head[i]))):
+            if ((d >= d0) & (d < d1) & (not both_giant(giant, tail[i], head[i]))):
                 keep = rp_root(parent, tail[i]) != rp_root(parent, head[i])
                 buf[j].key = k
                 buf[j].pos = <uint32_t>i
@@ -587,7 +341,7 @@ cdef Py_ssize_t _fk_stream(_Bits bits, const index_t[::1] tail,
         bdv = bounds
         if n_range > 0:
             with nogil:
-                count = _chunk_buckets(<Rec*>&recv[0], &bdv[0], d_end - d0, shift, top_bits,
+                count = chunk_buckets(<Rec*>&recv[0], &bdv[0], d_end - d0, shift, top_bits,
                                        &sidev[0], &parent[0],
                                        &op[0], &ot[0], &oh[0], &ow[0], count, target,
                                        threshold, &rate, &gv[0], &sortv[0], threads)
@@ -630,12 +384,8 @@ def filter_kruskal(const index_t[::1] tail, const index_t[::1] head, weight,
     """
     cdef Py_ssize_t m = tail.shape[0]
     cdef int kind
-    bits, kind = weight_bits(weight, m, "filter_kruskal")
-    check_edge_arrays(m, head.shape[0], -1, n_nodes, "filter_kruskal")
-    if m >= radix.MAX_RECORDS:
-        raise ValueError(f"filter_kruskal: needs E < 2**32 edges, received {m}.")
-    if target < 0:
-        target = max(0, n_nodes - 1)
+    bits, kind, target = check_record_inputs(m, head.shape[0], weight, n_nodes, target,
+                                             "filter_kruskal")
     if threshold <= 0:
         threshold = max(1 << 16, n_nodes // 2)
     dtype = np.int32 if index_t is int32_t else np.int64

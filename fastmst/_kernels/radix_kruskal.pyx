@@ -23,6 +23,22 @@ from fastmst._kernels.tie_rule import key_range, weight_bits
 MIN_EDGES_PIPELINE = 1 << 22
 
 
+def check_record_inputs(Py_ssize_t m, Py_ssize_t n_head, weight, Py_ssize_t n_nodes,
+                        Py_ssize_t target, str func):
+    """The preconditions shared by the record-based Kruskal kernels (``kruskal_radix``,
+    ``filter_kruskal``): ``m`` tails, ``n_head`` heads, weights checked by
+    ``tie_rule.weight_bits``, fewer than 2**32 edges (32-bit record positions).  Returns
+    (weight bits, key kind, target), ``target`` -1 becoming ``n_nodes - 1``."""
+    bits, kind = weight_bits(weight, m, func)
+    check_edge_arrays(m, n_head, -1, n_nodes, func)
+    if m >= radix.MAX_RECORDS:
+        raise ValueError(f"{func}: needs E < 2**32 edges (32-bit record positions), received "
+                         f"{m}.")
+    if target < 0:
+        target = max(0, n_nodes - 1)
+    return bits, kind, target
+
+
 cdef Py_ssize_t _scan(const Rec* a, Py_ssize_t n, const index_t* tail, const index_t* head,
                       index_t* parent, uint8_t* rank, int64_t* out, Py_ssize_t count,
                       Py_ssize_t target) noexcept nogil:
@@ -167,12 +183,8 @@ def kruskal_radix(const index_t[::1] tail, const index_t[::1] head, weight,
         or stopped at n_nodes - n_components).
     """
     cdef Py_ssize_t m = tail.shape[0]
-    bits, kind = weight_bits(weight, m, "kruskal_radix")
-    check_edge_arrays(m, head.shape[0], -1, n_nodes, "kruskal_radix")
-    if m >= radix.MAX_RECORDS:
-        raise ValueError(f"kruskal_radix: needs E < 2**32 edges, received {m}.")
-    if target < 0:
-        target = max(0, n_nodes - 1)
+    bits, kind, target = check_record_inputs(m, head.shape[0], weight, n_nodes, target,
+                                             "kruskal_radix")
     parent_a = np.arange(n_nodes, dtype=np.int32 if index_t is int32_t else np.int64)
     rank_a = np.zeros(n_nodes, dtype=np.uint8)
     out_a = np.empty(max(0, min(target, m)), dtype=np.int64)
