@@ -1,4 +1,5 @@
-"""Walks over a rooted spanning forest, for the network-design tools (``fastmst.design``).
+"""Walks over a rooted spanning forest and CSR adjacency, for the network-design tools
+(``fastmst.design``).
 
 ``sides_beyond``
     For every tree edge (parent, child): the number of nodes on the side away from a chosen
@@ -274,3 +275,98 @@ def tree_distances(const int64_t[::1] parent, const double[::1] pw, Py_ssize_t r
     with nogil:
         _tree_distances(parent, pw, root, st, ch, qu, dv)
     return dist
+
+
+cdef void _adjacency(const int64_t[::1] a, const int64_t[::1] b, int64_t[::1] indptr,
+                     int64_t[::1] nbr, int64_t[::1] link) noexcept nogil:
+    cdef int64_t n = indptr.shape[0] - 1
+    cdef int64_t m = a.shape[0]
+    cdef int64_t i, k
+    for i in range(n + 1):
+        indptr[i] = 0
+    for i in range(m):
+        indptr[a[i] + 1] += 1
+        indptr[b[i] + 1] += 1
+    for i in range(n):
+        indptr[i + 1] += indptr[i]
+    for i in range(m):                      # slots in link order within every node
+        k = indptr[a[i]]
+        nbr[k] = b[i]
+        link[k] = i
+        indptr[a[i]] += 1
+        k = indptr[b[i]]
+        nbr[k] = a[i]
+        link[k] = i
+        indptr[b[i]] += 1
+    for i in range(n, 0, -1):
+        indptr[i] = indptr[i - 1]
+    indptr[0] = 0
+
+
+def adjacency(const int64_t[::1] a, const int64_t[::1] b, Py_ssize_t n_nodes):
+    """Both directions of every link as CSR adjacency, by counting (O(V + E)).
+
+    Parameters
+    ----------
+    a, b : ndarray of shape (m,), dtype=int64
+        Link ends, node ids in [0, n_nodes).
+    n_nodes : int
+
+    Returns
+    -------
+    indptr : ndarray of shape (n_nodes + 1,), dtype=int64
+    nbr, link : ndarray of shape (2 m,), dtype=int64
+        Node ``u``'s neighbours ``nbr[indptr[u]:indptr[u + 1]]`` and the index (into ``a``)
+        of the link to each, in link order.
+    """
+    cdef int64_t m = a.shape[0]
+    if b.shape[0] != m:
+        raise ValueError("adjacency: a and b must have one length.")
+    if n_nodes < 0:
+        raise ValueError(f"adjacency: n_nodes must be >= 0, received {n_nodes}.")
+    if m and (min(int(np.min(a)), int(np.min(b))) < 0 or
+              max(int(np.max(a)), int(np.max(b))) >= n_nodes):
+        raise ValueError(f"adjacency: node ids must lie in [0, {n_nodes}).")
+    indptr = np.empty(n_nodes + 1, dtype=np.int64)
+    nbr = np.empty(2 * m, dtype=np.int64)
+    link = np.empty(2 * m, dtype=np.int64)
+    cdef int64_t[::1] ip = indptr, nb = nbr, lk = link
+    with nogil:
+        _adjacency(a, b, ip, nb, lk)
+    return indptr, nbr, link
+
+
+cdef void _parent_links(const int64_t[::1] indptr, const int64_t[::1] nbr,
+                        const int64_t[::1] link, const double[::1] w,
+                        const int64_t[::1] pred, int64_t[::1] out) noexcept nogil:
+    cdef int64_t n = pred.shape[0]
+    cdef int64_t v, k, best, l
+    for v in range(n):
+        best = -1
+        if pred[v] >= 0:
+            for k in range(indptr[v], indptr[v + 1]):
+                if nbr[k] == pred[v]:
+                    l = link[k]
+                    if best < 0 or w[l] < w[best] or (w[l] == w[best] and l < best):
+                        best = l
+        out[v] = best
+
+
+def parent_links(const int64_t[::1] indptr, const int64_t[::1] nbr, const int64_t[::1] link,
+                 const double[::1] w, const int64_t[::1] pred):
+    """For every node with a parent ``pred[v]`` (>= 0), the lightest link (the smallest index
+    among equal lengths) joining it to that parent; -1 elsewhere.
+
+    ``indptr``, ``nbr``, ``link`` as returned by :func:`adjacency`; ``w`` the links' lengths.
+    """
+    cdef int64_t n = pred.shape[0]
+    if indptr.shape[0] != n + 1 or nbr.shape[0] != link.shape[0] or \
+            nbr.shape[0] < indptr[n] or w.shape[0] * 2 != nbr.shape[0]:
+        raise ValueError("parent_links: the adjacency does not match pred and w.")
+    if n and (int(np.max(pred)) >= n or int(np.min(pred)) < -1):
+        raise ValueError("parent_links: parents must be -1 or nodes.")
+    out = np.empty(n, dtype=np.int64)
+    cdef int64_t[::1] ov = out
+    with nogil:
+        _parent_links(indptr, nbr, link, w, pred, ov)
+    return out

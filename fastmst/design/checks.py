@@ -11,7 +11,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from fastmst import validation
-from fastmst._kernels.paths import cover_paths, kruskal_tree, root_forest
+from fastmst._kernels.paths import cover_paths, root_forest
 from fastmst._kernels.treewalk import sides_beyond
 from fastmst.solve import SpanningForest, minimum_spanning_forest
 from fastmst.toolkit.checks import check_unique_positions
@@ -79,24 +79,29 @@ def graph_and_design(tail, head, weight, forest, n_nodes, excluded, func: str) -
                              f"the forest or from excluded.")
     ft = np.ascontiguousarray(g.ktail[fpos])
     fh = np.ascontiguousarray(g.khead[fpos])
-    _, _, _, _, cycle = kruskal_tree(ft, fh, g.n_nodes)
-    if cycle >= 0:
-        p = int(fpos[cycle])
-        raise ValueError(f"{func}: the forest is not acyclic: the link at position {p} "
-                         f"({g.tail[p]}-{g.head[p]}) closes a cycle with other forest links. "
-                         f"Pass the links of a spanning forest, e.g. "
-                         f"minimum_spanning_forest(...).edges.")
     pnode, pedge, depth = root_forest(ft, fh, g.n_nodes)
+    if forest is not None:
+        # breadth-first search reaches every node once: it uses every link of an acyclic set,
+        # and leaves out one link of every cycle
+        used = np.zeros(fpos.shape[0], dtype=bool)
+        used[pedge[pedge >= 0]] = True
+        if not used.all():
+            p = int(fpos[np.flatnonzero(~used)[0]])
+            raise ValueError(f"{func}: the forest is not acyclic: the link at position {p} "
+                             f"({g.tail[p]}-{g.head[p]}) closes a cycle with other forest "
+                             f"links. Pass the links of a spanning forest, e.g. "
+                             f"minimum_spanning_forest(...).edges.")
     _, top, size = sides_beyond(pnode, depth, -1)
     d = Design(g, fpos, in_forest, usable, pnode, pedge, depth, top, size)
-    others = d.others()
-    split = np.flatnonzero(top[g.ktail[others]] != top[g.khead[others]])
-    if split.size:
-        p = int(others[split[0]])
-        raise ValueError(f"{func}: the forest does not span the usable links: the link at "
-                         f"position {p} ({g.tail[p]}-{g.head[p]}) joins two of its trees. Pass "
-                         f"a spanning forest (minimum_spanning_forest(...).edges) or exclude "
-                         f"that link.")
+    if forest is not None:
+        others = d.others()
+        split = np.flatnonzero(top[g.ktail[others]] != top[g.khead[others]])
+        if split.size:
+            p = int(others[split[0]])
+            raise ValueError(f"{func}: the forest does not span the usable links: the link at "
+                             f"position {p} ({g.tail[p]}-{g.head[p]}) joins two of its trees. "
+                             f"Pass a spanning forest (minimum_spanning_forest(...).edges) or "
+                             f"exclude that link.")
     return d
 
 

@@ -8,7 +8,7 @@ import numpy as np
 
 from fastmst import validation
 from fastmst._kernels.tie_rule import edge_order
-from fastmst._kernels.treewalk import light_shallow_walk, tree_distances
+from fastmst._kernels.treewalk import adjacency, light_shallow_walk, parent_links, tree_distances
 from fastmst.design.checks import check_alpha, check_node, check_nonnegative
 from fastmst.solve import minimum_spanning_forest
 
@@ -80,22 +80,20 @@ def best_links(g, usable: np.ndarray):
     return a[first], b[first], g.weight[keep[first]].astype(np.float64), keep[first]
 
 
-def shortest_paths(n: int, a, b, w, pos, root: int):
-    """Dijkstra from ``root`` (scipy.sparse.csgraph.dijkstra) over the pair links: distances,
-    parent node and parent link position of every node (-1 at the root and where unreached)."""
+def shortest_paths(n: int, a, b, w, root: int):
+    """Dijkstra from ``root`` (scipy.sparse.csgraph.dijkstra) over links (a, b) of lengths w
+    (float64; parallel links allowed).  Returns distances, parent node and parent link (index
+    into a: the lightest, then the first, joining the parent) of every node, -1 at the root and
+    where unreached."""
     from scipy.sparse import csr_array
     from scipy.sparse.csgraph import dijkstra
-    m = csr_array((np.concatenate([w, w]), (np.concatenate([a, b]), np.concatenate([b, a]))),
-                  shape=(n, n))
+    indptr, nbr, link = adjacency(a, b, n)
+    # duplicate entries stay apart (no coo -> csr summing); Dijkstra relaxes each of them
+    m = csr_array((w[link], nbr, indptr), shape=(n, n))
     dist, pred = dijkstra(m, directed=True, indices=root, return_predecessors=True)
     pred = pred.astype(np.int64)
     pred[pred < 0] = -1
-    spos = np.full(n, -1, dtype=np.int64)
-    v = np.flatnonzero(pred >= 0)
-    lo, hi = np.minimum(v, pred[v]), np.maximum(v, pred[v])
-    key = a * n + b                     # a, b sorted by pair, so key is sorted
-    spos[v] = pos[np.searchsorted(key, lo * n + hi)]
-    return dist, pred, spos
+    return dist, pred, parent_links(indptr, nbr, link, w, pred)
 
 
 def light_shallow_tree(tail, head, weight, root, *, alpha=2.0, n_nodes=None, excluded=None):
@@ -147,20 +145,22 @@ def light_shallow_tree(tail, head, weight, root, *, alpha=2.0, n_nodes=None, exc
         usable[validation.check_positions(excluded, g.n_edges, "excluded", _FUNC)] = False
     check_nonnegative(g, usable, _FUNC, "a light shallow tree")
     n = g.n_nodes
-    a, b, w, pos = best_links(g, usable)
-    dist, spt_parent, spt_pos = shortest_paths(n, a, b, w, pos, root)
-    # the minimum spanning forest of the pair links (the tie-rule-first link of each pair is
-    # the one a minimum spanning forest of all usable links would take)
-    forest = minimum_spanning_forest(a, b, w, n)
-    fa, fb, fw = a[forest.edges], b[forest.edges], w[forest.edges]
-    fpos = pos[forest.edges]
-    src = np.concatenate([fa, fb])
-    order = np.argsort(src, kind="stable")
-    adj = np.concatenate([fb, fa])[order]
-    adjw = np.concatenate([fw, fw])[order]
-    adjpos = np.concatenate([fpos, fpos])[order]
-    indptr = np.zeros(n + 1, dtype=np.int64)
-    np.cumsum(np.bincount(src, minlength=n), out=indptr[1:])
+    keep = np.flatnonzero(usable & (g.ktail != g.khead))
+    a = g.ktail[keep].astype(np.int64)
+    b = g.khead[keep].astype(np.int64)
+    w = g.weight[keep].astype(np.float64)
+    dist, spt_parent, spt_link = shortest_paths(n, a, b, w, root)
+    spt_pos = np.full(n, -1, dtype=np.int64)
+    spt_pos[spt_link >= 0] = keep[spt_link[spt_link >= 0]]
+    # the minimum spanning forest of the usable links (tie rule), its adjacency for the walk
+    forest = minimum_spanning_forest(g.tail, g.head, g.weight, n,
+                                     excluded=np.flatnonzero(~usable))
+    fpos = np.asarray(forest.edges, dtype=np.int64)
+    fa, fb = g.ktail[fpos].astype(np.int64), g.khead[fpos].astype(np.int64)
+    fw = g.weight[fpos].astype(np.float64)
+    indptr, adj, flink = adjacency(fa, fb, n)
+    adjw = fw[flink]
+    adjpos = fpos[flink]
     parent, ppos, _ = light_shallow_walk(indptr, adj, adjw, adjpos, root, dist, spt_parent,
                                          spt_pos, alpha)
     chosen = ppos >= 0
