@@ -334,7 +334,8 @@ def plot_forest(path, edges, forest, *, title=None, subtitle=None, groups=None, 
         if k <= 12:
             for c in range(k):
                 handles.append(Line2D([], [], color=PALETTE[colour_of[c]], lw=2,
-                                      label=f"cluster {c} ({sizes[c]:,} sites)"))
+                                      label=f"cluster {c} ({sizes[c]:,} "
+                                            f"site{'' if sizes[c] == 1 else 's'})"))
         else:
             handles.append(Line2D([], [], color=PALETTE[0], lw=2,
                                   label=f"{k:,} clusters; linked clusters differ in colour"))

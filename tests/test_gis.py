@@ -108,7 +108,7 @@ def test_geodanet_matches_the_real_data_loader_and_keeps_attributes():
     ref, _ = rd.scipy_forest(tail, head, length, n)
     assert sorted(el.solve().edges.tolist()) == sorted(ref.tolist())
     assert el.crs.unit == "US survey foot"
-    assert "US survey foot" in el.crs.describe()
+    assert "in US survey feet" in el.crs.describe()
 
 
 # --- snapping ------------------------------------------------------------------------------------
@@ -361,3 +361,29 @@ def test_clear_errors(tmp_path, case):
         with pytest.raises(FileFormatError, match=r"has 2 line \(LineString\) layers \('a', "
                                                   r"'b'\); name one with layer="):
             io.read_line_layer(p)
+
+
+# --- command line --------------------------------------------------------------------------------
+
+def test_cli_reads_a_layer_and_writes_geopackage_layers(tmp_path, capsys):
+    """fastmst solve on bubenec streets with --layer/--snap-tolerance writes a GeoPackage whose
+    forest equals the API's (the same edge positions) and says what the CRS units mean;
+    fastmst clusters writes forest, sites and clusters layers; options for layers on a CSV
+    input are a usage error (exit 2)."""
+    from fastmst.cli import main
+    out = tmp_path / "plan.gpkg"
+    rc = main(["solve", bubenec(), "--layer", "streets", "--snap-tolerance", "0.5", "-o",
+               str(out), "--quiet"])
+    assert rc == 0
+    _, back = pyogrio.read_arrow(str(out), layer="forest")
+    api = io.read_line_layer(bubenec(), snap_tolerance=0.5).solve()
+    assert sorted(back.column("position").to_pylist()) == sorted(api.edges.tolist())
+    main(["solve", bubenec(), "--snap-tolerance", "0.5", "-o", str(tmp_path / "f.csv")])
+    assert "projected CRS WGS 84 / Pseudo-Mercator" in capsys.readouterr().out
+    rc = main(["clusters", bubenec(), "-k", "3", "-o", str(tmp_path / "c.gpkg"), "--quiet"])
+    assert rc == 0
+    assert dict(pyogrio.list_layers(str(tmp_path / "c.gpkg"))) == {
+        "forest": "LineString", "sites": "Point", "clusters": "MultiPoint"}
+    assert main(["solve", str(tmp_path / "f.csv"), "--snap-tolerance", "1", "-o",
+                 str(tmp_path / "g.csv")]) == 2
+    assert "--layer/--snap-tolerance apply to a GeoPackage" in capsys.readouterr().err

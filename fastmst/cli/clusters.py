@@ -19,10 +19,6 @@ EPILOG = """examples:
   fastmst clusters links.csv -k 8 --required must.csv -o clusters.csv   # never cut must.csv
 """
 
-# one colour per cluster on maps, cycled after ten; cut edges are black
-PALETTE = ["#1f77b4", "#ff7f0e", "#2ca02c", "#d62728", "#9467bd", "#8c564b", "#e377c2",
-           "#7f7f7f", "#bcbd22", "#17becf"]
-
 
 def add_parser(sub):
     p = sub.add_parser("clusters", help="single-linkage clusters: k clusters or a threshold",
@@ -59,15 +55,17 @@ def run(args) -> int:
         with io.StagedOutputs() as staged:
             with rep.phase("writing"):
                 for out in args.output:
+                    if out.lower().endswith(".gpkg"):   # forest, sites and clusters layers
+                        io.write_geopackage(staged.path(out), forest, edges, clusters=labels)
+                        continue
                     io.write_table(staged.path(out), table,
                                    spreadsheet_safe=args.spreadsheet_safe)
             if args.plot:
                 n_clusters = int(labels.max()) + 1 if labels.size else 0
                 with rep.phase("plotting"):
-                    plot_forest(staged.path(args.plot), edges, forest,
-                                groups=cluster_groups(forest, labels),
+                    plot_forest(staged.path(args.plot), edges, forest, clusters=labels,
                                 title="Single-linkage clusters",
-                                subtitle=f"{edges.source}: {n_clusters} clusters (forest edges "
+                                subtitle=f"{edges.source}: {n_clusters:,} clusters (forest edges "
                                          f"coloured by cluster; cut edges black)")
             staged.commit()
     sizes = np.bincount(labels) if labels.size else np.zeros(0, np.int64)
@@ -90,15 +88,3 @@ def run(args) -> int:
         common.print_block(f"fastmst clusters: {edges.source}", rows)
     return EXIT_OK
 
-
-def cluster_groups(forest, labels):
-    """Plot classes for the forest's edges: one colour per cluster (cycled after ten), the
-    edges cut between clusters in black; returns (class per edge, names, colours)."""
-    lt, lh = labels[forest.tail], labels[forest.head]
-    n = int(labels.max()) + 1 if labels.size else 0
-    k = min(n, len(PALETTE))
-    idx = np.where(lt == lh, lt % len(PALETTE), len(PALETTE))
-    names = [f"cluster {c}" if n <= len(PALETTE) else f"clusters {c}, {c + 10}, ..."
-             for c in range(k)]
-    names += [f"_unused{c}" for c in range(k, len(PALETTE))] + ["cut between clusters"]
-    return idx, names, PALETTE + ["#000000"]

@@ -315,8 +315,8 @@ def layer_note(edges) -> str | None:
     crs = getattr(edges, "crs", None)
     if crs is None or not hasattr(edges, "max_shift"):
         return None
-    return (f"{crs.describe()}; snap tolerance {edges.snap_tolerance:g}, largest move of a "
-            f"line end {edges.max_shift:.3g}")
+    return (f"{crs.describe()}; line ends joined within {edges.snap_tolerance:g}, largest "
+            f"move {edges.max_shift:.3g}")
 
 
 def keep_columns(text: str):

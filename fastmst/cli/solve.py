@@ -16,6 +16,7 @@ EPILOG = """examples:
   fastmst solve links.csv -o forest.csv
   fastmst solve links.csv --nodes sites.csv -o forest.csv -o forest.geojson --plot forest.png
   fastmst solve roads.gr -o forest.parquet --json
+  fastmst solve links.gpkg --layer links --snap-tolerance 0.5 -o plan.gpkg --plot plan.png
   fastmst solve links.csv --tail from --head to --weight cost --maximize -o best.csv
   fastmst solve links.csv --nodes sites.csv --weight length -o forest.csv
 """
@@ -82,6 +83,8 @@ def run(args) -> int:
         note = common.guessed_note(edges)
         if note:
             rows.append(("columns", note))
+        if common.layer_note(edges):
+            rows.append(("layer", common.layer_note(edges)))
         rows += [("nodes", fmt_num(edges.n_nodes)), ("edges", fmt_num(edges.n_edges)),
                 ("components", fmt_num(forest.n_components)),
                 ("forest edges", fmt_num(len(forest))),

@@ -35,6 +35,10 @@ _SHAPELY_TYPES = {0: "Point", 1: "LineString", 2: "LinearRing", 3: "Polygon", 4:
                   5: "MultiLineString", 6: "MultiPolygon", 7: "GeometryCollection"}
 
 
+_PLURALS = {"metre": "metres", "foot": "feet", "US survey foot": "US survey feet",
+            "kilometre": "kilometres"}
+
+
 @dataclass(frozen=True)
 class CRSInfo:
     """What a layer's coordinates mean.
@@ -61,8 +65,9 @@ class CRSInfo:
             return (f"geographic CRS {self.name} (longitude/latitude): snap tolerance in degrees "
                     f"(1e-5 degrees of latitude is about 1.1 m), lengths from the geometry in "
                     f"great-circle metres")
+        units = _PLURALS.get(self.unit, self.unit)
         return (f"projected CRS {self.name}: snap tolerance and lengths from the geometry in "
-                f"{self.unit}")
+                f"{units}")
 
 
 def crs_info(crs, source: str) -> CRSInfo:
@@ -197,7 +202,8 @@ def _read_layer(path, layer, want, crs, func):
     empty[~missing] = shapely.is_empty(geoms[~missing])
     if empty.any():
         i = int(np.flatnonzero(empty)[0])
-        raise FileFormatError(f"{source}: feature fid {fids[i]} has {'no' if missing[i] else 'an empty'} "
+        what = "no" if missing[i] else "an empty"
+        raise FileFormatError(f"{source}: feature fid {fids[i]} has {what} "
                               f"geometry ({int(empty.sum())} such features in all); every "
                               f"{'link needs a line' if want == 'line' else 'site needs a point'}."
                               f" Delete those features or draw their geometry.")
