@@ -147,6 +147,7 @@ def run(out_dir="fastmst-demo-output", *, n_sites=30_000, seed=2024, reporter=No
                   [n for n, _, _ in SURFACES], [c for _, _, c in SURFACES])
         with phase("plotting"):
             plot_forest(out / "backbone.png", edges, forest, groups=groups, highlight=near,
+                        highlight_label=f"nearly tied cost choices ({len(near)})",
                         title=SCENARIO,
                         footnote="Invented data: no real place, network or price. A spanning "
                                  "tree has no redundancy; designs need review by licensed "
