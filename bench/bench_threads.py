@@ -10,7 +10,8 @@ For each busy level N, N other processes (``python -c "while True: pass"``) keep
 while every case runs ``threads=None`` (the default) and ``threads=1`` alternately, ``--reps``
 times each; the table shows the medians and their ratio default / threads=1 (below 1: the
 threads pay; the goal on a busy machine is at most 1.1).  Both settings are checked to return
-the same edges.  The busy processes are started by this script and stopped by it (their own
+the same edges.  The default takes the cores that other runnable tasks leave free when the
+call starts (``fastmst._kernels.threads.default_threads``).  The busy processes are started by this script and stopped by it (their own
 process handles), before the next level.
 """
 from __future__ import annotations
@@ -55,6 +56,10 @@ def run_level(busy: int, graphs, reps: int, method: str):
     rows = []
     procs = _busy(busy)
     try:
+        with open("/proc/loadavg") as fh:
+            queue = fh.read().split()[3]
+        print(f"busy {busy}: run queue {queue} (runnable/total), the default takes "
+              f"{thread_policy.default_threads()} thread(s) now", flush=True)
         for name, (tail, head, weight, n) in graphs.items():
             times = {"default": [], "threads=1": []}
             edges = {}
@@ -87,8 +92,8 @@ def main(argv=None):
     a = p.parse_args(argv)
     levels = [int(x) for x in a.busy.split(",")]
     print(f"fastmst {fastmst.__version__}, numpy {np.__version__}, python "
-          f"{platform.python_version()}, {os.cpu_count()} cpus, default threads "
-          f"{thread_policy.default_threads()}, wait policy "
+          f"{platform.python_version()}, {os.cpu_count()} cpus, team limit "
+          f"{thread_policy.team_limit()}, wait policy "
           f"{os.environ.get('OMP_WAIT_POLICY', thread_policy.wait_policy())}, load average "
           f"{os.getloadavg()[0]:.2f}, {time.strftime('%Y-%m-%d %H:%M UTC', time.gmtime())}")
     graphs = {name: gen.FAMILIES[fam](**kw) for name, fam, kw in CASES

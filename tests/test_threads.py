@@ -2,6 +2,10 @@
 ecosystem's OpenMP controls, idle threads wait passively unless the user chose otherwise, and
 the forest does not depend on either.
 
+The default is also capped by the cores that other runnable tasks leave free (the run queue in
+``/proc/loadavg``, documented in proc(5) of the Linux man-pages: its fourth field is the number
+of currently runnable tasks / the number of tasks).
+
 Sources: the OpenMP API specification 5.2 (OpenMP ARB, 2021): ``OMP_NUM_THREADS`` sets the
 initial nthreads-var that ``omp_get_max_threads`` returns and ``omp_set_num_threads`` changes
 (sections 21.1.2, 18.2.1-18.2.2); ``OMP_DISPLAY_ENV=true`` makes the runtime print its ICVs
@@ -44,35 +48,63 @@ def _fresh(code, **env):
 
 PRINT_DEFAULT = ("import os, fastmst; from fastmst import validation; "
                  "from fastmst._kernels import threads; "
-                 "print(validation.check_threads(None, 'f'), threads.wait_policy(), "
-                 "os.environ.get('OMP_WAIT_POLICY'))")
+                 "print(threads.team_limit(), threads.wait_policy(), "
+                 "os.environ.get('OMP_WAIT_POLICY'), validation.check_threads(None, 'f'))")
 
 
 @pytest.mark.skipif(not OPENMP, reason="built without OpenMP: the kernels run on one thread")
 @pytest.mark.parametrize("n", [1, 3])
 def test_omp_num_threads_sets_the_default(n):
-    """OMP_NUM_THREADS=n gives threads=None n threads (OpenMP 5.2, 21.1.2)."""
+    """OMP_NUM_THREADS=n caps threads=None at n threads (OpenMP 5.2, 21.1.2)."""
     out, _ = _fresh(PRINT_DEFAULT, OMP_NUM_THREADS=str(n))
     assert out.split()[0] == str(n)
+    assert 1 <= int(out.split()[-1]) <= n
+
+
+@pytest.fixture
+def run_queue(monkeypatch):
+    """Set the run queue that the thread policy reads (other runnable tasks than the caller)."""
+    def set_others(k):
+        monkeypatch.setattr(threads, "_read_runnable", lambda: None if k is None else k + 1)
+        monkeypatch.setattr(threads, "_cached", [-1.0, 0])
+    return set_others
 
 
 @pytest.mark.skipif(not OPENMP, reason="built without OpenMP: the kernels run on one thread")
-def test_default_is_omp_get_max_threads():
-    """Without controls the default is the runtime's own team size (omp_get_max_threads)."""
-    assert validation.check_threads(None, "f") == radix.openmp_max_threads()
-    assert validation.check_threads(0, "f") == radix.openmp_max_threads()
+def test_default_is_omp_get_max_threads_on_free_cores(run_queue):
+    """Without controls the default is the runtime's own team size (omp_get_max_threads),
+    capped by the cores no other runnable task takes; never below 1."""
+    cores = len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else os.cpu_count()
+    assert threads.team_limit() == radix.openmp_max_threads()
+    for others in (None, 0, 1, cores - 1, cores, 5 * cores):
+        run_queue(others)
+        free = cores if others is None else max(1, cores - others)
+        want = min(radix.openmp_max_threads(), free)
+        assert threads.free_cores() == free
+        assert validation.check_threads(None, "f") == want
+        assert validation.check_threads(0, "f") == want
+        assert validation.check_threads(2, "f") == 2     # an explicit count is kept
+
+
+def test_run_queue_is_read_from_loadavg_text():
+    """/proc/loadavg's fourth field is runnable/total tasks (proc(5), Linux man-pages)."""
+    assert threads.parse_runnable("0.52 0.58 0.59 3/467 19612\n") == 3
+    assert threads.parse_runnable("") is None
+    assert threads.parse_runnable("0.5 0.5 0.5 x/1 2") is None
 
 
 @pytest.mark.skipif(not OPENMP, reason="built without OpenMP: the kernels run on one thread")
 @pytest.mark.parametrize("limit", [1, 2])
-def test_threadpool_limits_sets_the_default(limit):
-    """threadpoolctl finds the runtime the kernels use and its limit becomes the default; the
+def test_threadpool_limits_sets_the_default(limit, run_queue):
+    """threadpoolctl finds the runtime the kernels use and its limit caps the default; the
     limit is lifted on exit (threadpoolctl's documented contract)."""
-    before = validation.check_threads(None, "f")
+    run_queue(0)
+    before = threads.team_limit()
     assert any(i["user_api"] == "openmp" for i in threadpoolctl.threadpool_info())
     with threadpoolctl.threadpool_limits(limits=limit, user_api="openmp"):
-        assert validation.check_threads(None, "f") == limit
-    assert validation.check_threads(None, "f") == before
+        assert threads.team_limit() == limit
+        assert validation.check_threads(None, "f") == min(limit, threads.free_cores())
+    assert threads.team_limit() == before
 
 
 def test_same_forest_under_every_control():
@@ -106,7 +138,7 @@ def test_passive_wait_unless_the_user_chose():
     out, err = _fresh(PRINT_DEFAULT, OMP_DISPLAY_ENV="true", OMP_WAIT_POLICY=None,
                       GOMP_SPINCOUNT=None)
     assert "OMP_WAIT_POLICY = 'PASSIVE'" in err
-    assert out.split()[1:] == ["passive", "None"]
+    assert out.split()[1:3] == ["passive", "None"]
     out, err = _fresh(PRINT_DEFAULT, OMP_DISPLAY_ENV="true", OMP_WAIT_POLICY="active",
                       GOMP_SPINCOUNT=None)
     assert "OMP_WAIT_POLICY = 'ACTIVE'" in err

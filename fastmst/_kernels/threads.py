@@ -2,7 +2,9 @@
 
 The default thread count is OpenMP's own default team size, ``omp_get_max_threads()``, so the
 ecosystem's controls apply: ``OMP_NUM_THREADS`` and ``threadpoolctl.threadpool_limits`` (which
-calls ``omp_set_num_threads``).  Without OpenMP the kernels run on one thread.
+calls ``omp_set_num_threads``), capped by the cores that other processes leave free when the
+call starts (the run queue of ``/proc/loadavg``; see ``default_threads``).  Without OpenMP the
+kernels run on one thread.
 
 Idle OpenMP threads wait *passively* (they sleep in the kernel instead of spinning) unless the
 user chose otherwise.  On a machine whose cores other processes keep busy, a spinning thread
@@ -19,6 +21,7 @@ from __future__ import annotations
 
 import os
 import sys
+import time
 
 #: Environment variables that state a wait policy; if any is set, it is the user's choice.
 WAIT_VARIABLES = ("OMP_WAIT_POLICY", "GOMP_SPINCOUNT")
@@ -66,7 +69,62 @@ def wait_policy() -> str:
     return _WAIT
 
 
-def default_threads() -> int:
-    """The thread count of ``threads=None``: ``omp_get_max_threads()`` of the calling thread
-    (1 in a build without OpenMP)."""
+def team_limit() -> int:
+    """The most threads ``threads=None`` uses: ``omp_get_max_threads()`` of the calling thread
+    (``OMP_NUM_THREADS``, ``threadpoolctl.threadpool_limits``); 1 in a build without OpenMP."""
     return max(1, radix.openmp_max_threads())
+
+
+#: Seconds a reading of the run queue is reused (calls in a loop read it once per interval).
+RUNNABLE_TTL = 0.1
+_cached = [-1.0, 0]   # (monotonic time of the reading, other runnable tasks)
+
+
+def parse_runnable(text: str) -> int | None:
+    """Runnable tasks from the text of ``/proc/loadavg`` (its fourth field, ``running/total``:
+    the tasks runnable at this instant, the reader included), or None when unreadable."""
+    try:
+        return int(text.split()[3].split("/")[0])
+    except (IndexError, ValueError):
+        return None
+
+
+def _read_runnable() -> int | None:
+    try:
+        with open("/proc/loadavg", encoding="ascii") as fh:
+            return parse_runnable(fh.read())
+    except OSError:
+        return None
+
+
+def _cores() -> int:
+    try:
+        return len(os.sched_getaffinity(0))
+    except (AttributeError, OSError):
+        return os.cpu_count() or 1
+
+
+def free_cores() -> int:
+    """Cores of this process's CPU set that other runnable tasks do not take at this instant
+    (at least 1): the CPU set's size minus the runnable tasks other than the caller, read from
+    ``/proc/loadavg`` at most every ``RUNNABLE_TTL`` seconds.  Where the run queue cannot be
+    read (not Linux), every core of the set counts as free."""
+    now = time.monotonic()
+    if now - _cached[0] > RUNNABLE_TTL:
+        running = _read_runnable()
+        _cached[0] = now
+        _cached[1] = 0 if running is None else max(0, running - 1)
+    return max(1, _cores() - _cached[1])
+
+
+def default_threads() -> int:
+    """The thread count of ``threads=None``: the team limit (``team_limit``), but no more than
+    the free cores (``free_cores``).
+
+    On a machine whose cores other processes keep busy, a second thread gets a share of a core
+    that is already taken: parallel phases then wait for it, and the call is slower than on one
+    thread.  The forest does not depend on the thread count, so the default takes only the
+    cores that are free when the call starts (``python bench/bench_threads.py`` measures it
+    with 0, 1 and 2 cores kept busy).
+    """
+    return min(team_limit(), free_cores())
