@@ -92,7 +92,8 @@ def capacitated_tree(tail, head, weight, root, capacity, *, demand=None, n_nodes
     saving is positive.  Subtrees without any feeder (sites with no link to the root) merge
     first, cheapest link first; those still without one at the end are ``unserved``.  Ties go
     to the cheaper link, then the earlier position.  No guarantee of optimality: the
-    capacitated minimum spanning tree problem is NP-hard (Papadimitriou 1978); the tests
+    capacitated minimum spanning tree problem is NP-hard (Papadimitriou 1978, recalled from
+    memory); the tests
     report the gap to the exact optimum on small instances.
 
     Complexity: every subtree keeps a heap of its outgoing links; heaps merge smaller into
