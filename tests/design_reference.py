@@ -7,8 +7,8 @@ from scipy.sparse import coo_array
 
 def capacitated_optimum(tail, head, weight, n, root, capacity, demand):
     """Optimal capacitated tree cost by the single-commodity flow formulation (Gavish, "Formula-
-    tions and algorithms for the capacitated minimal directed tree problem", J. ACM 30, 1983; recalled from memory):
-    arc variables y (binary) and flows f >= 0; one arc into every site, flow conservation with
+    tions and algorithms for the capacitated minimal directed tree problem", J. ACM 30, 1983;
+    recalled from memory): arc variables y (binary) and flows f >= 0; one arc into every site, flow conservation with
     the site's demand, f <= Q y on arcs out of the root and f <= (Q - d_u) y on arcs out of a
     site u.  Every demand must be > 0 (then the chosen arcs form a tree).  None if infeasible."""
     t = np.asarray(tail, dtype=np.int64)
