@@ -266,9 +266,9 @@ def plot_forest(path, edges, forest, *, title=None, subtitle=None, groups=None, 
     ratio = (y1 - y0) * aspect / (x1 - x0)
     map_w = 7.6
     map_h = min(9.0, max(3.2, map_w * ratio))
-    wrap = 95
+    wrap = 88   # characters of the title's font across the map's width
     heading = title or f"{'Maximum' if forest.maximize else 'Minimum'} spanning forest"
-    text = textwrap.fill(heading, wrap) + (f"\n{textwrap.fill(subtitle, wrap + 15)}"
+    text = textwrap.fill(heading, wrap) + (f"\n{textwrap.fill(subtitle, wrap)}"
                                            if subtitle else "")
     foot = textwrap.fill(footnote, 150) if footnote else None
     fig_h = map_h + 1.3 + 0.22 * text.count("\n") + (0.2 + 0.16 * foot.count("\n") if foot

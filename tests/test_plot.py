@@ -82,6 +82,10 @@ def texts_outside(fig):
                 e.y1 > box.y1 + 0.5:
             out.append((t.get_text(), e))
     assert seen >= 8, "expected the title, axis labels, tick labels, legend and scale bar"
+    legend = [lg.get_window_extent(r) for lg in fig.legends]
+    for ax in fig.axes:                 # the title stays clear of the legend beside the map
+        title = ax.title.get_window_extent(r)
+        out += [("title overlaps the legend", title) for lg in legend if title.overlaps(lg)]
     for ax in fig.axes:                 # tick labels of one axis never overlap each other
         for axis in (ax.xaxis, ax.yaxis):
             boxes = [t.label1.get_window_extent(r) for t in axis.get_major_ticks()
