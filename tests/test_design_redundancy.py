@@ -123,3 +123,36 @@ def test_rejects_bad_arguments():
         backup_links(t, h, w, exact="yes")
     with pytest.raises(ValueError, match="weight -3"):
         backup_links(t, h, [1.0, 2.0, -3.0])
+
+
+@settings(max_examples=60)
+@given(graphs(max_nodes=12, max_edges=30), st.booleans())
+def test_halves_dynamic_programme_equals_the_arborescence_lp(case, random_design):
+    """The dynamic programme over the halves (the arborescence step of Frederickson and JaJa)
+    reaches the optimum of the halves' covering problem, solved independently by
+    scipy.optimize.milp over the explicit covering matrix; the halves it picks cost exactly
+    that optimum and cover every coverable design link."""
+    from fastmst.design import redundancy
+    from fastmst.design.checks import graph_and_design
+    from fastmst.design.shallow import best_links
+    tail, head, weight, n, excluded = case
+    forest = None
+    if random_design:
+        usable = np.ones(len(tail), dtype=bool)
+        usable[list(excluded)] = False
+        g = multigraph(tail, head, np.arange(len(tail))[::-1].astype(float), n, usable)
+        forest = sorted(k for _, _, k in nx.minimum_spanning_edges(g, keys=True, data=False))
+    d = graph_and_design(tail, head, weight, forest, n, excluded, "test")
+    a, b, c, pos = best_links(d.g, d.usable & ~d.in_forest)
+    picked, covered, value, chosen_cost = redundancy._halves_cover(d, a, b, c, pos)
+    indptr, edges, side = redundancy._paths(d.pnode, d.depth, d.pedge, a, b)
+    need = np.zeros(d.fpos.size, dtype=bool)
+    need[edges] = True
+    assert covered.tolist() == need.tolist()
+    half_ptr = np.empty(2 * a.size + 1, dtype=np.int64)
+    half_ptr[0] = 0
+    half_ptr[1::2] = indptr[:-1] + side
+    half_ptr[2::2] = indptr[1:]
+    cols = redundancy._exact(half_ptr, edges, np.repeat(c, 2), need)
+    assert value == pytest.approx(float(np.repeat(c, 2)[cols].sum()), abs=1e-9)
+    assert chosen_cost == pytest.approx(value, abs=1e-9)

@@ -2,6 +2,7 @@
 failure (weighted tree augmentation to 2-edge-connectivity)."""
 from __future__ import annotations
 
+import heapq
 from dataclasses import dataclass
 
 import numpy as np
@@ -79,23 +80,130 @@ def _paths(pnode, depth, pedge, a, b):
     return indptr, np.asarray(out, dtype=np.int64), side
 
 
-def _up_path_cover(indptr, edges, side, c, needed):
-    """Frederickson and JaJa's reduction: every candidate link (u, v) splits into its two
-    halves, u up to the lowest common ancestor and v up to it, each at the link's full cost;
-    the cheapest set of halves covering every coverable tree link is a minimum-cost
-    arborescence of their digraph, and costs at most twice the optimum (each link of an
-    optimal solution gives two halves).  Halves are ancestor-descendant paths of a rooted
-    tree, so the covering matrix is a network matrix, totally unimodular, and its LP has an
-    integral optimum: scipy.optimize.milp (HiGHS) proves it at the root of its search.
-    Returns the indices of the links with a chosen half."""
-    n_links = indptr.size - 1
-    start, stop = indptr[:-1], indptr[1:]
-    half_ptr = np.empty(2 * n_links + 1, dtype=np.int64)
-    half_ptr[0] = 0
-    half_ptr[1::2] = start + side
-    half_ptr[2::2] = stop
-    # the half columns: 2k (u's side) and 2k + 1 (v's side), both at cost c[k]
-    return np.unique(_exact(half_ptr, edges, np.repeat(c, 2), needed) // 2)
+def _lca(pnode, depth, a, b):
+    """Lowest common ancestors of the pairs (a[k], b[k]), each pair in one tree, by binary
+    lifting (vectorised over the pairs; O((V + Q) log depth))."""
+    n = pnode.shape[0]
+    up = [np.where(pnode >= 0, pnode, np.arange(n, dtype=np.int64))]
+    maxd = int(depth.max()) if n else 0
+    while (1 << len(up)) <= maxd:
+        up.append(up[-1][up[-1]])
+    u = a.astype(np.int64)
+    v = b.astype(np.int64)
+    swap = depth[u] < depth[v]
+    u, v = np.where(swap, v, u), np.where(swap, u, v)
+    diff = depth[u] - depth[v]
+    for j, table in enumerate(up):
+        sel = ((diff >> j) & 1).astype(bool)
+        u[sel] = table[u[sel]]
+    for table in reversed(up):
+        uj, vj = table[u], table[v]
+        sel = uj != vj
+        u[sel], v[sel] = uj[sel], vj[sel]
+    return np.where(u == v, u, up[0][u])
+
+
+def _halves_cover(d, a, b, c, pos):
+    """Frederickson and JaJa's reduction, solved exactly by dynamic programming over the tree.
+
+    Every candidate (u, v) splits into its two halves, u up to the lowest common ancestor w and
+    v up to w, each at the candidate's full cost; the cheapest set of halves covering every
+    coverable tree link is a minimum-cost arborescence of their digraph and costs at most twice
+    the optimum (the two halves of each optimal candidate are one such set).
+
+    The halves covering a tree link (v, parent) all start below v and run up the one path to
+    the root, so their coverage above v is nested.  With f(v) the cheapest cover of v's subtree
+    and its link to the parent, and r(v, h) the cheapest such cover that contains half h, minus
+    the children's sum S(v) = sum f(c): r(v, h) = cost(h) for a half starting at v, and
+    r(c, h) + S(c) - f(c) for one from child c; f(v) = S(v) + min r(v, h) over the halves still
+    above v.  Each node keeps a heap of r with a lazy offset, merged smaller into larger:
+    O(H log^2 H) for H halves, in Python.  The choice is rebuilt from the top down.
+
+    Returns (indices of the chosen candidates, boolean per forest link: coverable, the
+    optimum of the halves' covering, the cost of the halves chosen).
+    """
+    pnode, depth = d.pnode, d.depth
+    n = pnode.shape[0]
+    w = _lca(pnode, depth, a, b)
+    starts, tops, cost, link = [], [], [], []
+    for side in (a, b):
+        keep = side != w
+        starts.append(side[keep])
+        tops.append(w[keep])
+        cost.append(c[keep])
+        link.append(np.flatnonzero(keep))
+    starts = np.concatenate(starts).tolist()
+    tops = np.concatenate(tops)
+    top_depth = depth[tops].tolist()
+    tops = tops.tolist()
+    cost = np.concatenate(cost).tolist()
+    link = np.concatenate(link)
+    by_start = [[] for _ in range(n)]
+    for h, s in enumerate(starts):
+        by_start[s].append(h)
+    tie = pos[link].tolist()                # ties: the earlier candidate, then the first half
+    pn, dp = pnode.tolist(), depth.tolist()
+    heaps = [None] * n
+    offset = [0.0] * n
+    total = [0.0] * n                       # S(v), then f(v)
+    best = [-1] * n
+    for v in np.argsort(-depth, kind="stable").tolist():
+        hp = heaps[v]
+        if hp is None:
+            hp = heaps[v] = []
+        off = offset[v]
+        for h in by_start[v]:
+            heapq.heappush(hp, (cost[h] - off, tie[h], h))
+        while hp and top_depth[hp[0][2]] >= dp[v]:
+            heapq.heappop(hp)               # ends at v: covers nothing above it
+        p = pn[v]
+        if p < 0:
+            heaps[v] = None
+            continue
+        if hp:
+            m = hp[0][0] + off
+            best[v] = hp[0][2]
+            total[v] += m
+            off -= m
+        total[p] += total[v]
+        # merge into the parent's heap, smaller into larger
+        php = heaps[p]
+        if php is None:
+            heaps[p], offset[p] = hp, off
+        else:
+            poff = offset[p]
+            if len(hp) > len(php):
+                hp, php, off, poff = php, hp, poff, off
+            shift = off - poff
+            for key, t, h in hp:
+                heapq.heappush(php, (key + shift, t, h))
+            heaps[p], offset[p] = php, poff
+        heaps[v] = None
+    # rebuild from the top: a node either carries a half chosen above it, or its own best
+    value = float(sum(total[t] for t in np.flatnonzero(pnode < 0).tolist()))
+    alive = [-1] * n
+    claimed = set()
+    chosen = set()
+    for x in np.argsort(depth, kind="stable").tolist():
+        h = alive[x] if alive[x] >= 0 else best[x]
+        if h < 0:
+            continue
+        alive[x] = h
+        s = starts[h]
+        if s == x:
+            chosen.add(h)
+        elif h not in claimed:
+            claimed.add(h)
+            y = s
+            while y != x:
+                alive[y] = h
+                y = pn[y]
+    covered = np.zeros(d.fpos.shape[0], dtype=bool)
+    child = np.flatnonzero(pnode >= 0)
+    covered[d.pedge[child]] = np.asarray(best, dtype=np.int64)[child] >= 0
+    picked = np.unique(link[np.fromiter(chosen, dtype=np.int64, count=len(chosen))]) \
+        if chosen else np.empty(0, dtype=np.int64)
+    return picked, covered, value, float(sum(cost[h] for h in chosen))
 
 
 def _lp_bound(indptr, edges, c, needed):
@@ -178,15 +286,16 @@ def backup_links(tail, head, weight, forest=None, *, n_nodes=None, excluded=None
     graph augmentation problems", SIAM J. Computing 10(2), 1981: each candidate becomes two
     arcs from the lowest common ancestor of its ends down to each end, tree links point to
     the root, and a minimum-cost arborescence picks links whose cost is at most twice the
-    optimum.  Here that arborescence is found as its equivalent covering of the tree links by
-    the candidates' halves (each end up to the common ancestor), an LP with a totally
-    unimodular matrix solved to an integral optimum by ``scipy.optimize.milp``.  Of several
-    parallel candidates only the cheapest (the earliest position among equal costs) is
-    considered.
+    optimum.  Here that arborescence is found as its equivalent: the cheapest covering of the
+    tree links by the candidates' halves (each end up to the common ancestor), solved exactly
+    by a dynamic programme over the tree with mergeable heaps (O(E log^2 E) in Python, after
+    lowest common ancestors by binary lifting).  Of several parallel candidates only the
+    cheapest (the earliest position among equal costs) is considered.
 
-    Running time: the tree paths of the candidates are walked in Python (their total length L)
-    and HiGHS solves an LP with L nonzeros: this function is for designs of thousands to tens
-    of thousands of sites, not millions.
+    Running time: the lower bound and the exact mode walk every candidate's tree path in Python
+    (their total length L) and HiGHS solves a problem with L nonzeros: for thousands to tens of
+    thousands of sites.  With ``lower_bound=False`` the 2-approximation alone scales to
+    millions of sites.
     """
     exact = validation.check_bool(exact, "exact", _FUNC)
     lower_bound = validation.check_bool(lower_bound, "lower_bound", _FUNC)
@@ -199,20 +308,21 @@ def backup_links(tail, head, weight, forest=None, *, n_nodes=None, excluded=None
         raise ValueError(f"{_FUNC}: exact=True takes at most {EXACT_LIMIT} candidate links, "
                          f"this graph has {a.size}; use exact=False (the 2-approximation with "
                          f"its lower bound).")
-    indptr, edges, side = _paths(d.pnode, d.depth, d.pedge, a, b)
-    covered_edge = np.zeros(d.fpos.size, dtype=bool)
-    covered_edge[edges] = True
-    single = np.sort(d.fpos[~covered_edge])
     bound = None
-    if lower_bound or exact:
+    if exact or lower_bound:
+        indptr, edges, side = _paths(d.pnode, d.depth, d.pedge, a, b)
+        covered_edge = np.zeros(d.fpos.size, dtype=bool)
+        covered_edge[edges] = True
         if edges.size <= LP_LIMIT:
             bound = _lp_bound(indptr, edges, c, covered_edge)
     if exact:
         chosen = np.sort(pos[_exact(indptr, edges, c, covered_edge)])
         method = "exact"
     else:
-        chosen = np.sort(pos[_up_path_cover(indptr, edges, side, c, covered_edge)])
+        picked, covered_edge, _, _ = _halves_cover(d, a, b, c, pos)
+        chosen = np.sort(pos[picked])
         method = "frederickson-jaja"
+    single = np.sort(d.fpos[~covered_edge])
     wsum = float(g.weight[chosen].astype(np.float64).sum()) if chosen.size else 0.0
     return BackupLinks(forest=np.sort(d.fpos), position=chosen, weight=wsum,
                        lower_bound=bound if lower_bound else None, optimal=exact,
