@@ -150,11 +150,15 @@ def typed_text_column(col, decimal_comma=False):
     col = plain(col)
     if not (pa.types.is_string(col.type) or pa.types.is_large_string(col.type)):
         return col
+    pattern = _NUMBER if decimal_comma else _NUMBER.replace("[.,]", "[.]")
+    head = col.slice(0, 1000)            # a text column usually shows itself in its first rows
+    head = pc.filter(head, pc.invert(pc.is_in(head, value_set=pa.array(NULLS))))
+    if len(head) and not pc.all(pc.match_substring_regex(head, pattern)).as_py():
+        return col
     missing = pc.is_in(col, value_set=pa.array(NULLS))
     present = pc.filter(col, pc.invert(missing))
     if len(present) == 0:
         return col
-    pattern = _NUMBER if decimal_comma else _NUMBER.replace("[.,]", "[.]")
     if not pc.all(pc.match_substring_regex(present, pattern)).as_py():
         return col
     values = pc.if_else(missing, pa.scalar(None, col.type), col)
