@@ -405,6 +405,14 @@ def plot_forest(path, edges, forest, *, title=None, subtitle=None, groups=None, 
     fig.legend(handles=handles, loc="outside right upper", fontsize=8, frameon=False)
     if foot:
         fig.supxlabel(foot, fontsize=7.5, color="#555555", x=0.01, ha="left")
+    # The first draw lays the figure out and widens the limits to the aspect; the tick labels
+    # of those limits may be wider than the ones the layout measured, so the limits are then
+    # fixed (the box keeps the aspect) and the next draw lays out the final labels.
+    fig.canvas.draw()
+    xlim, ylim = ax.get_xlim(), ax.get_ylim()
+    ax.set_aspect(aspect, adjustable="box")
+    ax.set_xlim(xlim)
+    ax.set_ylim(ylim)
     if path is None:
         return fig
 

@@ -14,6 +14,7 @@ the projected bar's ends transformed to lon/lat by pyproj.Transformer.
 import numpy as np
 import pyarrow as pa
 import pytest
+from hypothesis import given, settings, strategies as st
 
 import fastmst
 from fastmst import io
@@ -222,6 +223,34 @@ def test_600k_links_readable_and_inside(tmp_path):
     try:
         ax = fig.axes[0]
         assert len(ax.images) == 2 and len(ax.collections) <= 2
+        assert texts_outside(fig) == []
+    finally:
+        matplotlib.pyplot.close(fig)
+
+
+@settings(max_examples=8)
+@given(geographic=st.booleans(), log_w=st.floats(-6, 2), log_ratio=st.floats(-2.5, 2.5),
+       cx=st.floats(-1.0, 1.0), cy=st.floats(-1.0, 1.0))
+def test_text_inside_over_extents_and_aspects(geographic, log_w, log_ratio, cx, cy):
+    """libpysal's geodanet streets (220 sites) moved and stretched into boxes from 1e-6 to 100
+    units wide, with height/width ratios from 1/300 to 300, as lon/lat (anywhere between
+    +-170 degrees and +-80 degrees latitude) or planar coordinates up to 1e7 from the origin:
+    every text inside the figure, no overlapping tick labels."""
+    el = _layer("geodanet")
+    xy = el.coords - el.coords.min(axis=0)
+    xy = xy / np.maximum(xy.max(axis=0), 1e-300)
+    w = 10.0 ** log_w
+    h = w * 10.0 ** log_ratio
+    if geographic:
+        w, h = min(w, 340.0), min(h, 160.0)
+        x0, y0 = cx * (170 - w / 2) - w / 2, cy * (80 - h / 2) - h / 2
+    else:
+        x0, y0 = cx * 1e7, cy * 1e7
+    coords = np.column_stack([x0 + xy[:, 0] * w, y0 + xy[:, 1] * h])
+    moved = io.EdgeList(el.tail, el.head, el.weight, el.n_nodes, None, coords, geographic,
+                        "geodanet streets, moved")
+    fig = plot_forest(None, moved, moved.solve(), dpi=40)
+    try:
         assert texts_outside(fig) == []
     finally:
         matplotlib.pyplot.close(fig)
