@@ -10,8 +10,6 @@ then gives its own answer or its own exception for those values (``read_weights`
 """
 from __future__ import annotations
 
-from operator import methodcaller
-
 import numpy as np
 
 #: Beyond this magnitude a float64 no longer holds every integer: an int there may have been
@@ -26,7 +24,7 @@ def read_weights(data: np.ndarray, weight) -> np.ndarray | None:
     runs networkx's own implementation.  ``weight`` is used as networkx uses it, so an
     unhashable name raises networkx's TypeError (from ``dict.get``).
     """
-    values = list(map(methodcaller("get", weight, 1), data))
+    values = [d.get(weight, 1) for d in data.tolist()]     # measured faster than map()
     try:
         w = np.array(values)
     except (TypeError, ValueError, OverflowError):
