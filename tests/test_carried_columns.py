@@ -169,3 +169,18 @@ def test_carried_rows_follow_the_forest(tmp_path_factory, rows):
         assert forest.weight + len(forest) == pytest.approx(ref.sum())
     else:
         assert len(forest) == 0
+
+
+def test_delimiter_and_decimal_comma_for_nodes_and_lists(tmp_path):
+    """The node table and lists of links read with ';' and decimal commas give what the
+    comma/point files give."""
+    (tmp_path / "n1.csv").write_text("id,lon,lat\nA,0.5,1.25\nB,1,1\nC,2.5,0\n")
+    (tmp_path / "n2.csv").write_text("id;lon;lat\nA;0,5;1,25\nB;1;1\nC;2,5;0\n")
+    a = fastmst.read_nodes(tmp_path / "n1.csv")
+    b = fastmst.read_nodes(tmp_path / "n2.csv", delimiter=";", decimal_comma=True)
+    assert a.labels.tolist() == b.labels.tolist() and np.array_equal(a.coords, b.coords)
+    (tmp_path / "e.csv").write_text("from,to,cost\nA,B,4.5\nB,C,1.25\nA,C,3\n")
+    edges = fastmst.read_edges(tmp_path / "e.csv", nodes=a)
+    (tmp_path / "x.csv").write_text("from;to\nC;A\n")
+    links = io.read_links(tmp_path / "x.csv", edges, delimiter=";")
+    assert links.positions.tolist() == [2] and links.named_by == "pair"

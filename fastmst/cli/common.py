@@ -60,10 +60,10 @@ def add_input_options(p, forest_file=False):
                    help="input columns carried to every output under their own names: 'all' "
                         "(default), 'none', or names separated by commas")
     g.add_argument("--delimiter", metavar="CHAR",
-                   help="CSV/TSV field separator when it is not the suffix's own, e.g. ';' "
-                        "(write '\\t' for a tab)")
+                   help="field separator of the CSV/TSV inputs (edges, nodes, lists of links) "
+                        "when it is not the suffix's own, e.g. ';' (write '\\t' for a tab)")
     g.add_argument("--decimal-comma", action="store_true",
-                   help="CSV/TSV numbers use a decimal comma (12,5)")
+                   help="numbers in the CSV/TSV inputs use a decimal comma (12,5)")
     g.add_argument("--nodes", metavar="FILE",
                    help="node table (CSV/Parquet): id, lon/lat or x/y columns; needed for "
                         "lengths, GeoJSON and --plot")
@@ -126,7 +126,9 @@ def read_constraints(args, edges, rep):
             path = getattr(args, opt, None)
             if not path:
                 continue
-            links = io.read_links(path, edges, parallel=parallel, func=f"--{opt}")
+            links = io.read_links(path, edges, parallel=parallel, func=f"--{opt}",
+                                  delimiter=delimiter_option(args),
+                                  decimal_comma=bool(getattr(args, "decimal_comma", False)))
             kwargs[opt] = links.positions
             d = {"file": path, "rows": links.rows, "links": int(np.unique(links.positions).size),
                  "named_by": links.named_by}
@@ -283,12 +285,12 @@ def load_edges(args, rep) -> io.EdgeList:
     elif args.nodes:
         with rep.phase("reading nodes"):
             nodes = io.read_nodes(args.nodes, id=args.node_id, x=args.x, y=args.y,
-                                  geographic=args.geographic, ids=args.ids)
+                                  geographic=args.geographic, ids=args.ids,
+                                  delimiter=delimiter_option(args),
+                                  decimal_comma=args.decimal_comma)
     elif args.x or args.y or args.node_id:
         raise UsageError("--node-id/--x/--y describe the node table; give it with --nodes FILE.")
-    delimiter = args.delimiter
-    if delimiter is not None and delimiter in ("\\t", "tab"):
-        delimiter = "\t"
+    delimiter = delimiter_option(args)
     if layer:
         if args.tail or args.head:
             raise UsageError("--tail/--head do not apply to a line layer: each link's ends come "
@@ -317,6 +319,12 @@ def layer_note(edges) -> str | None:
         return None
     return (f"{crs.describe()}; line ends joined within {edges.snap_tolerance:g}, largest "
             f"move {edges.max_shift:.3g}")
+
+
+def delimiter_option(args):
+    """--delimiter, with '\\t' and 'tab' meaning a tab."""
+    d = getattr(args, "delimiter", None)
+    return "\t" if d in ("\\t", "tab") else d
 
 
 def keep_columns(text: str):

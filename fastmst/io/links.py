@@ -55,7 +55,8 @@ class LinkList:
         return int(self.positions.shape[0])
 
 
-def read_links(path, edges, *, parallel="all", func="read_links") -> LinkList:
+def read_links(path, edges, *, parallel="all", func="read_links", delimiter=None,
+               decimal_comma=False) -> LinkList:
     """The links of ``edges`` that the list ``path`` names (see the module docstring).
 
     Parameters
@@ -68,6 +69,8 @@ def read_links(path, edges, *, parallel="all", func="read_links") -> LinkList:
         What a site pair with several links names: all of them, or the lightest.
     func : str
         The caller's name for messages (the CLI passes its option, e.g. ``"--excluded"``).
+    delimiter, decimal_comma : optional
+        For CSV/TSV files, as in :func:`fastmst.io.read_edges`.
 
     Returns
     -------
@@ -83,7 +86,7 @@ def read_links(path, edges, *, parallel="all", func="read_links") -> LinkList:
                          f"{shown(parallel)}.")
     link_id = getattr(edges, "link_id", None)
     table, source, where = load_table(path, None, func, lambda header: [
-        c for c in header if c != "position"])
+        c for c in header if c != "position"], delimiter, decimal_comma)
     names = table.column_names
     if link_id is not None and link_id in names:
         pos = _by_id(table.column(link_id), edges, link_id, source, where)

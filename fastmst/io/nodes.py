@@ -70,7 +70,8 @@ def _pick_coord_columns(names, x, y, geographic, source):
 
 
 def read_nodes(path_or_table, *, id=None, x=None, y=None, geographic=None,
-               format=None, ids="text") -> NodeTable:  # noqa: A002 (``id`` names the column)
+               format=None, ids="text", delimiter=None,
+               decimal_comma=False) -> NodeTable:  # noqa: A002 (``id`` names the column)
     """Read a node table: one row per node with its label and coordinates.
 
     Parameters
@@ -90,6 +91,8 @@ def read_nodes(path_or_table, *, id=None, x=None, y=None, geographic=None,
         The label rule of :func:`fastmst.io.read_edges`: the id column of a text file is read
         as text, exactly as written (``007`` and ``7`` are two nodes); "integer" reads it as
         integers.  Typed tables keep their column's type.
+    delimiter, decimal_comma : optional
+        For CSV/TSV files, as in :func:`fastmst.io.read_edges`.
 
     Returns
     -------
@@ -113,7 +116,8 @@ def read_nodes(path_or_table, *, id=None, x=None, y=None, geographic=None,
     def id_column(header):
         return [id if id is not None else ("id" if "id" in header else header[0])] \
             if header else []
-    table, source, where = load_table(path_or_table, format, "read_nodes", id_column)
+    table, source, where = load_table(path_or_table, format, "read_nodes", id_column,
+                                      delimiter, decimal_comma)
     names = table.column_names
     if id is None:
         id = "id" if "id" in names else (names[0] if names else None)

@@ -26,12 +26,14 @@ def pandas_to_arrow(df):
                         f"column one type (numbers, or text labels).") from None
 
 
-def load_table(obj, format=None, func="load_table", text=()):
+def load_table(obj, format=None, func="load_table", text=(), delimiter=None,
+               decimal_comma=False):
     """(pyarrow Table, source name, row wording) from a file path or an in-memory table.
 
     ``where(i)`` of the returned row wording names row ``i`` as a message should (a line number
     for text files).  ``func`` names the caller in messages.  ``text(header)`` (or a list)
     names label columns: text files read them as text, as written, never as guessed numbers.
+    ``delimiter`` and ``decimal_comma`` apply to CSV/TSV files (other formats ignore them).
     """
     import pyarrow as pa
     if isinstance(obj, pa.Table):
@@ -45,5 +47,18 @@ def load_table(obj, format=None, func="load_table", text=()):
     name, compression = registry.detect_format(path, format, valid=registry.names("table"),
                                                func=func)
     fmt = registry.get(name)
-    table, where = fmt.read_table(path, compression, text, **fmt.options)
+    if delimiter is not None:
+        if not isinstance(delimiter, str):
+            raise TypeError(f"{func}: delimiter must be one character such as ';', received "
+                            f"{type(delimiter).__name__}.")
+        if len(delimiter) != 1 or delimiter in "\r\n\"":
+            raise ValueError(f"{func}: delimiter must be one character other than a quote or a "
+                             f"line break, received {delimiter!r}; for tabs pass '\\t'.")
+    options = dict(fmt.options)
+    if "delimiter" in options:          # CSV/TSV
+        if delimiter is not None:
+            options["delimiter"] = delimiter
+        if decimal_comma:
+            options["decimal_comma"] = True
+    table, where = fmt.read_table(path, compression, text, **options)
     return table, str(path), where

@@ -186,11 +186,11 @@ def read_edges(path, compression, request, *, delimiter):
                             guessed_roles(request.tail, request.head, request.weight))
 
 
-def read_table(path, compression, text=(), *, delimiter):
+def read_table(path, compression, text=(), *, delimiter, decimal_comma=False):
     """Every column of a CSV/TSV file, with its row wording; ``text(header)`` (or a list)
-    names the columns read as text."""
+    names the columns read as text; ``decimal_comma`` reads ``12,5`` as 12.5."""
     table, _, _ = read_csv(path, delimiter, compression, lambda header: header, lambda cols: [],
-                           text=text)
+                           text=text, decimal_comma=decimal_comma)
     return table, csv_row
 
 
