@@ -18,7 +18,7 @@ import warnings
 
 import numpy as np
 import pytest
-from hypothesis import given, strategies as st
+from hypothesis import given, settings, strategies as st
 
 import fastmst
 from fastmst import io
@@ -387,3 +387,41 @@ def test_cli_reads_a_layer_and_writes_geopackage_layers(tmp_path, capsys):
     assert main(["solve", str(tmp_path / "f.csv"), "--snap-tolerance", "1", "-o",
                  str(tmp_path / "g.csv")]) == 2
     assert "--layer/--snap-tolerance apply to a GeoPackage" in capsys.readouterr().err
+
+
+@settings(max_examples=10)
+@given(st.integers(2, 40), st.floats(0.0, 0.6), st.integers(0, 10_000),
+       st.sampled_from(["EPSG:25833", "EPSG:4326"]))
+def test_line_layers_of_any_shape_match_a_reference(n, tol, seed, crs):
+    """Lines between random grid points (some ends moved by up to 0.2, some lines with a bend)
+    written with pyogrio and read back: the nodes are the single-linkage groups of the end
+    points (scipy.cluster.hierarchy), the lengths those of shapely (projected) or sums of
+    haversine legs within 0.5 % of pyproj.Geod (lon/lat), and the forest that of
+    scipy.sparse.csgraph on the same edges."""
+    import tempfile
+    from pathlib import Path
+    from scipy.cluster.hierarchy import fcluster, linkage
+    rng = np.random.default_rng(seed)
+    grid = rng.integers(0, 6, (n, 2, 2)).astype(float)
+    grid[rng.random(n) < 0.3, 1] += rng.uniform(-0.2, 0.2, 2)
+    bend = (grid[:, 0] + grid[:, 1]) / 2 + rng.uniform(-0.5, 0.5, (n, 2))
+    scale = 0.01 if crs == "EPSG:4326" else 1.0          # lon/lat: a small box near 10E 50N
+    off = np.array([10.0, 50.0]) if crs == "EPSG:4326" else np.zeros(2)
+    lines = [shapely.LineString([a * scale + off, m * scale + off, b * scale + off])
+             if rng.random() < 0.5 else shapely.LineString([a * scale + off, b * scale + off])
+             for (a, b), m in zip(grid, bend)]
+    with tempfile.TemporaryDirectory() as d:
+        path = _layer(Path(d) / "l.gpkg", shapely.to_wkb(lines), crs=crs)
+        el = io.read_line_layer(path, snap_tolerance=tol * scale)
+    ends = np.stack([grid[:, 0], grid[:, 1]], 1).reshape(-1, 2)
+    ref = fcluster(linkage(ends, "single"), tol, "distance")
+    got = np.stack([el.tail, el.head], 1).reshape(-1)
+    assert len(set(zip(got.tolist(), ref.tolist()))) == len(set(ref.tolist())) == el.n_nodes
+    if crs == "EPSG:4326":
+        geod = pyproj.Geod(ellps="WGS84")
+        np.testing.assert_allclose(el.weight, [geod.geometry_length(x) for x in lines],
+                                   rtol=5e-3)
+    else:
+        np.testing.assert_allclose(el.weight, shapely.length(lines), rtol=1e-12)
+    positions, _ = rd.scipy_forest(el.tail, el.head, el.weight, el.n_nodes)
+    assert sorted(el.solve().edges.tolist()) == sorted(positions.tolist())
