@@ -190,8 +190,8 @@ def _read_layer(path, layer, want, crs, func):
             raise FileFormatError(
                 f"{source}: the layer has no coordinate reference system (CRS), so fastmst "
                 f"cannot tell degrees from metres. Assign one in your GIS (e.g. geopandas "
-                f"GeoDataFrame.set_crs('EPSG:...')), or state it with crs='EPSG:...' "
-                f"(CLI: --crs).")
+                f"GeoDataFrame.set_crs('EPSG:...').to_file(...)), or state it with "
+                f"crs='EPSG:...' when calling {func}.")
         stated = crs
     info = crs_info(stated, source)
     missing = np.array([g is None for g in wkb], dtype=bool)
