@@ -15,7 +15,7 @@ Inputs are int64 (node ids, parents, CSR offsets) and float64 (lengths, distance
 """
 import numpy as np
 from libc.math cimport INFINITY
-from libc.stdint cimport int64_t
+from libc.stdint cimport int64_t, uint8_t
 
 
 cdef void _sides_beyond(const int64_t[::1] pnode, const int64_t[::1] depth, int64_t root,
@@ -370,3 +370,183 @@ def parent_links(const int64_t[::1] indptr, const int64_t[::1] nbr, const int64_
     with nogil:
         _parent_links(indptr, nbr, link, w, pred, ov)
     return out
+
+
+# The heap primitives take raw pointers: memoryview slices passed to a recursive function are
+# copied (and their acquisition counts updated) at every call.
+cdef inline bint _before(int64_t x, int64_t y, const double* key,
+                         const int64_t* tie) noexcept nogil:
+    if key[x] != key[y]:
+        return key[x] < key[y]
+    if tie[x] != tie[y]:
+        return tie[x] < tie[y]
+    return x < y
+
+
+cdef inline void _push_down(int64_t x, double* key, double* lazy, const int64_t* left,
+                            const int64_t* right) noexcept nogil:
+    cdef double z = lazy[x]
+    if z != 0.0:
+        if left[x] >= 0:
+            key[left[x]] += z
+            lazy[left[x]] += z
+        if right[x] >= 0:
+            key[right[x]] += z
+            lazy[right[x]] += z
+        lazy[x] = 0.0
+
+
+cdef int64_t _merge(int64_t a, int64_t b, double* key, double* lazy, const int64_t* tie,
+                    int64_t* left, int64_t* right, int64_t* npl) noexcept nogil:
+    """Leftist heaps (right paths of O(log H) nodes, so the recursion stays shallow)."""
+    cdef int64_t t, nl, nr
+    if a < 0:
+        return b
+    if b < 0:
+        return a
+    if _before(b, a, key, tie):
+        t = a
+        a = b
+        b = t
+    _push_down(a, key, lazy, left, right)
+    right[a] = _merge(right[a], b, key, lazy, tie, left, right, npl)
+    nl = npl[left[a]] if left[a] >= 0 else 0
+    nr = npl[right[a]] if right[a] >= 0 else 0
+    if nl < nr:
+        t = left[a]
+        left[a] = right[a]
+        right[a] = t
+        nr = nl
+    npl[a] = nr + 1
+    return a
+
+
+cdef void _cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
+                           const int64_t[::1] deepest_first, const int64_t[::1] hptr,
+                           const int64_t[::1] hlist, const int64_t[::1] starts,
+                           const int64_t[::1] top_depth, const double[::1] cost,
+                           const int64_t[::1] tie, double[::1] key, double[::1] lazy,
+                           int64_t[::1] left, int64_t[::1] right, int64_t[::1] npl,
+                           int64_t[::1] root, int64_t[::1] best, double[::1] total,
+                           int64_t[::1] alive, uint8_t[::1] claimed,
+                           uint8_t[::1] chosen) noexcept nogil:
+    cdef int64_t n = pnode.shape[0]
+    cdef int64_t i, k, v, h, r, p, x, y, s
+    cdef double m
+    cdef double* kp = &key[0] if key.shape[0] else NULL
+    cdef double* lp = &lazy[0] if lazy.shape[0] else NULL
+    cdef const int64_t* tp = &tie[0] if tie.shape[0] else NULL
+    cdef int64_t* lf = &left[0] if left.shape[0] else NULL
+    cdef int64_t* rt = &right[0] if right.shape[0] else NULL
+    cdef int64_t* nv = &npl[0] if npl.shape[0] else NULL
+    for i in range(n):
+        root[i] = -1
+        best[i] = -1
+        total[i] = 0.0
+        alive[i] = -1
+    for h in range(cost.shape[0]):
+        key[h] = cost[h]
+        lazy[h] = 0.0
+        left[h] = -1
+        right[h] = -1
+        npl[h] = 1
+        claimed[h] = 0
+        chosen[h] = 0
+    for i in range(n):
+        v = deepest_first[i]
+        r = root[v]
+        for k in range(hptr[v], hptr[v + 1]):
+            r = _merge(r, hlist[k], kp, lp, tp, lf, rt, nv)
+        while r >= 0 and top_depth[r] >= depth[v]:
+            _push_down(r, kp, lp, lf, rt)               # ends at v: covers nothing above
+            r = _merge(lf[r], rt[r], kp, lp, tp, lf, rt, nv)
+        root[v] = -1
+        p = pnode[v]
+        if p < 0:
+            continue
+        if r >= 0:
+            m = key[r]
+            best[v] = r
+            total[v] += m
+            key[r] -= m
+            lazy[r] -= m
+        total[p] += total[v]
+        root[p] = _merge(root[p], r, kp, lp, tp, lf, rt, nv)
+    for i in range(n - 1, -1, -1):                      # from the top down
+        x = deepest_first[i]
+        h = alive[x] if alive[x] >= 0 else best[x]
+        if h < 0:
+            continue
+        alive[x] = h
+        s = starts[h]
+        if s == x:
+            chosen[h] = 1
+        elif not claimed[h]:
+            claimed[h] = 1
+            y = s
+            while y != x:
+                alive[y] = h
+                y = pnode[y]
+
+
+def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
+                    const int64_t[::1] starts, const int64_t[::1] top_depth,
+                    const double[::1] cost, const int64_t[::1] tie):
+    """The cheapest covering of a rooted forest's links by upward paths ("halves"), exactly.
+
+    Half ``h`` runs from node ``starts[h]`` up to an ancestor at depth ``top_depth[h]`` (less
+    than the start's) and covers the links on the way; it costs ``cost[h]`` (>= 0).  Nodes are
+    taken deepest first: each keeps a leftist heap of the halves from its subtree still running
+    above it, keyed by the cheapest cover of the subtree that uses them, minus the children's
+    covers (one lazy offset per heap); the cheapest of them covers the link to the parent.
+    O(H log H + V) after the sort by depth; ties by ``tie``, then half index.
+
+    Returns
+    -------
+    best : ndarray of shape (n,), dtype=int64
+        The half covering each node's link to its parent in the optimum seen from below (-1:
+        no half covers it, or a tree top).
+    total : ndarray of shape (n,), dtype=float64
+        Cheapest cover of each node's subtree and link to its parent (at tops: of the tree).
+    chosen : ndarray of shape (H,), dtype=bool
+        The halves of one optimal cover.
+    """
+    cdef int64_t n = pnode.shape[0]
+    cdef int64_t H = cost.shape[0]
+    if depth.shape[0] != n:
+        raise ValueError("cover_by_halves: pnode and depth must have one length.")
+    if starts.shape[0] != H or top_depth.shape[0] != H or tie.shape[0] != H:
+        raise ValueError("cover_by_halves: starts, top_depth, cost and tie must have one "
+                         "length.")
+    if n and (int(np.min(pnode)) < -1 or int(np.max(pnode)) >= n):
+        raise ValueError("cover_by_halves: parents must be -1 or nodes.")
+    st = np.asarray(starts)
+    td = np.asarray(top_depth)
+    if H and (int(st.min()) < 0 or int(st.max()) >= n):
+        raise ValueError("cover_by_halves: starts must be nodes.")
+    if H and bool((td >= np.asarray(depth)[st]).any() or (td < 0).any()):
+        raise ValueError("cover_by_halves: every half must end above its start.")
+    deepest_first = np.argsort(-np.asarray(depth), kind="stable").astype(np.int64)
+    counts = np.bincount(st, minlength=n) if H else np.zeros(n, dtype=np.int64)
+    hptr = np.zeros(n + 1, dtype=np.int64)
+    np.cumsum(counts, out=hptr[1:])
+    hlist = np.argsort(st, kind="stable").astype(np.int64)
+    key = np.empty(H, dtype=np.float64)
+    lazy = np.empty(H, dtype=np.float64)
+    left = np.empty(H, dtype=np.int64)
+    right = np.empty(H, dtype=np.int64)
+    npl = np.empty(H, dtype=np.int64)
+    root = np.empty(n, dtype=np.int64)
+    best = np.empty(n, dtype=np.int64)
+    total = np.empty(n, dtype=np.float64)
+    alive = np.empty(n, dtype=np.int64)
+    claimed = np.empty(H, dtype=np.uint8)
+    chosen = np.empty(H, dtype=np.uint8)
+    cdef int64_t[::1] df = deepest_first, hp = hptr, hl = hlist, lf = left, rt = right
+    cdef int64_t[::1] nv = npl, ro = root, be = best, al = alive
+    cdef double[::1] ke = key, la = lazy, to = total
+    cdef uint8_t[::1] cl = claimed, ch = chosen
+    with nogil:
+        _cover_by_halves(pnode, depth, df, hp, hl, starts, top_depth, cost, tie, ke, la, lf,
+                         rt, nv, ro, be, to, al, cl, ch)
+    return best, total, chosen.astype(bool)

@@ -2,12 +2,12 @@
 failure (weighted tree augmentation to 2-edge-connectivity)."""
 from __future__ import annotations
 
-import heapq
 from dataclasses import dataclass
 
 import numpy as np
 
 from fastmst import validation
+from fastmst._kernels.treewalk import cover_by_halves
 from fastmst.design.checks import check_nonnegative, graph_and_design
 from fastmst.design.shallow import best_links
 
@@ -116,94 +116,33 @@ def _halves_cover(d, a, b, c, pos):
     and its link to the parent, and r(v, h) the cheapest such cover that contains half h, minus
     the children's sum S(v) = sum f(c): r(v, h) = cost(h) for a half starting at v, and
     r(c, h) + S(c) - f(c) for one from child c; f(v) = S(v) + min r(v, h) over the halves still
-    above v.  Each node keeps a heap of r with a lazy offset, merged smaller into larger:
-    O(H log^2 H) for H halves, in Python.  The choice is rebuilt from the top down.
+    above v.  Each node keeps a leftist heap of r with lazy offsets
+    (``fastmst._kernels.treewalk.cover_by_halves``): O(H log H) for H halves.  The choice is
+    rebuilt from the top down.
 
     Returns (indices of the chosen candidates, boolean per forest link: coverable, the
     optimum of the halves' covering, the cost of the halves chosen).
     """
     pnode, depth = d.pnode, d.depth
-    n = pnode.shape[0]
     w = _lca(pnode, depth, a, b)
-    starts, tops, cost, link = [], [], [], []
+    starts, tops, link = [], [], []
     for side in (a, b):
         keep = side != w
         starts.append(side[keep])
         tops.append(w[keep])
-        cost.append(c[keep])
         link.append(np.flatnonzero(keep))
-    starts = np.concatenate(starts).tolist()
-    tops = np.concatenate(tops)
-    top_depth = depth[tops].tolist()
-    tops = tops.tolist()
-    cost = np.concatenate(cost).tolist()
-    link = np.concatenate(link)
-    by_start = [[] for _ in range(n)]
-    for h, s in enumerate(starts):
-        by_start[s].append(h)
-    tie = pos[link].tolist()                # ties: the earlier candidate, then the first half
-    pn, dp = pnode.tolist(), depth.tolist()
-    heaps = [None] * n
-    offset = [0.0] * n
-    total = [0.0] * n                       # S(v), then f(v)
-    best = [-1] * n
-    for v in np.argsort(-depth, kind="stable").tolist():
-        hp = heaps[v]
-        if hp is None:
-            hp = heaps[v] = []
-        off = offset[v]
-        for h in by_start[v]:
-            heapq.heappush(hp, (cost[h] - off, tie[h], h))
-        while hp and top_depth[hp[0][2]] >= dp[v]:
-            heapq.heappop(hp)               # ends at v: covers nothing above it
-        p = pn[v]
-        if p < 0:
-            heaps[v] = None
-            continue
-        if hp:
-            m = hp[0][0] + off
-            best[v] = hp[0][2]
-            total[v] += m
-            off -= m
-        total[p] += total[v]
-        # merge into the parent's heap, smaller into larger
-        php = heaps[p]
-        if php is None:
-            heaps[p], offset[p] = hp, off
-        else:
-            poff = offset[p]
-            if len(hp) > len(php):
-                hp, php, off, poff = php, hp, poff, off
-            shift = off - poff
-            for key, t, h in hp:
-                heapq.heappush(php, (key + shift, t, h))
-            heaps[p], offset[p] = php, poff
-        heaps[v] = None
-    # rebuild from the top: a node either carries a half chosen above it, or its own best
-    value = float(sum(total[t] for t in np.flatnonzero(pnode < 0).tolist()))
-    alive = [-1] * n
-    claimed = set()
-    chosen = set()
-    for x in np.argsort(depth, kind="stable").tolist():
-        h = alive[x] if alive[x] >= 0 else best[x]
-        if h < 0:
-            continue
-        alive[x] = h
-        s = starts[h]
-        if s == x:
-            chosen.add(h)
-        elif h not in claimed:
-            claimed.add(h)
-            y = s
-            while y != x:
-                alive[y] = h
-                y = pn[y]
+    starts = np.concatenate(starts).astype(np.int64)
+    link = np.concatenate(link).astype(np.int64)
+    cost = np.ascontiguousarray(c[link], dtype=np.float64)
+    tie = np.ascontiguousarray(pos[link], dtype=np.int64)   # the earlier candidate first
+    best, total, chosen = cover_by_halves(pnode, depth, starts,
+                                          depth[np.concatenate(tops)].astype(np.int64), cost,
+                                          tie)
+    value = float(total[pnode < 0].sum())
     covered = np.zeros(d.fpos.shape[0], dtype=bool)
     child = np.flatnonzero(pnode >= 0)
-    covered[d.pedge[child]] = np.asarray(best, dtype=np.int64)[child] >= 0
-    picked = np.unique(link[np.fromiter(chosen, dtype=np.int64, count=len(chosen))]) \
-        if chosen else np.empty(0, dtype=np.int64)
-    return picked, covered, value, float(sum(cost[h] for h in chosen))
+    covered[d.pedge[child]] = best[child] >= 0
+    return np.unique(link[chosen]), covered, value, float(cost[chosen].sum())
 
 
 def _lp_bound(indptr, edges, c, needed):
@@ -288,8 +227,8 @@ def backup_links(tail, head, weight, forest=None, *, n_nodes=None, excluded=None
     the root, and a minimum-cost arborescence picks links whose cost is at most twice the
     optimum.  Here that arborescence is found as its equivalent: the cheapest covering of the
     tree links by the candidates' halves (each end up to the common ancestor), solved exactly
-    by a dynamic programme over the tree with mergeable heaps (O(E log^2 E) in Python, after
-    lowest common ancestors by binary lifting).  Of several parallel candidates only the
+    by a dynamic programme over the tree with mergeable heaps (O(E log E), in a kernel, after
+    lowest common ancestors by binary lifting, O((V + E) log V)).  Of several parallel candidates only the
     cheapest (the earliest position among equal costs) is considered.
 
     Running time: the lower bound and the exact mode walk every candidate's tree path in Python
