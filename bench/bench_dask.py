@@ -46,11 +46,13 @@ def _files(path, limit=None):
     return [os.path.join(path, f) for f in names[:limit]]
 
 
-def generate(out, edges, nodes, files, seed=0):
+def generate(out, edges, nodes, files, seed=0, family="random"):
     """Write ``files`` Parquet files of about edges/files rows each (int32 ids, float64
     weights); only one file's arrays are in memory at a time."""
     import pyarrow as pa
     import pyarrow.parquet as pq
+    if family == "grid":
+        return generate_grid(out, nodes, files, seed)
     os.makedirs(out, exist_ok=True)
     per = -(-edges // files)
     start = time.perf_counter()
@@ -71,6 +73,60 @@ def generate(out, edges, nodes, files, seed=0):
     print(json.dumps({"step": "generate", "out": out, "edges": written, "nodes": nodes,
                       "files": files, "seconds": round(time.perf_counter() - start, 1)}),
           flush=True)
+
+
+def _grid_points(row, cols, seed):
+    """Jittered points of one grid row (x = column, y = row, each moved by up to 0.4)."""
+    rng = np.random.default_rng([seed, 1 << 20, row])
+    jitter = rng.uniform(-0.4, 0.4, (cols, 2))
+    return np.arange(cols) + jitter[:, 0], row + jitter[:, 1]
+
+
+def generate_grid(out, nodes, files, seed=0):
+    """A road-like planar family: a jittered square grid of about ``nodes`` points, edges to
+    the right and down neighbours and, with probability 1/2, one diagonal per cell (E ~ 2.5 V),
+    weights the Euclidean lengths (float64); one band of grid rows per file, row-major order
+    within a file (partitions are spatially coherent, as real networks often are)."""
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+    os.makedirs(out, exist_ok=True)
+    cols = int(np.sqrt(nodes))
+    rows = -(-nodes // cols)
+    start = time.perf_counter()
+    written = 0
+    bands = np.linspace(0, rows, files + 1).round().astype(int)
+    for i in range(files):
+        parts = []
+        for r in range(bands[i], bands[i + 1]):
+            x, y = _grid_points(r, cols, seed)
+            base = r * cols
+            ids = base + np.arange(cols)
+            t, h = [ids[:-1]], [ids[1:]]  # right
+            if r + 1 < rows:
+                x2, y2 = _grid_points(r + 1, cols, seed)
+                t.append(ids)
+                h.append(ids + cols)  # down
+                diag = np.random.default_rng([seed, 2 << 20, r]).random(cols - 1) < 0.5
+                t.append(ids[:-1][diag])
+                h.append(ids[:-1][diag] + cols + 1)  # down-right
+            else:
+                x2 = y2 = None
+            t, h = np.concatenate(t), np.concatenate(h)
+            xs = np.concatenate([x, x2]) if x2 is not None else x
+            ys = np.concatenate([y, y2]) if y2 is not None else y
+            w = np.hypot(xs[t - base] - xs[h - base], ys[t - base] - ys[h - base])
+            parts.append((t, h, w))
+        id_type = np.int32 if rows * cols < 2**31 else np.int64
+        table = pa.table({"tail": np.concatenate([p[0] for p in parts]).astype(id_type),
+                          "head": np.concatenate([p[1] for p in parts]).astype(id_type),
+                          "weight": np.concatenate([p[2] for p in parts])})
+        pq.write_table(table, os.path.join(out, f"part-{i:04d}.parquet"),
+                       row_group_size=1 << 20)
+        written += table.num_rows
+        del table, parts
+    print(json.dumps({"step": "generate", "family": "grid", "out": out, "edges": written,
+                      "nodes": rows * cols, "files": files,
+                      "seconds": round(time.perf_counter() - start, 1)}), flush=True)
 
 
 def _io_self():
@@ -229,6 +285,9 @@ def main(argv=None):
     g.add_argument("--nodes", type=lambda s: int(s.replace("_", "")), required=True)
     g.add_argument("--files", type=int, required=True)
     g.add_argument("--seed", type=int, default=0)
+    g.add_argument("--family", choices=["random", "grid"], default="random",
+                   help="random: uniform endpoints and weights; grid: jittered planar grid, "
+                        "E ~ 2.5 V, Euclidean lengths (--edges is then ignored)")
     d = sub.add_parser("dask")
     d.add_argument("--data", required=True)
     d.add_argument("--workers", type=int, default=2)
@@ -254,7 +313,7 @@ def main(argv=None):
     sub.add_parser("smoke")
     a = ap.parse_args(argv)
     if a.cmd == "generate":
-        generate(a.out, a.edges, a.nodes, a.files, a.seed)
+        generate(a.out, a.edges, a.nodes, a.files, a.seed, a.family)
     elif a.cmd == "dask":
         solve_dask(a.data, a.workers, a.memory_limit, a.files, plan=a.plan,
                    split_every=a.split_every, max_task_edges=a.max_task_edges,

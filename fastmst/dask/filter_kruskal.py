@@ -39,7 +39,7 @@ from fastmst.solve.solve import solve_trusted
 
 #: Light edges per node: each level's threshold is chosen so that the client solves about
 #: ``LIGHT_PER_NODE * n_nodes`` edges (measured on bench/bench_dask.py: see docs/dask.md).
-LIGHT_PER_NODE = 2.0
+LIGHT_PER_NODE = 1.5
 #: Levels at most; the last one takes every edge left (progress is guaranteed before that,
 #: this only bounds the passes when the sample is too thin to steer).
 MAX_LEVELS = 32

@@ -78,12 +78,12 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
     global edge ids) and draw a uniform sample of about 2**20 rows in all.
 
     "filter-kruskal" then runs levels of one pass each.  The sample gives a threshold in the
-    (weight, edge id) order below which about ``2 * n_nodes`` of the edges still joining
+    (weight, edge id) order below which about ``1.5 * n_nodes`` of the edges still joining
     different components lie; each task returns those *light* edges of its partition (label
     lookups only for the edges between the previous threshold and this one), the client solves
     their forest with the in-memory kernels (all of it belongs to the answer), contracts the
     components and broadcasts the labels (4 bytes per node, once per pass).  When the sample
-    says the rest is no more than ``2 * n_nodes`` edges, the level takes everything left and
+    says the rest is no more than ``1.5 * n_nodes`` edges, the level takes everything left and
     is the last: on random graphs with 2.5 to 8 edges per node, two levels.  Each pass costs
     one read of the partitions and O(rows) work per task; nothing is persisted between passes.
     Tasks hold one partition and the labels; the client holds the labels, the forest and one
