@@ -368,8 +368,9 @@ def test_clear_errors(tmp_path, case):
 def test_cli_reads_a_layer_and_writes_geopackage_layers(tmp_path, capsys):
     """fastmst solve on bubenec streets with --layer/--snap-tolerance writes a GeoPackage whose
     forest equals the API's (the same edge positions) and says what the CRS units mean;
-    fastmst clusters writes forest, sites and clusters layers; options for layers on a CSV
-    input are a usage error (exit 2)."""
+    fastmst clusters writes forest, sites and clusters layers, or GeoJSON sites with their
+    cluster; options for layers on a CSV input, and layer outputs of a command that writes
+    tables, are usage errors (exit 2)."""
     from fastmst.cli import main
     out = tmp_path / "plan.gpkg"
     rc = main(["solve", bubenec(), "--layer", "streets", "--snap-tolerance", "0.5", "-o",
@@ -384,9 +385,17 @@ def test_cli_reads_a_layer_and_writes_geopackage_layers(tmp_path, capsys):
     assert rc == 0
     assert dict(pyogrio.list_layers(str(tmp_path / "c.gpkg"))) == {
         "forest": "LineString", "sites": "Point", "clusters": "MultiPoint"}
+    assert main(["clusters", bubenec(), "-k", "3", "-o", str(tmp_path / "c.geojson"),
+                 "--quiet"]) == 0
+    feats = json.loads((tmp_path / "c.geojson").read_text())["features"]
+    sites = [x for x in feats if x["geometry"]["type"] == "Point"]
+    assert len({x["properties"]["cluster"] for x in sites}) == 3
     assert main(["solve", str(tmp_path / "f.csv"), "--snap-tolerance", "1", "-o",
                  str(tmp_path / "g.csv")]) == 2
     assert "--layer/--snap-tolerance apply to a GeoPackage" in capsys.readouterr().err
+    # commands that write tables only refuse layer outputs before any work
+    assert main(["margins", bubenec(), "-o", str(tmp_path / "m.gpkg")]) == 2
+    assert "writes tables" in capsys.readouterr().err
 
 
 @settings(max_examples=10)

@@ -37,7 +37,7 @@ def add_parser(sub):
 
 
 def run(args) -> int:
-    common.check_outputs(args, geojson=False)
+    common.check_outputs(args, geojson=False, layers=True)
     if args.k is not None and args.k < 1:
         raise UsageError(f"-k {args.k}: the number of clusters must be at least 1.")
     rep = common.reporter(args)
@@ -55,8 +55,12 @@ def run(args) -> int:
         with io.StagedOutputs() as staged:
             with rep.phase("writing"):
                 for out in args.output:
-                    if out.lower().endswith(".gpkg"):   # forest, sites and clusters layers
+                    fmt = io.detect_format(out, None, valid=io.WRITE_FORMATS)[0]
+                    if fmt == "gpkg":   # forest, sites and clusters layers
                         io.write_geopackage(staged.path(out), forest, edges, clusters=labels)
+                        continue
+                    if fmt == "geojson":   # links and sites with their cluster numbers
+                        io.write_geojson(staged.path(out), forest, edges, clusters=labels)
                         continue
                     io.write_table(staged.path(out), table,
                                    spreadsheet_safe=args.spreadsheet_safe)

@@ -193,18 +193,21 @@ def add_output_options(p, outputs=True):
 
 # --- usage checks and input -----------------------------------------------------------------------
 
-def check_outputs(args, *, geojson=True):
-    """Reject unknown output suffixes (and GeoJSON where it has no meaning), outputs that name
-    an input file or another output (also through links or relative paths), before any work."""
+def check_outputs(args, *, geojson=True, layers=False):
+    """Reject unknown output suffixes (and GeoJSON where it has no meaning; ``layers``: the
+    command writes GeoPackage/GeoJSON layers of its own), outputs that name an input file or
+    another output (also through links or relative paths), before any work."""
     check_not_inputs(args)
     for out in getattr(args, "output", []):
         try:
             name, _ = io.detect_format(out, None, valid=io.WRITE_FORMATS, func="fastmst")
         except ValueError as exc:
             raise UsageError(f"-o {out}: {exc}") from None
-        if not geojson and io.registry.get(name).write_table is None and name != "gpkg":
-            raise UsageError(f"-o {out}: clusters are written as CSV, TSV, Parquet or "
-                             f".npz (node, cluster), or as GeoPackage layers (.gpkg).")
+        if not geojson and io.registry.get(name).write_table is None and \
+                not (layers and name in ("gpkg", "geojson")):
+            raise UsageError(f"-o {out}: this command writes tables: CSV, TSV, Parquet or .npz"
+                             + (", or GeoPackage layers (.gpkg) or GeoJSON" if layers else "")
+                             + ".")
     plot = getattr(args, "plot", None)
     if plot and not plot.lower().endswith(".png"):
         raise UsageError(f"--plot {plot}: expected a file name ending in .png.")
