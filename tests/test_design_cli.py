@@ -76,6 +76,9 @@ def test_backup(files, capsys):
     assert summary["backup_weight"] == pytest.approx(ref.weight)
     assert summary["single_points"] == 1        # the spur S35-S36
     assert sum(tab["single_point"]) == 1
+    out = _run(["backup", str(d / "links.csv"), "--weight", "cost", "--no-bound", "--json"],
+               capsys)
+    assert json.loads(out[:out.rindex("}") + 1])["lower_bound"] is None
 
 
 def test_feeders(files, capsys):

@@ -32,6 +32,9 @@ def add_parser(sub):
     g = p.add_argument_group("backup")
     g.add_argument("--exact", action="store_true",
                    help="the optimum by integer programming (small instances only)")
+    g.add_argument("--no-bound", dest="bound", action="store_false",
+                   help="skip the LP lower bound (its solve grows with the candidates' path "
+                        "lengths; leave it out for hundreds of thousands of sites)")
     common.add_output_options(p)
     p.set_defaults(run=run)
 
@@ -49,7 +52,8 @@ def run(args) -> int:
                     excluded=excluded)
         with rep.phase("choosing backup links"):
             r = backup_links(edges.tail, edges.head, edges.weight, design,
-                             n_nodes=edges.n_nodes, excluded=excluded, exact=args.exact)
+                             n_nodes=edges.n_nodes, excluded=excluded, exact=args.exact,
+                             lower_bound=args.bound)
         single = np.isin(r.forest, r.single_points)
         pos = np.concatenate([r.forest, r.position])
         why = np.concatenate([np.where(single, "single point", "tree"),
