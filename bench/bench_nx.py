@@ -87,12 +87,11 @@ def phases(G) -> dict[str, float]:
     t, edges = timed(lambda: spanning.edge_tuples(g, pos, True, True))
     out["edge tuples"] = t
 
-    def build():
+    def build():                    # the backend's own tree step (spanning._tree)
         with spanning.paused():
             T = G.__class__()
             T.graph.update(G.graph)
-            T.add_nodes_from(G.nodes.items())
-            T.add_edges_from(edges)
+            spanning._fill_graph(T, G, edges)
         return T
     out["tree"] = timed(build)[0]
     return out
