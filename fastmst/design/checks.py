@@ -27,22 +27,21 @@ class Design:
     pnode: np.ndarray       # (V,) int64 parent node, -1 at tree tops (smallest node of a tree)
     pedge: np.ndarray       # (V,) int64 index into fpos of the link to the parent, -1 at tops
     depth: np.ndarray       # (V,) int64
-    top: np.ndarray         # (V,) int64 top of every node's tree
-    size: np.ndarray        # (V,) int64 nodes in every node's subtree
-
-    def others(self) -> np.ndarray:
-        """Positions of the usable links outside the forest that are not self-loops."""
-        g = self.g
-        return np.flatnonzero(self.usable & ~self.in_forest & (g.ktail != g.khead))
+    beyond: np.ndarray      # (V,) int64 nodes beyond each node's link to its parent, seen
+    #                         from the root given to graph_and_design (sides_beyond)
+    others: np.ndarray      # positions of the usable links outside the forest, no self-loops
+    root: int               # the checked root, -1 for none
 
 
-def graph_and_design(tail, head, weight, forest, n_nodes, excluded, func: str) -> Design:
+def graph_and_design(tail, head, weight, forest, n_nodes, excluded, func: str,
+                     root=None) -> Design:
     """The graph, its usable links and a spanning forest of them.
 
     ``forest`` None means the minimum spanning forest of the usable links (every link not in
     ``excluded``); otherwise it is a SpanningForest, edge positions or a boolean mask, and must
     be a spanning forest of the usable links: no cycle, no excluded link, and every usable link
-    outside it joins two nodes of one of its trees.
+    outside it joins two nodes of one of its trees.  ``root`` (a node id or None, checked
+    here) is the node from which ``beyond`` counts the sides of each link.
     """
     expected = None
     if isinstance(forest, SpanningForest):
@@ -58,6 +57,7 @@ def graph_and_design(tail, head, weight, forest, n_nodes, excluded, func: str) -
     if expected is not None and expected != g.n_edges:
         raise ValueError(f"{func}: the forest was computed on a graph of {expected} edges, "
                          f"received {g.n_edges}; pass the same edge list.")
+    root = check_node(root, g.n_nodes, "root", func)
     usable = np.ones(g.n_edges, dtype=bool)
     if excluded is not None:
         xpos = validation.check_positions(excluded, g.n_edges, "excluded", func)
@@ -91,10 +91,10 @@ def graph_and_design(tail, head, weight, forest, n_nodes, excluded, func: str) -
                              f"({g.tail[p]}-{g.head[p]}) closes a cycle with other forest "
                              f"links. Pass the links of a spanning forest, e.g. "
                              f"minimum_spanning_forest(...).edges.")
-    _, top, size = sides_beyond(pnode, depth, -1)
-    d = Design(g, fpos, in_forest, usable, pnode, pedge, depth, top, size)
+    beyond, top, _ = sides_beyond(pnode, depth, root)
+    others = np.flatnonzero(usable & ~in_forest & (g.ktail != g.khead))
+    d = Design(g, fpos, in_forest, usable, pnode, pedge, depth, beyond, others, root)
     if forest is not None:
-        others = d.others()
         split = np.flatnonzero(top[g.ktail[others]] != top[g.khead[others]])
         if split.size:
             p = int(others[split[0]])

@@ -6,8 +6,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from fastmst._kernels.tie_rule import edge_order
-from fastmst._kernels.treewalk import sides_beyond
-from fastmst.design.checks import check_node, covering, graph_and_design
+from fastmst.design.checks import covering, graph_and_design
 
 _FUNC = "link_failures"
 
@@ -113,22 +112,19 @@ def link_failures(tail, head, weight, forest=None, *, n_nodes=None, root=None, e
     >>> r.sites_cut_off.tolist()
     [0, 0, 1]
     """
-    d = graph_and_design(tail, head, weight, forest, n_nodes, excluded, _FUNC)
+    d = graph_and_design(tail, head, weight, forest, n_nodes, excluded, _FUNC, root=root)
     g = d.g
-    root = check_node(root, g.n_nodes, "root", _FUNC)
-    others = d.others()
-    ranked = others[edge_order(g.kweight[others], False)]
-    del others
+    ranked = d.others[edge_order(g.kweight[d.others], False)]
     repl = covering(d, ranked)
     del ranked
     bridge = repl < 0
     safe = np.where(bridge, d.fpos, repl)
     increase = difference(g.kweight[safe], g.kweight[d.fpos])
     increase[bridge] = np.inf
-    beyond, _, _ = sides_beyond(d.pnode, d.depth, root)
+    beyond = d.beyond
     child = np.flatnonzero(d.pnode >= 0)
     per_link = np.empty(d.fpos.shape[0], dtype=np.int64)
     per_link[d.pedge[child]] = beyond[child]
     return LinkFailures(position=d.fpos, replacement=repl, cost_increase=increase,
                         bridge=bridge, sites_beyond=per_link,
-                        sites_cut_off=np.where(bridge, per_link, 0), root=root)
+                        sites_cut_off=np.where(bridge, per_link, 0), root=d.root)
