@@ -127,7 +127,8 @@ ctypedef struct Seg:
     Py_ssize_t size         # bytes readable from data
     Py_ssize_t at           # piece position of the segment's first row
     Py_ssize_t n            # rows
-    bint wide               # int64 offsets
+    Py_ssize_t wide         # 1: int64 offsets, 0: int32 (every field pointer-sized: a row of an
+                            # intp array is one Seg)
 
 
 cdef void _hash_span(const offset_t* offs, const uint8_t* data, Py_ssize_t size,
@@ -256,12 +257,12 @@ cdef void _probe(Part* p, Entry* ent, Py_ssize_t n) noexcept nogil:
         warm += p.slots[i]
     p.warm = warm
     for j in range(n):
-        if j + 16 < n:
-            prefetch(&p.slots[2 * (ent[j + 16].h & (p.cap - 1))])
         if 3 * (p.count + 1) > 2 * p.cap:        # load factor <= 2/3
             if not _grow_table(p):
                 p.failed = True
                 return
+        if j + 16 < n:
+            prefetch(&p.slots[2 * (ent[j + 16].h & (p.cap - 1))])
         if p.count + 1 > p.ucap:
             if not _grow_ids(p):
                 p.failed = True
@@ -417,7 +418,7 @@ def text_ids(chunks, Py_ssize_t n_tail, int threads=1):
     ids) as int32, and the distinct labels as (int64 offsets, uint8 bytes) in id order.
     """
     cdef Py_ssize_t total, size, rows, block, nblk, at, base, q, k, nseg, done
-    cdef int64_t[::1] sv
+    cdef Py_ssize_t[::1] sv
     cdef Part* parts = NULL
     if threads < 1:
         raise ValueError(f"text_ids: threads must be positive, received {threads}.")
@@ -460,7 +461,7 @@ def text_ids(chunks, Py_ssize_t n_tail, int threads=1):
         done = 0
         for segs in _segments(pieces, size):
             rows = sum(hi - lo for _, lo, hi in segs)
-            seg_a = np.zeros((len(segs), 6), dtype=np.int64)
+            seg_a = np.zeros((len(segs), 6), dtype=np.intp)
             at = 0
             for r, (c, lo, hi) in enumerate(segs):
                 offs, data = pieces[c]

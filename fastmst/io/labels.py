@@ -180,9 +180,9 @@ def _text_ids(t, h):
     text = (pa.types.is_string, pa.types.is_large_string)
     if not any(f(t.type) for f in text) or not any(f(h.type) for f in text):
         return None
-    threads = validation.check_threads(None, "read_edges")
-    if 2 * len(t) * threads >= validation.INT32_LIMIT - 1:
+    if 2 * len(t) >= validation.INT32_LIMIT - 1:
         return None
+    threads = validation.check_threads(None, "read_edges")
     parts = list(getattr(t, "chunks", [t])) + list(getattr(h, "chunks", [h]))
     ti, hi, offsets, data = label_kernel.text_ids(parts, len(t), threads)
     uniq = pa.LargeStringArray.from_buffers(offsets.size - 1, pa.py_buffer(offsets),
