@@ -9,7 +9,8 @@ Two rules, both deterministic and both in the coordinates' own units (the layer'
   first appearance and placed at their first point (a coordinate of the data, never an average).
 * :func:`snap_to_sites` puts every point on its nearest site within ``tolerance``; a point
   with no site that close is an error that names it.  Sites closer together than twice the
-  tolerance make the choice depend on the nearest one alone (an exact tie between two sites: the first).
+  tolerance make the choice depend on the nearest one alone (an exact tie between two sites:
+  the first).
 
 ``tolerance=0`` joins only points with identical coordinates.  Distances are Euclidean in the
 coordinates as given: for longitude/latitude that is degrees (1e-5 degrees of latitude is about
