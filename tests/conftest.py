@@ -23,7 +23,6 @@ settings.load_profile("fastmst")
 SLOW = {
     "test_performance_methods.py::test_filter_kruskal_streamed_chunks",
     "test_performance_methods.py::test_hypothesis_methods_equal_networkx",
-    "test_dask.py::test_grid_graph_matches_in_memory[50-boruvka-1500]",
     "test_cli.py::test_demo_default_folder",
     "test_cli.py::test_solve_end_to_end",
 }
