@@ -21,7 +21,8 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from fastmst.io.checks import FileFormatError, shown
-from fastmst.io.labels import all_labels, lookup
+from fastmst.io.labels import lookup
+from fastmst.io.positions import pair_ranges
 from fastmst.io.tables import load_table
 
 PARALLEL = ("all", "lightest")
@@ -129,31 +130,7 @@ def _by_position(table, edges, source, where) -> np.ndarray:
 
 
 def _by_pair(tcol, hcol, edges, source, where, parallel):
-    n = edges.n_nodes
-    labels = all_labels(edges)
-    ids = []
-    for col in (tcol, hcol):
-        found, missing, compared = lookup(col, labels)
-        if missing.any():
-            i = int(np.flatnonzero(missing)[0])
-            raise FileFormatError(f"{source}: {where(i)}: node {compared[i].as_py()!r} is not a "
-                                  f"node of {edges.source}.")
-        ids.append(found.astype(np.int64))
-    a, b = np.minimum(ids[0], ids[1]), np.maximum(ids[0], ids[1])
-    et = edges.tail.astype(np.int64)
-    eh = edges.head.astype(np.int64)
-    ekey = np.minimum(et, eh) * n + np.maximum(et, eh)
-    order = np.lexsort((np.arange(edges.n_edges), edges.weight, ekey))
-    skey = ekey[order]
-    want = a * n + b
-    lo = np.searchsorted(skey, want, "left")
-    hi = np.searchsorted(skey, want, "right")
-    missing = np.flatnonzero(lo == hi)
-    if missing.size:
-        i = int(missing[0])
-        raise FileFormatError(f"{source}: {where(i)}: no link joins "
-                              f"{shown(edges.label([ids[0][i]])[0])} and "
-                              f"{shown(edges.label([ids[1][i]])[0])} in {edges.source}.")
+    order, lo, hi, ids = pair_ranges(tcol, hcol, edges, source, where, "link")
     count = hi - lo
     several = [(edges.label([ids[0][i]])[0], edges.label([ids[1][i]])[0], int(count[i]))
                for i in np.flatnonzero(count > 1).tolist()]

@@ -70,6 +70,21 @@ def _positions(table, source, where, edges, all_parallel):
 
 def _pair_positions(tcol, hcol, edges, source, where, all_parallel):
     """Positions of the edges joining listed label pairs (either direction)."""
+    order, lo, hi, _ = pair_ranges(tcol, hcol, edges, source, where, "edge")
+    if not all_parallel:
+        return order[lo]
+    return np.concatenate([order[x:y] for x, y in zip(lo, hi)]) if lo.size else \
+        np.empty(0, np.int64)
+
+
+def pair_ranges(tcol, hcol, edges, source, where, noun="edge"):
+    """Where the edges joining each listed label pair (either direction) lie in a rule order.
+
+    Returns ``(order, lo, hi, ids)``: the edges of pair ``i`` are ``order[lo[i]:hi[i]]``,
+    lightest first (ties by position); ``ids`` are the pairs' node ids.  A label that is no node,
+    or a pair that no edge joins, is a :class:`FileFormatError` naming the row (``noun`` is the
+    message's word for an edge).
+    """
     n = edges.n_nodes
     labels = all_labels(edges)
     ids = []
@@ -92,13 +107,10 @@ def _pair_positions(tcol, hcol, edges, source, where, all_parallel):
     missing = np.flatnonzero(lo == hi)
     if missing.size:
         i = int(missing[0])
-        raise FileFormatError(f"{source}: {where(i)}: no edge joins "
+        raise FileFormatError(f"{source}: {where(i)}: no {noun} joins "
                               f"{shown(edges.label([ids[0][i]])[0])} and "
                               f"{shown(edges.label([ids[1][i]])[0])} in {edges.source}.")
-    if not all_parallel:
-        return order[lo]
-    return np.concatenate([order[x:y] for x, y in zip(lo, hi)]) if lo.size else \
-        np.empty(0, np.int64)
+    return order, lo, hi, ids
 
 
 def read_forest_positions(path, edges, *, func="read_forest_positions") -> np.ndarray:
