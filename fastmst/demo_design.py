@@ -54,14 +54,17 @@ def resilience(out, edges, forest, *, phase, plot=True, currency="cost units (in
     Returns the summary part."""
     import pyarrow as pa
     xy = edges.coords
-    centre = xy.mean(axis=0)
-    exchange = int(np.argmin(np.hypot(*(xy - centre).T)))
+    # lon/lat degrees: a degree of longitude is cos(latitude) of a degree of latitude on the
+    # ground, so distances on this district's scale are measured on the locally scaled plane
+    ground = xy * np.array([np.cos(np.radians(xy[:, 1].mean())), 1.0])
+    centre = ground.mean(axis=0)
+    exchange = int(np.argmin(np.hypot(*(ground - centre).T)))
     with phase("failure analysis"):
         fail = link_failures(edges.tail, edges.head, edges.weight, forest, root=exchange)
     finite = np.flatnonzero(~fail.bridge)
     with phase("backup trenches"):
         # the sites nearest the exchange, with the trenches among them
-        near = np.argsort(np.hypot(*(xy - xy[exchange]).T), kind="stable")[:BACKUP_SITES]
+        near = np.argsort(np.hypot(*(ground - ground[exchange]).T), kind="stable")[:BACKUP_SITES]
         inside = np.zeros(edges.n_nodes, dtype=bool)
         inside[near] = True
         keep = np.flatnonzero(inside[edges.tail] & inside[edges.head])
