@@ -69,12 +69,21 @@ _WIDEN = {np.dtype(np.int8): np.int32, np.dtype(np.int16): np.int32,
           np.dtype(np.float16): np.float32}
 
 
+SHOWN_CHARS = 120   # the most characters an error message shows of a received value
+
+
 def shown(value) -> str:
     """``repr`` of a received value for an error message; NumPy scalars as plain Python values
-    (``7``, not ``np.int64(7)``)."""
+    (``7``, not ``np.int64(7)``), arrays of more than 8 values by their shape and dtype, and
+    any other repr cut to ``SHOWN_CHARS`` characters."""
     if isinstance(value, np.generic):
         value = value.item()
-    return repr(value)
+    if isinstance(value, np.ndarray) and value.size > 8:
+        return f"(an array of shape {value.shape}, dtype {value.dtype})"
+    text = repr(value)
+    if len(text) > SHOWN_CHARS:   # a long list or string: its start is enough to recognise it
+        text = text[:SHOWN_CHARS - 3] + "..."
+    return text
 
 
 class FileFormatError(ValueError):

@@ -4,7 +4,7 @@ import re
 
 import numpy as np
 import pytest
-from hypothesis import given, strategies as st
+from hypothesis import given, settings, strategies as st
 
 import fastmst
 from fastmst import design
@@ -322,3 +322,18 @@ def test_large_but_feasible_node_counts_still_solve():
     assert f.n_components == 1_000_000 - 2
     assert MSF(np.array([0]), np.array([2_000_000]), [1.0]).n_nodes == 2_000_001
     assert MSF(*_G, threads=64).edges.tolist() == [0, 1, 2]
+
+
+@settings(max_examples=60, deadline=None)
+@given(shape=st.lists(st.integers(0, 40), min_size=1, max_size=3),
+       dtype=st.sampled_from(["float64", "int32", "uint8", "bool", "complex128", "object"]))
+def test_messages_show_large_arrays_by_shape(shape, dtype):
+    """A wrong argument that is a large array is named by its shape and dtype, so the message
+    stays a line or two whatever the array's size (common practice, no source)."""
+    value = np.zeros(shape, dtype=dtype)
+    with pytest.raises(TypeError) as e:
+        fastmst.minimum_spanning_forest([0], [1], [1.0], n_nodes=value)
+    message = str(e.value)
+    assert len(message) < 300, message
+    if value.size > 8:
+        assert f"shape {value.shape}" in message and str(value.dtype) in message
