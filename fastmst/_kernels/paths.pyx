@@ -104,10 +104,13 @@ def kruskal_tree(const index_t[::1] ftail, const index_t[::1] fhead, Py_ssize_t 
 
 
 cdef void _root_forest(const index_t[::1] ftail, const index_t[::1] fhead, int64_t n,
-                       int64_t[::1] start, int64_t[::1] adj, int64_t[::1] pnode,
-                       int64_t[::1] pedge, int64_t[::1] depth, int64_t[::1] queue) noexcept nogil:
+                       int64_t[::1] start, int64_t[::1] adj, int64_t[::1] nbr,
+                       int64_t[::1] pnode, int64_t[::1] pedge, int64_t[::1] depth,
+                       int64_t[::1] queue) noexcept nogil:
+    # adjacency lists hold both the edge and the node at its other end, so the search reads
+    # them in sequence instead of looking the edge's ends up at random
     cdef int64_t f = ftail.shape[0]
-    cdef int64_t i, s, x, y, e, k, head_q, tail_q
+    cdef int64_t i, s, x, y, k, head_q, tail_q
     for i in range(n + 1):
         start[i] = 0
     for i in range(f):
@@ -116,10 +119,14 @@ cdef void _root_forest(const index_t[::1] ftail, const index_t[::1] fhead, int64
     for i in range(n):
         start[i + 1] += start[i]
     for i in range(f):
-        adj[start[ftail[i]]] = i
-        start[ftail[i]] += 1
-        adj[start[fhead[i]]] = i
-        start[fhead[i]] += 1
+        x = ftail[i]
+        y = fhead[i]
+        adj[start[x]] = i
+        nbr[start[x]] = y
+        start[x] += 1
+        adj[start[y]] = i
+        nbr[start[y]] = x
+        start[y] += 1
     for i in range(n, 0, -1):
         start[i] = start[i - 1]
     start[0] = 0
@@ -138,12 +145,11 @@ cdef void _root_forest(const index_t[::1] ftail, const index_t[::1] fhead, int64
             x = queue[head_q]
             head_q += 1
             for k in range(start[x], start[x + 1]):
-                e = adj[k]
-                y = fhead[e] if ftail[e] == x else ftail[e]
+                y = nbr[k]
                 if depth[y] < 0:
                     depth[y] = depth[x] + 1
                     pnode[y] = x
-                    pedge[y] = e
+                    pedge[y] = adj[k]
                     queue[tail_q] = y
                     tail_q += 1
 
@@ -165,13 +171,15 @@ def root_forest(const index_t[::1] ftail, const index_t[::1] fhead, Py_ssize_t n
     cdef int64_t f = ftail.shape[0]
     start = np.empty(n + 1, dtype=np.int64)
     adj = np.empty(max(2 * f, 1), dtype=np.int64)
+    nbr = np.empty(max(2 * f, 1), dtype=np.int64)
     pnode = np.empty(max(n, 1), dtype=np.int64)
     pedge = np.empty(max(n, 1), dtype=np.int64)
     depth = np.empty(max(n, 1), dtype=np.int64)
     queue = np.empty(max(n, 1), dtype=np.int64)
-    cdef int64_t[::1] st = start, ad = adj, pn = pnode, pe = pedge, dp = depth, qu = queue
+    cdef int64_t[::1] st = start, ad = adj, nb = nbr, pn = pnode, pe = pedge, dp = depth
+    cdef int64_t[::1] qu = queue
     with nogil:
-        _root_forest(ftail, fhead, n, st, ad, pn, pe, dp, qu)
+        _root_forest(ftail, fhead, n, st, ad, nb, pn, pe, dp, qu)
     return pnode[:n], pedge[:n], depth[:n]
 
 
