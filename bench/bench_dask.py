@@ -7,6 +7,9 @@ Sub-commands (each prints one JSON line per measurement):
                wall time, the peak resident memory of every worker process and of the client
     inmemory   load the first files into one process and run fastmst.minimum_spanning_forest;
                report load and solve time (peak memory: run under /usr/bin/time -v)
+    compare    inmemory, then dask, each in a fresh process, with the load average and the
+               ratio (``--both``: dask with and without the first level folded into the
+               validation pass, side by side in the same run)
     smoke      a small end-to-end check for CI: generate, solve both ways, compare the edges
 
 Example (the figures in docs/dask.md)::
@@ -142,7 +145,7 @@ def _io_self():
 
 def solve_dask(data, workers, memory_limit, n_files=None, n_nodes=None, plan="auto",
                split_every=8, max_task_edges=None, progress=False, check=False,
-               light_per_node=None):
+               light_per_node=None, fold=True):
     import dask.dataframe as dd
     from distributed import Client, LocalCluster
 
@@ -151,6 +154,7 @@ def solve_dask(data, workers, memory_limit, n_files=None, n_nodes=None, plan="au
 
     if light_per_node is not None:
         filter_kruskal.LIGHT_PER_NODE = light_per_node
+    filter_kruskal.FOLD_FIRST_LEVEL = fold
     files = _files(data, n_files)
     with LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
                       memory_limit=memory_limit, dashboard_address=None) as cluster, \
@@ -177,13 +181,14 @@ def solve_dask(data, workers, memory_limit, n_files=None, n_nodes=None, plan="au
               "peak_rss_per_worker_GiB": sorted(round(v / 2**30, 2) for v in peaks.values()),
               "peak_rss_client_GiB": round(_peak_rss_self() / 2**30, 2),
               "workers_at_end": restarts, "method": forest.method,
-              "n_partitions": info["n_partitions"], "passes": n_passes,
+              "n_partitions": info["n_partitions"], "passes": n_passes, "fold": fold,
               "workers_rchar_bytes": rchar, "workers_storage_read_bytes": disk,
               "rchar_bytes_per_pass": round(rchar / n_passes),
               "per_pass": [{k: p.get(k) for k in ("pass", "kind", "seconds", "dask_seconds",
                                                   "client_seconds", "column_bytes_read",
-                                                  "edges_in_band", "edges_kept",
-                                                  "components_after")} for p in passes],
+                                                  "light_rows_returned", "edges_in_band",
+                                                  "edges_kept", "components_after")}
+                           for p in passes],
               "phases": info["phases"], "summary": info["summary"],
               "forest_edges": len(forest), "n_components": forest.n_components,
               "weight": forest.weight}
@@ -200,34 +205,44 @@ def solve_dask(data, workers, memory_limit, n_files=None, n_nodes=None, plan="au
     return result
 
 
-def compare(data, workers, memory_limit, n_files=None, plan="auto", light_per_node=None):
+def compare(data, workers, memory_limit, n_files=None, plan="auto", light_per_node=None,
+            fold=True, both=False):
     """The in-memory path (Parquet load + solve) and the Dask path on the same files, each in
-    a fresh process, one after the other; prints both lines, the load average, and the ratio."""
+    a fresh process, one after the other; prints each line, the load average, and the ratio.
+    ``both``: the Dask path twice, with and without the first level folded into the
+    validation pass (in that order), side by side in the same run."""
     import subprocess
     here = os.path.abspath(__file__)
     common = ["--data", data] + (["--files", str(n_files)] if n_files else [])
+    dask_args = (["--workers", str(workers), "--memory-limit", memory_limit, "--plan", plan]
+                 + (["--light-per-node", str(light_per_node)]
+                    if light_per_node is not None else []))
+    steps = [("inmemory", "inmemory", [])]
+    if both:
+        steps += [("dask", "dask", dask_args), ("dask_no_fold", "dask", dask_args + ["--no-fold"])]
+    else:
+        steps += [("dask", "dask", dask_args + ([] if fold else ["--no-fold"]))]
     lines = {}
     load = [os.getloadavg()[0]]
-    for step, extra in (("inmemory", []),
-                        ("dask", ["--workers", str(workers), "--memory-limit", memory_limit,
-                                  "--plan", plan]
-                         + (["--light-per-node", str(light_per_node)]
-                            if light_per_node is not None else []))):
+    for name, step, extra in steps:
         run = subprocess.run([sys.executable, here, step] + common + extra,
                              capture_output=True, text=True, check=True)
-        lines[step] = json.loads(run.stdout.strip().splitlines()[-1])
+        lines[name] = json.loads(run.stdout.strip().splitlines()[-1])
         print(run.stdout.strip().splitlines()[-1], flush=True)
         load.append(os.getloadavg()[0])
     mem = lines["inmemory"]
     base = mem["load_seconds"] + mem["solve_seconds"]
-    same = (mem["forest_edges"] == lines["dask"]["forest_edges"]
-            and mem["n_components"] == lines["dask"]["n_components"]
-            and mem["weight"] == lines["dask"]["weight"])
-    print(json.dumps({"step": "compare", "edges": mem["edges"], "inmemory_seconds": base,
-                      "dask_seconds": lines["dask"]["seconds"],
-                      "ratio_dask_over_inmemory": round(lines["dask"]["seconds"] / base, 2),
-                      "same_size_components_weight": same,
-                      "load_average_1min": [round(x, 2) for x in load]}), flush=True)
+    out = {"step": "compare", "edges": mem["edges"], "inmemory_seconds": base}
+    for name, _, _ in steps[1:]:
+        d = lines[name]
+        out[f"{name}_seconds"] = d["seconds"]
+        out[f"{name}_passes"] = d["passes"]
+        out[f"ratio_{name}_over_inmemory"] = round(d["seconds"] / base, 2)
+        out[f"{name}_same_size_components_weight"] = (
+            mem["forest_edges"] == d["forest_edges"] and mem["n_components"] == d["n_components"]
+            and mem["weight"] == d["weight"])
+    out["load_average_1min"] = [round(x, 2) for x in load]
+    print(json.dumps(out), flush=True)
 
 
 def _load(files):
@@ -299,6 +314,9 @@ def main(argv=None):
     d.add_argument("--progress", action="store_true")
     d.add_argument("--check", action="store_true", help="compare with the in-memory solve")
     d.add_argument("--light-per-node", type=float, default=None)
+    d.add_argument("--no-fold", action="store_true",
+                   help="filter-kruskal: the first level as a pass of its own (the plan "
+                        "before the validation pass brought it)")
     c = sub.add_parser("compare", help="inmemory, then dask, each in a fresh process")
     c.add_argument("--data", required=True)
     c.add_argument("--workers", type=int, default=2)
@@ -306,6 +324,9 @@ def main(argv=None):
     c.add_argument("--files", type=int, default=None)
     c.add_argument("--plan", default="auto")
     c.add_argument("--light-per-node", type=float, default=None)
+    c.add_argument("--no-fold", action="store_true")
+    c.add_argument("--both", action="store_true",
+                   help="run the Dask path with and without the folded first level")
     m = sub.add_parser("inmemory")
     m.add_argument("--data", required=True)
     m.add_argument("--files", type=int, default=None)
@@ -317,9 +338,11 @@ def main(argv=None):
     elif a.cmd == "dask":
         solve_dask(a.data, a.workers, a.memory_limit, a.files, plan=a.plan,
                    split_every=a.split_every, max_task_edges=a.max_task_edges,
-                   progress=a.progress, check=a.check, light_per_node=a.light_per_node)
+                   progress=a.progress, check=a.check, light_per_node=a.light_per_node,
+                   fold=not a.no_fold)
     elif a.cmd == "compare":
-        compare(a.data, a.workers, a.memory_limit, a.files, a.plan, a.light_per_node)
+        compare(a.data, a.workers, a.memory_limit, a.files, a.plan, a.light_per_node,
+                not a.no_fold, a.both)
     elif a.cmd == "inmemory":
         solve_in_memory(a.data, a.files, a.scipy)
     else:

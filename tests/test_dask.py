@@ -9,6 +9,7 @@ networkx (``networkx.minimum_spanning_tree`` on a MultiGraph, which keeps parall
 from __future__ import annotations
 
 import contextlib
+import math
 import os
 import signal
 
@@ -342,3 +343,38 @@ def test_empty_input(client):
     got = fdask.minimum_spanning_forest([dask.delayed(empty)] * 3, n_nodes=4)
     assert_identical(got, fastmst.minimum_spanning_forest(empty["tail"], empty["head"],
                                                           empty["weight"], n_nodes=4))
+
+
+def test_folded_first_level_from_parquet_metadata(client, tmp_path):
+    """Parquet files of very different sizes, no n_nodes: the quotas come from the files'
+    footers (row counts and the largest id), the validation pass brings the first level and
+    one more pass finishes this connected graph (2 passes in all); identical to the in-memory
+    solve and to the run with the first level as a pass of its own (3 passes)."""
+    t, h, w = random_graph(12, n=600, m=5000, ties=False)
+    path = write_parquet(tmp_path / "g", t, h, w, [100, 100, 4000, 4100])
+    ddf = dd.read_parquet(path)
+    lengths, top = fchunks.source_hints(ddf, ("tail", "head", "weight"), ddf.npartitions)
+    assert lengths == [100, 0, 3900, 100, 900]
+    assert top == max(int(t.max()), int(h.max()))
+    assert fchunks.source_hints([dask.delayed(t)], ("tail", "head", "weight"), 1) == (None, None)
+    got = fdask.minimum_spanning_forest(ddf)
+    want = fastmst.minimum_spanning_forest(t, h, w)
+    assert_identical(got, want)
+    passes = got.dask_plan["passes"]
+    first = passes[0]
+    # quotas: the light target 1.5 * (largest id + 1) split by the row shares, at least 1 each
+    target = 1.5 * (top + 1)
+    assert first["light_quota"] == sum(max(1, math.ceil(target * m / 5000)) for m in lengths)
+    assert first["threshold_found"] and 0 < first["edges_kept"] <= first["light_quota"]
+    assert len(passes) == 2 and passes[1]["components_after"] == 1, got.dask_plan["summary"]
+    assert "lightest rows" in got.dask_plan["summary"]
+    saved = filter_kruskal.FOLD_FIRST_LEVEL
+    try:
+        filter_kruskal.FOLD_FIRST_LEVEL = False
+        unfolded = fdask.minimum_spanning_forest(ddf)
+    finally:
+        filter_kruskal.FOLD_FIRST_LEVEL = saved
+    assert_identical(unfolded, want)
+    assert len(unfolded.dask_plan["passes"]) == 3, unfolded.dask_plan["summary"]
+    # Reference: networkx.minimum_spanning_tree (Kruskal) on the same multigraph.
+    assert got.weight == pytest.approx(networkx_weight(t, h, w))

@@ -140,3 +140,104 @@ def test_levels_are_taken_when_light_edges_are_few():
     assert len(levels) >= 2, got.dask_plan["summary"]
     assert all(p["edges_kept"] <= p["edges_in_band"] for p in levels)
     assert_identical(got, fastmst.minimum_spanning_forest(t, h, w))
+
+
+# Weight dtypes mixed across partitions: the concatenation's dtype (np.result_type) is the one
+# the rule compares in; int64 with float64 rounds large integers to ties in float64.
+MIXED_DTYPES = [(np.int32, np.int64), (np.float32, np.float64), (np.int64, np.float64),
+                (np.uint32, np.int32)]
+
+
+@st.composite
+def folded_cases(draw):
+    """Graphs cut into partitions (empty ones, one much larger than the rest), weights from a
+    pool of very few values (ties at the folded threshold t1 within and across partitions) or
+    all equal, weight dtypes mixed across partitions, and quotas from one row per partition to
+    more than every partition holds (all rows light)."""
+    n = draw(st.integers(2, 40))
+    m = draw(st.integers(0, 250))
+    rng = np.random.default_rng(draw(st.integers(0, 2**32 - 1)))
+    t, h = rng.integers(0, n, m), rng.integers(0, n, m)
+    pool = draw(st.sampled_from([1, 2, 3, 50]))  # distinct weights: 1 = every weight tied
+    base = draw(st.sampled_from([0, 2**53]))  # 2**53 + k: int64 values float64 cannot tell apart
+    values = base + rng.integers(0, pool, m)
+    n_parts = draw(st.integers(1, 7))
+    cuts = sorted(draw(st.lists(st.integers(0, m), min_size=n_parts - 1,
+                                max_size=n_parts - 1)))
+    dtypes = draw(st.sampled_from(MIXED_DTYPES))
+    pieces = []
+    for i, v in enumerate(np.split(values, cuts)):
+        dt = np.dtype(dtypes[draw(st.integers(0, 1))])
+        if base and dt.itemsize < 8:
+            dt = np.dtype(np.int64)  # 2**53 needs 64 bits
+        pieces.append(v.astype(dt))
+    safety = draw(st.sampled_from([1e-9, 0.3, 1.0, 1e9]))  # 1e-9: one row per partition
+    light_per_node = draw(st.sampled_from([0.2, 1.5]))
+    return (t, h, pieces, cuts, n + draw(st.integers(0, 3)), draw(st.booleans()), safety,
+            light_per_node, draw(st.booleans()))
+
+
+@settings(max_examples=40, deadline=None)
+@given(folded_cases())
+def test_folded_first_level_identical_to_in_memory(case):
+    """The validation pass's lightest rows as the first level (threshold t1 = the smallest
+    partition bound): identical forest to the in-memory solve on the concatenation, also with
+    ties at t1 across partitions, partitions smaller than their quota, empty partitions, mixed
+    weight dtypes and every row light; the same forest with the first level as its own pass."""
+    t, h, pieces, cuts, n, maximize, safety, light_per_node, as_frame = case
+    # The distributed path takes the weight dtype from the partitions that hold rows (an empty
+    # partition's column dtype does not count), so the reference concatenates those.
+    w = np.concatenate([p for p in pieces if p.size] or pieces)
+    want = fastmst.minimum_spanning_forest(t, h, w, n, maximize=maximize)
+    tp, hp = np.split(t, cuts), np.split(h, cuts)
+    if as_frame:
+        parts = [dask.delayed(pd.DataFrame)({"tail": a, "head": b, "weight": c})
+                 for a, b, c in zip(tp, hp, pieces)]
+    else:
+        parts = [dask.delayed(tuple)([a, b, c]) for a, b, c in zip(tp, hp, pieces)]
+    saved = (filter_kruskal.FOLD_SAFETY, filter_kruskal.LIGHT_PER_NODE,
+             filter_kruskal.FOLD_FIRST_LEVEL)
+    try:
+        filter_kruskal.FOLD_SAFETY, filter_kruskal.LIGHT_PER_NODE = safety, light_per_node
+        with dask.config.set(scheduler="sync"):
+            got = fdask.minimum_spanning_forest(parts, n, maximize=maximize, client=False)
+            filter_kruskal.FOLD_FIRST_LEVEL = False
+            unfolded = fdask.minimum_spanning_forest(parts, n, maximize=maximize, client=False)
+    finally:
+        (filter_kruskal.FOLD_SAFETY, filter_kruskal.LIGHT_PER_NODE,
+         filter_kruskal.FOLD_FIRST_LEVEL) = saved
+    assert_identical(got, want)
+    assert_identical(unfolded, want)
+    first = got.dask_plan["passes"][0]
+    assert first["kind"] == "validate" and "light_rows_returned" in first
+    assert "light_rows_returned" not in unfolded.dask_plan["passes"][0]
+    assert first["edges_kept"] <= first["edges_in_band"] <= first["light_rows_returned"]
+    assert first["light_rows_returned"] <= t.shape[0]
+    assert sum(p.get("forest_edges", 0) for p in got.dask_plan["passes"]) == len(want)
+    if safety == 1e9:  # quotas beyond every partition: all rows light, no pass after validation
+        assert not first["threshold_found"] and len(got.dask_plan["passes"]) == 1
+        assert first["edges_in_band"] == int(np.count_nonzero(t != h))
+    if safety == 1e-9 and t.shape[0] > len(cuts) + 1:  # one row per partition: a bound exists
+        assert first["threshold_found"]
+
+
+def test_folded_bound_is_exact_at_a_tie_across_partitions():
+    """Every weight equal: the quotas end inside one run of ties in every partition, so t1 is
+    decided by edge id alone; the forest is the in-memory one (the earliest ids win)."""
+    rng = np.random.default_rng(11)
+    t, h = rng.integers(0, 30, 400), rng.integers(0, 30, 400)
+    w = np.ones(400)
+    cuts = [0, 50, 50, 300]
+    parts = delayed_chunks(t, h, w, cuts, False)
+    saved = filter_kruskal.FOLD_SAFETY
+    try:
+        filter_kruskal.FOLD_SAFETY = 0.5
+        with dask.config.set(scheduler="sync"):
+            got = fdask.minimum_spanning_forest(parts, 30, client=False)
+    finally:
+        filter_kruskal.FOLD_SAFETY = saved
+    first = got.dask_plan["passes"][0]
+    # quotas: ceil(0.5 * 1.5 * 30 / 5) = 5 rows per partition; partition 1 is empty
+    assert first["light_quota"] == 25 and first["threshold_found"]
+    assert first["light_rows_returned"] <= 15  # 3 non-empty partitions x 5, self-loops dropped
+    assert_identical(got, fastmst.minimum_spanning_forest(t, h, w, 30))

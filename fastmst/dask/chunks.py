@@ -4,7 +4,9 @@
 one Delayed per partition, selecting only the three edge columns of a DataFrame so that a
 Parquet source reads nothing else.  ``chunk_arrays`` turns whatever one partition yields (a
 pandas or pyarrow table, a mapping, a tuple, rows) into ``(tail, head, weight)`` arrays.
-``stats`` is the validation pass's task: it checks one partition and draws its weight sample.
+``stats`` is the validation pass's task: it checks one partition, draws its weight sample and,
+for the plan "filter-kruskal", returns its lightest rows (``lightest``).  ``source_hints`` reads
+row counts and the largest id from a Parquet source's footers before that pass.
 """
 from __future__ import annotations
 
@@ -16,6 +18,7 @@ import pandas as pd
 from dask.delayed import Delayed
 
 from fastmst import validation
+from fastmst._kernels.tie_rule import weight_keys
 from fastmst.dask import checks
 
 FUNC = "fastmst.dask.minimum_spanning_forest"
@@ -77,11 +80,14 @@ def chunk_arrays(chunk, names, where):
                     f"(tail, head, weight) rows.")
 
 
-def stats(chunk, names, index, n_nodes, per_partition):
+def stats(chunk, names, index, n_nodes, per_partition, quota=0, maximize=False):
     """Task of the validation pass: check one partition, count its rows, find its largest id,
     and draw ``per_partition`` rows uniformly without replacement (seeded by ``index``, so a
     retried task draws the same rows).  The sample keeps the rows' endpoints and weights in
-    the partition's own dtypes; the client maps them to the rule's keys."""
+    the partition's own dtypes; the client maps them to the rule's keys.
+
+    With ``quota`` > 0 the task also returns its ``quota`` lightest rows (``lightest``), the
+    first level of the plan "filter-kruskal" brought by this pass."""
     where = f"partition {index}"
     t, h, w = chunk_arrays(chunk, names, where)
     if not (t.shape == h.shape == w.shape) or t.ndim != 1:
@@ -89,7 +95,7 @@ def stats(chunk, names, index, n_nodes, per_partition):
                          f"per edge, received shapes {t.shape}, {h.shape} and {w.shape}.")
     checks.check_chunk_ids(t, "tail", n_nodes, _FUNC, where)
     checks.check_chunk_ids(h, "head", n_nodes, _FUNC, where)
-    validation.check_weights(w, _FUNC, f"weight ({where})")
+    wk = validation.check_weights(w, _FUNC, f"weight ({where})")
     m = int(t.shape[0])
     hi = max(int(t.max()), int(h.max())) if m else -1
     k = min(m, int(per_partition))
@@ -98,8 +104,38 @@ def stats(chunk, names, index, n_nodes, per_partition):
     else:
         rows = np.sort(np.random.default_rng([index, m]).choice(m, k, replace=False))
     sample = {"row": rows, "t": as_ids(t[rows]), "h": as_ids(h[rows]), "w": w[rows]}
-    return {"m": m, "hi": hi, "tail": t.dtype.str, "head": h.dtype.str, "weight": w.dtype.str,
-            "nbytes": int(t.nbytes + h.nbytes + w.nbytes), "sample": sample}
+    out = {"m": m, "hi": hi, "tail": t.dtype.str, "head": h.dtype.str, "weight": w.dtype.str,
+           "nbytes": int(t.nbytes + h.nbytes + w.nbytes), "sample": sample}
+    if quota:
+        out["lightest"] = lightest(t, h, wk, int(quota), maximize)
+    return out
+
+
+def lightest(t, h, w, quota, maximize):
+    """The ``quota`` lightest rows of a partition by (weight key, row), self-loops left out
+    of the returned rows (they are never forest edges) but counted in the quota.
+
+    Returns ``row`` (ascending), ``t``, ``h``, ``w`` (the kernel dtype ``w`` is in) and
+    ``bound``: None when every row was taken, else ``(key, row, weight)`` of the largest row
+    taken: every row of the partition below it in the rule order is among the returned ones.
+    O(rows): one key map, one partition of the keys, two comparisons."""
+    m = t.shape[0]
+    if quota >= m:
+        sel, bound = np.arange(m, dtype=np.int64), None
+    else:
+        keys = weight_keys(w, maximize)
+        kth = np.partition(keys, quota - 1)[quota - 1]
+        mask = keys < kth
+        ties = np.flatnonzero(keys == kth)[:quota - int(np.count_nonzero(mask))]
+        mask[ties] = True  # the tied rows with the lowest positions: the rule's order
+        del keys
+        sel = np.flatnonzero(mask)
+        del mask
+        last = int(ties[-1])
+        bound = (int(kth), last, w[last:last + 1].copy())
+    sel = sel[t[sel] != h[sel]]
+    return {"row": sel, "t": as_ids(t[sel]), "h": as_ids(h[sel]), "w": w[sel],
+            "bound": bound, "wdtype": w.dtype.str}
 
 
 def as_ids(x):
@@ -156,6 +192,36 @@ def partitions(edges, names):
     raise TypeError(f"{_FUNC}: edges is a {type(edges).__name__}; expected a Dask DataFrame "
                     f"(e.g. dd.read_parquet(path)), a Dask Bag, or a list of dask.delayed edge "
                     f"chunks. For arrays in memory use fastmst.minimum_spanning_forest.")
+
+
+def source_hints(edges, names, n_parts):
+    """``(rows per partition, largest node id)`` from a Parquet source's metadata (file
+    footers: no column is read), each None when unknown (another source, missing statistics,
+    partitions that are not whole files or row groups, a Dask version without this route).
+
+    Hints only: they size the validation pass's light rows; the row counts and ids that
+    matter are the ones that pass counts and checks."""
+    try:
+        from dask.dataframe.dask_expr.io.parquet import ReadParquet, _collect_pq_statistics
+        expr = edges[list(names)].expr.optimize(fuse=False)
+        if not isinstance(expr, ReadParquet) or expr.filters:
+            return None, None
+        found = _collect_pq_statistics(expr, columns=[names[0], names[1]])
+    except Exception:  # noqa: BLE001 - an optional shortcut; the pass itself counts the rows
+        return None, None
+    if not found or len(found) != n_parts:
+        return None, None
+    lengths = [int(s.get("num-rows", -1)) for s in found]
+    if min(lengths) < 0:
+        return None, None
+    tops = []
+    for s, m in zip(found, lengths):
+        cols = {c.get("name"): c.get("max") for c in s.get("columns", [])}
+        if m and not all(isinstance(cols.get(c), (int, np.integer)) for c in names[:2]):
+            return lengths, None
+        if m:
+            tops.append(max(int(cols[names[0]]), int(cols[names[1]])))
+    return lengths, max(tops, default=-1)
 
 
 def numpy_dtype(dtype):

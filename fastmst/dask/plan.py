@@ -70,22 +70,29 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
         are global edge ids (partition offset + row), ordered by (weight, id).
         ``dask_plan`` (also ``provenance["plan"]``) records the passes that ran: for
         "filter-kruskal", ``passes`` (one dict per pass: seconds, rows and column bytes read,
-        edges kept, components before and after) and ``summary``, one line of the same.
+        edges kept, components before and after; the validation pass also the light rows it
+        brought) and ``summary``, one line of the same.
 
     Notes
     -----
     A first pass reads every partition to validate it, count its rows (the offsets that make
     global edge ids) and draw a uniform sample of about 2**20 rows in all.
 
-    "filter-kruskal" then runs levels of one pass each.  The sample gives a threshold in the
-    (weight, edge id) order below which about ``1.5 * n_nodes`` of the edges still joining
-    different components lie; each task returns those *light* edges of its partition (label
-    lookups only for the edges between the previous threshold and this one), the client solves
-    their forest with the in-memory kernels (all of it belongs to the answer), contracts the
-    components and broadcasts the labels (4 bytes per node, once per pass).  When the sample
-    says the rest is no more than ``1.5 * n_nodes`` edges, the level takes everything left and
-    is the last: on random graphs with 2.5 to 8 edges per node, two levels.  Each pass costs
-    one read of the partitions and O(rows) work per task; nothing is persisted between passes.
+    "filter-kruskal" then runs levels.  The first comes with the validation pass when the node
+    count is known before it (``n_nodes``, or a Parquet source's footers): each task also
+    returns its partition's lightest rows, about ``1.5 * n_nodes`` over all partitions, and
+    the client keeps those below the smallest partition's largest returned (weight, edge id),
+    which are exactly the graph's edges below that threshold.  Each later level is one pass:
+    the sample gives a threshold in the (weight, edge id) order below which about
+    ``1.5 * n_nodes`` of the edges still joining different components lie; each task returns
+    those *light* edges of its partition (label lookups only for the edges between the
+    previous threshold and this one).  The client solves each level's forest with the
+    in-memory kernels (all of it belongs to the answer), contracts the components and
+    broadcasts the labels (4 bytes per node, once per pass).  When the sample says the rest is
+    no more than ``1.5 * n_nodes`` edges, the level takes everything left and is the last: on
+    random graphs with 2.5 to 8 edges per node, two levels, so two passes in all.  Each pass
+    costs one read of the partitions and O(rows) work per task; nothing is persisted between
+    passes.
     Tasks hold one partition and the labels; the client holds the labels, the forest and one
     level's light edges (see docs/dask.md for measured peaks).
 
@@ -111,11 +118,19 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
     if max_task_edges is None and plan != "filter-kruskal":
         max_task_edges = runner.default_task_edges(client, BYTES_PER_EDGE)
 
-    # Pass 0: validate, count rows, find the largest id, draw the sample.
+    # Pass 0: validate, count rows, find the largest id, draw the sample; for
+    # "filter-kruskal", also bring each partition's lightest rows (the first level).
     start = time.perf_counter()
     per = max(chunks.MIN_SAMPLE_PER_PARTITION, chunks.SAMPLE_ROWS // max(1, len(parts)))
-    stats = run.run([dask.delayed(chunks.stats, pure=True)(p, names, i, n_nodes, per)
-                     for i, p in enumerate(parts)], "validating partitions")
+    quotas = None
+    if plan == "filter-kruskal" and filter_kruskal.FOLD_FIRST_LEVEL:
+        lengths_hint, top_hint = chunks.source_hints(edges, names, len(parts))
+        n_hint = n_nodes if n_nodes is not None else (
+            top_hint + 1 if top_hint is not None else None)
+        quotas = filter_kruskal.quotas(n_hint, lengths_hint, len(parts))
+    stats = run.run([dask.delayed(chunks.stats, pure=True)(
+        p, names, i, n_nodes, per, quotas[i] if quotas else 0, maximize)
+        for i, p in enumerate(parts)], "validating partitions")
     lengths = np.array([s["m"] for s in stats], dtype=np.int64)
     offsets = np.concatenate([[0], np.cumsum(lengths)])[:-1] if len(parts) else lengths
     n_edges = int(lengths.sum())
@@ -135,9 +150,11 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
     info = {"plan": plan, "n_partitions": len(parts), "n_nodes": n, "n_edges": n_edges}
     run_id = uuid.uuid4().hex[:12]
     if plan == "filter-kruskal":
-        chosen, labels, n_comp, more = filter_kruskal.solve(
+        chosen, labels, n_comp, more, first = filter_kruskal.solve(
             run, parts, names, offsets, n, n_edges, kdt, maximize, stats, run_id, column_bytes)
         del stats
+        if first is not None:
+            passes[0].update(first, light_quota=int(sum(quotas)))
         passes += more
         info.update(light_per_node=filter_kruskal.LIGHT_PER_NODE, passes=passes)
         start = time.perf_counter()
@@ -164,6 +181,11 @@ def _summary(info):
     for p in info["passes"]:
         if p["kind"] == "validate":
             items.append(f"validate {p['rows_read']:,} rows {p['seconds']:.1f} s")
+            if "light_rows_returned" in p:
+                items[-1] += (f" (+ level 1 from its {p['light_rows_returned']:,} lightest "
+                              f"rows: kept {p['edges_kept']:,}, {p['components_before']:,}->"
+                              f"{p['components_after']:,} components, client "
+                              f"{p['client_seconds']:.1f} s)")
         else:
             items.append(f"{p['kind']} {p['pass']}: kept {p['edges_kept']:,} of "
                          f"{p['rows_read']:,} rows, {p['components_before']:,}->"
