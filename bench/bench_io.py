@@ -7,17 +7,12 @@ with ``--format parquet``), then times, alternating and best of ``--repeat``:
   floor for any reader built on pyarrow;
 * ``fastmst.io.read_edges(path)``: parsing plus everything a solver needs (columns chosen,
   nulls and NaN checked, node labels mapped to compact ids, NumPy arrays out).  Labels are read
-  as text (the default); ``--ids integer`` passes ``ids="integer"``.  An uncompressed CSV with
-  text labels is read in ranges whose labels are mapped while the next range is parsed;
-* for CSV, ``read_edges`` with the ranges turned off (``fastmst.io.formats.csv.read_ranges``
-  returns None: the whole file is parsed, then the labels are mapped, as before the ranges):
-  the before/after comparison in the same run.
+  as text (the default); ``--ids integer`` passes ``ids="integer"``.
 
 Goal: read_edges within 1.5x of the bare read for text labels.  Speed is a ratio measured side
 by side in one process; the machines are shared and noisy, so compare ratios, not seconds.
 
     python bench/bench_io.py --labels str          # 10M edges, text labels ("n123456")
-    python bench/bench_io.py --labels str --ranges always   # ranges also on a busy machine
     python bench/bench_io.py --labels str --format parquet
     python bench/bench_io.py --labels int --ids integer
     python bench/bench_io.py --edges 1000000 --json
@@ -74,8 +69,6 @@ def main(argv=None):
     ap.add_argument("--ids", choices=("text", "integer"), default="text",
                     help="read_edges(ids=...): text (default) or integer")
     ap.add_argument("--file", help="use (or create) this CSV instead of a temporary one")
-    ap.add_argument("--ranges", choices=("auto", "always"), default="auto",
-                    help="always: read CSV in ranges even when fewer than 2 cores are free")
     ap.add_argument("--json", action="store_true")
     args = ap.parse_args(argv)
 
@@ -108,33 +101,12 @@ def main(argv=None):
 
             def same_read():
                 return pcsv.read_csv(path, read_options=same)
-        from fastmst.io.formats import csv as csv_format
-        ranges = csv_format.read_ranges
-        if args.ranges == "always":
-            csv_format.RANGE_MIN_THREADS = 1
-
-        def whole_read():
-            csv_format.read_ranges = lambda *a, **k: None
-            try:
-                return io.read_edges(path, ids=args.ids)
-            finally:
-                csv_format.read_ranges = counted
-        used = []      # whether each read_edges call read the file in ranges
-
-        def counted(*a, **k):
-            used.append(True)
-            return ranges(*a, **k)
-        csv_format.read_ranges = counted
-        runs = {"bare": [], "same": [], "ours": [], "whole": []}
-        for _ in range(args.repeat):   # alternate them so drift hits all alike
+        runs = {"bare": [], "same": [], "ours": []}
+        for _ in range(args.repeat):   # alternate the three so drift hits all alike
             runs["bare"].append(timed(bare_read))
             runs["same"].append(timed(same_read))
             runs["ours"].append(timed(lambda: io.read_edges(path, ids=args.ids)))
-            if args.format == "csv":
-                runs["whole"].append(timed(whole_read))
-        csv_format.read_ranges = ranges
-        bare, tuned, ours, whole = ([w for w, _ in runs[k]]
-                                    for k in ("bare", "same", "ours", "whole"))
+        bare, tuned, ours = ([w for w, _ in runs[k]] for k in ("bare", "same", "ours"))
         cbare, cours = ([c for _, c in runs[k]] for k in ("bare", "ours"))
         el = io.read_edges(path, ids=args.ids)
         res = {"file": path, "bytes": os.path.getsize(path), "edges": el.n_edges,
@@ -144,16 +116,13 @@ def main(argv=None):
                "pyarrow_read_csv_same_block_size_s": min(tuned),
                "ratio": min(ours) / min(bare),
                "ratio_same_block_size": min(ours) / min(tuned), "goal_ratio": 1.5,
-               "read_edges_whole_file_s": min(whole) if whole else None,
-               "read_edges_calls_in_ranges": len(used),
-               "ratio_whole_file": min(whole) / min(bare) if whole else None,
                "cpu_pyarrow_read_csv_s": min(cbare), "cpu_read_edges_s": min(cours),
                "cpu_ratio": min(cours) / min(cbare),
                "loadavg_1min": os.getloadavg()[0],
                "pyarrow": pa.__version__, "cpus": len(os.sched_getaffinity(0))
                if hasattr(os, "sched_getaffinity") else os.cpu_count(),
                "all_pyarrow_s": bare, "all_pyarrow_same_block_size_s": tuned,
-               "all_read_edges_s": ours, "all_read_edges_whole_file_s": whole}
+               "all_read_edges_s": ours}
     finally:
         if tmpdir is not None:
             for f in os.listdir(tmpdir):
@@ -171,11 +140,6 @@ def main(argv=None):
             print(f"  pyarrow, same blocks       {res['pyarrow_read_csv_same_block_size_s']:.3f} "
                   f"s (block_size={io.CSV_BLOCK_SIZE >> 20} MiB, as read_edges uses)")
         print(f"  fastmst.io.read_edges      {res['read_edges_s']:.3f} s")
-        if whole:
-            print(f"  read_edges, whole file     {res['read_edges_whole_file_s']:.3f} s "
-                  f"({res['ratio_whole_file']:.2f}x; parsed, then labels mapped: no ranges)")
-            print(f"  read_edges read in ranges in {len(used)} of {args.repeat} runs (ranges "
-                  f"need >= 2 free cores when the call starts)")
         print(f"  ratio                      {res['ratio']:.2f}x vs the bare default read "
               f"(goal <= 1.5x), {res['ratio_same_block_size']:.2f}x vs the same block size")
         print(f"  CPU time (all threads) {res['cpu_read_edges_s']:.3f} s vs "

@@ -19,13 +19,6 @@ row's id, reading the partitions' id lists in row order.
 Threads: the row passes split a piece into position blocks (each block's entries sit in block
 order within every partition), the partition passes take partitions; every id is fixed by the
 rows alone, so the ids are the same for every thread count.
-
-Batches (``LabelMapper``): the tables live across ``feed(tail_chunks, head_chunks)`` calls, so
-a reader maps each parsed batch while the next is parsed.  Ids are provisional (first
-appearance in feed order); each label keeps its first tail row, else its first head row, and
-``finish`` ranks labels by that row (a bitmap over the rows) and renumbers every row once, so
-the ids equal ``text_ids`` over all tail chunks then all head chunks.  The row passes are in
-``_label_rows.pxd``.
 """
 import numpy as np
 from cython.parallel cimport prange
@@ -34,18 +27,44 @@ from libc.stdlib cimport calloc, free, realloc
 from libc.string cimport memcmp, memcpy, memset
 
 from fastmst._kernels._atomics cimport prefetch
-from fastmst._kernels._label_rows cimport (Entry, Seg, _hash_span, _row_block, _scatter_span,
-                                           popcount64)
 
+
+cdef extern from *:
+    """
+    #if defined(__BYTE_ORDER__) && __BYTE_ORDER__ == __ORDER_LITTLE_ENDIAN__
+    #define FASTMST_LITTLE_ENDIAN 1
+    #else
+    #define FASTMST_LITTLE_ENDIAN 0
+    #endif
+    #if defined(__GNUC__) || defined(__clang__)
+    #define FASTMST_POPCOUNT64(x) __builtin_popcountll(x)
+    #else
+    static inline int FASTMST_POPCOUNT64(uint64_t x) {
+        int n = 0; while (x) { x &= x - 1; n++; } return n;
+    }
+    #endif
+    """
+    const bint LITTLE_ENDIAN "FASTMST_LITTLE_ENDIAN"
+    int popcount64 "FASTMST_POPCOUNT64"(uint64_t x) noexcept nogil
+
+
+ctypedef fused offset_t:
+    int32_t
+    int64_t
 
 cdef enum:
     PARTS = 256     # partitions (top byte of the hash)
     EMPTY = 0       # the second word of an empty table slot
 
-cdef int64_t HEAD = (<int64_t>1) << 40    # keys of head rows: HEAD + row in the head column
-
 #: Rows handed to one round of the passes (tests lower it to run several rounds).
 PIECE_ROWS = 1 << 22
+
+
+ctypedef struct Entry:
+    uint64_t h
+    const uint8_t* ptr
+    uint32_t length
+    uint32_t row        # position within the piece
 
 
 ctypedef struct Part:
@@ -57,12 +76,113 @@ ctypedef struct Part:
     int64_t* first      # piece position of the first occurrence (labels new in the piece)
     uint64_t* uptr      # that occurrence's bytes
     int64_t* ulen
-    int32_t* gid        # the global (provisional) id of each local id
-    int64_t* key        # the first row that holds the label (tail rows, then HEAD + head rows)
+    int32_t* gid        # the global id of each local id
     bint failed         # an allocation failed
     uint64_t warm       # the sum of the warm-up reads (kept so they are not optimised away)
 
 
+cdef inline uint64_t _mix(uint64_t x) noexcept nogil:
+    """A bijection of 64-bit words (xor-shift / odd-multiply rounds)."""
+    x ^= x >> 32
+    x *= <uint64_t>0xd6e8feb86659fd93ULL
+    x ^= x >> 32
+    x *= <uint64_t>0xd6e8feb86659fd93ULL
+    x ^= x >> 32
+    return x
+
+
+cdef inline uint64_t _hash(const uint8_t *p, Py_ssize_t n, bint room) noexcept nogil:
+    """64-bit hash of ``n`` bytes; for n <= 8 a bijection of the zero-padded bytes.  ``room``:
+    8 bytes may be read from ``p`` (then, on little-endian machines, short labels are one load
+    and a mask)."""
+    cdef uint64_t w = 0, h
+    cdef Py_ssize_t i = 0
+    if n <= 8:
+        if room and LITTLE_ENDIAN:
+            memcpy(&w, p, 8)
+            if n < 8:
+                w &= ((<uint64_t>1) << (8 * n)) - 1
+        elif n:
+            memcpy(&w, p, n)
+        return _mix(w)
+    h = <uint64_t>n * <uint64_t>0x9e3779b97f4a7c15ULL
+    while i + 8 <= n:
+        memcpy(&w, p + i, 8)
+        h = (h ^ _mix(w)) * <uint64_t>0xff51afd7ed558ccdULL
+        i += 8
+    if i < n:
+        w = 0
+        memcpy(&w, p + i, n - i)
+        h = (h ^ _mix(w)) * <uint64_t>0xff51afd7ed558ccdULL
+    return _mix(h ^ (h >> 29))
+
+
+# ---------------------------------------------------------------------------------------------
+# row passes over a piece: position blocks taken by the threads, each over its segments (row
+# ranges of one chunk)
+
+ctypedef struct Seg:
+    const void* offs        # the chunk's offsets from the segment's first row (int32 or int64)
+    const uint8_t* data     # the chunk's bytes
+    Py_ssize_t size         # bytes readable from data
+    Py_ssize_t at           # piece position of the segment's first row
+    Py_ssize_t n            # rows
+    Py_ssize_t wide         # 1: int64 offsets, 0: int32 (every field pointer-sized: a row of an
+                            # intp array is one Seg)
+
+
+cdef void _hash_span(const offset_t* offs, const uint8_t* data, Py_ssize_t size,
+                     Py_ssize_t i0, Py_ssize_t i1, uint64_t* hrow, Py_ssize_t* hb) noexcept nogil:
+    cdef Py_ssize_t i, a
+    cdef uint64_t h
+    for i in range(i0, i1):
+        a = offs[i]
+        h = _hash(data + a, offs[i + 1] - a, a + 8 <= size)
+        hrow[i] = h
+        hb[h >> 56] += 1
+
+
+cdef void _scatter_span(const offset_t* offs, const uint8_t* data, Py_ssize_t i0,
+                        Py_ssize_t i1, Py_ssize_t at, const uint64_t* hrow, Py_ssize_t* ob,
+                        Entry* ent, uint8_t* part) noexcept nogil:
+    cdef Py_ssize_t i, a, j
+    cdef uint64_t h
+    for i in range(i0, i1):
+        a = offs[i]
+        h = hrow[i]
+        j = ob[h >> 56]
+        ob[h >> 56] = j + 1
+        ent[j].h = h
+        ent[j].ptr = data + a
+        ent[j].length = <uint32_t>(offs[i + 1] - a)
+        ent[j].row = <uint32_t>(at + i)
+        part[i] = <uint8_t>(h >> 56)
+
+
+cdef void _row_block(const Seg* segs, Py_ssize_t nseg, Py_ssize_t k0, Py_ssize_t k1,
+                     uint64_t* hrow, Py_ssize_t* cnt, Entry* ent, uint8_t* part,
+                     bint scatter) noexcept nogil:
+    """Hash (``scatter`` False: count per partition in ``cnt``) or scatter (``cnt``: the next
+    entry of each partition) the piece positions ``k0..k1-1``."""
+    cdef Py_ssize_t s, i0, i1
+    cdef const Seg* g
+    for s in range(nseg):
+        g = &segs[s]
+        if g.at + g.n <= k0 or g.at >= k1:
+            continue
+        i0 = k0 - g.at if k0 > g.at else 0
+        i1 = k1 - g.at if k1 < g.at + g.n else g.n
+        if scatter:
+            if g.wide:
+                _scatter_span(<const int64_t*>g.offs, g.data, i0, i1, g.at, hrow + g.at, cnt,
+                              ent, part + g.at)
+            else:
+                _scatter_span(<const int32_t*>g.offs, g.data, i0, i1, g.at, hrow + g.at, cnt,
+                              ent, part + g.at)
+        elif g.wide:
+            _hash_span(<const int64_t*>g.offs, g.data, g.size, i0, i1, hrow + g.at, cnt)
+        else:
+            _hash_span(<const int32_t*>g.offs, g.data, g.size, i0, i1, hrow + g.at, cnt)
 
 
 cdef void _row_pass(const Seg* segs, Py_ssize_t nseg, Py_ssize_t rows, Py_ssize_t block,
@@ -96,10 +216,6 @@ cdef bint _grow_ids(Part* p) noexcept nogil:
     if a == NULL:
         return False
     p.gid = <int32_t*>a
-    a = realloc(p.key, u * sizeof(int64_t))
-    if a == NULL:
-        return False
-    p.key = <int64_t*>a
     p.ucap = u
     return True
 
@@ -126,13 +242,10 @@ cdef bint _grow_table(Part* p) noexcept nogil:
     return True
 
 
-cdef void _probe(Part* p, Entry* ent, Py_ssize_t n, Py_ssize_t a, int64_t t0,
-                 int64_t h0) noexcept nogil:
+cdef void _probe(Part* p, Entry* ent, Py_ssize_t n) noexcept nogil:
     """Local ids (in order of first appearance within the partition) of its entries ``ent[:n]``
-    of this piece, written over each entry's ``row`` once read (OUT: ent[:].row, p).  Piece
-    positions below ``a`` are tail rows ``t0 + r``, the others head rows ``h0 + r - a``: each
-    label keeps its first tail row, else its first head row, in ``p.key``."""
-    cdef Py_ssize_t j, slot, mask, lid, r
+    of this piece, written over each entry's ``row`` once read (OUT: ent[:].row, p)."""
+    cdef Py_ssize_t j, slot, mask, lid
     cdef uint64_t h, w1, length
     cdef uint64_t* tbl
     cdef uint64_t warm = 0
@@ -156,7 +269,6 @@ cdef void _probe(Part* p, Entry* ent, Py_ssize_t n, Py_ssize_t a, int64_t t0,
                 return
         h = ent[j].h
         length = ent[j].length
-        r = ent[j].row
         tbl = p.slots
         mask = p.cap - 1
         slot = h & mask
@@ -170,23 +282,20 @@ cdef void _probe(Part* p, Entry* ent, Py_ssize_t n, Py_ssize_t a, int64_t t0,
                 p.first[lid] = ent[j].row
                 p.uptr[lid] = <uint64_t>ent[j].ptr
                 p.ulen[lid] = <int64_t>length
-                p.key[lid] = t0 + r if r < a else HEAD + h0 + (r - a)
                 break
             if tbl[2 * slot] == h and (w1 >> 32) == length:
                 lid = <Py_ssize_t>(w1 & 0xffffffffULL) - 1
                 if length <= 8 or memcmp(<const void*>p.uptr[lid], ent[j].ptr, length) == 0:
-                    if r < a and p.key[lid] >= HEAD:     # first seen in a head, now in a tail
-                        p.key[lid] = t0 + r
                     break
             slot = (slot + 1) & mask
         ent[j].row = <uint32_t>lid
 
 
-cdef void _probe_all(Part* parts, Entry* ent, const Py_ssize_t* start, Py_ssize_t a,
-                     int64_t t0, int64_t h0, int threads) noexcept nogil:
+cdef void _probe_all(Part* parts, Entry* ent, const Py_ssize_t* start,
+                     int threads) noexcept nogil:
     cdef Py_ssize_t q
     for q in prange(PARTS, num_threads=threads, schedule="dynamic"):
-        _probe(&parts[q], ent + start[q], start[q + 1] - start[q], a, t0, h0)
+        _probe(&parts[q], ent + start[q], start[q + 1] - start[q])
 
 
 cdef void _rank_new(Part* parts, uint64_t* bits, Py_ssize_t* below, Py_ssize_t rows,
@@ -282,33 +391,9 @@ def _pieces(chunk):
     return offs, data
 
 
-cdef void _rank_keys(const int64_t* key, Py_ssize_t n, uint64_t* bits, Py_ssize_t nw,
-                     int64_t* below, int32_t* rank) noexcept nogil:
-    """``rank[i]``: the rank of ``key[i]`` among the distinct ``key[:n]`` (all < 64 * nw)."""
-    cdef Py_ssize_t i, w
-    cdef int64_t k, acc = 0
-    memset(bits, 0, nw * sizeof(uint64_t))
-    for i in range(n):
-        bits[key[i] >> 6] |= (<uint64_t>1) << (key[i] & 63)
-    for w in range(nw):
-        below[w] = acc
-        acc += popcount64(bits[w])
-    for i in range(n):
-        k = key[i]
-        rank[i] = <int32_t>(below[k >> 6] +
-                            popcount64(bits[k >> 6] & (((<uint64_t>1) << (k & 63)) - 1)))
-
-
-cdef void _remap(const int32_t* src, const int32_t* perm, int32_t* dst, Py_ssize_t n,
-                 int threads) noexcept nogil:
-    cdef Py_ssize_t i
-    for i in prange(n, num_threads=threads, schedule="static"):
-        dst[i] = perm[src[i]]
-
-
 def _segments(pieces, Py_ssize_t size):
-    """Rounds of at most ``size`` rows: (first row of the round, [(chunk index, lo, hi)])."""
-    rounds, cur, room, row0, row = [], [], size, 0, 0
+    """Rounds of at most ``size`` rows: lists of (chunk index, lo, hi)."""
+    rounds, cur, room = [], [], size
     for c, (offs, _) in enumerate(pieces):
         n = int(offs.shape[0]) - 1
         lo = 0
@@ -316,119 +401,66 @@ def _segments(pieces, Py_ssize_t size):
             hi = min(n, lo + room)
             cur.append((c, lo, hi))
             room -= hi - lo
-            row += hi - lo
             lo = hi
             if room == 0:
-                rounds.append((row0, cur))
-                cur, room, row0 = [], size, row
+                rounds.append(cur)
+                cur, room = [], size
     if cur:
-        rounds.append((row0, cur))
+        rounds.append(cur)
     return rounds
 
 
-cdef class LabelMapper:
-    """LabelMapper(threads=1)
+def text_ids(chunks, Py_ssize_t n_tail, int threads=1):
+    """Compact ids of Arrow string chunks by first appearance.
 
-    Text labels to compact ids fed in batches: ``feed(tail_chunks, head_chunks)`` per batch
-    (Arrow ``string``/``large_string`` chunks without nulls; the batch's tail rows and head
-    rows), then ``finish()`` -> (tail ids, head ids, int64 offsets, uint8 bytes of the distinct
-    labels in id order).  The ids are those of ``text_ids`` over all tail chunks then all head
-    chunks (first appearance down the whole tail column, then down the head column), whatever
-    the batches: labels get provisional ids in feed order, each keeps its first tail row (else
-    its first head row), and ``finish`` renumbers them by that row.  The chunks are kept
-    referenced (the tables point into their bytes) until ``finish``.
+    ``chunks``: the tail column's chunks then the head column's (``string`` or
+    ``large_string``, no nulls); ``n_tail`` rows belong to the tail.  Returns (tail ids, head
+    ids) as int32, and the distinct labels as (int64 offsets, uint8 bytes) in id order.
     """
-    cdef Part* parts
-    cdef int threads
-    cdef Py_ssize_t base, n_tail, n_head, size, nblk
-    cdef list keep, fed
-    cdef object scratch
-    cdef bint finished
-
-    def __cinit__(self, int threads=1):
-        if threads < 1:
-            raise ValueError(f"LabelMapper: threads must be positive, received {threads}.")
-        self.parts = <Part*>calloc(PARTS, sizeof(Part))
-        if self.parts == NULL:
-            raise MemoryError("LabelMapper: no memory for the label tables.")
-        self.threads = threads
-        self.nblk = 8 * threads if threads > 1 else 1
-        self.keep, self.fed, self.scratch, self.size = [], [], None, 0
-
-    def __dealloc__(self):
-        cdef Py_ssize_t q
-        if self.parts != NULL:
-            for q in range(PARTS):
-                free(self.parts[q].slots)
-                free(self.parts[q].first)
-                free(self.parts[q].uptr)
-                free(self.parts[q].ulen)
-                free(self.parts[q].gid)
-                free(self.parts[q].key)
-            free(self.parts)
-            self.parts = NULL
-
-    @property
-    def rows(self):
-        """(tail rows, head rows) fed so far."""
-        return self.n_tail, self.n_head
-
-    def feed(self, tail_chunks, head_chunks):
-        """Map one batch: its tail column's chunks and its head column's chunks."""
-        if self.finished:
-            raise ValueError("LabelMapper.feed: the mapper is finished; start a new one.")
-        tp = [_pieces(c) for c in tail_chunks]
-        hp = [_pieces(c) for c in head_chunks]
-        nt = sum(int(o.shape[0]) - 1 for o, _ in tp)
-        nh = sum(int(o.shape[0]) - 1 for o, _ in hp)
-        if self.n_tail + self.n_head + nt + nh >= 2**31 - 1:
-            raise ValueError(f"LabelMapper.feed: {self.n_tail + self.n_head + nt + nh} rows "
-                             f"need ids beyond int32; expected fewer than {2**31 - 1} rows.")
-        self._feed(tp + hp, nt, nh)
-        self.keep.append((tail_chunks, head_chunks))
-
-    cdef _buffers(self, Py_ssize_t size):
-        """Scratch arrays for rounds of ``size`` rows (kept between batches)."""
-        if size > self.size:
-            nw = (size + 63) // 64
-            self.scratch = (np.empty(size, np.uint64), np.empty(size, np.uint8),
-                            np.empty(size * sizeof(Entry), np.uint8), np.empty(size, np.int32),
-                            np.empty((self.nblk + 1) * PARTS, np.intp),
-                            np.empty(self.nblk * PARTS, np.intp), np.empty(PARTS + 1, np.intp),
-                            np.empty(nw, np.uint64), np.empty(nw, np.intp))
-            self.size = size
-        return self.scratch
-
-    cdef _feed(self, pieces, Py_ssize_t nt, Py_ssize_t nh):
-        cdef Py_ssize_t size, rows, block, nblk = self.nblk, at, q, nseg, done = 0, a
-        cdef int64_t t0, h0
-        cdef int threads = self.threads
-        cdef Py_ssize_t[::1] sv
-        cdef Part* parts = self.parts
-        total = nt + nh
-        if total == 0:
-            return
-        size = max(1, min(int(PIECE_ROWS), total))
-        hrow_a, part_a, ent_a, eid_a, hist_a, off_a, start_a, bits_a, below_a = \
-            self._buffers(size)
-        ids_a = np.empty(total, dtype=np.int32)
-        block = (size + nblk - 1) // nblk
-        cdef uint64_t[::1] hrow = hrow_a
-        cdef uint8_t[::1] part = part_a
-        cdef uint8_t[::1] entv = ent_a
-        cdef int32_t[::1] eid = eid_a
-        cdef Py_ssize_t[::1] hist = hist_a
-        cdef Py_ssize_t[::1] off = off_a
-        cdef Py_ssize_t[::1] start = start_a
-        cdef uint64_t[::1] bits = bits_a
-        cdef Py_ssize_t[::1] below = below_a
-        cdef int32_t[::1] ids = ids_a
-        cdef Entry* ent = <Entry*>&entv[0]
-        for row0, segs in _segments(pieces, size):
+    cdef Py_ssize_t total, size, rows, block, nblk, at, base, q, k, nseg, done
+    cdef Py_ssize_t[::1] sv
+    cdef Part* parts = NULL
+    if threads < 1:
+        raise ValueError(f"text_ids: threads must be positive, received {threads}.")
+    pieces = [_pieces(c) for c in chunks]
+    total = sum(int(o.shape[0]) - 1 for o, _ in pieces)
+    if n_tail < 0 or n_tail > total:
+        raise ValueError(f"text_ids: n_tail={n_tail} is outside 0..{total} (the rows given).")
+    if total >= 2**31 - 1:
+        raise ValueError(f"text_ids: {total} rows need ids beyond int32; expected fewer than "
+                         f"{2**31 - 1} rows.")
+    ids_a = np.empty(total, dtype=np.int32)
+    size = max(1, min(int(PIECE_ROWS), total))
+    nblk = 8 * threads if threads > 1 else 1
+    block = (size + nblk - 1) // nblk
+    hrow_a = np.empty(size, dtype=np.uint64)
+    part_a = np.empty(size, dtype=np.uint8)
+    ent_a = np.empty(size * sizeof(Entry), dtype=np.uint8)
+    eid_a = np.empty(size, dtype=np.int32)
+    hist_a = np.empty((nblk + 1) * PARTS, dtype=np.intp)
+    off_a = np.empty(nblk * PARTS, dtype=np.intp)
+    start_a = np.empty(PARTS + 1, dtype=np.intp)
+    bits_a = np.empty((size + 63) // 64, dtype=np.uint64)
+    below_a = np.empty((size + 63) // 64, dtype=np.intp)
+    cdef uint64_t[::1] hrow = hrow_a
+    cdef uint8_t[::1] part = part_a
+    cdef uint8_t[::1] entv = ent_a
+    cdef int32_t[::1] eid = eid_a
+    cdef Py_ssize_t[::1] hist = hist_a
+    cdef Py_ssize_t[::1] off = off_a
+    cdef Py_ssize_t[::1] start = start_a
+    cdef uint64_t[::1] bits = bits_a
+    cdef Py_ssize_t[::1] below = below_a
+    cdef int32_t[::1] ids = ids_a
+    cdef Entry* ent = <Entry*>&entv[0]
+    parts = <Part*>calloc(PARTS, sizeof(Part))
+    if parts == NULL:
+        raise MemoryError("text_ids: no memory for the label tables.")
+    try:
+        base = 0
+        done = 0
+        for segs in _segments(pieces, size):
             rows = sum(hi - lo for _, lo, hi in segs)
-            a = min(max(nt - row0, 0), rows)
-            t0 = self.n_tail + row0
-            h0 = self.n_head + max(row0 - nt, 0)
             seg_a = np.zeros((len(segs), 6), dtype=np.intp)
             at = 0
             for r, (c, lo, hi) in enumerate(segs):
@@ -455,101 +487,36 @@ cdef class LabelMapper:
                           &part[0], True, threads)
             off_a[:] = off0
             with nogil:
-                _probe_all(parts, ent, &start[0], a, t0, h0, threads)
+                _probe_all(parts, ent, &start[0], threads)
             for q in range(PARTS):
                 if parts[q].failed:
-                    raise MemoryError("LabelMapper: no memory for the label tables.")
+                    raise MemoryError("text_ids: no memory for the label tables.")
             with nogil:
-                _rank_new(parts, &bits[0], &below[0], rows, self.base, threads)
+                _rank_new(parts, &bits[0], &below[0], rows, base, threads)
                 _global_ids(parts, ent, &start[0], &eid[0], threads)
                 _write_rows(&part[0], &eid[0], &off[0], rows, block, &ids[done], threads)
-            self.base = sum(parts[q].count for q in range(PARTS))
+            base = sum(parts[q].count for q in range(PARTS))
             done += rows
-        self.fed.append((ids_a, nt))
-        self.n_tail += nt
-        self.n_head += nh
-
-    def finish(self):
-        """(tail ids, head ids, offsets, bytes) of everything fed; the mapper is then spent."""
-        cdef Py_ssize_t q, kk = self.base, nw
-        cdef int threads = self.threads
-        if self.finished:
-            raise ValueError("LabelMapper.finish: the mapper is already finished.")
-        self.finished = True
+        # the distinct labels in id order
+        kk = base
         ptr = np.empty(kk, dtype=np.uint64)
         lens = np.empty(kk, dtype=np.int64)
-        key_a = np.empty(kk, dtype=np.int64)
         for q in range(PARTS):
-            cq = self.parts[q].count
+            cq = parts[q].count
             if cq:
-                g = np.asarray(<int32_t[:cq]>self.parts[q].gid)
-                ptr[g] = np.asarray(<uint64_t[:cq]>self.parts[q].uptr)
-                lens[g] = np.asarray(<int64_t[:cq]>self.parts[q].ulen)
-                key_a[g] = np.asarray(<int64_t[:cq]>self.parts[q].key)
-        head = key_a >= HEAD
-        key_a[head] += self.n_tail - HEAD          # rows of the tail, then of the head
-        ordered = kk < 2 or bool(np.all(key_a[1:] > key_a[:kk - 1]))
-        if ordered and len(self.fed) == 1:
-            ids_a, nt = self.fed[0]
-            ti, hi = ids_a[:nt], ids_a[nt:]
-        else:
-            ti = np.empty(self.n_tail, dtype=np.int32)
-            hi = np.empty(self.n_head, dtype=np.int32)
-            perm_a = np.arange(kk, dtype=np.int32)
-            if not ordered:
-                nw = (self.n_tail + self.n_head + 63) // 64
-                bits_a, below_a = np.empty(nw, np.uint64), np.empty(nw, np.int64)
-                self._rank(key_a, bits_a, below_a, perm_a)
-                ptr[perm_a] = ptr.copy()
-                lens[perm_a] = lens.copy()
-            self._renumber(perm_a, ti, hi)
-        offsets = np.zeros(kk + 1, dtype=np.int64)
-        np.cumsum(lens, out=offsets[1:])
-        out = np.empty(int(offsets[kk]), dtype=np.uint8)
-        _gather_bytes(ptr, offsets, out)
-        self.fed, self.keep = [], []       # the label bytes are copied: the chunks may go
-        return ti, hi, offsets, out
-
-    cdef _rank(self, key_a, bits_a, below_a, perm_a):
-        cdef int64_t[::1] key = key_a, below = below_a
-        cdef uint64_t[::1] bits = bits_a
-        cdef int32_t[::1] perm = perm_a
-        with nogil:
-            _rank_keys(&key[0], key.shape[0], &bits[0], bits.shape[0], &below[0], &perm[0])
-
-    cdef _renumber(self, perm_a, ti_a, hi_a):
-        """The final ids of every fed row (``perm``: provisional id -> final id)."""
-        cdef int32_t[::1] perm = perm_a
-        cdef int32_t[::1] src, dst
-        cdef Py_ssize_t ot = 0, oh = 0, nt, n
-        for ids_a, nt in self.fed:
-            n = ids_a.shape[0]
-            for lo, hi, dst_a, o in ((0, nt, ti_a, ot), (nt, n, hi_a, oh)):
-                if hi > lo:
-                    src = ids_a[lo:hi]
-                    dst = dst_a[o:o + hi - lo]
-                    with nogil:
-                        _remap(&src[0], &perm[0], &dst[0], src.shape[0], self.threads)
-            ot += nt
-            oh += n - nt
-
-
-def text_ids(chunks, Py_ssize_t n_tail, int threads=1):
-    """Compact ids of Arrow string chunks by first appearance.
-
-    ``chunks``: the tail column's chunks then the head column's (``string`` or
-    ``large_string``, no nulls); ``n_tail`` rows belong to the tail.  Returns (tail ids, head
-    ids) as int32, and the distinct labels as (int64 offsets, uint8 bytes) in id order.
-    """
-    if threads < 1:
-        raise ValueError(f"text_ids: threads must be positive, received {threads}.")
-    pieces = [_pieces(c) for c in chunks]
-    total = sum(int(o.shape[0]) - 1 for o, _ in pieces)
-    if n_tail < 0 or n_tail > total:
-        raise ValueError(f"text_ids: n_tail={n_tail} is outside 0..{total} (the rows given).")
-    if total >= 2**31 - 1:
-        raise ValueError(f"text_ids: {total} rows need ids beyond int32; expected fewer than "
-                         f"{2**31 - 1} rows.")
-    cdef LabelMapper m = LabelMapper(threads)
-    m._feed(pieces, n_tail, total - n_tail)
-    return m.finish()
+                g = np.asarray(<int32_t[:cq]>parts[q].gid)
+                ptr[g] = np.asarray(<uint64_t[:cq]>parts[q].uptr)
+                lens[g] = np.asarray(<int64_t[:cq]>parts[q].ulen)
+    finally:
+        for q in range(PARTS):
+            free(parts[q].slots)
+            free(parts[q].first)
+            free(parts[q].uptr)
+            free(parts[q].ulen)
+            free(parts[q].gid)
+        free(parts)
+    offsets = np.zeros(kk + 1, dtype=np.int64)
+    np.cumsum(lens, out=offsets[1:])
+    out = np.empty(int(offsets[kk]), dtype=np.uint8)
+    _gather_bytes(ptr, offsets, out)
+    return ids_a[:n_tail], ids_a[n_tail:], offsets, out

@@ -90,22 +90,18 @@ class EdgeList:
 
 
 def edges_from_table(table, cols, source, where, nodes: NodeTable | None,
-                     ids: str = "text", carry=(), link_id=None, guessed=(),
-                     encode=encode_label_columns) -> EdgeList:
+                     ids: str = "text", carry=(), link_id=None, guessed=()) -> EdgeList:
     """An EdgeList from the (tail, head, weight) columns ``cols`` of a pyarrow table.
 
     ``carry`` names the table's other columns kept as ``attributes`` (``link_id`` among them);
-    ``guessed`` is recorded as it is; ``encode`` (the signature of
-    :func:`~fastmst.io.labels.encode_label_columns`) encodes the labels, e.g. a
-    :class:`~fastmst.io.labels.TextLabelStream` that mapped them while the file was parsed.
+    ``guessed`` is recorded as it is.
 
     Without a node table, labels are encoded by the label rule of :mod:`fastmst.io.labels`
     (``ids``: "text" or "integer"); with one, endpoints are looked up in it.  ``weight == "length"`` with a node table and no
     such column computes lengths from the coordinates (great-circle metres for lon/lat).
     """
     try:
-        return _edges_from_table(table, cols, source, where, nodes, ids, carry, link_id, guessed,
-                                 encode)
+        return _edges_from_table(table, cols, source, where, nodes, ids, carry, link_id, guessed)
     except FileFormatError as exc:
         if not guessed:
             raise
@@ -119,12 +115,12 @@ def edges_from_table(table, cols, source, where, nodes: NodeTable | None,
                               f"{'/'.join('--' + r for r in guessed)} COLUMN).") from None
 
 
-def _edges_from_table(table, cols, source, where, nodes, ids, carry, link_id, guessed, encode):
+def _edges_from_table(table, cols, source, where, nodes, ids, carry, link_id, guessed):
     tname, hname, wname = cols
     tcol, hcol = table.column(tname), table.column(hname)
     geometry = nodes is not None and wname == "length" and "length" not in table.column_names
     if nodes is None:
-        t, h, labels = encode(tcol, hcol, source, where, (tname, hname), ids)
+        t, h, labels = encode_label_columns(tcol, hcol, source, where, (tname, hname), ids)
         n = int(labels.size) if labels is not None else \
             (max(int(t.max()), int(h.max())) + 1 if t.size else 0)
         coords, geo = None, False

@@ -17,9 +17,8 @@ node table, compact id ``i`` is row ``i`` of the table.
 
 Text labels are mapped by :func:`fastmst._kernels.labels.text_ids`, which reads the Arrow
 string buffers in place and numbers labels by first appearance (exact byte comparison; the
-same ids for every thread count); :class:`TextLabelStream` feeds it batch by batch for readers
-that parse a file in parts (the CSV reader), with the same ids.  Integer ids that need hashing,
-and text columns beyond the kernel's int32 id range, go through pyarrow's dictionary encoding.
+same ids for every thread count).  Integer ids that need hashing, and text columns beyond the
+kernel's int32 id range, go through pyarrow's dictionary encoding.
 
 Lookup rule (:func:`lookup`): integer columns are compared as int64, text looked up among
 integer ids is read as integers, columns of one type are compared as they are, anything else as
@@ -234,48 +233,6 @@ def _dense_int_ids(t, h):
     with ThreadPoolExecutor(2) as ex:
         ft, fh = ex.submit(fill, tc), ex.submit(fill, hc)
         return ft.result(), fh.result(), labels
-
-
-class TextLabelStream:
-    """Text label columns mapped batch by batch, for readers that parse a file in parts.
-
-    ``feed(tail, head)`` maps one batch's endpoint columns (pyarrow text columns without
-    missing cells; a reader calls it in a worker thread while it parses the next batch: the
-    kernel releases the GIL); ``finish`` then gives exactly what :func:`encode_label_columns`
-    gives for the whole columns, with the same checks and messages (it is called in its place,
-    with the same arguments).  Past the kernel's int32 range the stream stops mapping and
-    ``finish`` encodes the whole columns as :func:`encode_label_columns` does.
-    """
-
-    def __init__(self, threads=None):
-        #: the kernel's thread count (``threads=None``: the default, capped by the free cores)
-        self.threads = validation.check_threads(threads, "read_edges")
-        self._mapper = label_kernel.LabelMapper(self.threads)
-        self._rows = 0
-        self._whole = False
-
-    def feed(self, tail, head) -> None:
-        self._rows += len(tail)
-        if 2 * self._rows >= validation.INT32_LIMIT - 1:
-            self._whole = True
-        if not self._whole:
-            self._mapper.feed(getattr(tail, "chunks", [tail]), getattr(head, "chunks", [head]))
-
-    def finish(self, tail, head, source, where, names, ids="text"):
-        """(tail ids, head ids, labels) of all batches fed; ``tail``, ``head``: the whole
-        columns (read for messages only, and when the stream stopped mapping)."""
-        import pyarrow as pa
-        import pyarrow.compute as pc
-        if self._whole or ids != "text" or self._mapper.rows != (len(tail), len(head)):
-            return encode_label_columns(tail, head, source, where, names, ids)
-        ti, hi, offsets, data = self._mapper.finish()
-        uniq = pa.LargeStringArray.from_buffers(offsets.size - 1, pa.py_buffer(offsets),
-                                                pa.py_buffer(data))
-        if offsets.size > 1 and int(np.diff(offsets).min()) == 0:
-            for col, name in ((tail, names[0]), (head, names[1])):
-                check_no_missing(to_numpy(pc.equal(col, "")), name, source, where,
-                                 "read_edges")
-        return ti, hi, to_numpy(uniq)
 
 
 def _dictionary_codes(col):

@@ -9,13 +9,6 @@ lists of links) are read as text, exactly as written, never guessed: ``007`` sta
 ``true`` stays ``true``, ``NA`` is a label (:mod:`fastmst.io.labels` turns them into integers
 only when ``ids="integer"`` asks for it).
 
-Text labels of an uncompressed file without a node table (:func:`read_ranges`): with at least
-:data:`RANGE_MIN_THREADS` free cores the file is memory-mapped and parsed in ranges of
-:data:`RANGE_BYTES` whole lines, and each range's labels are mapped in a worker thread
-(:class:`fastmst.io.labels.TextLabelStream`) while the next range is parsed; the result is the
-one of the whole-file read, which stays the path for everything else and for any range that
-fails to parse (it reports the error) or guesses a column's type differently.
-
 Writing: labels are written verbatim (quoted), so every label reads back unchanged, also those
 beginning with ``=``, ``+``, ``-`` or ``@`` that spreadsheets take for formulas (see
 ``spreadsheet_safe`` in :func:`fastmst.io.write_table`).  Labels with a line break are refused:
@@ -26,7 +19,6 @@ from __future__ import annotations
 import csv as _csv
 import io as _io
 import os
-from concurrent.futures import ThreadPoolExecutor
 
 import numpy as np
 
@@ -35,16 +27,8 @@ from fastmst.io.checks import FileFormatError, csv_row
 from fastmst.io.columns import (NULLS, carried_columns, choose_edge_columns, guessed_roles,
                                 typed_text_column)
 from fastmst.io.edgelist import edges_from_table
-from fastmst.io.labels import TextLabelStream, encode_label_columns
 
 CSV_BLOCK_SIZE = 1 << 22   # bytes per parsing block: fewer, larger chunks than pyarrow's 1 MiB
-#: Bytes per range of an uncompressed file read in parts (labels of one range are mapped while
-#: the next is parsed; tests lower it to read small files in many ranges).
-RANGE_BYTES = 1 << 25
-#: Ranges are read only when the default thread count (capped by the cores other processes
-#: leave free) is at least this: overlapping parsing and mapping needs a free core, and on a
-#: machine whose cores are busy it only adds work (more rounds, a final renumbering).
-RANGE_MIN_THREADS = 2
 
 
 def _header(path, delimiter, compression):
@@ -102,27 +86,19 @@ def read_csv(path, delimiter, compression, columns, numeric, progress=None, text
         raise FileFormatError(f"{path}: could not be read ({exc}); {how}") from None
 
 
-def _options(delimiter, cols, texts, decimal_comma):
-    """pyarrow (read, parse, convert) options of every CSV read."""
-    import pyarrow as pa
-    import pyarrow.csv as pcsv
-    read = pcsv.ReadOptions(use_threads=True, block_size=CSV_BLOCK_SIZE)
-    parse = pcsv.ParseOptions(delimiter=delimiter)
-    convert = pcsv.ConvertOptions(include_columns=list(dict.fromkeys(cols)), null_values=NULLS,
-                                  column_types={c: pa.string() for c in texts if c in cols},
-                                  strings_can_be_null=False,
-                                  decimal_point="," if decimal_comma else ".")
-    return read, parse, convert
-
-
 def _read_unchecked(path, delimiter, compression, columns, numeric, progress=None, text=(),
                     decimal_comma=False):
     import pyarrow as pa
     import pyarrow.csv as pcsv
     header = _header(path, delimiter, compression)
+    read = pcsv.ReadOptions(use_threads=True, block_size=CSV_BLOCK_SIZE)
+    parse = pcsv.ParseOptions(delimiter=delimiter)
     cols = columns(header)
     texts = text(header) if callable(text) else text
-    read, parse, convert = _options(delimiter, cols, texts, decimal_comma)
+    convert = pcsv.ConvertOptions(include_columns=list(dict.fromkeys(cols)), null_values=NULLS,
+                                  column_types={c: pa.string() for c in texts if c in cols},
+                                  strings_can_be_null=False,
+                                  decimal_point="," if decimal_comma else ".")
     try:
         if progress is not None:
             src = _CountingFile(path, progress)
@@ -146,71 +122,6 @@ def _read_unchecked(path, delimiter, compression, columns, numeric, progress=Non
         raise FileFormatError(f"{path}: the file has a header ({', '.join(header)}) but no "
                               f"edges; expected one line per edge after the header.")
     return table, header, cols
-
-
-def _line_bounds(data, size):
-    """Byte ranges of about ``size`` bytes that end at line ends (after a ``\\n``)."""
-    n = data.size
-    bounds, lo = [], 0
-    while lo < n:
-        hi = min(n, lo + size)
-        while hi < n:
-            k = np.flatnonzero(data[hi:hi + (1 << 16)] == 10)
-            if k.size:
-                hi += int(k[0]) + 1
-                break
-            hi = min(n, hi + (1 << 16))
-        bounds.append((lo, hi))
-        lo = hi
-    return bounds
-
-
-def read_ranges(path, delimiter, cols, texts, decimal_comma, feed, progress=None):
-    """The table of an uncompressed CSV/TSV file read in ranges of :data:`RANGE_BYTES` (whole
-    lines), each handed to ``feed(table)`` in a worker thread while the next range is parsed;
-    the same table as :func:`read_csv` (``cols``, ``texts`` already chosen from the header),
-    or None when the ranges do not make one table (a parse error, or a column whose type the
-    ranges guess differently): the caller then reads the whole file, which reports errors.
-
-    Records end at line ends here as in :func:`read_csv` (labels with a line break are not
-    read back by either).  ``progress(done_bytes, total_bytes)`` is called after each range,
-    and ``progress(total, None)`` once the last byte is parsed while the last range is mapped.
-    """
-    import pyarrow as pa
-    import pyarrow.csv as pcsv
-    header = _header(path, delimiter, None)
-    read, parse, convert = _options(delimiter, cols, texts, decimal_comma)
-    later = pcsv.ReadOptions(use_threads=True, block_size=CSV_BLOCK_SIZE, column_names=header)
-    with pa.memory_map(str(path)) as mm:
-        buf = mm.read_buffer()
-        data = np.frombuffer(buf, dtype=np.uint8)
-        bounds = _line_bounds(data, RANGE_BYTES)
-        tables, job = [], None
-        with ThreadPoolExecutor(1) as pool:
-            try:
-                for i, (lo, hi) in enumerate(bounds):
-                    table = pcsv.read_csv(pa.BufferReader(buf.slice(lo, hi - lo)),
-                                          read_options=read if i == 0 else later,
-                                          parse_options=parse, convert_options=convert)
-                    if progress is not None:
-                        progress(hi, data.size)
-                        if i == len(bounds) - 1:     # parsed: labels are still being mapped
-                            progress(data.size, None)
-                    if table.num_rows == 0:     # the header alone, or blank lines
-                        continue
-                    if job is not None:
-                        job.result()
-                    if tables and table.schema != tables[0].schema:
-                        return None
-                    tables.append(table)
-                    job = pool.submit(feed, table)
-                if job is not None:
-                    job.result()
-            except pa.ArrowInvalid:
-                return None
-        if not tables:
-            return None
-    return pa.concat_tables(tables)
 
 
 class _CountingFile:
@@ -260,26 +171,11 @@ def read_edges(path, compression, request, *, delimiter):
     def labels(header):
         return list(chosen["cols"][:2]) + chosen["carry"]
 
-    table, encode = None, encode_label_columns
-    if not compression and request.nodes is None and request.ids == "text":
-        # labels mapped range by range while the next range is parsed
-        try:
-            cols = columns(_header(path, delimiter, None))
-            stream = TextLabelStream()
-            tname, hname = chosen["cols"][:2]
-            if stream.threads >= RANGE_MIN_THREADS:
-                table = read_ranges(path, delimiter, cols, labels(None), request.decimal_comma,
-                                    lambda tb: stream.feed(tb.column(tname), tb.column(hname)),
-                                    request.progress)
-        except OSError:      # read_csv below says what is wrong with the file
-            table = None
-        encode = stream.finish if table is not None else encode
-    if table is None:
-        table, _, _ = read_csv(path, delimiter, compression, columns, numeric, request.progress,
-                               labels, request.decimal_comma)
-        if request.progress is not None:   # parsed; checks and labels follow: no total known
-            size = os.path.getsize(path)
-            request.progress(size, None)
+    table, _, _ = read_csv(path, delimiter, compression, columns, numeric, request.progress,
+                           labels, request.decimal_comma)
+    if request.progress is not None:   # parsed; checks and labels follow: no total known
+        size = os.path.getsize(path)
+        request.progress(size, None)
     for name in chosen["carry"]:
         if name != request.link_id:
             i = table.column_names.index(name)
@@ -287,7 +183,7 @@ def read_edges(path, compression, request, *, delimiter):
                                                                 request.decimal_comma))
     return edges_from_table(table, chosen["cols"], str(path), csv_row, request.nodes,
                             request.ids, chosen["carry"], request.link_id,
-                            guessed_roles(request.tail, request.head, request.weight), encode)
+                            guessed_roles(request.tail, request.head, request.weight))
 
 
 def read_table(path, compression, text=(), *, delimiter, decimal_comma=False):
