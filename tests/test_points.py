@@ -414,7 +414,7 @@ def test_near_coincident_points_are_repaired_exactly():
 
 def test_untrusted_triangulation_falls_back_and_says_why():
     """Too many close points for the repair budget: exact dense Prim, the reason recorded."""
-    from fastmst.geometry import points as P
+    from fastmst.geometry import planar as P   # the repair budget lives with the Delaunay pairs
     r = np.random.default_rng(16)
     B = r.random((300, 2)) * 1e3 + 5e5
     X = np.vstack([B, B + 1e-7])
