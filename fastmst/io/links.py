@@ -22,7 +22,7 @@ import numpy as np
 
 from fastmst.io.checks import FileFormatError, shown
 from fastmst.io.labels import lookup
-from fastmst.io.positions import pair_ranges
+from fastmst.io.positions import pair_ranges, position_column
 from fastmst.io.tables import load_table
 
 PARALLEL = ("all", "lightest")
@@ -93,7 +93,7 @@ def read_links(path, edges, *, parallel="all", func="read_links", delimiter=None
         pos = _by_id(table.column(link_id), edges, link_id, source, where)
         return LinkList(pos, "link id", table.num_rows, [], source)
     if "position" in names:
-        return LinkList(_by_position(table, edges, source, where), "position", table.num_rows,
+        return LinkList(position_column(table, edges, source, where), "position", table.num_rows,
                         [], source)
     if len(names) < 2:
         hint = f", a {link_id!r} column" if link_id else ""
@@ -115,18 +115,6 @@ def _by_id(col, edges, name, source, where) -> np.ndarray:
         raise FileFormatError(f"{source}: {where(i)}: link id {compared[i].as_py()!r} is not in "
                               f"column {name!r} of {edges.source}.")
     return found.astype(np.int64)
-
-
-def _by_position(table, edges, source, where) -> np.ndarray:
-    pos = table.column("position").to_numpy(zero_copy_only=False)
-    if pos.dtype.kind not in "iu":
-        raise FileFormatError(f"{source}: column 'position' must hold integer edge "
-                              f"positions, found {table.column('position').type}.")
-    bad = np.flatnonzero((pos < 0) | (pos >= edges.n_edges))
-    if bad.size:
-        raise FileFormatError(f"{source}: {where(int(bad[0]))}: position {pos[bad[0]]} is not "
-                              f"an edge of {edges.source} (positions 0..{edges.n_edges - 1}).")
-    return pos.astype(np.int64)
 
 
 def _by_pair(tcol, hcol, edges, source, where, parallel):

@@ -52,20 +52,26 @@ def _label_columns(header):
 def _positions(table, source, where, edges, all_parallel):
     names = table.column_names
     if "position" in names:
-        pos = table.column("position").to_numpy(zero_copy_only=False)
-        if pos.dtype.kind not in "iu":
-            raise FileFormatError(f"{source}: column 'position' must hold integer edge "
-                                  f"positions, found {table.column('position').type}.")
-        bad = np.flatnonzero((pos < 0) | (pos >= edges.n_edges))
-        if bad.size:
-            raise FileFormatError(f"{source}: {where(int(bad[0]))}: position {pos[bad[0]]} is not "
-                                  f"an edge of {edges.source} (positions 0..{edges.n_edges - 1}).")
-        return pos.astype(np.int64)
+        return position_column(table, edges, source, where)
     if len(names) < 2:
         raise FileFormatError(f"{source}: expected a 'position' column or two label columns "
                               f"(tail, head); found {', '.join(map(repr, names)) or 'none'}.")
     return _pair_positions(table.column(names[0]), table.column(names[1]), edges, source, where,
                            all_parallel)
+
+
+def position_column(table, edges, source, where) -> np.ndarray:
+    """The ``position`` column of a list of links as int64 edge positions, each checked to be
+    an edge of ``edges`` (a FileFormatError naming the row otherwise)."""
+    pos = table.column("position").to_numpy(zero_copy_only=False)
+    if pos.dtype.kind not in "iu":
+        raise FileFormatError(f"{source}: column 'position' must hold integer edge "
+                              f"positions, found {table.column('position').type}.")
+    bad = np.flatnonzero((pos < 0) | (pos >= edges.n_edges))
+    if bad.size:
+        raise FileFormatError(f"{source}: {where(int(bad[0]))}: position {pos[bad[0]]} is not "
+                              f"an edge of {edges.source} (positions 0..{edges.n_edges - 1}).")
+    return pos.astype(np.int64)
 
 
 def _pair_positions(tcol, hcol, edges, source, where, all_parallel):
