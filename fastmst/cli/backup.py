@@ -7,7 +7,6 @@ import argparse
 
 import numpy as np
 
-import fastmst
 from fastmst.cli import common, design_options
 from fastmst.cli.common import fmt_num
 from fastmst.design import backup_links
@@ -45,11 +44,7 @@ def run(args) -> int:
     with rep:
         edges = common.load_edges(args, rep)
         required, excluded, design = design_options.read_links(args, edges, rep)
-        if design is None:
-            with rep.phase("solving"):
-                design = fastmst.minimum_spanning_forest(
-                    edges.tail, edges.head, edges.weight, edges.n_nodes, required=required,
-                    excluded=excluded)
+        design = design_options.design_or_forest(edges, required, excluded, design, rep)
         with rep.phase("choosing backup links"):
             r = backup_links(edges.tail, edges.head, edges.weight, design,
                              n_nodes=edges.n_nodes, excluded=excluded, exact=args.exact,

@@ -8,6 +8,7 @@ import sys
 
 import numpy as np
 
+import fastmst
 from fastmst import io
 from fastmst.cli import common
 from fastmst.cli.common import CAUTION, UsageError
@@ -81,6 +82,17 @@ def read_links(args, edges, rep):
                                  "minimum spanning forest only. Give one of them.")
             design = io.read_forest_positions(args.design, edges, func="--design")
     return required, excluded, design
+
+
+def design_or_forest(edges, required, excluded, design, rep):
+    """The design given with --design, or else the minimum spanning forest under --required
+    and --excluded."""
+    if design is not None:
+        return design
+    with rep.phase("solving"):
+        return fastmst.minimum_spanning_forest(edges.tail, edges.head, edges.weight,
+                                               edges.n_nodes, required=required,
+                                               excluded=excluded)
 
 
 def read_demand(path, edges) -> np.ndarray:

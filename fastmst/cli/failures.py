@@ -6,7 +6,6 @@ import argparse
 
 import numpy as np
 
-import fastmst
 from fastmst.cli import common, design_options
 from fastmst.cli.common import fmt_num
 from fastmst.design import link_failures
@@ -38,11 +37,7 @@ def run(args) -> int:
         edges = common.load_edges(args, rep)
         required, excluded, design = design_options.read_links(args, edges, rep)
         root = design_options.find_node(edges, args.root, "--root") if args.root else None
-        if design is None:
-            with rep.phase("solving"):
-                design = fastmst.minimum_spanning_forest(
-                    edges.tail, edges.head, edges.weight, edges.n_nodes, required=required,
-                    excluded=excluded)
+        design = design_options.design_or_forest(edges, required, excluded, design, rep)
         with rep.phase("failure analysis"):
             r = link_failures(edges.tail, edges.head, edges.weight, design,
                               n_nodes=edges.n_nodes, root=root, excluded=excluded)
