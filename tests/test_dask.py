@@ -97,14 +97,19 @@ def assert_identical(got, want):
 def many_levels():
     """Filter-Kruskal with few light edges per level and a thin sample, so that small graphs
     take several levels (thresholds inside runs of tied weights, a sample that runs out)."""
-    saved = filter_kruskal.LIGHT_PER_NODE, fchunks.SAMPLE_ROWS, fchunks.MIN_SAMPLE_PER_PARTITION
+    saved = (filter_kruskal.LIGHT_PER_NODE, fchunks.SAMPLE_ROWS,
+             fchunks.MIN_SAMPLE_PER_PARTITION, filter_kruskal.MIN_PIECE_EDGES,
+             filter_kruskal.SPLIT_SAMPLE, filter_kruskal.SPLIT_BLOCK)
     filter_kruskal.LIGHT_PER_NODE, fchunks.SAMPLE_ROWS = 0.25, 256
     fchunks.MIN_SAMPLE_PER_PARTITION = 8
+    filter_kruskal.MIN_PIECE_EDGES = 20  # the client solves each level in up to 8 pieces
+    filter_kruskal.SPLIT_SAMPLE, filter_kruskal.SPLIT_BLOCK = 16, 100  # strided, in blocks
     try:
         yield
     finally:
         (filter_kruskal.LIGHT_PER_NODE, fchunks.SAMPLE_ROWS,
-         fchunks.MIN_SAMPLE_PER_PARTITION) = saved
+         fchunks.MIN_SAMPLE_PER_PARTITION, filter_kruskal.MIN_PIECE_EDGES,
+         filter_kruskal.SPLIT_SAMPLE, filter_kruskal.SPLIT_BLOCK) = saved
 
 
 def solve(edges, plan, budget=None, **kwargs):

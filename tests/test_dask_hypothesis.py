@@ -60,14 +60,20 @@ def partitioned_graphs(draw):
 def thin(light_per_node):
     """Few light edges per level and a thin sample (several levels, thresholds inside runs of
     tied weights, a sample that runs out before the edges do)."""
-    saved = filter_kruskal.LIGHT_PER_NODE, fchunks.SAMPLE_ROWS, fchunks.MIN_SAMPLE_PER_PARTITION
+    saved = (filter_kruskal.LIGHT_PER_NODE, fchunks.SAMPLE_ROWS,
+             fchunks.MIN_SAMPLE_PER_PARTITION, filter_kruskal.MIN_PIECE_EDGES,
+             filter_kruskal.SPLIT_SAMPLE, filter_kruskal.SPLIT_BLOCK)
     filter_kruskal.LIGHT_PER_NODE = light_per_node
     fchunks.SAMPLE_ROWS, fchunks.MIN_SAMPLE_PER_PARTITION = 64, 4
+    filter_kruskal.MIN_PIECE_EDGES = 3  # each level's light edges solved in up to 8 pieces
+    # split points from a strided sample of the keys, pieces mapped in blocks of 5 rows
+    filter_kruskal.SPLIT_SAMPLE, filter_kruskal.SPLIT_BLOCK = 4, 5
     try:
         yield
     finally:
         (filter_kruskal.LIGHT_PER_NODE, fchunks.SAMPLE_ROWS,
-         fchunks.MIN_SAMPLE_PER_PARTITION) = saved
+         fchunks.MIN_SAMPLE_PER_PARTITION, filter_kruskal.MIN_PIECE_EDGES,
+         filter_kruskal.SPLIT_SAMPLE, filter_kruskal.SPLIT_BLOCK) = saved
 
 
 def delayed_chunks(t, h, w, cuts, as_frame):
@@ -177,13 +183,16 @@ def folded_cases(draw):
             light_per_node, draw(st.booleans()))
 
 
+@pytest.mark.parametrize("min_piece", [1, 1 << 22])
 @settings(max_examples=40, deadline=None)
 @given(folded_cases())
-def test_folded_first_level_identical_to_in_memory(case):
+def test_folded_first_level_identical_to_in_memory(min_piece, case):
     """The validation pass's lightest rows as the first level (threshold t1 = the smallest
     partition bound): identical forest to the in-memory solve on the concatenation, also with
     ties at t1 across partitions, partitions smaller than their quota, empty partitions, mixed
-    weight dtypes and every row light; the same forest with the first level as its own pass."""
+    weight dtypes and every row light; the same forest with the first level as its own pass.
+    ``min_piece`` 1: every level's light edges solved on the client in up to 8 pieces of
+    consecutive key ranges (ties never split across pieces); 2**22: in one piece."""
     t, h, pieces, cuts, n, maximize, safety, light_per_node, as_frame = case
     # The distributed path takes the weight dtype from the partitions that hold rows (an empty
     # partition's column dtype does not count), so the reference concatenates those.
@@ -196,16 +205,17 @@ def test_folded_first_level_identical_to_in_memory(case):
     else:
         parts = [dask.delayed(tuple)([a, b, c]) for a, b, c in zip(tp, hp, pieces)]
     saved = (filter_kruskal.FOLD_SAFETY, filter_kruskal.LIGHT_PER_NODE,
-             filter_kruskal.FOLD_FIRST_LEVEL)
+             filter_kruskal.FOLD_FIRST_LEVEL, filter_kruskal.MIN_PIECE_EDGES)
     try:
         filter_kruskal.FOLD_SAFETY, filter_kruskal.LIGHT_PER_NODE = safety, light_per_node
+        filter_kruskal.MIN_PIECE_EDGES = min_piece
         with dask.config.set(scheduler="sync"):
             got = fdask.minimum_spanning_forest(parts, n, maximize=maximize, client=False)
             filter_kruskal.FOLD_FIRST_LEVEL = False
             unfolded = fdask.minimum_spanning_forest(parts, n, maximize=maximize, client=False)
     finally:
         (filter_kruskal.FOLD_SAFETY, filter_kruskal.LIGHT_PER_NODE,
-         filter_kruskal.FOLD_FIRST_LEVEL) = saved
+         filter_kruskal.FOLD_FIRST_LEVEL, filter_kruskal.MIN_PIECE_EDGES) = saved
     assert_identical(got, want)
     assert_identical(unfolded, want)
     first = got.dask_plan["passes"][0]

@@ -44,8 +44,9 @@ import numpy as np
 import dask
 
 from fastmst._kernels.tie_rule import weight_keys
-from fastmst.dask import boruvka, chunks
-from fastmst.solve.solve import solve_trusted
+from fastmst.dask import boruvka, chunks, runner
+from fastmst import validation
+from fastmst.solve import constraints
 
 #: Light edges per node: each level's threshold is chosen so that the client solves about
 #: ``LIGHT_PER_NODE * n_nodes`` edges (measured on bench/bench_dask.py: see docs/dask.md).
@@ -56,6 +57,16 @@ LIGHT_PER_NODE = 1.5
 FOLD_FIRST_LEVEL = True
 #: The quotas sum to about ``FOLD_SAFETY * LIGHT_PER_NODE * n`` rows (plus one per partition).
 FOLD_SAFETY = 1.0
+#: The client solves each level's light edges in up to this many pieces of consecutive key
+#: ranges (lightest first, contracting after each), so the solve's working memory is a
+#: fraction of the light edges' (measured per node in docs/dask.md).
+ABSORB_PIECES = 8
+#: ... but no piece below this many edges (smaller levels are solved in one piece).
+MIN_PIECE_EDGES = 1 << 22
+#: Sampled keys the pieces' split points are chosen from, and rows per block when mapping
+#: every light edge to its piece.
+SPLIT_SAMPLE = 1 << 16
+SPLIT_BLOCK = 1 << 22
 #: Levels at most; the last one takes every edge left (progress is guaranteed before that,
 #: this only bounds the passes when the sample is too thin to steer).
 MAX_LEVELS = 32
@@ -148,47 +159,135 @@ def folded(stats, offsets, kdt, maximize):
         else:
             cand = (int(weight_keys(b[2].astype(kdt), maximize)[0]), int(offsets[i]))
         t1 = cand if t1 is None or cand < t1 else t1
-    recs, returned, in_band = [], 0, 0
+    # Two passes over the partitions' rows (count, then copy into buffers of the final size),
+    # each partition's rows released once copied: the client never holds the rows twice.
+    keeps = []
+    for i, s in enumerate(stats):
+        lt = s["lightest"]
+        if t1 is not None and lt["row"].shape[0]:
+            gid = lt["row"] + int(offsets[i])
+            keeps.append(int(np.count_nonzero(_rule_below(
+                weight_keys(lt["w"].astype(kdt, copy=False), maximize), gid, t1))))
+        else:
+            keeps.append(int(lt["row"].shape[0]))
+    in_band = sum(keeps)
+    returned = 0
+    light = Records(in_band, _ids_dtype(stats, "t"), _ids_dtype(stats, "h"), kdt) \
+        if in_band else None
     for i, s in enumerate(stats):
         lt = s.pop("lightest")
         gid = lt["row"] + int(offsets[i])
         w = lt["w"].astype(kdt, copy=False)
         returned += gid.shape[0]
-        if t1 is not None and gid.shape[0]:
-            keep = np.flatnonzero(_rule_below(weight_keys(w, maximize), gid, t1))
-            rec = {"id": gid[keep], "t": lt["t"][keep], "h": lt["h"][keep], "w": w[keep]}
-        else:
-            rec = {"id": gid, "t": lt["t"], "h": lt["h"], "w": w}
-        del lt
-        in_band += rec["id"].shape[0]
-        if rec["id"].shape[0]:
-            recs.append(rec)
-    light = {k: np.concatenate([r[k] for r in recs]) for k in ("id", "t", "h", "w")} \
-        if recs else None
+        if keeps[i] == gid.shape[0]:
+            if keeps[i]:
+                light.extend(gid, lt["t"], lt["h"], w)
+        elif keeps[i]:
+            keep = _rule_below(weight_keys(w, maximize), gid, t1)
+            light.extend(gid[keep], lt["t"][keep], lt["h"][keep], w[keep])
+        del lt, gid, w
     return light, t1, returned, in_band
 
 
-def _absorb(light, labels, n_comp, maximize, ldt, chosen):
-    """Solve the light edges' forest on the client, keep it (all of it is in the answer),
-    contract the components; returns the new labels and component count."""
-    if labels is None:
-        ct, ch = light["t"], light["h"]
-    else:
-        ct, ch = np.take(labels, light["t"]), np.take(labels, light["h"])
-    # Valid by construction (ids checked in the validation pass, or labels); the light edges
-    # are in global id order, so positions break ties as ids do.
-    f = solve_trusted(ct, ch, light["w"], n_comp, maximize=maximize, threads=None)
-    del ct, ch
-    pos = f.edges
-    # The solve already gathered the forest's weights (and, on the first level, its
-    # endpoints): one random gather of the ids, and of the endpoints on later levels.
-    chosen.append({"id": light["id"][pos], "w": f.weights,
-                   "t": f.tail if labels is None else light["t"][pos],
-                   "h": f.head if labels is None else light["h"][pos]})
-    del pos
-    new = f.labels.astype(ldt)
-    labels = new if labels is None else np.take(new, labels)
-    return labels, int(f.n_components)
+def _ids_dtype(stats, name):
+    """The common dtype of the ``name`` ids the validation tasks returned (int32 or int64)."""
+    dts = [s["lightest"][name].dtype for s in stats if s["lightest"]["row"].shape[0]]
+    return np.result_type(*dts) if dts else np.dtype(np.int64)
+
+
+class Records:
+    """Edges on the client (global ids, endpoints, weights in the kernel dtype) in buffers
+    allocated once at their final capacity and filled in order, so that gathering the
+    partitions' rows never holds them twice.  ``arrays()`` gives the filled part."""
+
+    NAMES = ("id", "t", "h", "w")
+
+    def __init__(self, capacity, tdt, hdt, wdt):
+        self.size = 0
+        self.id = np.empty(capacity, np.int64)
+        self.t = np.empty(capacity, tdt)
+        self.h = np.empty(capacity, hdt)
+        self.w = np.empty(capacity, wdt)
+
+    def extend(self, ids, t, h, w):
+        a, b = self.size, self.size + ids.shape[0]
+        if b > self.id.shape[0]:  # pragma: no cover - a broken invariant
+            raise RuntimeError(f"{chunks.FUNC}: internal error: {b} edges for a buffer of "
+                               f"{self.id.shape[0]}; please report this with the input.")
+        self.id[a:b], self.t[a:b], self.h[a:b], self.w[a:b] = ids, t, h, w
+        self.size = b
+
+    def arrays(self):
+        """The filled part as a dict of arrays (the buffers shrunk in place to it)."""
+        for name in self.NAMES:
+            arr = getattr(self, name)
+            if arr.shape[0] != self.size:
+                # In place, no second copy: no view of a buffer outlives ``extend``.
+                arr.resize(self.size, refcheck=False)
+        return {name: getattr(self, name) for name in self.NAMES}
+
+
+def _pieces(w, maximize, pieces):
+    """Split the light edges into up to ``pieces`` pieces by key: ``(piece of every edge as
+    uint8, number of pieces)``, or ``(None, 1)`` for one piece.  The split points are rule keys
+    taken from a strided sample, so every key (and all its ties) falls in one piece, and the
+    pieces in order are consecutive ranges of the rule order; computed in blocks, so no
+    array of keys for all the edges is held."""
+    m = w.shape[0]
+    if pieces <= 1 or m == 0:
+        return None, 1
+    sample = np.sort(weight_keys(np.ascontiguousarray(w[::max(1, m // SPLIT_SAMPLE)]),
+                                 maximize))
+    splits = np.unique(sample[(np.arange(1, pieces) * sample.shape[0]) // pieces])
+    if splits.shape[0] == 0:
+        return None, 1
+    piece = np.empty(m, np.uint8)
+    for a in range(0, m, SPLIT_BLOCK):
+        b = min(m, a + SPLIT_BLOCK)
+        piece[a:b] = np.searchsorted(splits, weight_keys(w[a:b], maximize), side="right")
+    return piece, int(splits.shape[0]) + 1
+
+
+def _absorb(light, labels, n_comp, maximize, ldt, forest):
+    """Solve the light edges' forest on the client, append it to ``forest`` (all of it is
+    in the answer), contract the components; returns the new labels and component count.
+
+    The light edges are solved in pieces of consecutive key ranges (``ABSORB_PIECES`` at most,
+    none below ``MIN_PIECE_EDGES``), lightest first, contracting after each: Kruskal's order
+    over the whole set, with the solve's working memory a fraction of it.  Within a piece
+    the edges are in global id order, so positions break ties as ids do."""
+    rec = light.arrays()
+    m = rec["id"].shape[0]
+    piece, pieces = _pieces(rec["w"], maximize,
+                            min(ABSORB_PIECES, max(1, m // max(1, MIN_PIECE_EDGES))))
+    threads = validation.check_threads(None, chunks.FUNC)
+    for j in range(pieces):
+        if n_comp <= 1:
+            break
+        sel = None if piece is None else np.flatnonzero(piece == j)
+        t = rec["t"] if sel is None else np.take(rec["t"], sel)
+        h = rec["h"] if sel is None else np.take(rec["h"], sel)
+        w = rec["w"] if sel is None else np.take(rec["w"], sel)
+        if labels is not None:
+            t, h = np.take(labels, t), np.take(labels, h)
+        # Valid by construction (ids checked in the validation pass, or labels).
+        g = validation.trusted_edges(t, h, w, n_comp)
+        r, _ = constraints.run(g, "auto", False, maximize, threads)
+        del g, t, h, w
+        pos = r.edges if sel is None else np.take(sel, r.edges)
+        if labels is None:  # the kernel gathered the forest's original endpoints already
+            forest.extend(np.take(rec["id"], pos), r.tail, r.head, r.weights)
+        else:
+            forest.extend(np.take(rec["id"], pos), np.take(rec["t"], pos),
+                          np.take(rec["h"], pos), r.weights)
+        del pos, sel
+        n_comp = int(r.n_components)
+        new = r.labels.astype(ldt)
+        del r
+        labels = new if labels is None else np.take(new, labels)
+        del new
+    del rec, piece
+    return labels, n_comp
 
 
 class Sample:
@@ -233,28 +332,32 @@ class Sample:
         return left, (int(self.key[j]), int(self.gid[j]))
 
 
-def solve(run, parts, names, offsets, n, n_edges, kdt, maximize, stats, run_id, column_bytes):
-    """Run the levels; return the forest records in rule order, the final labels, the number
-    of components, the per-pass details and what the validation pass's folded level did
-    (None when it brought no light rows)."""
+def solve(run, parts, names, offsets, n, n_edges, kdt, maximize, stats, run_id, column_bytes,
+          id_dtypes):
+    """Run the levels; return the forest (a Records in rule order), the final labels, the
+    number of components, the per-pass details and what the validation pass's folded level
+    did (None when it brought no light rows).  ``id_dtypes``: the (tail, head) dtypes of the
+    forest's endpoints."""
     sample = Sample(stats, offsets, kdt, maximize)
     ldt = boruvka.label_dtype(n)
     labels = None
     n_comp = n
     lower = None
-    chosen = []
+    # The forest has at most n - 1 edges: its buffers are allocated once, at that size.
+    forest = Records(max(0, min(n - 1, n_edges)), *id_dtypes, kdt)
     passes = []
     level = 0
     fold = folded(stats, offsets, kdt, maximize)
+    runner.release_freed_memory()
     first = None
     done = False
     if fold is not None:
         light, lower, returned, in_band = fold
         del fold
         client_start = time.perf_counter()
-        n_light = 0 if light is None else int(light["id"].shape[0])
+        n_light = 0 if light is None else light.size
         if n_light and n_comp > 1:
-            labels, n_comp = _absorb(light, labels, n_comp, maximize, ldt, chosen)
+            labels, n_comp = _absorb(light, labels, n_comp, maximize, ldt, forest)
         del light
         first = {"light_rows_returned": int(returned), "edges_in_band": int(in_band),
                  "edges_kept": n_light, "threshold_found": lower is not None,
@@ -281,18 +384,25 @@ def solve(run, parts, names, offsets, n, n_edges, kdt, maximize, stats, run_id, 
         out = run.run(tasks, label)
         del shared, tasks
         pass_seconds = run.phases[-1][1]
-        recs = [r for r, _ in out if r["id"].shape[0]]
         in_band = sum(c["band"] for _, c in out)
         rows_read = sum(c["read"] for _, c in out)
-        light = {k: np.concatenate([r[k] for r in recs]) for k in ("id", "t", "h", "w")} \
-            if recs else None
-        del out, recs
+        n_light = sum(int(r["id"].shape[0]) for r, _ in out)
         client_start = time.perf_counter()
         before = n_comp
-        n_light = 0 if light is None else int(light["id"].shape[0])
         if n_light:
-            labels, n_comp = _absorb(light, labels, n_comp, maximize, ldt, chosen)
-        del light
+            # The tasks' records copied into one buffer, each released once copied.
+            light = Records(n_light, *id_dtypes, kdt)
+            for i in range(len(out)):
+                r = out[i][0]
+                light.extend(r["id"], r["t"], r["h"], r["w"])
+                out[i] = None
+                del r
+            del out
+            runner.release_freed_memory()
+            labels, n_comp = _absorb(light, labels, n_comp, maximize, ldt, forest)
+            del light
+        else:
+            del out
         client_seconds = time.perf_counter() - client_start
         passes.append({"pass": len(passes) + 1, "kind": "final" if upper is None else "level",
                        "seconds": round(time.perf_counter() - start, 3),
@@ -308,4 +418,4 @@ def solve(run, parts, names, offsets, n, n_edges, kdt, maximize, stats, run_id, 
         if upper is None:
             break
         lower = upper
-    return chosen, labels, n_comp, passes, first
+    return forest, labels, n_comp, passes, first

@@ -150,16 +150,18 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
     info = {"plan": plan, "n_partitions": len(parts), "n_nodes": n, "n_edges": n_edges}
     run_id = uuid.uuid4().hex[:12]
     if plan == "filter-kruskal":
-        chosen, labels, n_comp, more, first = filter_kruskal.solve(
-            run, parts, names, offsets, n, n_edges, kdt, maximize, stats, run_id, column_bytes)
+        forest_rec, labels, n_comp, more, first = filter_kruskal.solve(
+            run, parts, names, offsets, n, n_edges, kdt, maximize, stats, run_id, column_bytes,
+            (tdt, hdt))
         del stats
         if first is not None:
             passes[0].update(first, light_quota=int(sum(quotas)))
         passes += more
         info.update(light_per_node=filter_kruskal.LIGHT_PER_NODE, passes=passes)
         start = time.perf_counter()
-        forest = _assemble_in_order(chosen, labels, n_comp, n, n_edges, maximize,
+        forest = _assemble_in_order(forest_rec, labels, n_comp, n, n_edges, maximize,
                                     (tdt, hdt, wdt), info)
+        del forest_rec
     else:
         del stats
         chosen, more = boruvka.solve_rounds(run, parts, names, offsets, n, n_edges, kdt,
@@ -199,28 +201,26 @@ def _summary(info):
             + "; ".join(items + extra))
 
 
-def _assemble_in_order(chosen, labels, n_comp, n, n_edges, maximize, dtypes, info):
-    """The forest from records already in rule order (plan "filter-kruskal")."""
+def _assemble_in_order(forest_rec, labels, n_comp, n, n_edges, maximize, dtypes, info):
+    """The forest from records already in rule order (plan "filter-kruskal"): a
+    ``filter_kruskal.Records`` filled level after level, taken as it is (no copy where the
+    dtypes already match)."""
     tdt, hdt, wdt = dtypes
-    keys = ("id", "t", "h", "w")
-    if chosen:
-        rec = {k: np.concatenate([c[k] for c in chosen]) for k in keys}
-    else:
-        rec = {"id": np.empty(0, np.int64), "t": np.empty(0, tdt), "h": np.empty(0, hdt),
-               "w": np.empty(0, wdt)}
-    chosen.clear()
+    rec = forest_rec.arrays()
     if labels is None:
         labels = np.arange(n, dtype=np.int64)
         n_comp = n
     # Labels numbered by first appearance over the nodes, as the in-memory solve numbers them.
     lab, k = first_appearance(labels.astype(np.int64, copy=False), n_comp)
+    del labels
     if k != n_comp or n - k != rec["id"].shape[0]:  # pragma: no cover - a broken invariant
         raise RuntimeError(f"{_FUNC}: internal error: {rec['id'].shape[0]} forest edges for "
                            f"{n} nodes in {k} components; please report this with the input "
                            f"that caused it.")
-    return SpanningForest(rec["id"], rec["t"].astype(tdt), rec["h"].astype(hdt),
-                          rec["w"].astype(wdt), n, n_edges, k, lab, maximize,
-                          "dask-filter-kruskal", provenance={"function": _FUNC, "plan": info})
+    return SpanningForest(rec["id"], rec["t"].astype(tdt, copy=False),
+                          rec["h"].astype(hdt, copy=False), rec["w"].astype(wdt, copy=False),
+                          n, n_edges, k, lab, maximize, "dask-filter-kruskal",
+                          provenance={"function": _FUNC, "plan": info})
 
 
 def _assemble_by_solving(chosen, n, n_edges, maximize, dtypes, info):

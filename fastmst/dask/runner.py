@@ -7,6 +7,8 @@ once per pass; the tasks of that pass receive it as an argument.
 """
 from __future__ import annotations
 
+import ctypes
+import ctypes.util
 import time
 
 import dask
@@ -42,6 +44,25 @@ def default_task_edges(client, bytes_per_edge):
     if not limits:
         return DEFAULT_TASK_EDGES
     return int(max(1024, min(DEFAULT_TASK_EDGES, min(limits) // bytes_per_edge)))
+
+
+_LIBC = []
+
+
+def release_freed_memory():
+    """Give memory freed by the client back to the operating system (glibc's
+    ``malloc_trim``; nothing elsewhere).  Gathered task results arrive as many arrays of a
+    few MB each, below glibc's threshold for mapping them one by one, so once copied into one
+    buffer and freed they would otherwise stay in the process's heap, counted in its
+    resident memory, while the next (mapped) allocations grow it further."""
+    if not _LIBC:
+        try:
+            lib = ctypes.CDLL(ctypes.util.find_library("c") or "libc.so.6")
+            _LIBC.append(getattr(lib, "malloc_trim", None))
+        except OSError:
+            _LIBC.append(None)
+    if _LIBC[0] is not None:
+        _LIBC[0](0)
 
 
 class Runner:
