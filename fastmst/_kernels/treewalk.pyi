@@ -19,3 +19,9 @@ def cover_by_halves(pnode: NDArray[np.int64], depth: NDArray[np.int64],
                     starts: NDArray[np.int64], top_depth: NDArray[np.int64],
                     cost: NDArray[np.float64], tie: NDArray[np.int64]
                     ) -> tuple[NDArray[np.int64], NDArray[np.float64], NDArray[np.bool_]]: ...
+def common_ancestors(pnode: NDArray[np.int64], a: NDArray[np.int64], b: NDArray[np.int64]
+                     ) -> NDArray[np.int64]: ...
+def first_covers(pnode: NDArray[np.int64], pedge: NDArray[np.int64], depth: NDArray[np.int64],
+                 n_links: int, tail: NDArray[np.int32] | NDArray[np.int64],
+                 head: NDArray[np.int32] | NDArray[np.int64], ranked: NDArray[np.int64]
+                 ) -> NDArray[np.int64]: ...

@@ -6,7 +6,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from fastmst._kernels.tie_rule import edge_order
-from fastmst.design.checks import covering, graph_and_design
+from fastmst._kernels.treewalk import first_covers
+from fastmst.design.checks import graph_and_design
 
 _FUNC = "link_failures"
 
@@ -115,7 +116,7 @@ def link_failures(tail, head, weight, forest=None, *, n_nodes=None, root=None, e
     d = graph_and_design(tail, head, weight, forest, n_nodes, excluded, _FUNC, root=root)
     g = d.g
     ranked = d.others[edge_order(g.kweight[d.others], False)]
-    repl = covering(d, ranked)
+    repl = first_covers(d.pnode, d.pedge, d.depth, d.fpos.shape[0], g.ktail, g.khead, ranked)
     del ranked
     bridge = repl < 0
     safe = np.where(bridge, d.fpos, repl)

@@ -7,7 +7,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from fastmst import validation
-from fastmst._kernels.treewalk import cover_by_halves
+from fastmst._kernels.treewalk import common_ancestors, cover_by_halves
 from fastmst.design.checks import check_nonnegative, graph_and_design
 from fastmst.design.shallow import best_links
 
@@ -80,34 +80,11 @@ def _paths(pnode, depth, pedge, a, b):
     return indptr, np.asarray(out, dtype=np.int64), side
 
 
-def _lca(pnode, depth, a, b):
-    """Lowest common ancestors of the pairs (a[k], b[k]), each pair in one tree, by binary
-    lifting (vectorised over the pairs; O((V + Q) log depth))."""
-    n = pnode.shape[0]
-    up = [np.where(pnode >= 0, pnode, np.arange(n, dtype=np.int64))]
-    maxd = int(depth.max()) if n else 0
-    while (1 << len(up)) <= maxd:
-        up.append(up[-1][up[-1]])
-    u = a.astype(np.int64)
-    v = b.astype(np.int64)
-    swap = depth[u] < depth[v]
-    u, v = np.where(swap, v, u), np.where(swap, u, v)
-    diff = depth[u] - depth[v]
-    for j, table in enumerate(up):
-        sel = ((diff >> j) & 1).astype(bool)
-        u[sel] = table[u[sel]]
-    for table in reversed(up):
-        uj, vj = table[u], table[v]
-        sel = uj != vj
-        u[sel], v[sel] = uj[sel], vj[sel]
-    return np.where(u == v, u, up[0][u])
-
-
 def _halves_cover(d, a, b, c, pos):
     """Frederickson and JaJa's reduction, solved exactly by dynamic programming over the tree.
 
-    Every candidate (u, v) splits into its two halves, u up to the lowest common ancestor w and
-    v up to w, each at the candidate's full cost; the cheapest set of halves covering every
+    Every candidate (u, v) splits into its two halves, u up to the lowest common ancestor w
+    (``treewalk.common_ancestors``) and v up to w, each at the candidate's full cost; the cheapest set of halves covering every
     coverable tree link is a minimum-cost arborescence of their digraph and costs at most twice
     the optimum (the two halves of each optimal candidate are one such set).
 
@@ -124,7 +101,7 @@ def _halves_cover(d, a, b, c, pos):
     optimum of the halves' covering, the cost of the halves chosen).
     """
     pnode, depth = d.pnode, d.depth
-    w = _lca(pnode, depth, a, b)
+    w = common_ancestors(pnode, a, b)
     starts, tops, link = [], [], []
     for side in (a, b):
         keep = side != w
@@ -228,8 +205,9 @@ def backup_links(tail, head, weight, forest=None, *, n_nodes=None, excluded=None
     optimum.  Here that arborescence is found as its equivalent: the cheapest covering of the
     tree links by the candidates' halves (each end up to the common ancestor), solved exactly
     by a dynamic programme over the tree with mergeable heaps (O(E log E), in a kernel, after
-    lowest common ancestors by binary lifting, O((V + E) log V)).  Of several parallel candidates only the
-    cheapest (the earliest position among equal costs) is considered.
+    the lowest common ancestors by Tarjan's offline algorithm, also in a kernel).  Of several
+    parallel candidates only the cheapest (the earliest position among equal costs) is
+    considered.
 
     Running time: the lower bound and the exact mode walk every candidate's tree path in Python
     (their total length L) and HiGHS solves a problem with L nonzeros: for thousands to tens of
