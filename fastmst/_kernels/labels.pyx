@@ -9,12 +9,18 @@ of up to 8 bytes are hashed by a bijection of their zero-padded bytes, so equal 
 means equal label; longer labels are also compared byte by byte with their first occurrence.
 
 Cache-sized work (radix partitioning by hash): the rows are taken in pieces of ``PIECE_ROWS``.
-One pass over a piece hashes every row; a second writes (hash, pointer, length, row) entries
-into ``PARTS`` partitions by the hash's top byte, each in row order.  Every partition has its
-own small table (1/256 of the distinct labels: in cache), so the probes of one partition run
-in cache instead of jumping around one large table.  New labels of the piece are then ranked by
-their first row (a bitmap over the piece), which gives their ids, and a last pass writes each
-row's id, reading the partitions' id lists in row order.
+One pass over a piece hashes every row and counts the rows of each of ``PARTS`` partitions (the
+hash's top byte); a second hashes again (cheaper than storing the hashes and reading them back)
+and writes 16-byte (hash, row, length) entries into the partitions, each in row order.  Every
+partition has its own small table (1/256 of the distinct labels: in cache), so the probes of
+one partition run in cache instead of jumping around one large table; they write each entry's
+local id to a compact array.  A label's bytes are found from its row only where needed (the
+first occurrence of a label of more than 8 bytes, and the rows compared with it).  New labels
+of the piece are then ranked by their first row (a bitmap over the piece), which gives their
+ids; the same walk over the bitmap, in row order, records each new label's bytes.  A last pass
+writes each row's id, reading the partitions' id lists in row order.  Scratch and output arrays
+come from pyarrow's memory pool, which keeps freed memory between calls (fresh NumPy arrays of
+this size cost page faults and zeroing on every call).
 
 Threads: the row passes split a piece into position blocks (each block's entries sit in block
 order within every partition), the partition passes take partitions; every id is fixed by the
@@ -38,14 +44,19 @@ cdef extern from *:
     #endif
     #if defined(__GNUC__) || defined(__clang__)
     #define FASTMST_POPCOUNT64(x) __builtin_popcountll(x)
+    #define FASTMST_CTZ64(x) __builtin_ctzll(x)
     #else
     static inline int FASTMST_POPCOUNT64(uint64_t x) {
         int n = 0; while (x) { x &= x - 1; n++; } return n;
+    }
+    static inline int FASTMST_CTZ64(uint64_t x) {
+        int n = 0; while (!(x & 1)) { x >>= 1; n++; } return n;
     }
     #endif
     """
     const bint LITTLE_ENDIAN "FASTMST_LITTLE_ENDIAN"
     int popcount64 "FASTMST_POPCOUNT64"(uint64_t x) noexcept nogil
+    int _ctz64 "FASTMST_CTZ64"(uint64_t x) noexcept nogil
 
 
 ctypedef fused offset_t:
@@ -60,11 +71,10 @@ cdef enum:
 PIECE_ROWS = 1 << 22
 
 
-ctypedef struct Entry:
+ctypedef struct Entry:      # 16 bytes; the label's bytes are found from its row (_row_bytes)
     uint64_t h
-    const uint8_t* ptr
-    uint32_t length
     uint32_t row        # position within the piece
+    uint32_t length
 
 
 ctypedef struct Part:
@@ -74,8 +84,7 @@ ctypedef struct Part:
     Py_ssize_t fresh    # the first id new in the current piece
     Py_ssize_t ucap
     int64_t* first      # piece position of the first occurrence (labels new in the piece)
-    uint64_t* uptr      # that occurrence's bytes
-    int64_t* ulen
+    uint64_t* uptr      # that occurrence's bytes, for labels of more than 8 bytes (compared)
     int32_t* gid        # the global id of each local id
     bint failed         # an allocation failed
     uint64_t warm       # the sum of the warm-up reads (kept so they are not optimised away)
@@ -94,15 +103,22 @@ cdef inline uint64_t _mix(uint64_t x) noexcept nogil:
 cdef inline uint64_t _hash(const uint8_t *p, Py_ssize_t n, bint room) noexcept nogil:
     """64-bit hash of ``n`` bytes; for n <= 8 a bijection of the zero-padded bytes.  ``room``:
     8 bytes may be read from ``p`` (then, on little-endian machines, short labels are one load
-    and a mask)."""
+    and a mask, inlined; other labels go through _hash_bytes)."""
+    cdef uint64_t w
+    if n <= 8 and room and LITTLE_ENDIAN:
+        memcpy(&w, p, 8)
+        if n < 8:
+            w &= ((<uint64_t>1) << (8 * n)) - 1
+        return _mix(w)
+    return _hash_bytes(p, n)
+
+
+cdef uint64_t _hash_bytes(const uint8_t *p, Py_ssize_t n) noexcept nogil:
+    """_hash without reading past the label."""
     cdef uint64_t w = 0, h
     cdef Py_ssize_t i = 0
     if n <= 8:
-        if room and LITTLE_ENDIAN:
-            memcpy(&w, p, 8)
-            if n < 8:
-                w &= ((<uint64_t>1) << (8 * n)) - 1
-        elif n:
+        if n:
             memcpy(&w, p, n)
         return _mix(w)
     h = <uint64_t>n * <uint64_t>0x9e3779b97f4a7c15ULL
@@ -131,39 +147,51 @@ ctypedef struct Seg:
                             # intp array is one Seg)
 
 
-cdef void _hash_span(const offset_t* offs, const uint8_t* data, Py_ssize_t size,
-                     Py_ssize_t i0, Py_ssize_t i1, uint64_t* hrow, Py_ssize_t* hb) noexcept nogil:
+cdef enum:
+    SEG_SHIFT = 10          # _row_bytes: the segment of each 1024-row block of a piece is listed
+
+
+cdef inline const uint8_t* _row_bytes(const Seg* segs, const Py_ssize_t* segblk,
+                                      Py_ssize_t k) noexcept nogil:
+    """The bytes of piece position ``k``: its segment from the block list, then its offset."""
+    cdef Py_ssize_t s = segblk[k >> SEG_SHIFT]
+    while segs[s].at + segs[s].n <= k:
+        s += 1
+    if segs[s].wide:
+        return segs[s].data + (<const int64_t*>segs[s].offs)[k - segs[s].at]
+    return segs[s].data + (<const int32_t*>segs[s].offs)[k - segs[s].at]
+
+
+cdef void _count_span(const offset_t* offs, const uint8_t* data, Py_ssize_t size,
+                      Py_ssize_t i0, Py_ssize_t i1, Py_ssize_t* hb) noexcept nogil:
     cdef Py_ssize_t i, a
-    cdef uint64_t h
     for i in range(i0, i1):
         a = offs[i]
-        h = _hash(data + a, offs[i + 1] - a, a + 8 <= size)
-        hrow[i] = h
-        hb[h >> 56] += 1
+        hb[_hash(data + a, offs[i + 1] - a, a + 8 <= size) >> 56] += 1
 
 
-cdef void _scatter_span(const offset_t* offs, const uint8_t* data, Py_ssize_t i0,
-                        Py_ssize_t i1, Py_ssize_t at, const uint64_t* hrow, Py_ssize_t* ob,
+cdef void _scatter_span(const offset_t* offs, const uint8_t* data, Py_ssize_t size,
+                        Py_ssize_t i0, Py_ssize_t i1, Py_ssize_t at, Py_ssize_t* ob,
                         Entry* ent, uint8_t* part) noexcept nogil:
-    cdef Py_ssize_t i, a, j
+    """Hash again (cheaper than storing the hashes and reading them back) and write entries."""
+    cdef Py_ssize_t i, a, j, n
     cdef uint64_t h
     for i in range(i0, i1):
         a = offs[i]
-        h = hrow[i]
+        n = offs[i + 1] - a
+        h = _hash(data + a, n, a + 8 <= size)
         j = ob[h >> 56]
         ob[h >> 56] = j + 1
         ent[j].h = h
-        ent[j].ptr = data + a
-        ent[j].length = <uint32_t>(offs[i + 1] - a)
         ent[j].row = <uint32_t>(at + i)
+        ent[j].length = <uint32_t>n
         part[i] = <uint8_t>(h >> 56)
 
 
 cdef void _row_block(const Seg* segs, Py_ssize_t nseg, Py_ssize_t k0, Py_ssize_t k1,
-                     uint64_t* hrow, Py_ssize_t* cnt, Entry* ent, uint8_t* part,
-                     bint scatter) noexcept nogil:
-    """Hash (``scatter`` False: count per partition in ``cnt``) or scatter (``cnt``: the next
-    entry of each partition) the piece positions ``k0..k1-1``."""
+                     Py_ssize_t* cnt, Entry* ent, uint8_t* part, bint scatter) noexcept nogil:
+    """Count per partition in ``cnt`` (``scatter`` False) or scatter (``cnt``: the next entry
+    of each partition) the piece positions ``k0..k1-1``."""
     cdef Py_ssize_t s, i0, i1
     cdef const Seg* g
     for s in range(nseg):
@@ -174,24 +202,24 @@ cdef void _row_block(const Seg* segs, Py_ssize_t nseg, Py_ssize_t k0, Py_ssize_t
         i1 = k1 - g.at if k1 < g.at + g.n else g.n
         if scatter:
             if g.wide:
-                _scatter_span(<const int64_t*>g.offs, g.data, i0, i1, g.at, hrow + g.at, cnt,
-                              ent, part + g.at)
+                _scatter_span(<const int64_t*>g.offs, g.data, g.size, i0, i1, g.at, cnt, ent,
+                              part + g.at)
             else:
-                _scatter_span(<const int32_t*>g.offs, g.data, i0, i1, g.at, hrow + g.at, cnt,
-                              ent, part + g.at)
+                _scatter_span(<const int32_t*>g.offs, g.data, g.size, i0, i1, g.at, cnt, ent,
+                              part + g.at)
         elif g.wide:
-            _hash_span(<const int64_t*>g.offs, g.data, g.size, i0, i1, hrow + g.at, cnt)
+            _count_span(<const int64_t*>g.offs, g.data, g.size, i0, i1, cnt)
         else:
-            _hash_span(<const int32_t*>g.offs, g.data, g.size, i0, i1, hrow + g.at, cnt)
+            _count_span(<const int32_t*>g.offs, g.data, g.size, i0, i1, cnt)
 
 
 cdef void _row_pass(const Seg* segs, Py_ssize_t nseg, Py_ssize_t rows, Py_ssize_t block,
-                    uint64_t* hrow, Py_ssize_t* cnt, Entry* ent, uint8_t* part, bint scatter,
+                    Py_ssize_t* cnt, Entry* ent, uint8_t* part, bint scatter,
                     int threads) noexcept nogil:
     cdef Py_ssize_t b, nb = (rows + block - 1) // block
     for b in prange(nb, num_threads=threads, schedule="dynamic"):
         _row_block(segs, nseg, b * block, (b + 1) * block if (b + 1) * block < rows else rows,
-                   hrow, cnt + b * PARTS, ent, part, scatter)
+                   cnt + b * PARTS, ent, part, scatter)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -208,10 +236,6 @@ cdef bint _grow_ids(Part* p) noexcept nogil:
     if a == NULL:
         return False
     p.uptr = <uint64_t*>a
-    a = realloc(p.ulen, u * sizeof(int64_t))
-    if a == NULL:
-        return False
-    p.ulen = <int64_t*>a
     a = realloc(p.gid, u * sizeof(int32_t))
     if a == NULL:
         return False
@@ -242,9 +266,10 @@ cdef bint _grow_table(Part* p) noexcept nogil:
     return True
 
 
-cdef void _probe(Part* p, Entry* ent, Py_ssize_t n) noexcept nogil:
+cdef void _probe(Part* p, const Entry* ent, Py_ssize_t n, int32_t* lids, const Seg* segs,
+                 const Py_ssize_t* segblk) noexcept nogil:
     """Local ids (in order of first appearance within the partition) of its entries ``ent[:n]``
-    of this piece, written over each entry's ``row`` once read (OUT: ent[:].row, p)."""
+    of this piece, written to ``lids[:n]``."""
     cdef Py_ssize_t j, slot, mask, lid
     cdef uint64_t h, w1, length
     cdef uint64_t* tbl
@@ -280,30 +305,35 @@ cdef void _probe(Part* p, Entry* ent, Py_ssize_t n) noexcept nogil:
                 tbl[2 * slot] = h
                 tbl[2 * slot + 1] = (length << 32) | <uint64_t>(lid + 1)
                 p.first[lid] = ent[j].row
-                p.uptr[lid] = <uint64_t>ent[j].ptr
-                p.ulen[lid] = <int64_t>length
+                if length > 8:      # short labels are never compared byte by byte
+                    p.uptr[lid] = <uint64_t>_row_bytes(segs, segblk, ent[j].row)
                 break
             if tbl[2 * slot] == h and (w1 >> 32) == length:
                 lid = <Py_ssize_t>(w1 & 0xffffffffULL) - 1
-                if length <= 8 or memcmp(<const void*>p.uptr[lid], ent[j].ptr, length) == 0:
+                if length <= 8 or memcmp(<const void*>p.uptr[lid],
+                                         _row_bytes(segs, segblk, ent[j].row), length) == 0:
                     break
             slot = (slot + 1) & mask
-        ent[j].row = <uint32_t>lid
+        lids[j] = <int32_t>lid
 
 
-cdef void _probe_all(Part* parts, Entry* ent, const Py_ssize_t* start,
-                     int threads) noexcept nogil:
+cdef void _probe_all(Part* parts, const Entry* ent, const Py_ssize_t* start, int32_t* lids,
+                     const Seg* segs, const Py_ssize_t* segblk, int threads) noexcept nogil:
     cdef Py_ssize_t q
     for q in prange(PARTS, num_threads=threads, schedule="dynamic"):
-        _probe(&parts[q], ent + start[q], start[q + 1] - start[q])
+        _probe(&parts[q], ent + start[q], start[q + 1] - start[q], lids + start[q], segs,
+               segblk)
 
 
 cdef void _rank_new(Part* parts, uint64_t* bits, Py_ssize_t* below, Py_ssize_t rows,
-                    Py_ssize_t base, int threads) noexcept nogil:
+                    Py_ssize_t base, const Seg* segs, Py_ssize_t nseg, uint64_t* gptr,
+                    int64_t* glen, int threads) noexcept nogil:
     """Ids of the labels new in this piece: ``base`` plus the rank of their first row among
-    all new labels' first rows (a bitmap of the piece's rows)."""
-    cdef Py_ssize_t q, lid, w, nw = (rows + 63) // 64, acc = 0
-    cdef int64_t r
+    all new labels' first rows (a bitmap of the piece's rows).  ``gptr``/``glen`` of those
+    ids: the bytes of their first occurrence, read in row order (so the offsets stream)."""
+    cdef Py_ssize_t q, lid, w, nw = (rows + 63) // 64, acc = 0, s = 0, g, i
+    cdef int64_t r, a
+    cdef uint64_t x
     cdef Part* p
     memset(bits, 0, nw * sizeof(uint64_t))
     for q in range(PARTS):
@@ -314,6 +344,22 @@ cdef void _rank_new(Part* parts, uint64_t* bits, Py_ssize_t* below, Py_ssize_t r
     for w in range(nw):
         below[w] = acc
         acc += popcount64(bits[w])
+        x = bits[w]
+        g = base + below[w]
+        while x:
+            r = (w << 6) + _ctz64(x)
+            x &= x - 1
+            while segs[s].at + segs[s].n <= r:
+                s += 1
+            i = r - segs[s].at
+            if segs[s].wide:
+                a = (<const int64_t*>segs[s].offs)[i]
+                glen[g] = (<const int64_t*>segs[s].offs)[i + 1] - a
+            else:
+                a = (<const int32_t*>segs[s].offs)[i]
+                glen[g] = (<const int32_t*>segs[s].offs)[i + 1] - a
+            gptr[g] = <uint64_t>(segs[s].data + a)
+            g += 1
     for q in prange(PARTS, num_threads=threads, schedule="static"):
         p = &parts[q]
         for lid in range(p.fresh, p.count):
@@ -322,15 +368,15 @@ cdef void _rank_new(Part* parts, uint64_t* bits, Py_ssize_t* below, Py_ssize_t r
                                    popcount64(bits[r >> 6] & (((<uint64_t>1) << (r & 63)) - 1)))
 
 
-cdef void _global_ids(Part* parts, Entry* ent, const Py_ssize_t* start, int32_t* ids,
+cdef void _global_ids(Part* parts, const Py_ssize_t* start, int32_t* ids,
                       int threads) noexcept nogil:
-    """``ids[j]``: the global id of entry j (local id in ``ent[j].row``)."""
+    """``ids[j]``: the local id of entry j replaced by its global id, in place."""
     cdef Py_ssize_t q, j
     cdef int32_t* g
     for q in prange(PARTS, num_threads=threads, schedule="static"):
         g = parts[q].gid
         for j in range(start[q], start[q + 1]):
-            ids[j] = g[ent[j].row]
+            ids[j] = g[ids[j]]
 
 
 cdef void _write_block(const uint8_t* part, const int32_t* ids, const Py_ssize_t* off0,
@@ -364,6 +410,15 @@ cdef void _gather_bytes(const uint64_t[::1] ptr, const int64_t[::1] offsets,
         k = offsets[i + 1] - offsets[i]
         if k:
             memcpy(&out[offsets[i]], <const void *>ptr[i], k)
+
+
+def _empty(Py_ssize_t n, dtype):
+    """An uninitialised writable NumPy array from pyarrow's memory pool, which keeps freed
+    memory for the next call (a fresh NumPy array of this size costs page faults and zeroing
+    by the kernel on every call)."""
+    import pyarrow as pa
+    dtype = np.dtype(dtype)
+    return np.frombuffer(pa.allocate_buffer(max(n, 1) * dtype.itemsize), dtype=dtype)[:n]
 
 
 def _pieces(chunk):
@@ -419,6 +474,10 @@ def text_ids(chunks, Py_ssize_t n_tail, int threads=1):
     """
     cdef Py_ssize_t total, size, rows, block, nblk, at, base, q, k, nseg, done
     cdef Py_ssize_t[::1] sv
+    cdef Py_ssize_t[::1] sbv
+    cdef uint64_t[::1] gptr
+    cdef int64_t[::1] glen
+    cdef Py_ssize_t fresh
     cdef Part* parts = NULL
     if threads < 1:
         raise ValueError(f"text_ids: threads must be positive, received {threads}.")
@@ -429,20 +488,18 @@ def text_ids(chunks, Py_ssize_t n_tail, int threads=1):
     if total >= 2**31 - 1:
         raise ValueError(f"text_ids: {total} rows need ids beyond int32; expected fewer than "
                          f"{2**31 - 1} rows.")
-    ids_a = np.empty(total, dtype=np.int32)
+    ids_a = _empty(total, np.int32)
     size = max(1, min(int(PIECE_ROWS), total))
     nblk = 8 * threads if threads > 1 else 1
     block = (size + nblk - 1) // nblk
-    hrow_a = np.empty(size, dtype=np.uint64)
-    part_a = np.empty(size, dtype=np.uint8)
-    ent_a = np.empty(size * sizeof(Entry), dtype=np.uint8)
-    eid_a = np.empty(size, dtype=np.int32)
+    part_a = _empty(size, np.uint8)
+    ent_a = _empty(size * sizeof(Entry), np.uint8)
+    eid_a = _empty(size, np.int32)
     hist_a = np.empty((nblk + 1) * PARTS, dtype=np.intp)
     off_a = np.empty(nblk * PARTS, dtype=np.intp)
     start_a = np.empty(PARTS + 1, dtype=np.intp)
-    bits_a = np.empty((size + 63) // 64, dtype=np.uint64)
-    below_a = np.empty((size + 63) // 64, dtype=np.intp)
-    cdef uint64_t[::1] hrow = hrow_a
+    bits_a = _empty((size + 63) // 64, np.uint64)
+    below_a = _empty((size + 63) // 64, np.intp)
     cdef uint8_t[::1] part = part_a
     cdef uint8_t[::1] entv = ent_a
     cdef int32_t[::1] eid = eid_a
@@ -456,6 +513,8 @@ def text_ids(chunks, Py_ssize_t n_tail, int threads=1):
     parts = <Part*>calloc(PARTS, sizeof(Part))
     if parts == NULL:
         raise MemoryError("text_ids: no memory for the label tables.")
+    gptr_a = np.empty(1, dtype=np.uint64)
+    glen_a = np.empty(1, dtype=np.int64)
     try:
         base = 0
         done = 0
@@ -470,10 +529,15 @@ def text_ids(chunks, Py_ssize_t n_tail, int threads=1):
                 at += hi - lo
             sv = seg_a.reshape(-1)
             nseg = len(segs)
+            # the segment holding the first row of each block of 2**SEG_SHIFT rows
+            segblk_a = (np.searchsorted(seg_a[:, 3] + seg_a[:, 4],
+                                        np.arange(0, rows, 1 << SEG_SHIFT), side="right")
+                        .astype(np.intp))
+            sbv = segblk_a
             hist_a[:] = 0
             with nogil:
-                _row_pass(<const Seg*>&sv[0], nseg, rows, block, &hrow[0], &hist[0], ent,
-                          &part[0], False, threads)
+                _row_pass(<const Seg*>&sv[0], nseg, rows, block, &hist[0], ent, &part[0], False,
+                          threads)
             # entries: partitions in order, blocks in order within a partition
             h2 = hist_a[:nblk * PARTS].reshape(nblk, PARTS)
             flat = h2.T.ravel()
@@ -483,40 +547,40 @@ def text_ids(chunks, Py_ssize_t n_tail, int threads=1):
             start_a[PARTS] = rows
             off0 = off_a.copy()
             with nogil:
-                _row_pass(<const Seg*>&sv[0], nseg, rows, block, &hrow[0], &off[0], ent,
-                          &part[0], True, threads)
+                _row_pass(<const Seg*>&sv[0], nseg, rows, block, &off[0], ent, &part[0], True,
+                          threads)
             off_a[:] = off0
             with nogil:
-                _probe_all(parts, ent, &start[0], threads)
+                _probe_all(parts, ent, &start[0], &eid[0], <const Seg*>&sv[0], &sbv[0],
+                           threads)
             for q in range(PARTS):
                 if parts[q].failed:
                     raise MemoryError("text_ids: no memory for the label tables.")
+            fresh = sum(parts[q].count for q in range(PARTS))
+            if fresh > gptr_a.shape[0]:
+                k = max(fresh, 2 * gptr_a.shape[0])
+                gptr_a = np.concatenate([gptr_a[:base], np.empty(k - base, np.uint64)])
+                glen_a = np.concatenate([glen_a[:base], np.empty(k - base, np.int64)])
+            gptr = gptr_a
+            glen = glen_a
             with nogil:
-                _rank_new(parts, &bits[0], &below[0], rows, base, threads)
-                _global_ids(parts, ent, &start[0], &eid[0], threads)
+                _rank_new(parts, &bits[0], &below[0], rows, base, <const Seg*>&sv[0], nseg,
+                          &gptr[0], &glen[0], threads)
+                _global_ids(parts, &start[0], &eid[0], threads)
                 _write_rows(&part[0], &eid[0], &off[0], rows, block, &ids[done], threads)
-            base = sum(parts[q].count for q in range(PARTS))
+            base = fresh
             done += rows
-        # the distinct labels in id order
         kk = base
-        ptr = np.empty(kk, dtype=np.uint64)
-        lens = np.empty(kk, dtype=np.int64)
-        for q in range(PARTS):
-            cq = parts[q].count
-            if cq:
-                g = np.asarray(<int32_t[:cq]>parts[q].gid)
-                ptr[g] = np.asarray(<uint64_t[:cq]>parts[q].uptr)
-                lens[g] = np.asarray(<int64_t[:cq]>parts[q].ulen)
     finally:
         for q in range(PARTS):
             free(parts[q].slots)
             free(parts[q].first)
             free(parts[q].uptr)
-            free(parts[q].ulen)
             free(parts[q].gid)
         free(parts)
+    # the distinct labels in id order
     offsets = np.zeros(kk + 1, dtype=np.int64)
-    np.cumsum(lens, out=offsets[1:])
+    np.cumsum(glen_a[:kk], out=offsets[1:])
     out = np.empty(int(offsets[kk]), dtype=np.uint8)
-    _gather_bytes(ptr, offsets, out)
+    _gather_bytes(gptr_a[:kk], offsets, out)
     return ids_a[:n_tail], ids_a[n_tail:], offsets, out
