@@ -24,7 +24,22 @@ def plain(col):
 
 
 def to_numpy(col) -> np.ndarray:
-    """A pyarrow array/column as NumPy (object arrays for text)."""
+    """A pyarrow array/column as NumPy (object arrays for text).
+
+    A column of several chunks of integers or floats without nulls is copied into memory from
+    pyarrow's pool, which keeps freed memory for the next read (a fresh NumPy array of a large
+    column costs page faults on every read)."""
+    import pyarrow as pa
+    if isinstance(col, pa.ChunkedArray) and col.num_chunks > 1 and not col.null_count and \
+            (pa.types.is_integer(col.type) or pa.types.is_floating(col.type)):
+        dtype = np.dtype(col.type.to_pandas_dtype())
+        out = np.frombuffer(pa.allocate_buffer(max(1, len(col)) * dtype.itemsize),
+                            dtype=dtype)[:len(col)]
+        at = 0
+        for c in col.chunks:
+            out[at:at + len(c)] = c.to_numpy(zero_copy_only=True)
+            at += len(c)
+        return out
     return col.to_numpy(zero_copy_only=False) if hasattr(col, "to_numpy") else np.asarray(col)
 
 

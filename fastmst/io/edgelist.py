@@ -17,6 +17,24 @@ from fastmst.io.nodes import NodeTable, node_index
 from fastmst.solve import minimum_spanning_forest
 
 
+class _Labels:
+    """``EdgeList.labels``: NumPy or None as given, or a pyarrow text array kept as read and
+    turned into a NumPy object array on first use (readers of large files then make no Python
+    strings unless the labels are asked for)."""
+
+    def __get__(self, obj, owner=None):
+        if obj is None:
+            return None                       # the dataclass default
+        v = obj.__dict__.get("_labels")
+        if v is not None and not isinstance(v, np.ndarray):
+            v = v.to_numpy(zero_copy_only=False)
+            obj.__dict__["_labels"] = v
+        return v
+
+    def __set__(self, obj, value):
+        obj.__dict__["_labels"] = value
+
+
 @dataclass
 class EdgeList:
     """An edge list with compact node ids and the user's node labels.
@@ -62,7 +80,7 @@ class EdgeList:
     head: np.ndarray
     weight: np.ndarray
     n_nodes: int
-    labels: np.ndarray | None = None
+    labels: np.ndarray | None = _Labels()
     coords: np.ndarray | None = None
     geographic: bool = False
     source: str = "<edges>"
@@ -78,7 +96,17 @@ class EdgeList:
     def label(self, ids) -> np.ndarray:
         """The user's labels of compact node ids (the ids themselves when there are no labels)."""
         ids = np.asarray(ids, dtype=np.int64)
-        return ids.copy() if self.labels is None else self.labels[ids]
+        stored = self.__dict__.get("_labels")
+        if stored is None:
+            return ids.copy()
+        if isinstance(stored, np.ndarray):
+            return stored[ids]
+        n = len(stored)
+        if ids.size and (ids.min() < -n or ids.max() >= n):   # as NumPy indexing would
+            raise IndexError(f"label: node ids must be in -{n}..{n - 1}, received "
+                             f"{int(ids.min())}..{int(ids.max())}.")
+        flat = np.where(ids < 0, ids + n, ids).ravel()
+        return stored.take(flat).to_numpy(zero_copy_only=False).reshape(ids.shape)
 
     def solve(self, **kwargs):
         """``minimum_spanning_forest`` of these edges; keyword arguments are passed on."""
@@ -86,7 +114,8 @@ class EdgeList:
 
     def __repr__(self) -> str:
         return (f"EdgeList({self.source!r}, n_nodes={self.n_nodes}, n_edges={self.n_edges}, "
-                f"labelled={self.labels is not None}, coords={self.coords is not None})")
+                f"labelled={self.__dict__.get('_labels') is not None}, "
+                f"coords={self.coords is not None})")
 
 
 def edges_from_table(table, cols, source, where, nodes: NodeTable | None,
@@ -120,8 +149,9 @@ def _edges_from_table(table, cols, source, where, nodes, ids, carry, link_id, gu
     tcol, hcol = table.column(tname), table.column(hname)
     geometry = nodes is not None and wname == "length" and "length" not in table.column_names
     if nodes is None:
-        t, h, labels = encode_label_columns(tcol, hcol, source, where, (tname, hname), ids)
-        n = int(labels.size) if labels is not None else \
+        t, h, labels = encode_label_columns(tcol, hcol, source, where, (tname, hname), ids,
+                                            text_as_arrow=True)
+        n = len(labels) if labels is not None else \
             (max(int(t.max()), int(h.max())) + 1 if t.size else 0)
         coords, geo = None, False
     else:

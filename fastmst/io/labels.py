@@ -71,11 +71,13 @@ def encode_labels(tail, head, source: str, names=("tail", "head"), ids="text"):
                                 names, ids)
 
 
-def encode_label_columns(tail, head, source, where, names, ids="text"):
+def encode_label_columns(tail, head, source, where, names, ids="text", text_as_arrow=False):
     """Compact ids for two pyarrow label columns; returns (tail, head, labels).
 
     Missing or empty labels are a FileFormatError naming the row (``where(i)`` words it); with
-    ``ids="integer"`` so is text that is not an integer.
+    ``ids="integer"`` so is text that is not an integer.  ``text_as_arrow``: text labels are
+    returned as the pyarrow array they were mapped into (no Python strings made); otherwise
+    labels are NumPy (text as an object array).
     """
     import pyarrow as pa
     import pyarrow.compute as pc
@@ -104,11 +106,12 @@ def encode_label_columns(tail, head, source, where, names, ids="text"):
         ti, hi, uniq = fast
     else:
         ti, hi, uniq = _hashed_ids(t, h, numeric=False)
-    if pa.types.is_string(uniq.type) or pa.types.is_large_string(uniq.type):
+    text = pa.types.is_string(uniq.type) or pa.types.is_large_string(uniq.type)
+    if text:
         if pc.any(pc.equal(uniq, "")).as_py():
             for col, name in ((t, names[0]), (h, names[1])):
                 check_no_missing(to_numpy(pc.equal(col, "")), name, source, where, "read_edges")
-    return ti, hi, to_numpy(uniq)
+    return ti, hi, uniq if text and text_as_arrow else to_numpy(uniq)
 
 
 def _check_label_type(col, name, source):
