@@ -149,3 +149,22 @@ def test_rejects_bad_designs():
         link_failures(t, h, w, root="a")
     with pytest.raises(ValueError, match="root = 9 is not a node"):
         link_failures(t, h, w, root=9)
+
+
+@given(st.lists(st.tuples(st.sampled_from([0.0, -0.0, 1.5, -2.0, float("inf"), float("-inf"),
+                                            1e308, -1e308, 5e-324]),
+                          st.sampled_from([0.0, -0.0, 1.5, -2.0, float("inf"), float("-inf"),
+                                           1e308, 5e-324])), max_size=20))
+def test_difference_of_special_values(pairs):
+    """The cost increase of equal weights is +0.0 (infinities and zeros of either sign
+    included); otherwise the float64 difference of Python floats (IEEE 754)."""
+    import math
+    from fastmst.design.failures import difference
+    high = np.array([p[0] for p in pairs], dtype=np.float64)
+    low = np.array([p[1] for p in pairs], dtype=np.float64)
+    got = difference(high, low)
+    for (x, y), d in zip(pairs, got.tolist()):
+        if x == y:
+            assert d == 0.0 and math.copysign(1.0, d) == 1.0
+        else:
+            assert d == x - y

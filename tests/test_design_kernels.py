@@ -168,3 +168,32 @@ def test_cover_by_halves_reaches_the_milp_optimum(forest, m, integer_costs):
     assert float(total[pnode < 0].sum()) == pytest.approx(opt, abs=1e-9)
     assert float(cost[chosen].sum()) == pytest.approx(opt, abs=1e-9)
     assert all(cover[v, best[v]] for v in np.flatnonzero(need))
+
+
+@settings(max_examples=200)
+@given(st.integers(1, 8), st.integers(0, 40), st.integers(0, 2**31),
+       st.sampled_from([np.float64, np.float32, np.int64, np.uint8]))
+def test_cheapest_pairs_match_brute_force(n, m, seed, dtype):
+    """The candidate of every node pair: brute force over the usable links (lightest, then the
+    earliest position; -0.0 equals +0.0), pairs in ascending order."""
+    from fastmst import validation
+    from fastmst.design.redundancy import cheapest_pairs
+    rng = np.random.default_rng(seed)
+    tail = rng.integers(0, n, m)
+    head = rng.integers(0, n, m)
+    weight = rng.integers(0, 4, m).astype(dtype)
+    if dtype == np.float64 and m:
+        weight[rng.random(m) < 0.3] = -0.0
+    usable = rng.random(m) < 0.8
+    g = validation.validate_edges(tail, head, weight, n, func="test")
+    a, b, w, pos = cheapest_pairs(g, usable)
+    ref = {}
+    for p in range(m):
+        if usable[p] and tail[p] != head[p]:
+            key = (min(tail[p], head[p]), max(tail[p], head[p]))
+            if key not in ref or weight[p] < weight[ref[key]]:
+                ref[key] = p
+    pairs = sorted(ref)
+    assert list(zip(a.tolist(), b.tolist())) == [tuple(map(int, k)) for k in pairs]
+    assert pos.tolist() == [ref[k] for k in pairs]
+    assert w.tolist() == [float(weight[ref[k]]) for k in pairs]

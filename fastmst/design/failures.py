@@ -64,10 +64,13 @@ def difference(high: np.ndarray, low: np.ndarray) -> np.ndarray:
             up = high.astype(np.uint64) - low.astype(np.uint64)
             down = low.astype(np.uint64) - high.astype(np.uint64)
         return np.where(ge, up.astype(np.float64), -down.astype(np.float64))
-    h = high.astype(np.float64)
-    lo = low.astype(np.float64)
+    h = high.astype(np.float64, copy=False)
+    lo = low.astype(np.float64, copy=False)
     with np.errstate(invalid="ignore", over="ignore"):
-        return np.where(h == lo, 0.0, h - lo)
+        out = h - lo
+    fix = np.flatnonzero(~(np.abs(out) > 0))    # zeros of either sign, inf - inf
+    out[fix] = np.where(h[fix] == lo[fix], 0.0, out[fix])
+    return out
 
 
 def link_failures(tail, head, weight, forest=None, *, n_nodes=None, root=None, excluded=None):

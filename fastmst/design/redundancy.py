@@ -9,7 +9,7 @@ import numpy as np
 from fastmst import validation
 from fastmst._kernels.treewalk import common_ancestors, cover_by_halves
 from fastmst.design.checks import check_nonnegative, graph_and_design
-from fastmst.design.shallow import best_links
+from fastmst._kernels.tie_rule import edge_order
 
 _FUNC = "backup_links"
 #: Largest number of candidate links the exact mode (scipy.optimize.milp) accepts.
@@ -80,6 +80,38 @@ def _paths(pnode, depth, pedge, a, b):
     return indptr, np.asarray(out, dtype=np.int64), side
 
 
+def cheapest_pairs(g, usable: np.ndarray):
+    """The tie-rule-first usable link of every unordered node pair (no self-loops), as
+    ``shallow.best_links``: (a, b, w, pos) with a < b, float64 lengths and input positions,
+    sorted by pair.  The links are sorted by pair in position order (a stable sort, quick on
+    link lists that come in runs, as grids and most files do) and only pairs with parallel
+    links are ranked by the tie rule."""
+    keep = np.flatnonzero(usable & (g.ktail != g.khead))
+    ta, hb = g.ktail[keep], g.khead[keep]
+    a = np.minimum(ta, hb).astype(np.int64)
+    b = np.maximum(ta, hb).astype(np.int64)
+    del ta, hb
+    order = np.argsort(a * g.n_nodes + b, kind="stable")
+    a, b, keep = a[order], b[order], keep[order]
+    del order
+    first = np.ones(a.shape[0], dtype=bool)
+    first[1:] = (a[1:] != a[:-1]) | (b[1:] != b[:-1])
+    heads = np.flatnonzero(first)
+    if heads.size < keep.size:                  # parallel links: the tie rule's first of each
+        group = np.cumsum(first) - 1
+        size = np.diff(np.append(heads, keep.size))
+        members = np.flatnonzero(size[group] > 1)
+        sub = keep[members]                     # by pair, ascending positions within one
+        ranked = edge_order(g.kweight[sub], False)
+        ranked = ranked[np.argsort(group[members][ranked], kind="stable")]
+        lead = np.ones(ranked.size, dtype=bool)
+        gr = group[members][ranked]
+        lead[1:] = gr[1:] != gr[:-1]
+        keep[heads[gr[lead]]] = sub[ranked[lead]]
+    keep = keep[heads]
+    return a[heads], b[heads], g.weight[keep].astype(np.float64), keep
+
+
 def _halves_cover(d, a, b, c, pos):
     """Frederickson and JaJa's reduction, solved exactly by dynamic programming over the tree.
 
@@ -119,7 +151,9 @@ def _halves_cover(d, a, b, c, pos):
     covered = np.zeros(d.fpos.shape[0], dtype=bool)
     child = np.flatnonzero(pnode >= 0)
     covered[d.pedge[child]] = best[child] >= 0
-    return np.unique(link[chosen]), covered, value, float(cost[chosen].sum())
+    picked = np.zeros(a.shape[0], dtype=bool)
+    picked[link[chosen]] = True
+    return np.flatnonzero(picked), covered, value, float(cost[chosen].sum())
 
 
 def _lp_bound(indptr, edges, c, needed):
@@ -220,7 +254,7 @@ def backup_links(tail, head, weight, forest=None, *, n_nodes=None, excluded=None
     g = d.g
     check_nonnegative(g, d.usable, _FUNC, "backup link selection")
     cand = d.usable & ~d.in_forest
-    a, b, c, pos = best_links(g, cand)
+    a, b, c, pos = cheapest_pairs(g, cand)
     if exact and a.size > EXACT_LIMIT:
         raise ValueError(f"{_FUNC}: exact=True takes at most {EXACT_LIMIT} candidate links, "
                          f"this graph has {a.size}; use exact=False (the 2-approximation with "
