@@ -197,3 +197,26 @@ def test_cheapest_pairs_match_brute_force(n, m, seed, dtype):
     assert list(zip(a.tolist(), b.tolist())) == [tuple(map(int, k)) for k in pairs]
     assert pos.tolist() == [ref[k] for k in pairs]
     assert w.tolist() == [float(weight[ref[k]]) for k in pairs]
+
+
+@pytest.mark.parametrize("seed", range(3))
+def test_cover_by_halves_two_threads_equal_one(seed):
+    """With two threads (a subtree on one, the ranks before it on the other) every output is
+    the same bit for bit as with one: the heaps see the same merges in the same order.  A
+    random tree of 40,000 nodes with 100,000 halves (above the size where the split starts),
+    costs with many ties and non-integer sums."""
+    rng = np.random.default_rng(seed)
+    n = 40_000
+    parent = np.concatenate([[-1], [int(rng.integers(max(0, i - 30), i)) for i in range(1, n)]])
+    depth = np.zeros(n, dtype=np.int64)
+    for i in range(1, n):
+        depth[i] = depth[parent[i]] + 1
+    starts = rng.integers(1, n, 100_000)
+    top_depth = (rng.random(starts.size) * depth[starts]).astype(np.int64)
+    cost = rng.integers(1, 50, starts.size) * 0.1
+    tie = rng.integers(0, 1000, starts.size)
+    one = cover_by_halves(parent, depth, starts, top_depth, cost, tie, 1)
+    two = cover_by_halves(parent, depth, starts, top_depth, cost, tie, 2)
+    for a, b in zip(one, two):
+        assert a.tobytes() == b.tobytes()
+    assert (one[0] >= 0).sum() > n // 2         # a cover that is not trivial

@@ -15,6 +15,7 @@ Inputs are int64 (node ids, parents, CSR offsets) and float64 (lengths, distance
 """
 import numpy as np
 from libc.math cimport INFINITY
+from cython.parallel cimport prange
 from libc.stdint cimport int32_t, int64_t, uint8_t
 
 from fastmst._kernels._typedefs cimport index_t
@@ -505,6 +506,39 @@ cdef int32_t _merge(int32_t a, int32_t b, half_t* rec, const tie_t* tb) noexcept
     return x
 
 
+cdef void _dp_range(int64_t lo, int64_t hi, int64_t defer, const int32_t* hptr,
+                    const int32_t* drank, const int32_t* prank, half_t* rec, const tie_t* tb,
+                    int32_t* root, int32_t* best, double* total) noexcept nogil:
+    """The dynamic programme over the ranks lo .. hi - 1; at rank ``defer`` the heap is left in
+    root[defer] instead of merged into the parent's."""
+    cdef int64_t i
+    cdef int32_t r, p, j
+    cdef double m
+    for i in range(lo, hi):
+        r = root[i]
+        for j in range(hptr[i], hptr[i + 1]):
+            r = _merge(r, j, rec, tb)
+        while r >= 0 and rec[r].top_depth >= drank[i]:
+            _push_down(r, rec)                      # ends at v: covers nothing above
+            r = _merge(rec[r].left, rec[r].right, rec, tb)
+        p = prank[i]
+        if p < 0:
+            root[i] = -1
+            continue
+        if r >= 0:
+            m = rec[r].key
+            best[i] = r
+            total[i] += m
+            rec[r].key -= m
+            rec[r].lazy -= m
+        if i == defer:
+            root[i] = r
+            continue
+        root[i] = -1
+        total[p] += total[i]
+        root[p] = _merge(root[p], r, rec, tb)
+
+
 cdef int64_t _cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
                            const int64_t[::1] starts, const int64_t[::1] top_depth,
                            const double[::1] cost, const int64_t[::1] tie,
@@ -515,22 +549,23 @@ cdef int64_t _cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth
                            int32_t[::1] best, double[::1] total, int32_t[::1] alive,
                            uint8_t[::1] claimed, uint8_t[::1] chosen_r,
                            int64_t[::1] best_out, double[::1] total_out,
-                           uint8_t[::1] chosen_out) noexcept nogil:
+                           uint8_t[::1] chosen_out, int32_t[::1] first,
+                           int64_t threads) noexcept nogil:
     cdef int64_t n = pnode.shape[0]
     cdef int64_t H = cost.shape[0]
-    cdef int64_t i, k, v, top
-    cdef int32_t r, p, x, y, s, h, j
-    cdef double m
+    cdef int64_t i, k, v, top, best_split, t
+    cdef int32_t p, x, y, s, h, j, c
     # children before parents: depth-first postorder, children by node id, so that siblings
     # are merged into their parent's heap in node-id order (the order of the merges is all
     # that shapes the heaps) and every subtree is a range of ranks (its halves' records too)
-    k = _postorder(pnode, hptr, kids, cursor, stack, order, rank, stack, False)
+    k = _postorder(pnode, hptr, kids, cursor, stack, order, rank, first, True)
     if k != n:
         return k                                     # a cycle: not every node under a top
     for i in range(n):
         v = order[i]
         prank[i] = rank[pnode[v]] if pnode[v] >= 0 else -1
         drank[i] = <int32_t>depth[v]
+        stack[i] = first[v]                          # in rank space
     # halves by the rank of their start, in index order within one start
     for i in range(n + 1):
         hptr[i] = 0
@@ -562,24 +597,43 @@ cdef int64_t _cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth
         best[i] = -1
         total[i] = 0.0
         alive[i] = -1
-    for i in range(n):
-        r = root[i]
-        for j in range(hptr[i], hptr[i + 1]):
-            r = _merge(r, j, rec, tb)
-        while r >= 0 and rec[r].top_depth >= drank[i]:
-            _push_down(r, rec)                      # ends at v: covers nothing above
-            r = _merge(rec[r].left, rec[r].right, rec, tb)
-        p = prank[i]
-        if p < 0:
-            continue
-        if r >= 0:
-            m = rec[r].key
-            best[i] = r
-            total[i] += m
-            rec[r].key -= m
-            rec[r].lazy -= m
-        total[p] += total[i]
-        root[p] = _merge(root[p], r, rec, tb)
+    # the nodes in order, children first; with two threads, the subtree of a node c with about
+    # half the work (nodes + halves) on one and the ranks before it on the other: they touch
+    # disjoint records and nodes but for c's merge into its parent, done after both, where the
+    # order of the one thread would have it (after every rank before c's subtree)
+    cdef int32_t* hp = &hptr[0]
+    cdef int32_t* dr = &drank[0]
+    cdef int32_t* pr = &prank[0]
+    cdef int32_t* ro = &root[0]
+    cdef int32_t* be = &best[0]
+    cdef double* to = &total[0]
+    c = -1
+    if threads >= 2 and H >= 65536:
+        k = 0
+        for i in range(n):
+            k += 1 + hptr[i + 1] - hptr[i]
+        best_split = 0
+        for i in range(n):                          # stack[i]: first rank of i's subtree
+            v = hptr[i + 1] - hptr[stack[i]] + i + 1 - stack[i]
+            if v > k - v:
+                v = k - v
+            if v > best_split:
+                best_split = v
+                c = <int32_t>i
+    if c < 0:
+        _dp_range(0, n, -1, hp, dr, pr, rec, tb, ro, be, to)
+    else:
+        for t in prange(2, num_threads=2, schedule="static", chunksize=1):
+            if t == 0:
+                _dp_range(stack[c], c + 1, c, hp, dr, pr, rec, tb, ro, be, to)
+            else:
+                _dp_range(0, stack[c], -1, hp, dr, pr, rec, tb, ro, be, to)
+        p = prank[c]
+        if p >= 0:
+            total[p] += total[c]
+            root[p] = _merge(root[p], root[c], rec, tb)
+        root[c] = -1
+        _dp_range(c + 1, n, -1, hp, dr, pr, rec, tb, ro, be, to)
     for i in range(n - 1, -1, -1):                  # from the top down
         h = alive[i] if alive[i] >= 0 else best[i]
         if h < 0:
@@ -605,7 +659,7 @@ cdef int64_t _cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth
 
 def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
                     const int64_t[::1] starts, const int64_t[::1] top_depth,
-                    const double[::1] cost, const int64_t[::1] tie):
+                    const double[::1] cost, const int64_t[::1] tie, Py_ssize_t threads=1):
     """The cheapest covering of a rooted forest's links by upward paths ("halves"), exactly.
 
     Half ``h`` runs from node ``starts[h]`` up to an ancestor at depth ``top_depth[h]`` (less
@@ -636,6 +690,8 @@ def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
     if n >= 2**31 - 1 or H >= 2**31 - 1:
         raise ValueError(f"cover_by_halves: at most 2**31 - 2 nodes and halves, received {n} "
                          f"nodes and {H} halves.")
+    if threads < 1:
+        raise ValueError(f"cover_by_halves: threads must be >= 1, received {threads}.")
     if n and (int(np.min(pnode)) < -1 or int(np.max(pnode)) >= n):
         raise ValueError("cover_by_halves: parents must be -1 or nodes.")
     pn = np.asarray(pnode)
@@ -652,8 +708,8 @@ def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
         raise ValueError("cover_by_halves: every half must end above its start.")
     order = np.empty(n, dtype=np.int32)
     rank = np.empty(n, dtype=np.int32)
-    prank = np.empty(n, dtype=np.int32)
-    drank = np.empty(n, dtype=np.int32)
+    prank = np.empty(max(n, 1), dtype=np.int32)
+    drank = np.empty(max(n, 1), dtype=np.int32)
     hptr = np.empty(n + 1, dtype=np.int32)
     kids = np.empty(n, dtype=np.int32)
     cursor = np.empty(n, dtype=np.int32)
@@ -662,10 +718,11 @@ def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
     horig = np.empty(H, dtype=np.int32)
     records = np.empty((max(H, 1), sizeof(half_t) // 8), dtype=np.float64)
     ties = np.empty((max(H, 1), sizeof(tie_t) // 8), dtype=np.int64)
-    root = np.empty(n, dtype=np.int32)
-    best_r = np.empty(n, dtype=np.int32)
-    total_r = np.empty(n, dtype=np.float64)
+    root = np.empty(max(n, 1), dtype=np.int32)
+    best_r = np.empty(max(n, 1), dtype=np.int32)
+    total_r = np.empty(max(n, 1), dtype=np.float64)
     alive = np.empty(n, dtype=np.int32)
+    first = np.empty(n, dtype=np.int32)
     claimed = np.empty(H, dtype=np.uint8)
     chosen_r = np.empty(H, dtype=np.uint8)
     best = np.empty(n, dtype=np.int64)
@@ -677,15 +734,15 @@ def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
     cdef tie_t* tb = <tie_t*>&tv[0, 0]
     cdef int32_t[::1] od = order, rk = rank, pr = prank, dr = drank, hp = hptr, hs = hstart
     cdef int32_t[::1] ki = kids, cu = cursor, sk = stack
-    cdef int32_t[::1] ho = horig, ro = root, be = best_r, al = alive
+    cdef int32_t[::1] ho = horig, ro = root, be = best_r, al = alive, fi = first
     cdef double[::1] to = total_r, to_out = total
     cdef int64_t[::1] be_out = best
     cdef uint8_t[::1] cl = claimed, ch = chosen_r, ch_out = chosen
     cdef int64_t reached
     with nogil:
-        reached = _cover_by_halves(pnode, depth, starts, top_depth, cost, tie, od, rk, pr, ki, cu, sk, dr,
-                         hp, hs, ho,
-                         rec, tb, ro, be, to, al, cl, ch, be_out, to_out, ch_out)
+        reached = _cover_by_halves(pnode, depth, starts, top_depth, cost, tie, od, rk, pr, ki,
+                                   cu, sk, dr, hp, hs, ho, rec, tb, ro, be, to, al, cl, ch,
+                                   be_out, to_out, ch_out, fi, threads)
     if reached != n:
         raise ValueError(f"cover_by_halves: pnode is not a forest: {n - reached} nodes lie on "
                          f"cycles of parent links.")
@@ -940,3 +997,4 @@ def first_covers(const int64_t[::1] pnode, const int64_t[::1] pedge, const int64
     j = node_cover[has]
     cover[pe[has]] = np.where(j >= 0, rk[np.maximum(j, 0)], -1) if rk.size else -1
     return cover
+

@@ -146,7 +146,7 @@ def _halves_cover(d, a, b, c, pos):
     tie = np.ascontiguousarray(pos[link], dtype=np.int64)   # the earlier candidate first
     best, total, chosen = cover_by_halves(pnode, depth, starts,
                                           depth[np.concatenate(tops)].astype(np.int64), cost,
-                                          tie)
+                                          tie, validation.check_threads(None, _FUNC))
     value = float(total[pnode < 0].sum())
     covered = np.zeros(d.fpos.shape[0], dtype=bool)
     child = np.flatnonzero(pnode >= 0)
@@ -273,8 +273,10 @@ def backup_links(tail, head, weight, forest=None, *, n_nodes=None, excluded=None
         picked, covered_edge, _, _ = _halves_cover(d, a, b, c, pos)
         chosen = np.sort(pos[picked])
         method = "frederickson-jaja"
-    single = np.sort(d.fpos[~covered_edge])
+    single_mask = np.zeros(g.n_edges, dtype=bool)             # ascending positions, no sort
+    single_mask[d.fpos[~covered_edge]] = True
+    single = np.flatnonzero(single_mask)
     wsum = float(g.weight[chosen].astype(np.float64).sum()) if chosen.size else 0.0
-    return BackupLinks(forest=np.sort(d.fpos), position=chosen, weight=wsum,
+    return BackupLinks(forest=np.flatnonzero(d.in_forest), position=chosen, weight=wsum,
                        lower_bound=bound if lower_bound else None, optimal=exact,
                        single_points=single, method=method)
