@@ -63,8 +63,10 @@ def graph_and_design(tail, head, weight, forest, n_nodes, excluded, func: str,
         xpos = validation.check_positions(excluded, g.n_edges, "excluded", func)
         usable[xpos] = False
     if forest is None:
+        # without exclusions, the plain solve (the constrained one costs more, same forest)
         fpos = minimum_spanning_forest(g.tail, g.head, g.weight, g.n_nodes,
-                                       excluded=np.flatnonzero(~usable)).edges
+                                       excluded=None if excluded is None else
+                                       np.flatnonzero(~usable)).edges
         fpos = np.asarray(fpos, dtype=np.int64)
         in_forest = np.zeros(g.n_edges, dtype=bool)
         in_forest[fpos] = True
