@@ -10,7 +10,7 @@ random (dead ends, blocks), plus a diagonal in 5 % of the cells; a link's weight
 Euclidean length.  Each step runs ``--repeat`` times, interleaved with the solve, and the best
 time is kept; the ratio to the solve's best time in the same run is printed.  Backup links
 with their LP bound (Python path walks + HiGHS) are timed on a ``--backup-side`` grid, without
-it (the 2-approximation alone, once) on the full grid; Esau-Williams on
+it (the 2-approximation alone) on the full grid; Esau-Williams on
 ``--sites`` sites with a feeder link from a central root to every site at 1.5 x its length.
 """
 from __future__ import annotations
@@ -101,8 +101,8 @@ def main(argv=None):
     rows.append((f"backup_links ({bn:,} sites, LP bound)", ts, tx,
                  f"cost {bk.weight:,.1f}, LP bound {bk.lower_bound:,.1f} (ratio "
                  f"{bk.weight / bk.lower_bound:.3f}), {bk.single_points.size} single points"))
-    ts, tx, bk = side_by_side(1, solve, lambda: backup_links(t, h, w, n_nodes=n,
-                                                             lower_bound=False))
+    ts, tx, bk = side_by_side(args.repeat, solve, lambda: backup_links(t, h, w, n_nodes=n,
+                                                                       lower_bound=False))
     rows.append((f"backup_links ({n:,} sites, no bound)", ts, tx,
                  f"{len(bk):,} backup links, cost {bk.weight:,.1f} "
                  f"({bk.weight / f.weight:.3f} x the tree), {bk.single_points.size:,} single "

@@ -10,6 +10,14 @@
     and shortest-path trees", Algorithmica 14 (1995): walk round the minimum spanning tree
     relaxing its edges; where a node's current distance exceeds alpha times its shortest-path
     distance, graft its shortest path from the root.  O(V) after the two input trees.
+``cover_by_halves``
+    The cheapest cover of a rooted forest's links by upward paths, by a dynamic programme with
+    mergeable heaps (the arborescence step of backup links).
+``common_ancestors``
+    Lowest common ancestors of node pairs, offline (Tarjan 1979).
+``first_covers``
+    For every forest link, the first of a list of links whose tree path holds it (Tarjan
+    1982; single-link failures).
 
 Inputs are int64 (node ids, parents, CSR offsets) and float64 (lengths, distances).
 """
@@ -427,13 +435,16 @@ cdef int64_t _postorder(const int64_t[::1] pnode, int32_t[::1] cptr, int32_t[::1
     return k
 
 
-# cover_by_halves works in "rank space": nodes renumbered in the order they are taken (deepest
-# first, by node id within a depth) and halves renumbered by the rank of their start, so the
-# halves merged at one node are neighbours in memory and the per-node arrays are read in
-# sequence.  A half's heap fields share one 32-byte record (one cache line holds two), and the
-# tie-breaking values, needed only between equal keys, sit apart.  The heaps, the order of the
-# merges and the floating-point operations are those of the plain version, so every result is
-# the same bit for bit.  Ids are int32 inside (the def refuses 2**31 or more nodes or halves).
+# cover_by_halves works in "rank space": nodes renumbered in the order they are taken (children
+# before parents: a depth-first postorder, children by node id) and halves renumbered by the
+# rank of their start, so every subtree is a range of ranks and its halves a range of records,
+# and the per-node arrays are read in sequence.  A half's heap fields share one 32-byte record
+# (one cache line holds two), and the tie-breaking values, needed only between equal keys, sit
+# apart.  Siblings are merged into their parent's heap in node-id order, as when nodes were
+# taken deepest first (by node id within a depth): the heaps, the order of the merges into each
+# and the floating-point operations are those of that plain version, so every result is the
+# same bit for bit (tests/test_design_kernels.py checks one thread against two).  Ids are int32
+# inside (the def refuses 2**31 or more nodes or halves).
 cdef struct half_t:
     double key          # r(v, h) minus the lazy offsets still above it in its heap
     double lazy         # offset to add to the keys of its two subheaps
@@ -664,11 +675,14 @@ def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
 
     Half ``h`` runs from node ``starts[h]`` up to an ancestor at depth ``top_depth[h]`` (less
     than the start's) and covers the links on the way; it costs ``cost[h]`` (>= 0).  Nodes are
-    taken deepest first: each keeps a leftist heap of the halves from its subtree still running
-    above it, keyed by the cheapest cover of the subtree that uses them, minus the children's
-    covers (one lazy offset per heap); the cheapest of them covers the link to the parent.
-    O(H log H + V) after two counting sorts (nodes by depth, halves by start); ties by
-    ``tie``, then half index.  Fewer than 2**31 nodes and halves.
+    taken children first (a depth-first postorder): each keeps a leftist heap of the halves
+    from its subtree still running above it, keyed by the cheapest cover of the subtree that
+    uses them, minus the children's covers (one lazy offset per heap); the cheapest of them
+    covers the link to the parent.  O(H log H + V) after the postorder and a counting sort of
+    the halves by start; ties by ``tie``, then half index.  Fewer than 2**31 nodes and halves.
+    With ``threads`` >= 2 and at least 65,536 halves, a subtree with about half the work runs
+    on a second thread beside the nodes taken before it; the results are the same bit for bit
+    as with one thread.
 
     Returns
     -------
@@ -862,14 +876,17 @@ def common_ancestors(const int64_t[::1] pnode, const int64_t[::1] a, const int64
     return out
 
 
-# first_covers keeps everything it reads about a node in one 16-byte record instead of six
-# arrays (a quarter of the memory, so more of it stays in cache), and writes the cover per node
-# (for its link to the parent), so that a step up the tree touches one record.
+# first_covers keeps everything it reads about a node in one 32-byte record instead of six
+# arrays of int64 (two records to a cache line), and writes the cover per node (for its link to
+# the parent), so that a step up the tree touches one record.
 cdef struct walk_t:
     int32_t up          # disjoint-set parent; at a set's representative, itself
+    int32_t top         # at a representative: the highest node of its set
     int32_t pnode
     int32_t depth
     int32_t cover       # index (into ranked) of the first covering link, -1 for none yet
+    int32_t rank
+    int32_t pad[2]
 
 
 cdef extern from *:
@@ -883,7 +900,7 @@ cdef extern from *:
     void FASTMST_PREFETCH(const void* p) noexcept nogil
 
 
-cdef inline int32_t _find_top(walk_t* nd, int32_t x) noexcept nogil:
+cdef inline int32_t _find_set(walk_t* nd, int32_t x) noexcept nogil:
     while nd[x].up != x:                # path halving
         nd[x].up = nd[nd[x].up].up
         x = nd[x].up
@@ -896,9 +913,11 @@ cdef int64_t _first_covers(const int64_t[::1] pnode, const int64_t[::1] depth,
     cdef int64_t n = pnode.shape[0]
     cdef int64_t q = ranked.shape[0]
     cdef int64_t i, j, left = 0
-    cdef int32_t x, y, t
+    cdef int32_t x, y, t, rx, rp
     for i in range(n):
         nd[i].up = <int32_t>i
+        nd[i].top = <int32_t>i
+        nd[i].rank = 0
         nd[i].pnode = <int32_t>pnode[i]
         nd[i].depth = <int32_t>depth[i]
         nd[i].cover = -1
@@ -915,8 +934,8 @@ cdef int64_t _first_covers(const int64_t[::1] pnode, const int64_t[::1] depth,
         if j + 16 < q:
             FASTMST_PREFETCH(&nd[tail[ranked[j + 16]]])
             FASTMST_PREFETCH(&nd[head[ranked[j + 16]]])
-        x = _find_top(nd, <int32_t>tail[ranked[j]])
-        y = _find_top(nd, <int32_t>head[ranked[j]])
+        x = nd[_find_set(nd, <int32_t>tail[ranked[j]])].top
+        y = nd[_find_set(nd, <int32_t>head[ranked[j]])].top
         while x != y:
             if nd[x].depth < nd[y].depth:
                 t = x
@@ -926,8 +945,18 @@ cdef int64_t _first_covers(const int64_t[::1] pnode, const int64_t[::1] depth,
                 return j                # the link joins two trees
             nd[x].cover = <int32_t>j
             left -= 1
-            nd[x].up = nd[x].pnode      # x's set joins its parent's: the top stays the root
-            x = _find_top(nd, x)
+            rx = _find_set(nd, x)
+            rp = _find_set(nd, nd[x].pnode)
+            t = nd[rp].top
+            if nd[rx].rank < nd[rp].rank:           # union by rank
+                nd[rx].up = rp
+                rx = rp
+            else:
+                if nd[rx].rank == nd[rp].rank:
+                    nd[rx].rank += 1
+                nd[rp].up = rx
+            nd[rx].top = t
+            x = t
     return -1
 
 
@@ -938,10 +967,10 @@ def first_covers(const int64_t[::1] pnode, const int64_t[::1] pedge, const int64
     holds it (Tarjan, "Sensitivity analysis of minimum spanning trees and shortest path trees",
     Inf. Proc. Letters 14(1), 1982): each ranked link marks the not yet marked forest links on
     its path, a disjoint set (union by rank, path halving) jumping over marked ones, so every
-    forest link is marked once.  A set's representative is its top (a marked link's lower
-    end joins the set of its upper end), found by path halving: O((V + Q) log V) at worst,
-    close to linear in practice (Tarjan and van Leeuwen, "Worst-case analysis of set union
-    algorithms", J. ACM 31(2), 1984).  Fewer than 2**31 nodes and ranked links.
+    forest link is marked once: union by rank and path halving, O((V + Q) alpha(V)).  The
+    ranked links come at random places in the tree, so the ends of the links 32 places ahead
+    and their nodes' records 16 places ahead are prefetched.  Fewer than 2**31 nodes and
+    ranked links.
 
     Parameters
     ----------
@@ -992,7 +1021,7 @@ def first_covers(const int64_t[::1] pnode, const int64_t[::1] pedge, const int64
         raise ValueError(f"first_covers: the link at position {p} ({tail[p]}-{head[p]}) joins "
                          f"two trees of the forest.")
     cover = np.full(n_links, -1, dtype=np.int64)
-    node_cover = records[:n, 3]
+    node_cover = records[:n, 4]
     has = pe >= 0
     j = node_cover[has]
     cover[pe[has]] = np.where(j >= 0, rk[np.maximum(j, 0)], -1) if rk.size else -1
