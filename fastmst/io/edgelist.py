@@ -48,6 +48,8 @@ class EdgeList:
     n_nodes : int
     labels : ndarray of shape (n_nodes,) or None
         The user's label of every compact id; None means the labels are the ids themselves.
+        Text labels read from a file are kept as the reader's pyarrow array and made into this
+        NumPy object array on first use (``label(ids)`` does not need them all).
     coords : ndarray of shape (n_nodes, 2), dtype=float64, or None
         Node coordinates when a node table gave them.
     geographic : bool
