@@ -101,9 +101,9 @@ class EdgeList:
         stored = self.__dict__.get("_labels")
         if stored is None:
             return ids.copy()
-        if isinstance(stored, np.ndarray):
-            return stored[ids]
         n = len(stored)
+        if isinstance(stored, np.ndarray) or 4 * ids.size >= n:   # many: make them all once
+            return self.labels[ids]
         if ids.size and (ids.min() < -n or ids.max() >= n):   # as NumPy indexing would
             raise IndexError(f"label: node ids must be in -{n}..{n - 1}, received "
                              f"{int(ids.min())}..{int(ids.max())}.")
