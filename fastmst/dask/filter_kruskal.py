@@ -62,7 +62,7 @@ FOLD_SAFETY = 1.0
 #: fraction of the light edges' (measured per node in docs/dask.md).
 ABSORB_PIECES = 8
 #: ... but no piece below this many edges (smaller levels are solved in one piece).
-MIN_PIECE_EDGES = 1 << 22
+MIN_PIECE_EDGES = 1 << 24
 #: Sampled keys the pieces' split points are chosen from, and rows per block when mapping
 #: every light edge to its piece.
 SPLIT_SAMPLE = 1 << 16
