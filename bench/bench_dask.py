@@ -152,8 +152,6 @@ def solve_dask(data, workers, memory_limit, n_files=None, n_nodes=None, plan="au
     import fastmst.dask
     from fastmst.dask import filter_kruskal
 
-    if light_per_node is not None:
-        filter_kruskal.LIGHT_PER_NODE = light_per_node
     filter_kruskal.FOLD_FIRST_LEVEL = fold
     files = _files(data, n_files)
     with LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
@@ -164,7 +162,7 @@ def solve_dask(data, workers, memory_limit, n_files=None, n_nodes=None, plan="au
         start = time.perf_counter()
         forest = fastmst.dask.minimum_spanning_forest(
             ddf, n_nodes, plan=plan, split_every=split_every, max_task_edges=max_task_edges,
-            progress=progress)
+            light_per_node=light_per_node, progress=progress)
         seconds = time.perf_counter() - start
         io_after = client.run(_io_self)
         peaks = client.run(_peak_rss_self)

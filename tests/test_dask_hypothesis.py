@@ -251,3 +251,33 @@ def test_folded_bound_is_exact_at_a_tie_across_partitions():
     assert first["light_quota"] == 25 and first["threshold_found"]
     assert first["light_rows_returned"] <= 15  # 3 non-empty partitions x 5, self-loops dropped
     assert_identical(got, fastmst.minimum_spanning_forest(t, h, w, 30))
+
+
+@settings(max_examples=25, deadline=None)
+@given(partitioned_graphs(), st.sampled_from([0.05, 0.3, 1.0, 1e6]))
+def test_light_per_node_changes_passes_not_the_forest(graph, light):
+    """``light_per_node=`` (the client's light edges per node per level): any positive value
+    gives the forest of the in-memory solve; with more light edges per node than the graph has
+    edges, the validation pass brings every row and is the only pass."""
+    t, h, w, cuts, n, maximize, as_frame = graph
+    want = fastmst.minimum_spanning_forest(t, h, w, n, maximize=maximize)
+    parts = delayed_chunks(t, h, w, cuts, as_frame)
+    with dask.config.set(scheduler="sync"):
+        got = fdask.minimum_spanning_forest(parts, n, maximize=maximize, client=False,
+                                            light_per_node=light)
+        default = fdask.minimum_spanning_forest(parts, n, maximize=maximize, client=False)
+    assert_identical(got, want)
+    assert got.dask_plan["light_per_node"] == light
+    assert_identical(default, want)
+    if light == 1e6:
+        assert len(got.dask_plan["passes"]) == 1
+
+
+@pytest.mark.parametrize("value,error", [
+    (0, ValueError), (-1.0, ValueError), (float("inf"), ValueError), (float("nan"), ValueError),
+    ("1.5", TypeError), (True, TypeError), ([1.0], TypeError)])
+def test_light_per_node_bad_values(value, error):
+    """A bad ``light_per_node`` is refused before any task runs, naming what was received."""
+    parts = delayed_chunks(np.array([0]), np.array([1]), np.array([1.0]), [], False)
+    with pytest.raises(error, match="light_per_node"):
+        fdask.minimum_spanning_forest(parts, 2, client=False, light_per_node=value)

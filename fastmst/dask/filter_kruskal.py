@@ -6,7 +6,7 @@ prefix of that order.  Level ``k`` of the plan:
 
 1. From the validation pass's sample, keep the sampled edges whose endpoints lie in different
    current components (a uniform sample of the edges still in play) and choose the threshold
-   ``T_k`` below which about ``LIGHT_PER_NODE * n`` of them lie (``n`` nodes: the client
+   ``T_k`` below which about ``light_per_node * n`` of them lie (``n`` nodes: the client
    solves that many edges per level); when the estimated rest is no more than that, ``T_k``
    is "no bound" and this level is the last.
 2. One pass over the partitions: each task keeps the edges in the band ``[T_{k-1}, T_k)``
@@ -48,8 +48,9 @@ from fastmst.dask import boruvka, chunks, runner
 from fastmst import validation
 from fastmst.solve import constraints
 
-#: Light edges per node: each level's threshold is chosen so that the client solves about
-#: ``LIGHT_PER_NODE * n_nodes`` edges (measured on bench/bench_dask.py: see docs/dask.md).
+#: Light edges per node by default (``light_per_node=``): each level's threshold is chosen so
+#: that the client solves about ``LIGHT_PER_NODE * n_nodes`` edges (measured on
+#: bench/bench_dask.py: see docs/dask.md).
 LIGHT_PER_NODE = 1.5
 #: Bring the first level's light edges with the validation pass (one read pass fewer): each
 #: validation task returns its partition's lightest rows, a quota of ``LIGHT_PER_NODE * n``
@@ -116,16 +117,16 @@ def band(chunk, names, offset, labels, wdtype, maximize, lower, upper):
     return rec, {"read": int(m), "band": in_band}
 
 
-def quotas(n_nodes, lengths, n_parts):
+def quotas(n_nodes, lengths, n_parts, light_per_node):
     """Rows each validation task returns as its lightest (None: no folded level).
 
-    The light target ``LIGHT_PER_NODE * n`` is split by the partitions' shares of the rows
+    The light target ``light_per_node * n`` is split by the partitions' shares of the rows
     (``lengths``, from the source's metadata) or evenly; every partition gets at least one
     row, so each truncated partition reports a bound.  Needs the node count before the pass
     (``n_nodes``, or the metadata's largest id)."""
     if not FOLD_FIRST_LEVEL or n_nodes is None or n_parts == 0:
         return None
-    target = FOLD_SAFETY * LIGHT_PER_NODE * max(1, n_nodes)
+    target = FOLD_SAFETY * light_per_node * max(1, n_nodes)
     total = sum(lengths) if lengths is not None else 0
     if total > 0:
         return [max(1, int(np.ceil(target * m / total))) for m in lengths]
@@ -333,11 +334,11 @@ class Sample:
 
 
 def solve(run, parts, names, offsets, n, n_edges, kdt, maximize, stats, run_id, column_bytes,
-          id_dtypes):
+          id_dtypes, light_per_node):
     """Run the levels; return the forest (a Records in rule order), the final labels, the
     number of components, the per-pass details and what the validation pass's folded level
     did (None when it brought no light rows).  ``id_dtypes``: the (tail, head) dtypes of the
-    forest's endpoints."""
+    forest's endpoints; ``light_per_node``: each level's light target per node."""
     sample = Sample(stats, offsets, kdt, maximize)
     ldt = boruvka.label_dtype(n)
     labels = None
@@ -370,7 +371,7 @@ def solve(run, parts, names, offsets, n, n_edges, kdt, maximize, stats, run_id, 
         start = time.perf_counter()
         if level:
             sample.keep_remaining(labels)
-        left, upper = sample.threshold(max(1.0, LIGHT_PER_NODE * n))
+        left, upper = sample.threshold(max(1.0, light_per_node * n))
         if level == 0:
             left = float(n_edges)
         if level + 1 >= MAX_LEVELS:

@@ -26,7 +26,8 @@ BYTES_PER_EDGE = 96
 
 def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", weight="weight",
                             maximize=False, plan="auto", split_every=8, max_task_edges=None,
-                            client=None, progress=False) -> SpanningForest:
+                            light_per_node=None, client=None,
+                            progress=False) -> SpanningForest:
     """Minimum (or maximum) spanning forest of an edge list held in a Dask collection.
 
     Parameters
@@ -56,6 +57,12 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
         Defaults to the smallest worker memory limit divided by ``BYTES_PER_EDGE`` (at most
         2**24), or 2**24 without a limit.  Not used by "filter-kruskal", whose tasks hold one
         partition each.
+    light_per_node : float, optional
+        Plan "filter-kruskal": about how many light edges per node each level brings to the
+        client (default ``fastmst.dask.filter_kruskal.LIGHT_PER_NODE``, 1.5).  Lower values
+        (e.g. 1.0) cut the client's memory (about 24 bytes per light edge, plus the solve's
+        working memory) at the cost of more passes; see docs/dask.md (1B edges over 100M
+        nodes ran with 1.0 in 6.9 GiB on the client).  Any positive value gives the same forest.
     client : distributed.Client or False, optional
         Defaults to the current client; without one (or with ``False``), Dask's configured
         local scheduler runs the tasks.
@@ -110,6 +117,13 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
     max_task_edges = validation.check_count(max_task_edges, "max_task_edges", _FUNC,
                                             minimum=1, allow_none=True)
     progress = validation.check_bool(progress, "progress", _FUNC)
+    if light_per_node is None:
+        light_per_node = filter_kruskal.LIGHT_PER_NODE
+    light_per_node = validation.check_real(light_per_node, "light_per_node", _FUNC)
+    if not 0 < light_per_node < float("inf"):
+        raise ValueError(f"{_FUNC}: light_per_node must be a positive finite number of light "
+                         f"edges per node, received {light_per_node!r}; e.g. 1.5 (the "
+                         f"default) or 1.0 for less client memory.")
     parts = chunks.partitions(edges, names)
     client = runner.get_client(client)
     run = runner.Runner(client, progress)
@@ -127,7 +141,7 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
         lengths_hint, top_hint = chunks.source_hints(edges, names, len(parts))
         n_hint = n_nodes if n_nodes is not None else (
             top_hint + 1 if top_hint is not None else None)
-        quotas = filter_kruskal.quotas(n_hint, lengths_hint, len(parts))
+        quotas = filter_kruskal.quotas(n_hint, lengths_hint, len(parts), light_per_node)
     stats = run.run([dask.delayed(chunks.stats, pure=True)(
         p, names, i, n_nodes, per, quotas[i] if quotas else 0, maximize)
         for i, p in enumerate(parts)], "validating partitions")
@@ -152,12 +166,12 @@ def minimum_spanning_forest(edges, n_nodes=None, *, tail="tail", head="head", we
     if plan == "filter-kruskal":
         forest_rec, labels, n_comp, more, first = filter_kruskal.solve(
             run, parts, names, offsets, n, n_edges, kdt, maximize, stats, run_id, column_bytes,
-            (tdt, hdt))
+            (tdt, hdt), light_per_node)
         del stats
         if first is not None:
             passes[0].update(first, light_quota=int(sum(quotas)))
         passes += more
-        info.update(light_per_node=filter_kruskal.LIGHT_PER_NODE, passes=passes)
+        info.update(light_per_node=light_per_node, passes=passes)
         start = time.perf_counter()
         forest = _assemble_in_order(forest_rec, labels, n_comp, n, n_edges, maximize,
                                     (tdt, hdt, wdt), info)
