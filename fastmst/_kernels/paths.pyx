@@ -24,6 +24,7 @@ import numpy as np
 from libc.stdint cimport int32_t, int64_t, uint8_t
 
 from fastmst._kernels._typedefs cimport index_t
+from fastmst._kernels.csr cimport pair_offsets, shift_back
 from fastmst._kernels.dsu cimport dsu_find, dsu_link
 from cython.parallel cimport prange
 
@@ -111,13 +112,7 @@ cdef void _root_forest(const index_t[::1] ftail, const index_t[::1] fhead, int64
     # them in sequence instead of looking the edge's ends up at random
     cdef int64_t f = ftail.shape[0]
     cdef int64_t i, s, x, y, k, head_q, tail_q
-    for i in range(n + 1):
-        start[i] = 0
-    for i in range(f):
-        start[ftail[i] + 1] += 1
-        start[fhead[i] + 1] += 1
-    for i in range(n):
-        start[i + 1] += start[i]
+    pair_offsets(ftail, fhead, start)
     for i in range(f):
         x = ftail[i]
         y = fhead[i]
@@ -127,9 +122,7 @@ cdef void _root_forest(const index_t[::1] ftail, const index_t[::1] fhead, int64
         adj[start[y]] = i
         nbr[start[y]] = x
         start[y] += 1
-    for i in range(n, 0, -1):
-        start[i] = start[i - 1]
-    start[0] = 0
+    shift_back(start)
     for i in range(n):
         depth[i] = -1
     for s in range(n):

@@ -27,6 +27,7 @@ from cython.parallel cimport prange
 from libc.stdint cimport int32_t, int64_t, uint8_t
 
 from fastmst._kernels._typedefs cimport index_t
+from fastmst._kernels.csr cimport pair_offsets, shift_back
 
 
 cdef void _sides_beyond(const int64_t[::1] pnode, const int64_t[::1] depth, int64_t root,
@@ -293,13 +294,7 @@ cdef void _adjacency(const int64_t[::1] a, const int64_t[::1] b, int64_t[::1] in
     cdef int64_t n = indptr.shape[0] - 1
     cdef int64_t m = a.shape[0]
     cdef int64_t i, k
-    for i in range(n + 1):
-        indptr[i] = 0
-    for i in range(m):
-        indptr[a[i] + 1] += 1
-        indptr[b[i] + 1] += 1
-    for i in range(n):
-        indptr[i + 1] += indptr[i]
+    pair_offsets(a, b, indptr)
     for i in range(m):                      # slots in link order within every node
         k = indptr[a[i]]
         nbr[k] = b[i]
@@ -309,9 +304,7 @@ cdef void _adjacency(const int64_t[::1] a, const int64_t[::1] b, int64_t[::1] in
         nbr[k] = a[i]
         link[k] = i
         indptr[b[i]] += 1
-    for i in range(n, 0, -1):
-        indptr[i] = indptr[i - 1]
-    indptr[0] = 0
+    shift_back(indptr)
 
 
 def adjacency(const int64_t[::1] a, const int64_t[::1] b, Py_ssize_t n_nodes):
@@ -668,6 +661,13 @@ cdef int64_t _cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth
     return n
 
 
+def _postorder_scratch(Py_ssize_t n):
+    """The int32 work arrays of ``_postorder`` over n nodes: (child offsets, kids, cursor,
+    stack, order, rank, first)."""
+    return (np.empty(n + 1, dtype=np.int32),) + tuple(np.empty(n, dtype=np.int32)
+                                                      for _ in range(6))
+
+
 def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
                     const int64_t[::1] starts, const int64_t[::1] top_depth,
                     const double[::1] cost, const int64_t[::1] tie, Py_ssize_t threads=1):
@@ -720,14 +720,9 @@ def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
         raise ValueError("cover_by_halves: starts must be nodes.")
     if H and bool((td >= np.asarray(depth)[st]).any() or (td < 0).any()):
         raise ValueError("cover_by_halves: every half must end above its start.")
-    order = np.empty(n, dtype=np.int32)
-    rank = np.empty(n, dtype=np.int32)
+    hptr, kids, cursor, stack, order, rank, first = _postorder_scratch(n)
     prank = np.empty(max(n, 1), dtype=np.int32)
     drank = np.empty(max(n, 1), dtype=np.int32)
-    hptr = np.empty(n + 1, dtype=np.int32)
-    kids = np.empty(n, dtype=np.int32)
-    cursor = np.empty(n, dtype=np.int32)
-    stack = np.empty(n, dtype=np.int32)
     hstart = np.empty(H, dtype=np.int32)
     horig = np.empty(H, dtype=np.int32)
     records = np.empty((max(H, 1), sizeof(half_t) // 8), dtype=np.float64)
@@ -736,7 +731,6 @@ def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
     best_r = np.empty(max(n, 1), dtype=np.int32)
     total_r = np.empty(max(n, 1), dtype=np.float64)
     alive = np.empty(n, dtype=np.int32)
-    first = np.empty(n, dtype=np.int32)
     claimed = np.empty(H, dtype=np.uint8)
     chosen_r = np.empty(H, dtype=np.uint8)
     best = np.empty(n, dtype=np.int64)
@@ -782,21 +776,13 @@ cdef int64_t _common_ancestors(const int64_t[::1] pnode, const int64_t[::1] a,
     cdef int32_t r
     if _postorder(pnode, cptr, kids, cursor, stack, order, rank, first, True) != n:
         return -2
-    for i in range(n + 1):
-        qptr[i] = 0
-    for k in range(q):
-        qptr[a[k] + 1] += 1
-        qptr[b[k] + 1] += 1
-    for i in range(n):
-        qptr[i + 1] += qptr[i]
+    pair_offsets(a, b, qptr)
     for k in range(q):
         qlist[qptr[a[k]]] = <int32_t>k
         qptr[a[k]] += 1
         qlist[qptr[b[k]]] = <int32_t>k
         qptr[b[k]] += 1
-    for i in range(n, 0, -1):
-        qptr[i] = qptr[i - 1]
-    qptr[0] = 0
+    shift_back(qptr)
     for i in range(n):
         dsu[i] = <int32_t>i
         done[i] = 0
@@ -847,13 +833,7 @@ def common_ancestors(const int64_t[::1] pnode, const int64_t[::1] a, const int64
     if q and (min(int(np.min(a)), int(np.min(b))) < 0 or
               max(int(np.max(a)), int(np.max(b))) >= n):
         raise ValueError(f"common_ancestors: pair nodes must lie in [0, {n}).")
-    cptr = np.empty(n + 1, dtype=np.int32)
-    kids = np.empty(n, dtype=np.int32)
-    cursor = np.empty(n, dtype=np.int32)
-    stack = np.empty(n, dtype=np.int32)
-    order = np.empty(n, dtype=np.int32)
-    rank = np.empty(n, dtype=np.int32)
-    first = np.empty(n, dtype=np.int32)
+    cptr, kids, cursor, stack, order, rank, first = _postorder_scratch(n)
     qptr = np.empty(n + 1, dtype=np.int32)
     qlist = np.empty(2 * q, dtype=np.int32)
     dsu = np.empty(n, dtype=np.int32)
