@@ -86,6 +86,53 @@ def test_default_is_omp_get_max_threads_on_free_cores(run_queue):
         assert validation.check_threads(2, "f") == 2     # an explicit count is kept
 
 
+def test_cores_at_start_holds_the_first_reading(run_queue, tmp_path, monkeypatch):
+    """Within ``cores_at_start`` the free cores are the reading taken on entry, whatever the
+    run queue says later (read_edges: Arrow's pool threads, still runnable right after its
+    read, must not count as other load for the label mapping); outside, the live reading."""
+    cores = len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else os.cpu_count()
+    run_queue(0)
+    with threads.cores_at_start():
+        run_queue(5 * cores)                     # the queue fills during the block
+        assert threads.free_cores() == cores
+        with threads.cores_at_start():           # nested: the outer reading holds
+            assert threads.free_cores() == cores
+    assert threads.free_cores() == 1             # after the block: the live reading
+    # read_edges takes its reading before the file is read: here the machine turns busy
+    # while the file is parsed (the run queue re-read at every call), and the mapping still
+    # gets the cores that were free when read_edges began
+    path = tmp_path / "e.csv"
+    path.write_text("a,b,w\nx,y,1\ny,z,2\n")
+    import fastmst
+    from fastmst.io import labels as io_labels
+    real = io_labels.label_kernel.text_ids
+    seen, readings = [], []
+
+    def spy(parts, n_tail, k):
+        seen.append(k)
+        return real(parts, n_tail, k)
+
+    import pyarrow.csv as pcsv
+    real_read = pcsv.read_csv
+    parsed = []
+
+    def read_csv(*args, **kwargs):               # the machine turns busy during the read
+        parsed.append(1)
+        return real_read(*args, **kwargs)
+
+    def reading():
+        readings.append(1)
+        return 5 * cores + 1 if parsed else 1
+    monkeypatch.setattr(pcsv, "read_csv", read_csv)
+    monkeypatch.setattr(io_labels.label_kernel, "text_ids", spy)
+    monkeypatch.setattr(threads, "_read_runnable", reading)
+    monkeypatch.setattr(threads, "_cached", [-1.0, 0])
+    monkeypatch.setattr(threads, "RUNNABLE_TTL", 0.0)
+    fastmst.read_edges(path)
+    assert seen == [min(threads.team_limit(), cores)]
+    assert threads.free_cores() == 1             # busy now, outside read_edges
+
+
 def test_run_queue_is_read_from_loadavg_text():
     """/proc/loadavg's fourth field is runnable/total tasks (proc(5), Linux man-pages)."""
     assert threads.parse_runnable("0.52 0.58 0.59 3/467 19612\n") == 3

@@ -19,6 +19,8 @@ OpenMP runtimes see the user's environment unchanged.  An explicit ``OMP_WAIT_PO
 """
 from __future__ import annotations
 
+import contextlib
+import contextvars
 import os
 import sys
 import time
@@ -104,11 +106,32 @@ def _cores() -> int:
         return os.cpu_count() or 1
 
 
+#: Within ``cores_at_start``: the free cores read when the block began (this context only).
+_held = contextvars.ContextVar("fastmst_free_cores_at_start", default=None)
+
+
+@contextlib.contextmanager
+def cores_at_start():
+    """Within the block, ``free_cores`` (and so ``threads=None``) keeps the reading taken when
+    the block began, in this thread's context only.  For a call made of phases whose own
+    threads would otherwise be counted as other load: ``read_edges`` maps labels right after
+    Arrow's threaded read, whose pool threads are still in the run queue for a moment, and
+    would then take one thread for the mapping on an idle machine."""
+    token = _held.set(free_cores())
+    try:
+        yield
+    finally:
+        _held.reset(token)
+
+
 def free_cores() -> int:
     """Cores of this process's CPU set that other runnable tasks do not take at this instant
     (at least 1): the CPU set's size minus the runnable tasks other than the caller, read from
     ``/proc/loadavg`` at most every ``RUNNABLE_TTL`` seconds.  Where the run queue cannot be
     read (not Linux), every core of the set counts as free."""
+    held = _held.get()
+    if held is not None:
+        return held
     now = time.monotonic()
     if now - _cached[0] > RUNNABLE_TTL:
         running = _read_runnable()

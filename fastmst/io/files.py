@@ -12,6 +12,7 @@ import dataclasses
 import numpy as np
 
 from fastmst import validation
+from fastmst._kernels import threads as kernel_threads
 from fastmst.io import registry
 from fastmst.io.adapters import chosen_attributes, forest_table, from_table
 from fastmst.io.atomic import atomic_write
@@ -138,7 +139,10 @@ def read_edges(path, *, tail=None, head=None, weight=None, format=None, nodes=No
                         f"{type(link_id).__name__} {shown(link_id)}.")
     request = registry.ReadRequest(tail, head, weight, nodes, progress, ids, declared_nodes,
                                    keep_columns, link_id, delimiter, decimal_comma)
-    return fmt.read_edges(p, compression, request, **fmt.options)
+    # The label mapping's threads follow the cores free when the read began: right after
+    # Arrow's threaded read its own pool threads would count as other load.
+    with kernel_threads.cores_at_start():
+        return fmt.read_edges(p, compression, request, **fmt.options)
 
 
 def _is_arrow_table(obj) -> bool:
