@@ -9,7 +9,8 @@ import pytest
 from hypothesis import given, settings, strategies as st
 from scipy.optimize import Bounds, LinearConstraint, milp
 
-from fastmst._kernels.treewalk import common_ancestors, cover_by_halves, first_covers
+from fastmst._kernels.halves import common_ancestors, cover_by_halves
+from fastmst._kernels.replacements import first_covers
 
 
 @st.composite

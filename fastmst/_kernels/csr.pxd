@@ -1,7 +1,7 @@
 # Pairs listed under both of their ends (compressed sparse rows): the counting and prefix sums
 # that the kernels building adjacency lists from endpoint arrays share (forest links in
 # paths.root_forest, candidate links in treewalk.adjacency, ancestor queries in
-# treewalk.common_ancestors).  Usage: ``pair_offsets``, then fill every slot of each pair's two
+# halves.common_ancestors).  Usage: ``pair_offsets``, then fill every slot of each pair's two
 # ends, advancing ``ptr[end]`` at each fill, then ``shift_back``.
 from libc.stdint cimport int32_t, int64_t
 

@@ -1,4 +1,5 @@
-"""Stubs for fastmst._kernels.treewalk (sides beyond tree edges; the light shallow tree walk)."""
+"""Stubs for fastmst._kernels.treewalk (sides beyond tree edges; the light shallow tree walk;
+tree distances and adjacency)."""
 import numpy as np
 from numpy.typing import NDArray
 
@@ -15,13 +16,3 @@ def adjacency(a: NDArray[np.int64], b: NDArray[np.int64], n_nodes: int
               ) -> tuple[NDArray[np.int64], NDArray[np.int64], NDArray[np.int64]]: ...
 def parent_links(indptr: NDArray[np.int64], nbr: NDArray[np.int64], link: NDArray[np.int64],
                  w: NDArray[np.float64], pred: NDArray[np.int64]) -> NDArray[np.int64]: ...
-def cover_by_halves(pnode: NDArray[np.int64], depth: NDArray[np.int64],
-                    starts: NDArray[np.int64], top_depth: NDArray[np.int64],
-                    cost: NDArray[np.float64], tie: NDArray[np.int64], threads: int = 1
-                    ) -> tuple[NDArray[np.int64], NDArray[np.float64], NDArray[np.bool_]]: ...
-def common_ancestors(pnode: NDArray[np.int64], a: NDArray[np.int64], b: NDArray[np.int64]
-                     ) -> NDArray[np.int64]: ...
-def first_covers(pnode: NDArray[np.int64], pedge: NDArray[np.int64], depth: NDArray[np.int64],
-                 n_links: int, tail: NDArray[np.int32] | NDArray[np.int64],
-                 head: NDArray[np.int32] | NDArray[np.int64], ranked: NDArray[np.int64]
-                 ) -> NDArray[np.int64]: ...

@@ -7,7 +7,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from fastmst import validation
-from fastmst._kernels.treewalk import common_ancestors, cover_by_halves
+from fastmst._kernels.halves import common_ancestors, cover_by_halves
 from fastmst.design.checks import check_nonnegative, graph_and_design
 from fastmst._kernels.tie_rule import edge_order
 
@@ -116,7 +116,7 @@ def _halves_cover(d, a, b, c, pos):
     """Frederickson and JaJa's reduction, solved exactly by dynamic programming over the tree.
 
     Every candidate (u, v) splits into its two halves, u up to the lowest common ancestor w
-    (``treewalk.common_ancestors``) and v up to w, each at the candidate's full cost; the cheapest set of halves covering every
+    (``halves.common_ancestors``) and v up to w, each at the candidate's full cost; the cheapest set of halves covering every
     coverable tree link is a minimum-cost arborescence of their digraph and costs at most twice
     the optimum (the two halves of each optimal candidate are one such set).
 
@@ -126,7 +126,7 @@ def _halves_cover(d, a, b, c, pos):
     the children's sum S(v) = sum f(c): r(v, h) = cost(h) for a half starting at v, and
     r(c, h) + S(c) - f(c) for one from child c; f(v) = S(v) + min r(v, h) over the halves still
     above v.  Each node keeps a leftist heap of r with lazy offsets
-    (``fastmst._kernels.treewalk.cover_by_halves``): O(H log H) for H halves.  The choice is
+    (``fastmst._kernels.halves.cover_by_halves``): O(H log H) for H halves.  The choice is
     rebuilt from the top down.
 
     Returns (indices of the chosen candidates, boolean per forest link: coverable, the
