@@ -200,24 +200,40 @@ def test_cheapest_pairs_match_brute_force(n, m, seed, dtype):
     assert w.tolist() == [float(weight[ref[k]]) for k in pairs]
 
 
-@pytest.mark.parametrize("seed", range(3))
-def test_cover_by_halves_two_threads_equal_one(seed):
-    """With two threads (a subtree on one, the ranks before it on the other) every output is
-    the same bit for bit as with one: the heaps see the same merges in the same order.  A
-    random tree of 40,000 nodes with 100,000 halves (above the size where the split starts),
-    costs with many ties and non-integer sums."""
+@pytest.mark.parametrize("seed,n,h", [(0, 3_000, 8_000), (1, 5_000, 4_000), (2, 2_000, 12_000)])
+def test_cover_by_halves_matches_the_lp_optimum_on_larger_trees(seed, n, h):
+    """On trees of thousands of nodes (segment trees many levels deep, with long-lived halves
+    and many removals): the cover's value equals the optimum of the covering LP solved by
+    scipy.optimize.linprog (HiGHS).  The LP optimum is the integer optimum here because the
+    matrix of upward paths in a rooted tree is a network matrix, hence totally unimodular
+    (Schrijver, "Theory of Linear and Integer Programming", 1986, ch. 19).  Costs with many
+    ties; the chosen halves cover every coverable link and cost that optimum."""
+    from scipy.optimize import linprog
+    from scipy.sparse import csr_array
     rng = np.random.default_rng(seed)
-    n = 40_000
     parent = np.concatenate([[-1], [int(rng.integers(max(0, i - 30), i)) for i in range(1, n)]])
     depth = np.zeros(n, dtype=np.int64)
     for i in range(1, n):
         depth[i] = depth[parent[i]] + 1
-    starts = rng.integers(1, n, 100_000)
-    top_depth = (rng.random(starts.size) * depth[starts]).astype(np.int64)
-    cost = rng.integers(1, 50, starts.size) * 0.1
-    tie = rng.integers(0, 1000, starts.size)
-    one = cover_by_halves(parent, depth, starts, top_depth, cost, tie, 1)
-    two = cover_by_halves(parent, depth, starts, top_depth, cost, tie, 2)
-    for a, b in zip(one, two):
-        assert a.tobytes() == b.tobytes()
-    assert (one[0] >= 0).sum() > n // 2         # a cover that is not trivial
+    starts = rng.integers(1, n, h)
+    top_depth = (rng.random(h) * depth[starts]).astype(np.int64)
+    cost = rng.integers(1, 50, h) * 0.1
+    tie = rng.integers(0, 1000, h)
+    best, total, chosen = cover_by_halves(parent, depth, starts, top_depth, cost, tie)
+    rows, cols = [], []
+    for k in range(h):
+        v = int(starts[k])
+        while depth[v] > top_depth[k]:
+            rows.append(v)
+            cols.append(k)
+            v = int(parent[v])
+    cover = csr_array((np.ones(len(rows)), (rows, cols)), shape=(n, h))
+    need = np.asarray(cover.sum(axis=1)).ravel() > 0
+    assert ((best >= 0) == need).all()
+    assert (cover[need][:, chosen].sum(axis=1) >= 1).all()
+    res = linprog(cost, A_ub=-cover[need], b_ub=-np.ones(int(need.sum())), bounds=(0, 1),
+                  method="highs")
+    assert res.status == 0
+    assert float(total[parent < 0].sum()) == pytest.approx(res.fun, rel=1e-9)
+    assert float(cost[chosen].sum()) == pytest.approx(res.fun, rel=1e-9)
+    assert need.sum() > n // 2                  # a cover that is not trivial

@@ -6,13 +6,13 @@ links (``fastmst.design.redundancy``).
     cut into its two halves (each end up to the common ancestor).
 ``cover_by_halves``
     The cheapest cover of the forest's links by those upward halves, by a dynamic programme
-    with mergeable heaps (the arborescence step of Frederickson and JaJa's 2-approximation).
+    over a segment tree (the arborescence step of Frederickson and JaJa's 2-approximation).
 
 Both take the nodes in a depth-first postorder (``_postorder``), children in node-id order.
 Inputs are int64 (node ids, parents, depths) and float64 (costs); int32 inside.
 """
 import numpy as np
-from cython.parallel cimport prange
+from libc.math cimport INFINITY
 from libc.stdint cimport int32_t, int64_t, uint8_t
 
 from fastmst._kernels.csr cimport pair_offsets, shift_back
@@ -166,138 +166,144 @@ def common_ancestors(const int64_t[::1] pnode, const int64_t[::1] a, const int64
 
 # cover_by_halves works in "rank space": nodes renumbered in the order they are taken (children
 # before parents: a depth-first postorder, children by node id) and halves renumbered by the
-# rank of their start, so every subtree is a range of ranks and its halves a range of records,
-# and the per-node arrays are read in sequence.  A half's heap fields share one 32-byte record
-# (one cache line holds two), and the tie-breaking values, needed only between equal keys, sit
-# apart.  Siblings are merged into their parent's heap in node-id order, as when nodes were
-# taken deepest first (by node id within a depth): the heaps, the order of the merges into each
-# and the floating-point operations are those of that plain version, so every result is the
-# same bit for bit (tests/test_design_kernels.py checks one thread against two).  Ids are int32
-# inside (the def refuses 2**31 or more nodes or halves).
-cdef struct half_t:
-    double key          # r(v, h) minus the lazy offsets still above it in its heap
-    double lazy         # offset to add to the keys of its two subheaps
-    int32_t left
-    int32_t right
-    int32_t npl         # null-path length (leftist heaps)
-    int32_t top_depth   # the half covers links below this depth
-
-
+# rank of their start, so every subtree is a range of ranks and the halves starting in it one
+# range of leaves of a segment tree.  The dynamic programme then needs only three operations on
+# that range: the least key (ties by the caller's tie value, then half index), adding a number
+# to every key, and removing one half.  The tree is the iterative one with add tags kept at
+# the nodes (a node's value is the least of its children's plus its own tag), so an operation
+# touches O(log H) nodes near the two ends of the range, and the ranges of consecutive nodes
+# lie side by side: the nodes touched stay in cache.  Ids are int32 inside (the def refuses
+# 2**31 or more nodes or halves).
 cdef struct tie_t:
     int64_t tie         # the caller's tie value (the earlier candidate first)
     int64_t half        # the caller's index of the half (the last tie-breaker)
 
 
-# The heap primitives take raw pointers: memoryview slices passed to a recursive function are
-# copied (and their acquisition counts updated) at every call.
-cdef inline bint _before(int32_t x, int32_t y, const half_t* rec,
+cdef struct seg_t:
+    double* val         # val[x]: least key below x, counting the tags of x and below
+    double* tag         # tag[x] (x < size): added to every key below x
+    int32_t* arg        # arg[x]: the half (leaf) holding that least key
+    const tie_t* tb
+    int64_t size        # leaves: the power of two >= H
+    int32_t levels      # log2(size)
+
+
+cdef inline bint _before(double va, int32_t a, double vb, int32_t b,
                          const tie_t* tb) noexcept nogil:
-    if rec[x].key != rec[y].key:
-        return rec[x].key < rec[y].key
-    if tb[x].tie != tb[y].tie:
-        return tb[x].tie < tb[y].tie
-    return tb[x].half < tb[y].half
+    """Key va of half a before key vb of half b: keys, then ties, then half index; a missing
+    half (-1, key +inf) never before a present one."""
+    if va != vb:
+        return va < vb
+    if a < 0 or b < 0:
+        return a >= 0 and b < 0
+    if tb[a].tie != tb[b].tie:
+        return tb[a].tie < tb[b].tie
+    return tb[a].half < tb[b].half
 
 
-cdef inline void _push_down(int32_t x, half_t* rec) noexcept nogil:
-    cdef double z = rec[x].lazy
-    cdef int32_t c
-    if z != 0.0:
-        c = rec[x].left
-        if c >= 0:
-            rec[c].key += z
-            rec[c].lazy += z
-        c = rec[x].right
-        if c >= 0:
-            rec[c].key += z
-            rec[c].lazy += z
-        rec[x].lazy = 0.0
+cdef inline void _pull(seg_t* s, int64_t x) noexcept nogil:
+    cdef int64_t l = 2 * x
+    cdef int64_t r = l + 1
+    if _before(s.val[r], s.arg[r], s.val[l], s.arg[l], s.tb):
+        l = r
+    s.val[x] = s.val[l] + s.tag[x]
+    s.arg[x] = s.arg[l]
 
 
-cdef int32_t _merge(int32_t a, int32_t b, half_t* rec, const tie_t* tb) noexcept nogil:
-    """Merge two leftist heaps: down the right paths (O(log H) records each), pushing the lazy
-    offsets down on the way, then the null-path lengths fixed on the way back (the steps of
-    the textbook recursion, in its order, with an explicit stack)."""
-    cdef int32_t stack[160]             # right paths of leftist heaps below 2**31 records
-    cdef int32_t t, nl, nr, x, top = 0
-    while a >= 0 and b >= 0:
-        if _before(b, a, rec, tb):
-            t = a
-            a = b
-            b = t
-        _push_down(a, rec)
-        stack[top] = a
-        top += 1
-        t = rec[a].right
-        a = t
-    x = a if a >= 0 else b
-    while top > 0:
-        top -= 1
-        a = stack[top]
-        rec[a].right = x
-        nl = rec[rec[a].left].npl if rec[a].left >= 0 else 0
-        nr = rec[x].npl if x >= 0 else 0
-        if nl < nr:
-            rec[a].right = rec[a].left
-            rec[a].left = x
-            nr = nl
-        rec[a].npl = nr + 1
-        x = a
-    return x
+cdef inline void _apply(seg_t* s, int64_t x, double z) noexcept nogil:
+    s.val[x] += z
+    if x < s.size:
+        s.tag[x] += z
 
 
-cdef void _dp_range(int64_t lo, int64_t hi, int64_t defer, const int32_t* hptr,
-                    const int32_t* drank, const int32_t* prank, half_t* rec, const tie_t* tb,
-                    int32_t* root, int32_t* best, double* total) noexcept nogil:
-    """The dynamic programme over the ranks lo .. hi - 1; at rank ``defer`` the heap is left in
-    root[defer] instead of merged into the parent's."""
-    cdef int64_t i
-    cdef int32_t r, p, j
-    cdef double m
-    for i in range(lo, hi):
-        r = root[i]
-        for j in range(hptr[i], hptr[i + 1]):
-            r = _merge(r, j, rec, tb)
-        while r >= 0 and rec[r].top_depth >= drank[i]:
-            _push_down(r, rec)                      # ends at v: covers nothing above
-            r = _merge(rec[r].left, rec[r].right, rec, tb)
-        p = prank[i]
-        if p < 0:
-            root[i] = -1
-            continue
-        if r >= 0:
-            m = rec[r].key
-            best[i] = r
-            total[i] += m
-            rec[r].key -= m
-            rec[r].lazy -= m
-        if i == defer:
-            root[i] = r
-            continue
-        root[i] = -1
-        total[p] += total[i]
-        root[p] = _merge(root[p], r, rec, tb)
+cdef inline void _push_path(seg_t* s, int64_t p) noexcept nogil:
+    """Move the tags above leaf p down to the nodes beside its path (top first)."""
+    cdef int32_t k
+    cdef int64_t x
+    cdef double z
+    for k in range(s.levels, 0, -1):
+        x = p >> k
+        z = s.tag[x]
+        if z != 0.0:
+            _apply(s, 2 * x, z)
+            _apply(s, 2 * x + 1, z)
+            s.tag[x] = 0.0
+
+
+cdef inline void _pull_path(seg_t* s, int64_t p) noexcept nogil:
+    p >>= 1
+    while p >= 1:
+        _pull(s, p)
+        p >>= 1
+
+
+cdef inline int32_t _least(seg_t* s, int64_t lo, int64_t hi, double* key) noexcept nogil:
+    """The half with the least key among leaves lo .. hi - 1 (-1 if all removed)."""
+    cdef int64_t l = lo + s.size
+    cdef int64_t r = hi + s.size
+    cdef double bv = INFINITY
+    cdef int32_t ba = -1
+    _push_path(s, l)
+    _push_path(s, r - 1)
+    while l < r:
+        if l & 1:
+            if _before(s.val[l], s.arg[l], bv, ba, s.tb):
+                bv = s.val[l]
+                ba = s.arg[l]
+            l += 1
+        if r & 1:
+            r -= 1
+            if _before(s.val[r], s.arg[r], bv, ba, s.tb):
+                bv = s.val[r]
+                ba = s.arg[r]
+        l >>= 1
+        r >>= 1
+    key[0] = bv
+    return ba
+
+
+cdef inline void _add(seg_t* s, int64_t lo, int64_t hi, double z) noexcept nogil:
+    """Add z to the keys of leaves lo .. hi - 1."""
+    cdef int64_t l = lo + s.size
+    cdef int64_t r = hi + s.size
+    cdef int64_t l0 = l, r0 = r - 1
+    while l < r:
+        if l & 1:
+            _apply(s, l, z)
+            l += 1
+        if r & 1:
+            r -= 1
+            _apply(s, r, z)
+        l >>= 1
+        r >>= 1
+    _pull_path(s, l0)
+    _pull_path(s, r0)
+
+
+cdef inline void _remove(seg_t* s, int64_t j) noexcept nogil:
+    s.val[j + s.size] = INFINITY
+    s.arg[j + s.size] = -1
+    _pull_path(s, j + s.size)
 
 
 cdef int64_t _cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
-                           const int64_t[::1] starts, const int64_t[::1] top_depth,
-                           const double[::1] cost, const int64_t[::1] tie,
-                           int32_t[::1] order, int32_t[::1] rank, int32_t[::1] prank,
-                           int32_t[::1] kids, int32_t[::1] cursor, int32_t[::1] stack,
-                           int32_t[::1] drank, int32_t[::1] hptr, int32_t[::1] hstart,
-                           int32_t[::1] horig, half_t* rec, tie_t* tb, int32_t[::1] root,
-                           int32_t[::1] best, double[::1] total, int32_t[::1] alive,
-                           uint8_t[::1] claimed, uint8_t[::1] chosen_r,
-                           int64_t[::1] best_out, double[::1] total_out,
-                           uint8_t[::1] chosen_out, int32_t[::1] first,
-                           int64_t threads) noexcept nogil:
+                              const int64_t[::1] starts, const int64_t[::1] top_depth,
+                              const double[::1] cost, const int64_t[::1] tie,
+                              int32_t[::1] order, int32_t[::1] rank, int32_t[::1] prank,
+                              int32_t[::1] kids, int32_t[::1] cursor, int32_t[::1] stack,
+                              int32_t[::1] drank, int32_t[::1] hptr, int32_t[::1] hstart,
+                              int32_t[::1] horig, int32_t[::1] htop, seg_t* s, tie_t* tb,
+                              int32_t[::1] best, double[::1] total, int32_t[::1] alive,
+                              uint8_t[::1] claimed, uint8_t[::1] chosen_r,
+                              int64_t[::1] best_out, double[::1] total_out,
+                              uint8_t[::1] chosen_out, int32_t[::1] first) noexcept nogil:
     cdef int64_t n = pnode.shape[0]
     cdef int64_t H = cost.shape[0]
-    cdef int64_t i, k, v, top, best_split, t
-    cdef int32_t p, x, y, s, h, j, c
-    # children before parents: depth-first postorder, children by node id, so that siblings
-    # are merged into their parent's heap in node-id order (the order of the merges is all
-    # that shapes the heaps) and every subtree is a range of ranks (its halves' records too)
+    cdef int64_t i, k, v, lo, hi
+    cdef int32_t p, y, sr, h, j
+    cdef double m
+    # children before parents: depth-first postorder, children by node id, so that every
+    # subtree is a range of ranks and the halves starting in it a range of leaves
     k = _postorder(pnode, hptr, kids, cursor, stack, order, rank, first, True)
     if k != n:
         return k                                     # a cycle: not every node under a top
@@ -314,17 +320,14 @@ cdef int64_t _cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth
     for i in range(n):
         hptr[i + 1] += hptr[i]
     for h in range(H):
-        s = rank[starts[h]]
-        j = hptr[s]
-        hptr[s] += 1
+        sr = rank[starts[h]]
+        j = hptr[sr]
+        hptr[sr] += 1
         horig[j] = h
-        hstart[j] = s
-        rec[j].key = cost[h]
-        rec[j].lazy = 0.0
-        rec[j].left = -1
-        rec[j].right = -1
-        rec[j].npl = 1
-        rec[j].top_depth = <int32_t>top_depth[h]
+        hstart[j] = sr
+        htop[j] = <int32_t>top_depth[h]
+        s.val[s.size + j] = cost[h]
+        s.arg[s.size + j] = j
         tb[j].tie = tie[h]
         tb[j].half = h
         claimed[j] = 0
@@ -332,59 +335,48 @@ cdef int64_t _cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth
     for i in range(n, 0, -1):
         hptr[i] = hptr[i - 1]
     hptr[0] = 0
+    for k in range(s.size + H, 2 * s.size):
+        s.val[k] = INFINITY
+        s.arg[k] = -1
+    for k in range(s.size - 1, 0, -1):
+        s.tag[k] = 0.0
+        _pull(s, k)
     for i in range(n):
-        root[i] = -1
         best[i] = -1
         total[i] = 0.0
         alive[i] = -1
-    # the nodes in order, children first; with two threads, the subtree of a node c with about
-    # half the work (nodes + halves) on one and the ranks before it on the other: they touch
-    # disjoint records and nodes but for c's merge into its parent, done after both, where the
-    # order of the one thread would have it (after every rank before c's subtree)
-    cdef int32_t* hp = &hptr[0]
-    cdef int32_t* dr = &drank[0]
-    cdef int32_t* pr = &prank[0]
-    cdef int32_t* ro = &root[0]
-    cdef int32_t* be = &best[0]
-    cdef double* to = &total[0]
-    c = -1
-    if threads >= 2 and H >= 65536:
-        k = 0
-        for i in range(n):
-            k += 1 + hptr[i + 1] - hptr[i]
-        best_split = 0
-        for i in range(n):                          # stack[i]: first rank of i's subtree
-            v = hptr[i + 1] - hptr[stack[i]] + i + 1 - stack[i]
-            if v > k - v:
-                v = k - v
-            if v > best_split:
-                best_split = v
-                c = <int32_t>i
-    if c < 0:
-        _dp_range(0, n, -1, hp, dr, pr, rec, tb, ro, be, to)
-    else:
-        for t in prange(2, num_threads=2, schedule="static", chunksize=1):
-            if t == 0:
-                _dp_range(stack[c], c + 1, c, hp, dr, pr, rec, tb, ro, be, to)
-            else:
-                _dp_range(0, stack[c], -1, hp, dr, pr, rec, tb, ro, be, to)
-        p = prank[c]
-        if p >= 0:
-            total[p] += total[c]
-            root[p] = _merge(root[p], root[c], rec, tb)
-        root[c] = -1
-        _dp_range(c + 1, n, -1, hp, dr, pr, rec, tb, ro, be, to)
+    # the programme, children first: f(v) = S(v) + the least key of the halves from v's subtree
+    # still running above v, where S(v) (in total[v] on arrival) sums the children's f and a
+    # half's key is its cost minus the least keys taken at the nodes it passed
+    for i in range(n):
+        p = prank[i]
+        if p < 0:
+            continue                                 # a tree top: no link above it
+        lo = hptr[stack[i]]
+        hi = hptr[i + 1]
+        if lo < hi:
+            while True:
+                j = _least(s, lo, hi, &m)
+                if j < 0 or htop[j] < drank[i]:
+                    break
+                _remove(s, j)                        # ends at v: covers nothing above
+            if j >= 0:
+                best[i] = j
+                total[i] += m
+                if m != 0.0:
+                    _add(s, lo, hi, -m)
+        total[p] += total[i]
     for i in range(n - 1, -1, -1):                  # from the top down
         h = alive[i] if alive[i] >= 0 else best[i]
         if h < 0:
             continue
         alive[i] = h
-        s = hstart[h]
-        if s == i:
+        sr = hstart[h]
+        if sr == i:
             chosen_r[h] = 1
         elif not claimed[h]:
             claimed[h] = 1
-            y = s
+            y = sr
             while y != i:
                 alive[y] = h
                 y = prank[y]
@@ -406,19 +398,17 @@ def _postorder_scratch(Py_ssize_t n):
 
 def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
                     const int64_t[::1] starts, const int64_t[::1] top_depth,
-                    const double[::1] cost, const int64_t[::1] tie, Py_ssize_t threads=1):
+                    const double[::1] cost, const int64_t[::1] tie):
     """The cheapest covering of a rooted forest's links by upward paths ("halves"), exactly.
 
     Half ``h`` runs from node ``starts[h]`` up to an ancestor at depth ``top_depth[h]`` (less
     than the start's) and covers the links on the way; it costs ``cost[h]`` (>= 0).  Nodes are
-    taken children first (a depth-first postorder): each keeps a leftist heap of the halves
-    from its subtree still running above it, keyed by the cheapest cover of the subtree that
-    uses them, minus the children's covers (one lazy offset per heap); the cheapest of them
-    covers the link to the parent.  O(H log H + V) after the postorder and a counting sort of
-    the halves by start; ties by ``tie``, then half index.  Fewer than 2**31 nodes and halves.
-    With ``threads`` >= 2 and at least 65,536 halves, a subtree with about half the work runs
-    on a second thread beside the nodes taken before it; the results are the same bit for bit
-    as with one thread.
+    taken children first (a depth-first postorder), so the halves starting in a subtree are one
+    range of a segment tree's leaves: each node takes the least key among those still running
+    above it (the cheapest cover of the subtree that uses the half, minus the children's
+    covers; halves that end at the node are removed as they come up), and subtracts it from
+    the range.  O((V + H) log H) after the postorder and a counting sort of the halves by
+    start; ties by ``tie``, then half index.  Fewer than 2**31 nodes and halves.
 
     Returns
     -------
@@ -437,11 +427,9 @@ def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
     if starts.shape[0] != H or top_depth.shape[0] != H or tie.shape[0] != H:
         raise ValueError("cover_by_halves: starts, top_depth, cost and tie must have one "
                          "length.")
-    if n >= 2**31 - 1 or H >= 2**31 - 1:
-        raise ValueError(f"cover_by_halves: at most 2**31 - 2 nodes and halves, received {n} "
-                         f"nodes and {H} halves.")
-    if threads < 1:
-        raise ValueError(f"cover_by_halves: threads must be >= 1, received {threads}.")
+    if n >= 2**31 - 1 or H >= 2**30:
+        raise ValueError(f"cover_by_halves: at most 2**31 - 2 nodes and 2**30 - 1 halves, "
+                         f"received {n} nodes and {H} halves.")
     if n and (int(np.min(pnode)) < -1 or int(np.max(pnode)) >= n):
         raise ValueError("cover_by_halves: parents must be -1 or nodes.")
     pn = np.asarray(pnode)
@@ -456,14 +444,21 @@ def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
         raise ValueError("cover_by_halves: starts must be nodes.")
     if H and bool((td >= np.asarray(depth)[st]).any() or (td < 0).any()):
         raise ValueError("cover_by_halves: every half must end above its start.")
+    cdef int64_t size = 1
+    cdef int32_t levels = 0
+    while size < H:
+        size *= 2
+        levels += 1
     hptr, kids, cursor, stack, order, rank, first = _postorder_scratch(n)
     prank = np.empty(max(n, 1), dtype=np.int32)
     drank = np.empty(max(n, 1), dtype=np.int32)
     hstart = np.empty(H, dtype=np.int32)
     horig = np.empty(H, dtype=np.int32)
-    records = np.empty((max(H, 1), sizeof(half_t) // 8), dtype=np.float64)
+    htop = np.empty(H, dtype=np.int32)
+    val = np.empty(2 * size, dtype=np.float64)
+    tag = np.empty(size, dtype=np.float64)
+    arg = np.empty(2 * size, dtype=np.int32)
     ties = np.empty((max(H, 1), sizeof(tie_t) // 8), dtype=np.int64)
-    root = np.empty(max(n, 1), dtype=np.int32)
     best_r = np.empty(max(n, 1), dtype=np.int32)
     total_r = np.empty(max(n, 1), dtype=np.float64)
     alive = np.empty(n, dtype=np.int32)
@@ -472,21 +467,27 @@ def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
     best = np.empty(n, dtype=np.int64)
     total = np.empty(n, dtype=np.float64)
     chosen = np.empty(H, dtype=np.uint8)
-    cdef double[:, ::1] rv = records
-    cdef int64_t[:, ::1] tv = ties
-    cdef half_t* rec = <half_t*>&rv[0, 0]
-    cdef tie_t* tb = <tie_t*>&tv[0, 0]
+    cdef double[::1] vv = val, tv = tag
+    cdef int32_t[::1] av = arg
+    cdef int64_t[:, ::1] tiv = ties
+    cdef seg_t seg
+    seg.val = &vv[0]
+    seg.tag = &tv[0]
+    seg.arg = &av[0]
+    seg.tb = <const tie_t*>&tiv[0, 0]
+    seg.size = size
+    seg.levels = levels
     cdef int32_t[::1] od = order, rk = rank, pr = prank, dr = drank, hp = hptr, hs = hstart
-    cdef int32_t[::1] ki = kids, cu = cursor, sk = stack
-    cdef int32_t[::1] ho = horig, ro = root, be = best_r, al = alive, fi = first
+    cdef int32_t[::1] ki = kids, cu = cursor, sk = stack, ht = htop
+    cdef int32_t[::1] ho = horig, be = best_r, al = alive, fi = first
     cdef double[::1] to = total_r, to_out = total
     cdef int64_t[::1] be_out = best
     cdef uint8_t[::1] cl = claimed, ch = chosen_r, ch_out = chosen
     cdef int64_t reached
     with nogil:
         reached = _cover_by_halves(pnode, depth, starts, top_depth, cost, tie, od, rk, pr, ki,
-                                   cu, sk, dr, hp, hs, ho, rec, tb, ro, be, to, al, cl, ch,
-                                   be_out, to_out, ch_out, fi, threads)
+                                   cu, sk, dr, hp, hs, ho, ht, &seg, <tie_t*>&tiv[0, 0], be,
+                                   to, al, cl, ch, be_out, to_out, ch_out, fi)
     if reached != n:
         raise ValueError(f"cover_by_halves: pnode is not a forest: {n - reached} nodes lie on "
                          f"cycles of parent links.")

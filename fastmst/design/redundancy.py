@@ -125,9 +125,10 @@ def _halves_cover(d, a, b, c, pos):
     and its link to the parent, and r(v, h) the cheapest such cover that contains half h, minus
     the children's sum S(v) = sum f(c): r(v, h) = cost(h) for a half starting at v, and
     r(c, h) + S(c) - f(c) for one from child c; f(v) = S(v) + min r(v, h) over the halves still
-    above v.  Each node keeps a leftist heap of r with lazy offsets
-    (``fastmst._kernels.halves.cover_by_halves``): O(H log H) for H halves.  The choice is
-    rebuilt from the top down.
+    above v.  Taken in a depth-first postorder, the halves starting in v's subtree are one range
+    of a segment tree's leaves, which gives the least r and subtracts f(v) - S(v) from the
+    range (``fastmst._kernels.halves.cover_by_halves``): O((V + H) log H) for H halves.  The
+    choice is rebuilt from the top down.
 
     Returns (indices of the chosen candidates, boolean per forest link: coverable, the
     optimum of the halves' covering, the cost of the halves chosen).
@@ -146,7 +147,7 @@ def _halves_cover(d, a, b, c, pos):
     tie = np.ascontiguousarray(pos[link], dtype=np.int64)   # the earlier candidate first
     best, total, chosen = cover_by_halves(pnode, depth, starts,
                                           depth[np.concatenate(tops)].astype(np.int64), cost,
-                                          tie, validation.check_threads(None, _FUNC))
+                                          tie)
     value = float(total[pnode < 0].sum())
     covered = np.zeros(d.fpos.shape[0], dtype=bool)
     child = np.flatnonzero(pnode >= 0)
@@ -238,7 +239,7 @@ def backup_links(tail, head, weight, forest=None, *, n_nodes=None, excluded=None
     the root, and a minimum-cost arborescence picks links whose cost is at most twice the
     optimum.  Here that arborescence is found as its equivalent: the cheapest covering of the
     tree links by the candidates' halves (each end up to the common ancestor), solved exactly
-    by a dynamic programme over the tree with mergeable heaps (O(E log E), in a kernel, after
+    by a dynamic programme over the tree with a segment tree (O(E log E), in a kernel, after
     the lowest common ancestors by Tarjan's offline algorithm, also in a kernel).  Of several
     parallel candidates only the cheapest (the earliest position among equal costs) is
     considered.
