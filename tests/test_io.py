@@ -232,6 +232,62 @@ def test_dimacs_gr(tmp_path):
     assert el.solve().weight == _nx_mst_weight(triples)  # networkx reference
 
 
+def test_dimacs_gr_top_comments_take_the_threaded_parse(tmp_path, monkeypatch):
+    """Comments only at the top: one parse, without a Python row handler (so on Arrow's
+    threads), with the comment lines skipped; a comment between arcs falls back to the parse
+    with the handler."""
+    from fastmst.io.formats import dimacs
+    calls = []
+    real = dimacs._read
+
+    def spy(path, delimiter, handler, skip=0):
+        calls.append((delimiter, handler is None, skip))
+        return real(path, delimiter, handler, skip)
+    monkeypatch.setattr(dimacs, "_read", spy)
+    p = tmp_path / "top.gr"
+    p.write_text("c one\nc two words\np sp 3 2\na 1 2 4\na 2 3 5\n")
+    el = io.read_edges(p)
+    assert calls == [(" ", True, 2)]
+    assert el.tail.tolist() == [0, 1] and el.weight.tolist() == [4, 5]
+    calls.clear()
+    p.write_text("c one\np sp 3 2\na 1 2 4\nc in between\na 2 3 5\n")
+    el = io.read_edges(p)
+    assert calls == [(" ", True, 1), (" ", False, 0)]
+    assert el.tail.tolist() == [0, 1] and el.weight.tolist() == [4, 5]
+
+
+@settings(max_examples=40, deadline=None)
+@given(st.integers(1, 30), st.integers(1, 60), st.integers(0, 2**31), st.booleans())
+def test_dimacs_gr_layouts_read_alike(tmp_path_factory, n, m, seed, integer_weights):
+    """The same arcs read the same whichever way the file is laid out: comments only at the
+    top (parsed on Arrow's threads), a comment between arcs (parsed with a row handler on the
+    calling thread), tabs and runs of blanks (split at whitespace); each equals the arcs
+    written.  A bad arc after top comments is still worded by the line scan."""
+    rng = np.random.default_rng(seed)
+    u = rng.integers(1, n + 1, m)
+    v = rng.integers(1, n + 1, m)
+    w = rng.integers(0, 100, m) if integer_weights else np.round(rng.random(m) * 10, 3)
+    arcs = [f"a {a} {b} {c}" for a, b, c in zip(u.tolist(), v.tolist(), w.tolist())]
+    d = tmp_path_factory.mktemp("gr")
+    layouts = {
+        "top": ["c invented arcs", "c more words in this comment", f"p sp {n} {m}"] + arcs,
+        "middle": [f"p sp {n} {m}"] + arcs[:m // 2] + ["c a comment of five words"]
+        + arcs[m // 2:],
+        "blanks": ["c x", f"p  sp\t{n} {m} "] + [a.replace(" ", "\t ", 1) for a in arcs],
+    }
+    for name, lines in layouts.items():
+        path = d / f"{name}.gr"
+        path.write_text("\n".join(lines) + "\n")
+        el = io.read_edges(path)
+        assert el.n_nodes == n and el.n_edges == m, name
+        assert (el.tail == u - 1).all() and (el.head == v - 1).all(), name
+        assert np.array_equal(el.weight, w), name
+    bad = d / "bad.gr"
+    bad.write_text("c top\n" + f"p sp {n} {m + 1}\n" + "\n".join(arcs) + "\na 1 1\n")
+    with pytest.raises(FileFormatError, match=f"line {m + 3}: 'a 1 1' should be"):
+        io.read_edges(bad)
+
+
 _LABELS = st.one_of(
     st.lists(st.integers(-2**62, 2**62), min_size=1, max_size=8, unique=True),
     st.lists(st.integers(0, 30), min_size=1, max_size=8, unique=True),
