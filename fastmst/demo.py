@@ -196,6 +196,13 @@ def run(out_dir="fastmst-demo-output", *, n_sites=30_000, seed=2024, reporter=No
         "                  from 0), link_id, surface, length_m, margin\n"
         "backbone.geojson  the backbone as RFC 7946 LineStrings\n"
         "backbone.png      map: backbone by surface over all candidates (grey)\n"
+        "resilience.csv    backup trenches near the exchange: from, to, cost, position, why\n"
+        "                  (tree or backup), single_point\n"
+        "resilience.png    map: those backup trenches\n"
+        "failures.png      map: the backbone trenches whose cut costs most to route around\n"
+        "feeders.png       map: feeder cables of limited size from the exchange (Esau-Williams)\n"
+        "shallow.png       map: a tree keeping every route from the exchange within 1.5 x\n"
+        "                  the shortest\n"
         "summary.json      the figures printed on screen\n\n" + CAUTIONS + "\n",
         encoding="utf-8")
     files += ["summary.json", "README.txt"]

@@ -1,12 +1,14 @@
 """The demo's design part (invented Low Marren scenario): what single trench cuts cost, backup
-trenches around the invented exchange, and routes kept short from it; maps of link sets
-coloured by why each link is there (also used by the design subcommands)."""
+trenches around the invented exchange, feeder cables of limited size from it, and routes kept
+short from it; maps of link sets coloured by why each link is there (also used by the design
+subcommands)."""
 from __future__ import annotations
 
 import numpy as np
 
 from fastmst import io
-from fastmst.design import backup_links, light_shallow_tree, link_failures
+from fastmst.design import (backup_links, capacitated_tree, light_shallow_tree,
+                            link_failures)
 from fastmst.plot import plot_forest
 
 DESIGN_CAUTION = ("Planning aid only: resilience requirements (diverse routing, shared ducts and "
@@ -15,10 +17,14 @@ DESIGN_CAUTION = ("Planning aid only: resilience requirements (diverse routing, 
 
 #: map colours of the ``why`` classes
 COLOURS = {"tree": "#1b4f9c", "backup": "#d62728", "feeder": "#ff7f0e", "branch": "#1b4f9c",
-           "shortcut": "#2ca02c", "single point": "#000000"}
+           "shortcut": "#2ca02c", "single point": "#000000",
+           "no alternative route": "#000000"}
 
-#: sites around the invented exchange given backup trenches in the demo
+#: sites around the invented exchange given backup trenches and feeders in the demo
 BACKUP_SITES = 3_000
+
+#: sites one feeder cable may serve in the demo (an invented figure)
+FEEDER_SITES = 150
 
 
 class Links:
@@ -77,7 +83,10 @@ def resilience(out, edges, forest, *, phase, plot=True, currency="cost units (in
                             columns=edges.columns)
         back = backup_links(local.tail, local.head, local.weight, n_nodes=local.n_nodes)
     with phase("shallow tree"):
-        shallow = light_shallow_tree(edges.tail, edges.head, edges.weight, exchange, alpha=1.5)
+        shallow = light_shallow_tree(edges.tail, edges.head, edges.weight, exchange, alpha=1.5,
+                                     n_nodes=edges.n_nodes)
+    with phase("feeders"):
+        feed, fedges, n_trench = _feeders(local, int(remap[exchange]))
     single = np.isin(back.forest, back.single_points)
     pos = np.concatenate([back.forest, back.position])
     why = np.concatenate([np.where(single, "single point", "tree"),
@@ -100,6 +109,8 @@ def resilience(out, edges, forest, *, phase, plot=True, currency="cost units (in
                                 f"{back.lower_bound:,.0f}, backbone {tree_w:,.0f}",
                        footnote="Invented data. " + DESIGN_CAUTION)
         files.append("resilience.png")
+        with phase("plotting"):
+            files += _design_maps(out, edges, fail, shallow, feed, fedges, n_trench)
     cut = int(np.argmax(fail.sites_cut_off)) if len(fail) else -1
     return {
         "exchange": str(edges.label([exchange])[0]),
@@ -112,11 +123,81 @@ def resilience(out, edges, forest, *, phase, plot=True, currency="cost units (in
         "backup_lower_bound": round(back.lower_bound, 2) if back.lower_bound else 0.0,
         "backup_single_points": int(back.single_points.size),
         "shallow_alpha": shallow.alpha,
-        "shallow_weight_ratio": round(shallow.weight / shallow.mst_weight, 4),
+        "shallow_weight_ratio": round(_weight_ratio(shallow), 4),
         "shallow_worst_stretch": round(float(np.nanmax(shallow.stretch)), 4),
         "shallow_shortcuts": int((shallow.reason == "shortcut").sum()),
+        "feeder_capacity_sites": FEEDER_SITES, "feeders": int(feed.load.size),
+        "feeder_largest_load": int(feed.load.max()) if feed.load.size else 0,
+        "feeder_tree_cost": round(feed.weight, 2), "feeder_unserved": int(feed.unserved.size),
         "files": files, "caution": DESIGN_CAUTION,
     }
+
+
+def _weight_ratio(shallow):
+    """The shallow tree's weight over the backbone's in the exchange's component (1 when both
+    are 0: an exchange without trenches)."""
+    return shallow.weight / shallow.mst_weight if shallow.mst_weight > 0 else 1.0
+
+
+def _feeders(local, root):
+    """Feeder cables from the exchange (``root``) to the sites of ``local``, each serving at
+    most FEEDER_SITES sites (Esau-Williams).  Besides the trenches, every site may have its
+    own cable from the exchange along its cheapest trench route, at that route's cost (the
+    shortest-path distances of ``light_shallow_tree``).  Returns the CapacitatedTree, the
+    EdgeList it was solved on (trenches, then the direct cables) and the number of trenches."""
+    direct = light_shallow_tree(local.tail, local.head, local.weight, root, alpha=2.0,
+                                n_nodes=local.n_nodes).shortest
+    sites = np.flatnonzero(np.isfinite(direct) & (np.arange(local.n_nodes) != root))
+    tail = np.concatenate([local.tail, np.full(sites.size, root)]).astype(np.int64)
+    head = np.concatenate([local.head, sites]).astype(np.int64)
+    weight = np.concatenate([np.asarray(local.weight, dtype=np.float64), direct[sites]])
+    fedges = io.EdgeList(tail, head, weight, local.n_nodes,
+                         labels=local.label(np.arange(local.n_nodes)), coords=local.coords,
+                         geographic=local.geographic, source="trenches and direct cables")
+    return (capacitated_tree(tail, head, weight, root, FEEDER_SITES, n_nodes=local.n_nodes),
+            fedges,
+            int(local.n_edges))
+
+
+def _design_maps(out, edges, fail, shallow, feed, fedges, n_trench):
+    """failures.png, feeders.png and shallow.png; returns their names."""
+    why = np.where(fail.bridge, "no alternative route", "tree")
+    finite = np.flatnonzero(~fail.bridge)
+    dear = finite[fail.cost_increase[finite] >= np.quantile(fail.cost_increase[finite], 0.99)] \
+        if finite.size else finite
+    names = [k for k in ("tree", "no alternative route") if (why == k).any()]
+    plot_forest(out / "failures.png", edges, Links(edges, fail.position),
+                groups=(np.array([names.index(w) for w in why.tolist()]), names,
+                        [COLOURS[k] for k in names]),
+                highlight=dear, highlight_label="dearest 1 % of cuts to route around",
+                title="Invented scenario: Low Marren - what a single trench cut costs",
+                subtitle=f"backbone seen from the exchange: the {dear.size:,} trenches whose cut "
+                         f"costs most to route around (red), {fail.n_bridges:,} with no "
+                         f"alternative route", footnote=DESIGN_CAUTION)
+    # the map shows the trenches and only the chosen direct cables (drawn straight)
+    shown = np.flatnonzero((np.arange(fedges.n_edges) < n_trench)
+                           | np.isin(np.arange(fedges.n_edges), feed.position))
+    back = np.full(fedges.n_edges, -1, dtype=np.int64)
+    back[shown] = np.arange(shown.size)
+    sub = io.EdgeList(fedges.tail[shown], fedges.head[shown], fedges.weight[shown],
+                      fedges.n_nodes, labels=fedges.label(np.arange(fedges.n_nodes)),
+                      coords=fedges.coords, geographic=fedges.geographic,
+                      source=fedges.source)
+    plot_links(out / "feeders.png", sub, back[feed.position], feed.reason,
+               title="Invented scenario: Low Marren - feeder cables of at most "
+                     f"{FEEDER_SITES} sites from the exchange",
+               subtitle=f"{fedges.n_nodes:,} sites nearest the exchange: {feed.load.size} "
+                        f"feeders (orange; direct cables drawn straight), largest "
+                        f"{int(feed.load.max()) if feed.load.size else 0} sites, cost "
+                        f"{feed.weight:,.0f}, {feed.unserved.size} unserved (Esau-Williams)")
+    plot_links(out / "shallow.png", edges, shallow.position, shallow.reason,
+               title="Invented scenario: Low Marren - routes from the exchange within "
+                     f"{shallow.alpha:g} x the shortest",
+               subtitle=f"a tree from the exchange: {int((shallow.reason == 'shortcut').sum()):,}"
+                        f" shortcut trenches (green) take the place of backbone links; weight "
+                        f"{_weight_ratio(shallow):.3f} x the backbone, worst "
+                        f"stretch {np.nanmax(shallow.stretch):.3f}")
+    return ["failures.png", "feeders.png", "shallow.png"]
 
 
 def resilience_lines(r) -> list:
@@ -136,5 +217,9 @@ def resilience_lines(r) -> list:
         f"  routes from the exchange within {r['shallow_alpha']:g} x the shortest: tree weight "
         f"{r['shallow_weight_ratio']:.3f} x the backbone, worst stretch "
         f"{r['shallow_worst_stretch']:.3f}, {r['shallow_shortcuts']:,} shortcut trenches",
+        f"  feeder cables of at most {r['feeder_capacity_sites']} sites for the "
+        f"{r['backup_sites']:,} sites nearest the exchange (Esau-Williams): {r['feeders']} "
+        f"feeders, largest {r['feeder_largest_load']} sites, cost {r['feeder_tree_cost']:,.0f}, "
+        f"{r['feeder_unserved']} unserved",
         "  " + r["caution"],
     ]

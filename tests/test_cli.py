@@ -266,6 +266,31 @@ def test_demo_default_folder(tmp_path):
     assert len(doc["features"]) == len(back)
     assert summary["sensitivity"] == "computed" and len(summary["nearly_tied_cost_choices"]) == 10
     assert "margin" in back[0]
+    # the design part: a map per tool, and the feeders within their invented capacity
+    for f in ("resilience.csv", "resilience.png", "failures.png", "feeders.png", "shallow.png"):
+        assert (out / f).exists(), f
+    r = summary["resilience"]
+    assert 0 < r["feeder_largest_load"] <= r["feeder_capacity_sites"] == 150
+    assert r["feeders"] >= r["backup_sites"] / 150
+    # every site with a trench route to the exchange can have its own cable, so exactly the
+    # sites outside the exchange's component are unserved (scipy.sparse.csgraph components)
+    from scipy.sparse.csgraph import connected_components
+    _, comp = connected_components(coo_array((w, (t, h)), shape=(1500, 1500)), directed=False)
+    assert r["backup_sites"] == 1500
+    assert r["feeder_unserved"] == int((comp != comp[ids[r["exchange"]]]).sum())
+    assert "feeder cables of at most 150 sites" in p.stdout
+
+
+@pytest.mark.parametrize("sites,seed", [(10, 1), (20, 1), (50, 2)])
+def test_demo_small_districts(tmp_path, sites, seed):
+    """Small invented districts (the exchange may have no trench, sites may be cut off) run
+    through every design step and map: exit code 0 and the design summary written."""
+    run(["demo", "--sites", str(sites), "--seed", str(seed), "--out", "d", "--quiet"], tmp_path,
+        check_rc=0)
+    r = json.loads((tmp_path / "d" / "summary.json").read_text())["resilience"]
+    assert r["backup_sites"] == sites and r["feeder_largest_load"] <= 150
+    for f in ("failures.png", "feeders.png", "shallow.png"):
+        assert (tmp_path / "d" / f).exists(), f
 
 
 def test_bench_json(workdir, capsys):
