@@ -116,9 +116,10 @@ def _halves_cover(d, a, b, c, pos):
     """Frederickson and JaJa's reduction, solved exactly by dynamic programming over the tree.
 
     Every candidate (u, v) splits into its two halves, u up to the lowest common ancestor w
-    (``halves.common_ancestors``) and v up to w, each at the candidate's full cost; the cheapest set of halves covering every
-    coverable tree link is a minimum-cost arborescence of their digraph and costs at most twice
-    the optimum (the two halves of each optimal candidate are one such set).
+    (``halves.common_ancestors``) and v up to w, each at the candidate's full cost; the
+    cheapest set of halves covering every coverable tree link is a minimum-cost arborescence of
+    their digraph and costs at most twice the optimum (the two halves of each optimal candidate
+    are one such set).
 
     The halves covering a tree link (v, parent) all start below v and run up the one path to
     the root, so their coverage above v is nested.  With f(v) the cheapest cover of v's subtree

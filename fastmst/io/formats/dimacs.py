@@ -5,9 +5,10 @@ Fields are separated by any run of whitespace (spaces, tabs, leading or trailing
 line ends).  pyarrow reads the lines and splits them: on its threads when the comments all come
 first (the usual layout: 0.63 s against 0.74 s on the calling thread for 5M arcs, best of 5),
 otherwise on the calling thread with a row handler that skips comments; when anything is off,
-the error path reads the file line by line and words the first problem.  The node count of the header is checked
-against the arcs the file holds before anything node-sized is allocated
-(:func:`fastmst.io.checks.check_declared_nodes`).  Column and node-table options do not apply.
+the error path reads the file line by line and words the first problem.  The node count of
+the header is checked against the arcs the file holds before anything node-sized is
+allocated (:func:`fastmst.io.checks.check_declared_nodes`).  Column and node-table options do
+not apply.
 """
 from __future__ import annotations
 
