@@ -69,3 +69,34 @@ def test_to_numpy_of_chunks_matches_numpy_concatenate(dtype, sizes, seed):
         np.dtype(dtype))))
     ref = np.concatenate(parts)
     assert got.dtype == ref.dtype and np.array_equal(got, ref) and got.flags.writeable
+
+
+def test_reading_text_labels_does_not_import_pandas(tmp_path):
+    """Two CSV files (text labels; ids that look like integers, read as text) read in a new
+    interpreter without importing pandas: pyarrow passes Python scalars and to_numpy calls
+    through its pandas shim, which imports pandas when it is installed (0.35 s measured on the
+    first read of a process); read_edges avoids those calls.  The values read are checked
+    after."""
+    import subprocess
+    import sys
+    text = tmp_path / "t.csv"
+    text.write_text("from,to,cost\nA,B,1.5\nB,C,2\nC,A,0.25\n")
+    ints = tmp_path / "i.csv"
+    ints.write_text("tail,head,weight\n3,4,1\n4,5,2\n")
+    code = (
+        "import sys\n"
+        "from fastmst import io\n"
+        f"e = io.read_edges({str(text)!r})\n"
+        f"f = io.read_edges({str(ints)!r})\n"
+        "print('pandas' in sys.modules)\n"
+        "assert e.tail.tolist() == [0, 1, 2] and e.weight.tolist() == [1.5, 2.0, 0.25]\n"
+        "assert e.label([0, 2]).tolist() == ['A', 'C']\n"
+        "assert f.weight.tolist() == [1, 2] and f.label([0]).tolist() == ['3']\n")
+    import os
+    root = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+    env = dict(os.environ, PYTHONPATH=os.pathsep.join(
+        [root] + [p for p in os.environ.get("PYTHONPATH", "").split(os.pathsep) if p]))
+    r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                       cwd=tmp_path, env=env, timeout=120)
+    assert r.returncode == 0, r.stderr
+    assert r.stdout.strip() == "False"
