@@ -93,7 +93,9 @@ def test_reading_text_labels_does_not_import_pandas(tmp_path):
         "assert e.label([0, 2]).tolist() == ['A', 'C']\n"
         "assert f.weight.tolist() == [1, 2] and f.label([0]).tolist() == ['3']\n")
     import os
-    root = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+
+    import fastmst
+    root = os.path.dirname(os.path.dirname(os.path.abspath(fastmst.__file__)))  # as imported
     env = dict(os.environ, PYTHONPATH=os.pathsep.join(
         [root] + [p for p in os.environ.get("PYTHONPATH", "").split(os.pathsep) if p]))
     r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
