@@ -9,6 +9,7 @@ import numpy as np
 from fastmst import io
 from fastmst.design import (backup_links, capacitated_tree, light_shallow_tree,
                             link_failures)
+from fastmst.design.shallow import shortest_paths
 from fastmst.plot import plot_forest
 
 DESIGN_CAUTION = ("Planning aid only: resilience requirements (diverse routing, shared ducts and "
@@ -44,14 +45,17 @@ class Links:
         return int(self.edges.shape[0])
 
 
-def plot_links(path, edges, positions, why, *, title, subtitle=None, footnote=None):
-    """A map of the links coloured by their ``why`` class over all candidates (grey)."""
+def plot_links(path, edges, positions, why, *, title, subtitle=None, footnote=None,
+               highlight=None, highlight_label=None):
+    """A map of the links coloured by their ``why`` class over all candidates (grey);
+    ``highlight`` (indices into ``positions``) drawn thick in red on top."""
     why = np.asarray(why, dtype=str)
     names = [k for k in COLOURS if (why == k).any()]
     idx = np.array([names.index(w) for w in why.tolist()], dtype=np.int64)
     return plot_forest(path, edges, Links(edges, positions),
                        groups=(idx, names, [COLOURS[k] for k in names]), title=title,
-                       subtitle=subtitle, footnote=footnote or DESIGN_CAUTION)
+                       subtitle=subtitle, footnote=footnote or DESIGN_CAUTION,
+                       highlight=highlight, highlight_label=highlight_label)
 
 
 def resilience(out, edges, forest, *, phase, plot=True, currency="cost units (invented)"):
@@ -143,10 +147,11 @@ def _feeders(local, root):
     """Feeder cables from the exchange (``root``) to the sites of ``local``, each serving at
     most FEEDER_SITES sites (Esau-Williams).  Besides the trenches, every site may have its
     own cable from the exchange along its cheapest trench route, at that route's cost (the
-    shortest-path distances of ``light_shallow_tree``).  Returns the CapacitatedTree, the
-    EdgeList it was solved on (trenches, then the direct cables) and the number of trenches."""
-    direct = light_shallow_tree(local.tail, local.head, local.weight, root, alpha=2.0,
-                                n_nodes=local.n_nodes).shortest
+    shortest-path distances).  Returns the CapacitatedTree, the EdgeList it was solved on
+    (trenches, then the direct cables) and the number of trenches."""
+    direct = shortest_paths(local.n_nodes, local.tail.astype(np.int64),
+                            local.head.astype(np.int64),
+                            np.asarray(local.weight, dtype=np.float64), root)[0]
     sites = np.flatnonzero(np.isfinite(direct) & (np.arange(local.n_nodes) != root))
     tail = np.concatenate([local.tail, np.full(sites.size, root)]).astype(np.int64)
     head = np.concatenate([local.head, sites]).astype(np.int64)
@@ -165,25 +170,23 @@ def _design_maps(out, edges, fail, shallow, feed, fedges, n_trench):
     finite = np.flatnonzero(~fail.bridge)
     dear = finite[fail.cost_increase[finite] >= np.quantile(fail.cost_increase[finite], 0.99)] \
         if finite.size else finite
-    names = [k for k in ("tree", "no alternative route") if (why == k).any()]
-    plot_forest(out / "failures.png", edges, Links(edges, fail.position),
-                groups=(np.array([names.index(w) for w in why.tolist()]), names,
-                        [COLOURS[k] for k in names]),
-                highlight=dear, highlight_label="dearest 1 % of cuts to route around",
-                title="Invented scenario: Low Marren - what a single trench cut costs",
-                subtitle=f"backbone seen from the exchange: the {dear.size:,} trenches whose cut "
-                         f"costs most to route around (red), {fail.n_bridges:,} with no "
-                         f"alternative route", footnote=DESIGN_CAUTION)
+    plot_links(out / "failures.png", edges, fail.position, why,
+               highlight=dear, highlight_label="dearest 1 % of cuts to route around",
+               title="Invented scenario: Low Marren - what a single trench cut costs",
+               subtitle=f"backbone seen from the exchange: the {dear.size:,} trenches whose cut "
+                        f"costs most to route around (red), {fail.n_bridges:,} with no "
+                        f"alternative route")
     # the map shows the trenches and only the chosen direct cables (drawn straight)
-    shown = np.flatnonzero((np.arange(fedges.n_edges) < n_trench)
-                           | np.isin(np.arange(fedges.n_edges), feed.position))
-    back = np.full(fedges.n_edges, -1, dtype=np.int64)
-    back[shown] = np.arange(shown.size)
+    keep = np.arange(fedges.n_edges) < n_trench
+    keep[feed.position] = True
+    shown = np.flatnonzero(keep)
+    at = np.full(fedges.n_edges, -1, dtype=np.int64)
+    at[shown] = np.arange(shown.size)
     sub = io.EdgeList(fedges.tail[shown], fedges.head[shown], fedges.weight[shown],
                       fedges.n_nodes, labels=fedges.label(np.arange(fedges.n_nodes)),
                       coords=fedges.coords, geographic=fedges.geographic,
                       source=fedges.source)
-    plot_links(out / "feeders.png", sub, back[feed.position], feed.reason,
+    plot_links(out / "feeders.png", sub, at[feed.position], feed.reason,
                title="Invented scenario: Low Marren - feeder cables of at most "
                      f"{FEEDER_SITES} sites from the exchange",
                subtitle=f"{fedges.n_nodes:,} sites nearest the exchange: {feed.load.size} "

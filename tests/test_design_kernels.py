@@ -178,7 +178,7 @@ def test_cheapest_pairs_match_brute_force(n, m, seed, dtype):
     """The candidate of every node pair: brute force over the usable links (lightest, then the
     earliest position; -0.0 equals +0.0), pairs in ascending order."""
     from fastmst import validation
-    from fastmst.design.redundancy import cheapest_pairs
+    from fastmst.design.pairs import cheapest_pairs
     rng = np.random.default_rng(seed)
     tail = rng.integers(0, n, m)
     head = rng.integers(0, n, m)

@@ -134,7 +134,7 @@ def test_halves_dynamic_programme_equals_the_arborescence_lp(case, random_design
     that optimum and cover every coverable design link."""
     from fastmst.design import redundancy
     from fastmst.design.checks import graph_and_design
-    from fastmst.design.shallow import best_links
+    from fastmst.design.pairs import cheapest_pairs
     tail, head, weight, n, excluded = case
     forest = None
     if random_design:
@@ -143,7 +143,7 @@ def test_halves_dynamic_programme_equals_the_arborescence_lp(case, random_design
         g = multigraph(tail, head, np.arange(len(tail))[::-1].astype(float), n, usable)
         forest = sorted(k for _, _, k in nx.minimum_spanning_edges(g, keys=True, data=False))
     d = graph_and_design(tail, head, weight, forest, n, excluded, "test")
-    a, b, c, pos = best_links(d.g, d.usable & ~d.in_forest)
+    a, b, c, pos = cheapest_pairs(d.g, d.usable & ~d.in_forest)
     picked, covered, value, chosen_cost = redundancy._halves_cover(d, a, b, c, pos)
     indptr, edges, side = redundancy._paths(d.pnode, d.depth, d.pedge, a, b)
     need = np.zeros(d.fpos.size, dtype=bool)

@@ -183,7 +183,7 @@ cdef struct seg_t:
     double* val         # val[x]: least key below x, counting the tags of x and below
     double* tag         # tag[x] (x < size): added to every key below x
     int32_t* arg        # arg[x]: the half (leaf) holding that least key
-    const tie_t* tb
+    tie_t* tb           # each leaf's tie values (written once, at the start)
     int64_t size        # leaves: the power of two >= H
     int32_t levels      # log2(size)
 
@@ -292,7 +292,7 @@ cdef int64_t _cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth
                               int32_t[::1] order, int32_t[::1] rank, int32_t[::1] prank,
                               int32_t[::1] kids, int32_t[::1] cursor, int32_t[::1] stack,
                               int32_t[::1] drank, int32_t[::1] hptr, int32_t[::1] hstart,
-                              int32_t[::1] horig, int32_t[::1] htop, seg_t* s, tie_t* tb,
+                              int32_t[::1] horig, int32_t[::1] htop, seg_t* s,
                               int32_t[::1] best, double[::1] total, int32_t[::1] alive,
                               uint8_t[::1] claimed, uint8_t[::1] chosen_r,
                               int64_t[::1] best_out, double[::1] total_out,
@@ -328,8 +328,8 @@ cdef int64_t _cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth
         htop[j] = <int32_t>top_depth[h]
         s.val[s.size + j] = cost[h]
         s.arg[s.size + j] = j
-        tb[j].tie = tie[h]
-        tb[j].half = h
+        s.tb[j].tie = tie[h]
+        s.tb[j].half = h
         claimed[j] = 0
         chosen_r[j] = 0
     for i in range(n, 0, -1):
@@ -474,7 +474,7 @@ def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
     seg.val = &vv[0]
     seg.tag = &tv[0]
     seg.arg = &av[0]
-    seg.tb = <const tie_t*>&tiv[0, 0]
+    seg.tb = <tie_t*>&tiv[0, 0]
     seg.size = size
     seg.levels = levels
     cdef int32_t[::1] od = order, rk = rank, pr = prank, dr = drank, hp = hptr, hs = hstart
@@ -486,7 +486,7 @@ def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
     cdef int64_t reached
     with nogil:
         reached = _cover_by_halves(pnode, depth, starts, top_depth, cost, tie, od, rk, pr, ki,
-                                   cu, sk, dr, hp, hs, ho, ht, &seg, <tie_t*>&tiv[0, 0], be,
+                                   cu, sk, dr, hp, hs, ho, ht, &seg, be,
                                    to, al, cl, ch, be_out, to_out, ch_out, fi)
     if reached != n:
         raise ValueError(f"cover_by_halves: pnode is not a forest: {n - reached} nodes lie on "

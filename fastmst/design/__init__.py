@@ -6,6 +6,7 @@
 ``capacitated``   ``capacitated_tree``: Esau-Williams, a capacity per subtree from the root
 ``redundancy``     ``backup_links``: cheapest links that survive any single link failure
 ``checks``         argument checks shared by these functions
+``pairs``          the one link per node pair they consider (parallel links: the tie rule's first)
 =================  ==============================================================================
 
 Outputs are planning aids: resilience requirements (diverse routing, shared ducts and

@@ -9,7 +9,7 @@ import numpy as np
 
 from fastmst import validation
 from fastmst.design.checks import check_capacity, check_demand, check_node
-from fastmst.design.shallow import best_links
+from fastmst.design.pairs import cheapest_pairs
 
 _FUNC = "capacitated_tree"
 
@@ -127,9 +127,9 @@ def capacitated_tree(tail, head, weight, root, capacity, *, demand=None, n_nodes
     usable = np.ones(g.n_edges, dtype=bool)
     if excluded is not None:
         usable[validation.check_positions(excluded, g.n_edges, "excluded", _FUNC)] = False
-    a, b, w, pos = best_links(g, usable)
+    a, b, w, pos = cheapest_pairs(g, usable)
     at_root = (a == root) | (b == root)
-    # feeders: the cheapest link of every site to the root (best_links keeps one per pair)
+    # feeders: the cheapest link of every site to the root (cheapest_pairs keeps one per pair)
     inf = float("inf")
     gate_w = [inf] * n
     gate_p = [-1] * n

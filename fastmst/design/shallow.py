@@ -7,7 +7,6 @@ from dataclasses import dataclass
 import numpy as np
 
 from fastmst import validation
-from fastmst._kernels.tie_rule import edge_order
 from fastmst._kernels.treewalk import adjacency, light_shallow_walk, parent_links, tree_distances
 from fastmst.design.checks import check_alpha, check_node, check_nonnegative
 from fastmst.solve import minimum_spanning_forest
@@ -63,21 +62,6 @@ class ShallowTree:
         s[(self.distance == 0) & (self.shortest == 0)] = 1.0
         s[~np.isfinite(self.shortest)] = np.nan
         return s
-
-
-def best_links(g, usable: np.ndarray):
-    """The tie-rule-first usable link of every unordered node pair (no self-loops).
-
-    Returns (a, b, w, pos): a < b, float64 lengths, input positions; sorted by pair."""
-    keep = np.flatnonzero(usable & (g.ktail != g.khead))
-    keep = keep[edge_order(g.kweight[keep], False)]          # tie-rule order
-    a = np.minimum(g.ktail[keep], g.khead[keep]).astype(np.int64)
-    b = np.maximum(g.ktail[keep], g.khead[keep]).astype(np.int64)
-    order = np.argsort(a * g.n_nodes + b, kind="stable")     # by pair, tie-rule order within
-    a, b, keep = a[order], b[order], keep[order]
-    first = np.ones(a.shape[0], dtype=bool)
-    first[1:] = (a[1:] != a[:-1]) | (b[1:] != b[:-1])
-    return a[first], b[first], g.weight[keep[first]].astype(np.float64), keep[first]
 
 
 def shortest_paths(n: int, a, b, w, root: int):

@@ -48,8 +48,7 @@ def to_numpy(col) -> np.ndarray:
     pyarrow's pool, which keeps freed memory for the next read (a fresh NumPy array of a large
     column costs page faults on every read)."""
     import pyarrow as pa
-    if isinstance(col, pa.ChunkedArray) and col.num_chunks > 1 and not col.null_count and \
-            (pa.types.is_integer(col.type) or pa.types.is_floating(col.type)):
+    if isinstance(col, pa.ChunkedArray) and col.num_chunks > 1 and _fixed_width(col):
         dtype = np.dtype(col.type.to_pandas_dtype())
         out = np.frombuffer(pa.allocate_buffer(max(1, len(col)) * dtype.itemsize),
                             dtype=dtype)[:len(col)]
