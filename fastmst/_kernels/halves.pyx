@@ -392,8 +392,8 @@ cdef int64_t _cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth
 def _postorder_scratch(Py_ssize_t n):
     """The int32 work arrays of ``_postorder`` over n nodes: (child offsets, kids, cursor,
     stack, order, rank, first)."""
-    return (np.empty(n + 1, dtype=np.int32),) + tuple(np.empty(n, dtype=np.int32)
-                                                      for _ in range(6))
+    return (np.empty(n + 1, dtype=np.int32),) + tuple([np.empty(n, dtype=np.int32)
+                                                       for _ in range(6)])
 
 
 def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,

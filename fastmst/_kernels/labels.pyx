@@ -482,7 +482,7 @@ def text_ids(chunks, Py_ssize_t n_tail, int threads=1):
     if threads < 1:
         raise ValueError(f"text_ids: threads must be positive, received {threads}.")
     pieces = [_pieces(c) for c in chunks]
-    total = sum(int(o.shape[0]) - 1 for o, _ in pieces)
+    total = sum([int(o.shape[0]) - 1 for o, _ in pieces])
     if n_tail < 0 or n_tail > total:
         raise ValueError(f"text_ids: n_tail={n_tail} is outside 0..{total} (the rows given).")
     if total >= 2**31 - 1:
@@ -519,7 +519,7 @@ def text_ids(chunks, Py_ssize_t n_tail, int threads=1):
         base = 0
         done = 0
         for segs in _segments(pieces, size):
-            rows = sum(hi - lo for _, lo, hi in segs)
+            rows = sum([hi - lo for _, lo, hi in segs])
             seg_a = np.zeros((len(segs), 6), dtype=np.intp)
             at = 0
             for r, (c, lo, hi) in enumerate(segs):
@@ -556,7 +556,9 @@ def text_ids(chunks, Py_ssize_t n_tail, int threads=1):
             for q in range(PARTS):
                 if parts[q].failed:
                     raise MemoryError("text_ids: no memory for the label tables.")
-            fresh = sum(parts[q].count for q in range(PARTS))
+            fresh = 0
+            for q in range(PARTS):
+                fresh += parts[q].count
             if fresh > gptr_a.shape[0]:
                 k = max(fresh, 2 * gptr_a.shape[0])
                 gptr_a = np.concatenate([gptr_a[:base], np.empty(k - base, np.uint64)])

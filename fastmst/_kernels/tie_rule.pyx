@@ -36,8 +36,8 @@ from fastmst._kernels import radix
 
 
 #: The weight dtypes the kernels read in place (native byte order).
-KERNEL_DTYPES = frozenset(np.dtype(t) for t in (np.float32, np.float64, np.int32, np.int64,
-                                                np.uint32, np.uint64))
+KERNEL_DTYPES = frozenset([np.dtype(t) for t in (np.float32, np.float64, np.int32, np.int64,
+                                                 np.uint32, np.uint64)])
 
 
 def key_kind(dtype):
