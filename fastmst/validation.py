@@ -118,6 +118,7 @@ class EdgeArrays:
 def _as_1d(x, name: str, func: str) -> np.ndarray:
     if x is None:
         raise TypeError(f"{func}: {name} is None; expected a 1-D array of length E.")
+    check_unmasked(x, name, func)
     try:
         arr = np.asarray(x)
     except (ValueError, TypeError) as exc:
@@ -128,6 +129,22 @@ def _as_1d(x, name: str, func: str) -> np.ndarray:
                          f"pass one value per edge (flatten with .ravel() if that is what "
                          f"you meant).")
     return arr
+
+
+def check_unmasked(x, name: str, func: str) -> None:
+    """A masked entry of a NumPy masked array is a missing value: refuse it rather than read the
+    data hidden under the mask (np.asarray would)."""
+    if not isinstance(x, np.ma.MaskedArray):
+        return
+    mask = np.ma.getmaskarray(x)
+    if mask.any():
+        flat = np.flatnonzero(mask.ravel())
+        at = np.unravel_index(int(flat[0]), mask.shape)
+        where = f"{name}[{', '.join(str(int(k)) for k in at)}]"
+        raise ValueError(f"{func}: {name} is a masked array with {flat.size} masked "
+                         f"entr{'y' if flat.size == 1 else 'ies'} (the first is {where}); a "
+                         f"masked entry is a missing value. Drop those rows or fill them "
+                         f"({name}.filled(value)) first.")
 
 
 def _native_contiguous(arr: np.ndarray, dtype=None) -> np.ndarray:
@@ -346,6 +363,7 @@ def check_bool(value, name: str, func: str) -> bool:
 
 def check_positions(positions, n_edges: int, name: str, func: str) -> np.ndarray:
     """Edge positions in [0, n_edges) as a new int64 array (order kept)."""
+    check_unmasked(positions, name, func)
     arr = np.asarray(positions if positions is not None else [], dtype=None)
     if arr.ndim != 1:
         raise ValueError(f"{func}: {name} must be a 1-D array of edge positions, received shape "

@@ -337,3 +337,41 @@ def test_messages_show_large_arrays_by_shape(shape, dtype):
     assert len(message) < 300, message
     if value.size > 8:
         assert f"shape {value.shape}" in message and str(value.dtype) in message
+
+
+# A masked entry of a NumPy masked array is a missing value.  np.asarray drops the mask and
+# would hand the hidden data to the solver (a wrong answer, not an error), so every array entry
+# point refuses masked entries and accepts a masked array whose mask is all False.
+def _masked_calls():
+    t = np.array([0, 1, 2, 0, 3])
+    h = np.array([1, 2, 3, 3, 4])
+    w = np.array([4.0, 1.0, 2.0, 3.0, 5.0])
+    pts = np.array([[0.0, 0.0], [1.0, 0.0], [1.0, 2.0], [4.0, 1.0]])
+    f = MSF(t, h, w)
+    return {
+        "tail": (lambda a: MSF(a, h, w).edges, t),
+        "head": (lambda a: MSF(t, a, w).edges, h),
+        "weight": (lambda a: MSF(t, h, a).edges, w),
+        "edges": (lambda a: fastmst.check_forest(t, h, w, a).is_minimum, f.edges),
+        "terminals": (lambda a: fastmst.steiner_tree(t, h, w, a).edges, np.array([0, 2, 4])),
+        "points": (lambda a: fastmst.point_spanning_tree(a).edges, pts),
+        "required": (lambda a: MSF(t, h, w, required=a).edges, np.array([4])),
+    }
+
+
+@pytest.mark.parametrize("name", sorted(_masked_calls()))
+@settings(max_examples=15, deadline=None)
+@given(data=st.data())
+def test_masked_entries_are_refused(name, data):
+    call, arr = _masked_calls()[name]
+    mask = np.zeros(arr.shape, dtype=bool)
+    flat = data.draw(st.integers(0, arr.size - 1), label="masked position")
+    mask.flat[flat] = True
+    hidden = arr.copy()
+    hidden.flat[flat] = data.draw(st.sampled_from([0, 1, 3]), label="hidden value")
+    with pytest.raises(ValueError, match=rf"{name} is a masked array with 1 masked entry.*"
+                                         r"missing value"):
+        call(np.ma.array(hidden, mask=mask))
+    # an all-False mask is the plain array
+    np.testing.assert_array_equal(call(np.ma.array(arr, mask=np.zeros(arr.shape, bool))),
+                                  call(arr))

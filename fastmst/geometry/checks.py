@@ -6,13 +6,14 @@ from __future__ import annotations
 
 import numpy as np
 
-from fastmst.validation import shown
+from fastmst.validation import check_unmasked, shown
 
 
 def check_points(points, func: str, name: str = "points") -> np.ndarray:
     """Coordinates as a new or viewed C-contiguous float64 array of shape (n, d); finite values."""
     if points is None:
         raise TypeError(f"{func}: {name} is None; expected an array of shape (n_points, d).")
+    check_unmasked(points, name, func)
     try:
         arr = np.asarray(points)
     except (ValueError, TypeError) as exc:
@@ -73,6 +74,7 @@ def check_terminals(terminals, n_nodes: int, func: str) -> np.ndarray:
     """Terminal node ids as a new sorted int64 array without repeats."""
     if terminals is None:
         raise TypeError(f"{func}: terminals is None; expected a 1-D array of node ids.")
+    check_unmasked(terminals, "terminals", func)
     arr = np.asarray(terminals)
     if arr.ndim != 1:
         raise ValueError(f"{func}: terminals must be a 1-D array of node ids, received shape "

@@ -15,6 +15,7 @@ EARTH_RADIUS_M = 6_371_008.8
 
 
 def _coords(a, name: str, func: str) -> np.ndarray:
+    validation.check_unmasked(a, name, func)
     arr = np.asarray(a)
     if arr.dtype.kind not in "iuf":
         raise TypeError(f"{func}: {name} must be numeric coordinates, received dtype "

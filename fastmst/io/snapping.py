@@ -59,6 +59,7 @@ def check_tolerance(tolerance, func: str) -> float:
 
 
 def _points(points, func):
+    validation.check_unmasked(points, "points", func)
     p = np.asarray(points, dtype=np.float64)
     if p.ndim != 2 or p.shape[1] != 2:
         raise ValueError(f"{func}: points must have shape (P, 2), received shape {p.shape}.")
