@@ -846,3 +846,48 @@ def test_uint64_weights_read_and_odd_dtypes_refused(tmp_path):
     np.savez(tmp_path / "c.npz", tail=t, head=h, weight=big.astype(complex))
     with pytest.raises(FileFormatError, match=r"c\.npz: column 'weight' holds complex"):
         io.read_edges(tmp_path / "c.npz")
+
+
+# A header that names two columns alike: reading by name would take one and drop the other
+# unseen (one column for both endpoints: every edge a self-loop, an empty forest; a carried
+# column: its twin's values lost).  Every such file or table is refused, naming the columns.
+@settings(max_examples=25, deadline=None)
+@given(role=st.sampled_from(["tail", "head", "weight", "carried"]),
+       fmt=st.sampled_from(["csv", "tsv", "parquet", "table"]))
+def test_duplicate_column_names_are_refused(tmp_path_factory, role, fmt):
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+    names = ["tail", "head", "weight", "note"]
+    twin = {"tail": 0, "head": 1, "weight": 2, "carried": 3}[role]
+    names.append(names[twin])
+    cols = [pa.array(["a", "b"]), pa.array(["b", "c"]), pa.array([1.0, 2.0]),
+            pa.array(["p", "q"]), pa.array(["r", "s"])]
+    if twin < 2:
+        cols[4] = pa.array(["c", "a"])
+    elif twin == 2:
+        cols[4] = pa.array([5.0, 6.0])
+    table = pa.Table.from_arrays(cols, names=names)
+    path = tmp_path_factory.mktemp("dup") / f"edges.{ 'txt' if fmt == 'table' else fmt}"
+    if fmt == "table":
+        read = lambda: io.from_table(table)  # noqa: E731
+    else:
+        if fmt == "parquet":
+            pq.write_table(table, path)
+        else:
+            sep = "," if fmt == "csv" else "\t"
+            path.write_text(sep.join(names) + "\n" + "\n".join(
+                sep.join(str(c[i].as_py()) for c in cols) for i in range(2)) + "\n")
+        read = lambda: io.read_edges(path)  # noqa: E731
+    with pytest.raises(io.FileFormatError, match=rf"names 2 columns '{names[twin]}' "
+                                                  rf"\(columns {twin + 1}, 5\)"):
+        read()
+    if role == "carried" and fmt != "table":
+        # leaving the twin out of the carried columns reads the edges
+        assert io.read_edges(path, keep_columns=[]).n_edges == 2
+
+
+def test_tail_and_head_one_column_is_refused(tmp_path):
+    path = tmp_path / "edges.csv"
+    path.write_text("a,b,w\n1,2,3\n")
+    with pytest.raises(io.FileFormatError, match="tail and head are both column 'a'"):
+        io.read_edges(path, tail="a", head="a")

@@ -140,7 +140,24 @@ def choose_edge_columns(names, tail, head, weight, source, geometry):
                               f"or pick a weight column from {', '.join(map(repr, names))}.")
     if not (geometry and weight == "length" and "length" not in names):
         check_column(weight, names, source, "weight", "read_edges")
+    check_distinct_columns(names, {"tail": tail, "head": head, "weight": weight}, source)
     return tail, head, weight
+
+
+def check_distinct_columns(names, roles, source) -> None:
+    """Each role (``{role: column name}``) names a column that occurs once in ``names``, and
+    tail and head are two different columns (one column for both makes every edge a self-loop).
+    """
+    for role, col in roles.items():
+        at = [i + 1 for i, n in enumerate(names) if n == col]
+        if len(at) > 1:
+            raise FileFormatError(f"{source}: the header names {len(at)} columns {col!r} "
+                                  f"(columns {', '.join(map(str, at))}), so the {role} column "
+                                  f"is ambiguous; rename them so that each name is unique.")
+    if roles.get("tail") is not None and roles.get("tail") == roles.get("head"):
+        raise FileFormatError(f"{source}: tail and head are both column {roles['tail']!r}; "
+                              f"an edge needs two endpoint columns. Name the head column "
+                              f"(CLI: --head NAME).")
 
 
 def carried_columns(names, cols, keep, link_id, source, func="read_edges") -> list:
@@ -170,7 +187,15 @@ def carried_columns(names, cols, keep, link_id, source, func="read_edges") -> li
                                   f"endpoint or weight column; name links by another column "
                                   f"(--link-id) or choose --tail/--head/--weight.")
         chosen = [link_id] + [c for c in chosen if c != link_id]
-    return [c for c in dict.fromkeys(chosen) if c not in cols and c != "position"]
+    carried = [c for c in dict.fromkeys(chosen) if c not in cols and c != "position"]
+    for c in carried:
+        at = [i + 1 for i, n in enumerate(names) if n == c]
+        if len(at) > 1:   # carrying one would drop the other's values unseen
+            raise FileFormatError(f"{source}: the header names {len(at)} columns {c!r} "
+                                  f"(columns {', '.join(map(str, at))}); rename them so that "
+                                  f"each name is unique, or leave {c!r} out of keep_columns "
+                                  f"(CLI: --keep-columns).")
+    return carried
 
 
 # a number as written in a file: no leading zeros (007 stays text), optional fraction/exponent
