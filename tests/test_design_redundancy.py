@@ -156,3 +156,27 @@ def test_halves_dynamic_programme_equals_the_arborescence_lp(case, random_design
     cols = redundancy._exact(half_ptr, edges, np.repeat(c, 2), need)
     assert value == pytest.approx(float(np.repeat(c, 2)[cols].sum()), abs=1e-9)
     assert chosen_cost == pytest.approx(value, abs=1e-9)
+
+
+@settings(max_examples=50, deadline=None)
+@given(graphs(max_nodes=9, max_edges=20), st.data())
+def test_infinite_cost_candidates_are_never_chosen(case, data):
+    """A candidate of cost inf is not worth building: the result equals the call in which those
+    links are excluded (same design given), in both modes; the LP bound stays finite (scipy's
+    linprog refuses infinite costs, which once surfaced as its own error message)."""
+    tail, head, weight, n, _ = case
+    forest = fastmst.minimum_spanning_forest(tail, head, weight, n).edges
+    others = np.setdiff1d(np.arange(tail.size), forest)
+    if others.size == 0:
+        return
+    inf_at = np.array(data.draw(st.lists(st.sampled_from(others.tolist()), min_size=1,
+                                         unique=True), label="infinite candidates"))
+    w_inf = weight.copy()
+    w_inf[inf_at] = np.inf
+    for exact in (False, True):
+        got = backup_links(tail, head, w_inf, forest, n_nodes=n, exact=exact)
+        ref = backup_links(tail, head, weight, forest, n_nodes=n, excluded=inf_at, exact=exact)
+        np.testing.assert_array_equal(got.position, ref.position)
+        np.testing.assert_array_equal(got.single_points, ref.single_points)
+        assert got.weight == ref.weight and np.isfinite(got.weight)
+        assert got.lower_bound == ref.lower_bound

@@ -6,8 +6,9 @@ and uint64 extremes (summed exactly, then rounded once).  The reference is exact
 arithmetic (``fractions.Fraction``; ``float(Fraction)`` is correctly rounded and raises
 OverflowError beyond the float64 range, Python docs of ``fractions``), with IEEE 754's rules
 for infinities.  Every place that sums weights is checked: ``SpanningForest.weight`` and its
-``repr``, ``required_excess`` (``required=``), ``check_forest``'s ``excess`` and
-``steiner_tree``'s ``weight``.
+``repr``, ``required_excess`` (``required=``), ``check_forest``'s ``excess``,
+``steiner_tree``'s ``weight`` and the design tools' totals (``backup_links``,
+``capacitated_tree``, ``light_shallow_tree``).
 """
 import math
 from fractions import Fraction
@@ -156,3 +157,38 @@ def test_steiner_total_never_raises(values, dtype):
     assert sorted(s.edges.tolist()) == list(range(m))
     assert s.weight == exact_total(w.tolist())
     assert "weight=" in repr(s)
+
+
+_nonnegative_values = st.one_of(
+    st.sampled_from([1e16, 1.0, 3.0, 0.0, 1e-3, 5e-324, MAX / 2, 2.0**53]),
+    st.floats(min_value=0.0, max_value=MAX))
+
+
+@given(st.lists(_nonnegative_values, min_size=1, max_size=12))
+def test_design_totals_exact(values):
+    """On a path every link is in the shallow and the capacitated tree, and each link's parallel
+    twin is the only backup for it: each total is the exact sum of those links, rounded once
+    (a plain float sum loses the 1.0 in 1e16 + 1.0 + 1.0)."""
+    from fastmst import design
+    w = np.array(values, dtype=np.float64)
+    m = w.shape[0]
+    path_t, path_h = np.arange(m), np.arange(1, m + 1)
+    if np.isinf(np.cumsum(w)).any():
+        # a site's distance from the root (a float64 sum, as scipy's dijkstra adds) overflows:
+        # refused, not reported unreached
+        with pytest.raises(ValueError, match="exceeds the float64 range"):
+            design.light_shallow_tree(path_t, path_h, w, 0, alpha=2.0)
+    else:
+        shallow = design.light_shallow_tree(path_t, path_h, w, 0, alpha=2.0)
+        assert shallow.unreached == 0
+        assert same(shallow.weight, exact_total(values))
+        assert same(shallow.mst_weight, exact_total(values))
+    cap = design.capacitated_tree(path_t, path_h, w, 0, m)
+    np.testing.assert_array_equal(cap.position, np.arange(m))
+    assert same(cap.weight, exact_total(values))
+    # the path at cost 0 is the design; twin i (position m + i) parallels link i
+    t2, h2 = np.concatenate([path_t, path_t]), np.concatenate([path_h, path_h])
+    backup = design.backup_links(t2, h2, np.concatenate([np.zeros(m), w]), np.arange(m),
+                                 lower_bound=False)
+    np.testing.assert_array_equal(backup.position, np.arange(m, 2 * m))
+    assert same(backup.weight, exact_total(values))

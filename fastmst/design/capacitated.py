@@ -10,6 +10,7 @@ import numpy as np
 from fastmst import validation
 from fastmst.design.checks import check_capacity, check_demand, check_node
 from fastmst.design.pairs import cheapest_pairs
+from fastmst.solve.totals import total
 
 _FUNC = "capacitated_tree"
 
@@ -227,7 +228,7 @@ def capacitated_tree(tail, head, weight, root, capacity, *, demand=None, n_nodes
     position, reason = position[order], reason[order]
     loads = np.bincount(subtree[served], weights=dem[served], minlength=fed_tops.size) \
         if served.any() else np.zeros(fed_tops.size)
-    wsum = float(g.weight[position].astype(np.float64).sum()) if position.size else 0.0
+    wsum = total(g.weight[position])
     return CapacitatedTree(position=position, reason=reason, subtree=subtree,
                            load=loads.astype(np.float64), capacity=capacity, root=root,
                            weight=wsum, unserved=unserved)

@@ -10,6 +10,7 @@ from fastmst import validation
 from fastmst._kernels.halves import common_ancestors, cover_by_halves
 from fastmst.design.checks import check_nonnegative, graph_and_design
 from fastmst.design.pairs import cheapest_pairs
+from fastmst.solve.totals import total
 
 _FUNC = "backup_links"
 #: Largest number of candidate links the exact mode (scipy.optimize.milp) accepts.
@@ -180,7 +181,7 @@ def backup_links(tail, head, weight, forest=None, *, n_nodes=None, excluded=None
     Parameters
     ----------
     tail, head, weight : array_like of shape (E,)
-        Candidate links and their costs (>= 0).
+        Candidate links and their costs (>= 0; a link of cost ``inf`` is never chosen).
     forest : SpanningForest, or array_like of int or boolean mask of shape (E,), optional
         The design: a spanning forest of the usable links.  Default: the minimum spanning
         forest of the usable links.
@@ -223,7 +224,11 @@ def backup_links(tail, head, weight, forest=None, *, n_nodes=None, excluded=None
     d = graph_and_design(tail, head, weight, forest, n_nodes, excluded, _FUNC)
     g = d.g
     check_nonnegative(g, d.usable, _FUNC, "backup link selection")
+    # a link of infinite cost is never worth building: as in the shallow and capacitated
+    # trees, it is not a candidate (what only it could back up is a single point)
     cand = d.usable & ~d.in_forest
+    if g.weight.dtype.kind == "f":
+        cand &= g.weight != np.inf
     a, b, c, pos = cheapest_pairs(g, cand)
     if exact and a.size > EXACT_LIMIT:
         raise ValueError(f"{_FUNC}: exact=True takes at most {EXACT_LIMIT} candidate links, "
@@ -246,7 +251,7 @@ def backup_links(tail, head, weight, forest=None, *, n_nodes=None, excluded=None
     single_mask = np.zeros(g.n_edges, dtype=bool)             # ascending positions, no sort
     single_mask[d.fpos[~covered_edge]] = True
     single = np.flatnonzero(single_mask)
-    wsum = float(g.weight[chosen].astype(np.float64).sum()) if chosen.size else 0.0
+    wsum = total(g.weight[chosen])
     return BackupLinks(forest=np.flatnonzero(d.in_forest), position=chosen, weight=wsum,
                        lower_bound=bound if lower_bound else None, optimal=exact,
                        single_points=single, method=method)

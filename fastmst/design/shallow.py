@@ -10,6 +10,7 @@ from fastmst import validation
 from fastmst._kernels.treewalk import adjacency, light_shallow_walk, parent_links, tree_distances
 from fastmst.design.checks import check_alpha, check_node, check_nonnegative
 from fastmst.solve import minimum_spanning_forest
+from fastmst.solve.totals import total
 
 _FUNC = "light_shallow_tree"
 
@@ -134,6 +135,7 @@ def light_shallow_tree(tail, head, weight, root, *, alpha=2.0, n_nodes=None, exc
     b = g.khead[keep].astype(np.int64)
     w = g.weight[keep].astype(np.float64)
     dist, spt_parent, spt_link = shortest_paths(n, a, b, w, root)
+    _check_no_overflow(dist, a, b, w, root, n)
     spt_pos = np.full(n, -1, dtype=np.int64)
     spt_pos[spt_link >= 0] = keep[spt_link[spt_link >= 0]]
     # the minimum spanning forest of the usable links (tie rule), its adjacency for the walk
@@ -159,6 +161,26 @@ def light_shallow_tree(tail, head, weight, root, *, alpha=2.0, n_nodes=None, exc
     mst_links = reached[fa]
     return ShallowTree(position=position, reason=reason, parent=parent, distance=distance,
                        shortest=dist, root=root, alpha=alpha,
-                       weight=float(pw[chosen].sum()),
-                       mst_weight=float(fw[mst_links].sum()),
+                       weight=total(g.weight[position]),
+                       mst_weight=total(g.weight[fpos[mst_links]]),
                        unreached=int(n - np.count_nonzero(reached)))
+
+
+def _check_no_overflow(dist, a, b, w, root, n) -> None:
+    """A site joined to the root by links of finite cost must not look unreached because its
+    distance, a float64 sum, overflowed (inf is what marks the unreached)."""
+    far = np.isinf(dist)
+    if not far.any():
+        return
+    from scipy.sparse import coo_array
+    from scipy.sparse.csgraph import breadth_first_order
+    fin = np.isfinite(w)
+    graph = coo_array((np.ones(int(fin.sum())), (a[fin], b[fin])), shape=(n, n)).tocsr()
+    reached = breadth_first_order(graph, root, directed=False, return_predecessors=False)
+    lost = reached[far[reached]]
+    if lost.size:
+        raise ValueError(f"{_FUNC}: node {int(lost[0])} is joined to the root by links of finite "
+                         f"cost, but its distance from the root exceeds the float64 range "
+                         f"({lost.size} such nodes); scale the weights down (e.g. divide them "
+                         f"by 1e6) and call again.")
+
