@@ -153,8 +153,11 @@ def _native_contiguous(arr: np.ndarray, dtype=None) -> np.ndarray:
     return np.ascontiguousarray(arr, dtype=dtype)
 
 
-def check_ids(arr: np.ndarray, name: str, func: str) -> np.ndarray:
-    """Check the dtype of an id array; return it (empty float arrays become int64)."""
+def check_ids(arr: np.ndarray, name: str, func: str, code: str | None = None) -> np.ndarray:
+    """Check the dtype of an id array; return it (empty float arrays become int64).  ``code``:
+    how the user's own code names the array, for the fixes the messages suggest (default
+    ``name``)."""
+    code = name if code is None else code
     kind = arr.dtype.kind
     if arr.size == 0 and kind in "fiu":
         return arr.astype(np.int64) if kind == "f" else arr
@@ -162,39 +165,44 @@ def check_ids(arr: np.ndarray, name: str, func: str) -> np.ndarray:
         return arr
     if kind == "b":
         raise TypeError(f"{func}: {name} has dtype bool; node ids must be integers. Convert with "
-                        f"{name}.astype(np.int64) if True/False really are node ids 1/0.")
+                        f"{code}.astype(np.int64) if True/False really are node ids 1/0.")
     if kind == "f":
         raise TypeError(f"{func}: {name} has dtype {arr.dtype}; node ids must be integers "
                         f"0..n_nodes-1. If the values are whole numbers, convert with "
-                        f"{name}.astype(np.int64).")
+                        f"{code}.astype(np.int64).")
     raise TypeError(f"{func}: {name} has dtype {arr.dtype}; node ids must be integers "
                     f"0..n_nodes-1. Map other labels (strings, map ids) to compact integers "
                     f"first, e.g. with np.unique(labels, return_inverse=True).")
 
 
-def check_weights(arr: np.ndarray, func: str, name: str = "weight") -> np.ndarray:
-    """Check the dtype and values of a weight array; return it in a kernel dtype."""
+def check_weights(arr: np.ndarray, func: str, name: str = "weight", code: str | None = None,
+                  where: str = "") -> np.ndarray:
+    """Check the dtype and values of a weight array; return it in a kernel dtype.  ``code``: how
+    the user's own code names the array, for the fixes the messages suggest (default ``name``);
+    ``where``: the part of a larger input the array is (e.g. "partition 3")."""
+    code = name if code is None else code
+    at = f" of {where}" if where else ""
     dt = arr.dtype
     if dt.kind == "b":
         raise TypeError(f"{func}: {name} has dtype bool; expected integer or float weights. "
-                        f"Convert with {name}.astype(np.int64) if 0/1 costs are meant.")
+                        f"Convert with {code}.astype(np.int64) if 0/1 costs are meant.")
     if dt.kind not in "iuf":
         raise TypeError(f"{func}: {name} has dtype {dt}; expected integer or float weights "
                         f"(int32, int64, uint32, uint64, float32, float64 are read in place). "
-                        f"Convert with {name}.astype(np.float64).")
+                        f"Convert with {code}.astype(np.float64).")
     native = np.dtype(dt).newbyteorder("=")
     if native in _WIDEN:
         arr = arr.astype(_WIDEN[native])
     elif native not in _KERNEL_WEIGHTS:
         raise TypeError(f"{func}: {name} has dtype {dt}, which the kernels cannot compare "
                         f"exactly; expected float32, float64 or a 32/64-bit integer. Convert "
-                        f"with {name}.astype(np.float64).")
+                        f"with {code}.astype(np.float64).")
     arr = _native_contiguous(arr)
     if arr.dtype.kind == "f" and arr.size and np.isnan(arr.min()):
         first = int(np.flatnonzero(np.isnan(arr))[0])
-        raise ValueError(f"{func}: {name}[{first}] is NaN; every edge needs a comparable "
+        raise ValueError(f"{func}: {name}[{first}]{at} is NaN; every edge needs a comparable "
                          f"weight. Drop or fill the NaN edges first (e.g. keep = "
-                         f"~np.isnan({name})); infinite weights are allowed.")
+                         f"~np.isnan({code})); infinite weights are allowed.")
     return arr
 
 

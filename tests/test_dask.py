@@ -309,12 +309,18 @@ def test_bad_values_raise_clear_errors(client, tmp_path):
     wrong input types raise TypeError/ValueError naming the partition and row."""
     t, h, w = random_graph(11, n=50, m=100)
     frame = pd.DataFrame({"tail": t, "head": h, "weight": w})
-    with pytest.raises(TypeError, match="node ids must be integers"):
+    # the fixes the messages suggest name the column as the user's code does (edges['tail'])
+    with pytest.raises(TypeError, match=r"node ids must be integers.*convert with "
+                                        r"edges\['tail'\]\.astype\(np\.int64\)"):
         fdask.minimum_spanning_forest(dd.from_pandas(frame.astype({"tail": float}),
                                                      npartitions=2))
+    with pytest.raises(TypeError, match=r"head of partition 0 has dtype float64.*"
+                                        r"edges\['head'\]\.astype"):
+        fdask.minimum_spanning_forest([dask.delayed(frame.astype({"head": float}))])
     nan = frame.copy()
     nan.loc[70, "weight"] = np.nan
-    with pytest.raises(ValueError, match=r"weight \(partition 1\)\[\d+\] is NaN"):
+    with pytest.raises(ValueError, match=r"weight\[\d+\] of partition 1 is NaN.*"
+                                         r"keep = ~np\.isnan\(edges\['weight'\]\)"):
         fdask.minimum_spanning_forest([dask.delayed(frame.iloc[:60]),
                                        dask.delayed(nan.iloc[60:].reset_index(drop=True))])
     neg = frame.copy()

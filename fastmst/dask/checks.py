@@ -38,9 +38,11 @@ def check_chunk_no_missing(values, name: str, func: str, where: str = "") -> Non
                          f"edges.dropna(subset=[...]).")
 
 
-def check_chunk_ids(arr: np.ndarray, name: str, n_nodes, func: str, where: str) -> None:
-    """Ids of one chunk of a distributed edge list: integers in [0, n_nodes)."""
-    validation.check_ids(arr, f"{name} ({where})", func)
+def check_chunk_ids(arr: np.ndarray, name: str, n_nodes, func: str, where: str,
+                    code: str | None = None) -> None:
+    """Ids of one chunk of a distributed edge list: integers in [0, n_nodes).  ``code``: how
+    the user's code names the column (for the suggested fixes)."""
+    validation.check_ids(arr, f"{name} of {where}", func, code=code)
     if arr.size == 0:
         return
     if arr.dtype.kind == "i" and int(arr.min()) < 0:

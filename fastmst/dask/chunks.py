@@ -93,9 +93,9 @@ def stats(chunk, names, index, n_nodes, per_partition, quota=0, maximize=False):
     if not (t.shape == h.shape == w.shape) or t.ndim != 1:
         raise ValueError(f"{_FUNC}: tail, head and weight of {where} must be 1-D with one entry "
                          f"per edge, received shapes {t.shape}, {h.shape} and {w.shape}.")
-    checks.check_chunk_ids(t, "tail", n_nodes, _FUNC, where)
-    checks.check_chunk_ids(h, "head", n_nodes, _FUNC, where)
-    wk = validation.check_weights(w, _FUNC, f"weight ({where})")
+    checks.check_chunk_ids(t, "tail", n_nodes, _FUNC, where, code=f"edges[{names[0]!r}]")
+    checks.check_chunk_ids(h, "head", n_nodes, _FUNC, where, code=f"edges[{names[1]!r}]")
+    wk = validation.check_weights(w, _FUNC, "weight", code=f"edges[{names[2]!r}]", where=where)
     m = int(t.shape[0])
     hi = max(int(t.max()), int(h.max())) if m else -1
     k = min(m, int(per_partition))
@@ -169,10 +169,10 @@ def partitions(edges, names):
             kind = getattr(dtypes[col], "kind", "O")
             if role != "weight" and kind not in "iu":
                 validation.check_ids(np.empty(1, dtype=numpy_dtype(dtypes[col])),
-                                     f"{role} column {col!r}", _FUNC)
+                                     f"{role} column {col!r}", _FUNC, code=f"edges[{col!r}]")
             if role == "weight":
                 validation.check_weights(np.empty(0, dtype=numpy_dtype(dtypes[col])), _FUNC,
-                                         f"weight column {col!r}")
+                                         f"weight column {col!r}", code=f"edges[{col!r}]")
         return list(edges[list(names)].to_delayed(optimize_graph=True))
     if hasattr(edges, "to_delayed") and hasattr(edges, "npartitions"):  # a Bag
         return list(edges.to_delayed(optimize_graph=True))
