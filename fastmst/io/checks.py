@@ -19,7 +19,7 @@ from fastmst.validation import FileFormatError, shown
 
 __all__ = ["FileFormatError", "csv_row", "table_row", "existing_file", "check_column",
            "check_no_missing", "check_no_nan", "check_unique_labels", "check_declared_nodes",
-           "shown"]
+           "check_not_input", "shown"]
 
 #: A header may declare this many nodes beyond twice its edges (isolated nodes) unasked.
 SPARE_NODES = 1 << 20
@@ -47,6 +47,33 @@ def existing_file(path, func: str) -> Path:
         raise FileFormatError(f"{p}: the file is empty; expected a header line and one line "
                               f"per edge.")
     return p
+
+
+def _source_file(source: str):
+    """The file an EdgeList's ``source`` names ("links.gpkg (layer 'roads')" names
+    links.gpkg), or None when it names no existing file (a table in memory)."""
+    for candidate in (source, source.split(" (layer ")[0]):
+        if candidate and os.path.isfile(candidate):
+            return candidate
+    return None
+
+
+def check_not_input(path, edges, func: str) -> None:
+    """Writing ``path`` must not replace the file ``edges`` were read from (the input would be
+    lost): a ValueError when both name one file (also through links)."""
+    source = _source_file(str(getattr(edges, "source", "") or ""))
+    if source is None or not os.path.exists(path):
+        return
+    same = os.path.realpath(path) == os.path.realpath(source)
+    if not same:
+        try:
+            same = os.path.samefile(path, source)   # hard links
+        except OSError:
+            same = False
+    if same:
+        raise ValueError(f"{func}: the output {str(path)!r} is the input the edges were read "
+                         f"from ({source!r}); writing there would replace the input. Choose "
+                         f"another output name.")
 
 
 def check_column(name, present, source: str, role: str, func: str) -> str:

@@ -16,7 +16,7 @@ from fastmst._kernels import threads as kernel_threads
 from fastmst.io import registry
 from fastmst.io.adapters import chosen_attributes, forest_table, from_table
 from fastmst.io.atomic import atomic_write
-from fastmst.io.checks import existing_file, shown
+from fastmst.io.checks import check_not_input, existing_file, shown
 from fastmst.io.edgelist import EdgeList
 from fastmst.io.labels import check_ids
 from fastmst.io.nodes import NodeTable, read_nodes
@@ -206,10 +206,12 @@ def write_forest(path, forest, edges: EdgeList | None = None, *, format=None, co
     of ``point_spanning_tree``), node ids are written as they are and ``coords`` of shape
     (n_nodes, 2) may give the node coordinates; ``geographic`` says whether they are
     (longitude, latitude) degrees.  ``spreadsheet_safe`` is that of :func:`write_table`.
-    Returns the written Path.
+    Returns the written Path.  A ``path`` that is the file ``edges`` were read from is a
+    ValueError (writing there would replace the input).
     """
     name, _ = registry.detect_format(path, format, valid=registry.names("write"),
                                      func="write_forest")
+    check_not_input(path, edges, "write_forest")
     if edges is None:
         xy = None
         if coords is not None:

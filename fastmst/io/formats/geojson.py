@@ -16,6 +16,7 @@ import numpy as np
 from fastmst.io import registry
 from fastmst.io.adapters import forest_table
 from fastmst.io.atomic import atomic_write
+from fastmst.io.checks import check_not_input
 from fastmst.io.labels import all_labels
 
 WGS84 = "EPSG:4326"
@@ -40,8 +41,10 @@ def write_geojson(path, forest, edges, *, properties=None, sites=False, clusters
 
     ``clusters`` is a cluster number per node (e.g. ``forest.clusters(k=5)``).  Non-finite
     numbers are written as null (JSON has no infinity); values JSON lacks (dates) as text.
-    The file is written atomically.
+    The file is written atomically; a ``path`` that is the file ``edges`` were read from is a
+    ValueError.
     """
+    check_not_input(path, edges, "write_geojson")
     if edges.coords is None:
         raise ValueError(f"write_geojson: {edges.source} has no node coordinates; give a node "
                          f"table with lon/lat columns (CLI: --nodes FILE).")

@@ -17,7 +17,7 @@ import numpy as np
 from fastmst.io import registry
 from fastmst.io.adapters import forest_table
 from fastmst.io.atomic import atomic_write
-from fastmst.io.checks import table_row
+from fastmst.io.checks import check_not_input, table_row
 from fastmst.io.edgelist import EdgeList
 from fastmst.io.labels import all_labels
 from fastmst.io.layers import read_line_layer, read_point_layer
@@ -107,7 +107,8 @@ def write_geopackage(path, forest, edges: EdgeList, *, clusters=None, crs=None):
     Parameters
     ----------
     path : str or Path
-        The ``.gpkg`` file; an existing file is replaced.
+        The ``.gpkg`` file; an existing file is replaced, except the file the edges were read
+        from (a ValueError: the input would be lost).
     forest : SpanningForest
     edges : EdgeList
         The edges the forest was solved from; must carry node coordinates.
@@ -126,6 +127,7 @@ def write_geopackage(path, forest, edges: EdgeList, *, clusters=None, crs=None):
     if not isinstance(edges, EdgeList):
         raise TypeError(f"{func}: edges must be the EdgeList the forest was solved from, "
                         f"received {type(edges).__name__}.")
+    check_not_input(path, edges, func)
     if edges.coords is None:
         raise ValueError(f"{func}: {edges.source} has no node coordinates; read the edges from "
                          f"a line layer, or give a node table (nodes=, CLI --nodes).")
