@@ -117,7 +117,7 @@ def run(args) -> int:
         if len(swaps) > args.limit:
             print(f"  ... {plural(len(swaps) - args.limit, 'more swap')} (see --json or "
                   f"--swaps-output)")
-        print(CAUTION)
+    common.print_caution(args)
     return EXIT_OK if res.is_minimum and res.is_forest and res.is_spanning else EXIT_NOT_MINIMUM
 
 

@@ -10,7 +10,7 @@ import numpy as np
 import fastmst
 from fastmst import io
 from fastmst.cli import common
-from fastmst.cli.common import EXIT_OK, UsageError, fmt_num
+from fastmst.cli.common import CAUTION, EXIT_OK, UsageError, fmt_num
 from fastmst.plot import plot_forest
 
 EPILOG = """examples:
@@ -78,7 +78,7 @@ def run(args) -> int:
            "k": args.k, "threshold": args.threshold,
            "largest": [{"cluster": int(c), "size": int(sizes[c])} for c in top],
            "written": list(args.output) + ([args.plot] if args.plot else []),
-           "seconds": common.seconds(rep.times)}
+           "seconds": common.seconds(rep.times), "caution": CAUTION}
     if links:
         out["links"] = links
     if args.json:
@@ -90,5 +90,6 @@ def run(args) -> int:
         if out["written"]:
             rows.append(("wrote", ", ".join(out["written"])))
         common.print_block(f"fastmst clusters: {edges.source}", rows)
+    common.print_caution(args)
     return EXIT_OK
 

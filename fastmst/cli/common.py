@@ -457,6 +457,17 @@ def edge_json(edges, p) -> dict:
             "position": int(p)}
 
 
+def print_caution(args, *texts) -> None:
+    """The caution after a command's output (default :data:`CAUTION`): on stdout after the
+    summary, on stderr with --quiet (it prints even then, as --help promises); nothing with
+    --json, whose summary carries it under ``caution``."""
+    if getattr(args, "json", False):
+        return
+    out = sys.stderr if getattr(args, "quiet", False) else sys.stdout
+    for text in texts or (CAUTION,):
+        print(text, file=out)
+
+
 def yes(b) -> str:
     return "yes" if b else "NO"
 

@@ -104,7 +104,7 @@ def run(args) -> int:
                 print(f"    {common.link_text(d, edges)} may rise {fmt_num(d['margin'])} "
                       f"({d['margin_percent']:.3g} %)" +
                       (f"; then {common.link_text(alt, edges)} takes its place" if alt else ""))
-        print(CAUTION)
+    common.print_caution(args)
     return EXIT_OK
 
 

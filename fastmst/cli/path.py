@@ -82,5 +82,5 @@ def run(args) -> int:
             common.print_block(title, rows)
             for i, d in enumerate(out["links"], 1):
                 print(f"  {i:>4}. {common.link_text(d, edges)}")
-        print(CAUTION)
+    common.print_caution(args)
     return EXIT_OK

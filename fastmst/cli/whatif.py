@@ -135,7 +135,7 @@ def run(args) -> int:
             if len(lst) > args.limit:
                 print(f"  ... {plural(len(lst) - args.limit, 'more link')} {word[:-1]} "
                       f"(see --json)")
-        print(CAUTION)
+    common.print_caution(args)
     return EXIT_OK
 
 
