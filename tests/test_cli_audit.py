@@ -9,7 +9,10 @@ from __future__ import annotations
 import csv
 import json
 
+import networkx as nx
 import pytest
+from hypothesis import HealthCheck, assume, given, settings
+from hypothesis import strategies as st
 
 from fastmst import cli
 from fastmst.cli.common import CAUTION
@@ -75,3 +78,126 @@ def test_every_design_command_carries_the_caution(files, command, mode, capsys):
         assert out.strip() == "", out
     else:
         assert CAUTION in out
+
+
+# --- a forest or design file with a fault: told in the file's terms -------------------------------
+
+@st.composite
+def _network(draw):
+    """A connected simple graph on 3-12 sites (a random spanning tree plus extra links) with
+    text labels and integer or decimal weights."""
+    n = draw(st.integers(3, 12))
+    labels = [f"S{draw(st.integers(0, 9))}{k:02d}" for k in range(n)]
+    pairs = {(draw(st.integers(0, k - 1)), k) for k in range(1, n)}
+    extra = draw(st.lists(st.tuples(st.integers(0, n - 1), st.integers(0, n - 1)),
+                          min_size=1, max_size=2 * n))
+    pairs |= {(min(a, b), max(a, b)) for a, b in extra if a != b}
+    pairs = sorted(pairs)
+    decimal = draw(st.booleans())
+    weights = [draw(st.integers(1, 30)) / (4 if decimal else 1) for _ in pairs]
+    return [(labels[a], labels[b], w) for (a, b), w in zip(pairs, weights)]
+
+
+def _mst_positions(links):
+    """Positions of a minimum spanning tree (networkx minimum_spanning_edges, Kruskal)."""
+    g = nx.Graph()
+    for p, (a, b, w) in enumerate(links):
+        g.add_edge(a, b, weight=w, position=p)
+    return sorted(d["position"] for _, _, d in
+                  nx.minimum_spanning_edges(g, algorithm="kruskal", data=True))
+
+
+def _write_forest(path, links, positions, by):
+    if by == "position":
+        return _write(path, ["position"], [(p,) for p in positions])
+    return _write(path, ["from", "to"], [links[p][:2] for p in positions])
+
+
+def _run(argv, capsys):
+    rc = cli.main(argv)
+    out, err = capsys.readouterr()
+    return rc, out, err
+
+
+def _no_internals(text):
+    """Messages speak of the file and its labels, not of the Python API."""
+    for word in ("np.unique", "check_forest", "link_failures", "backup_links",
+                 "minimum_spanning_forest(", "forest[", "edges["):
+        assert word not in text, text
+
+
+FAULTY = settings(max_examples=25, deadline=None,
+                  suppress_health_check=[HealthCheck.function_scoped_fixture])
+
+
+@FAULTY
+@given(links=_network(), by=st.sampled_from(["position", "pair"]),
+       command=st.sampled_from(["check", "failures", "backup"]), data=st.data())
+def test_a_link_listed_twice_names_both_rows(tmp_path, capsys, links, by, command, data):
+    """A forest or --design file naming one link on two rows: exit 1 and a message naming both
+    data rows and the link by its labels (it was the library's 'edges[1] = 0 repeats
+    edges[0] ... np.unique(edges)')."""
+    tree = _mst_positions(links)
+    i = data.draw(st.integers(0, len(tree) - 1), label="repeated row")
+    at = data.draw(st.integers(0, len(tree)), label="inserted at")
+    rows = tree[:at] + [tree[i]] + tree[at:]
+    edges = _write(tmp_path / "links.csv", ["from", "to", "cost"], links)
+    forest = _write_forest(tmp_path / "forest.csv", links, rows, by)
+    argv = ([command, edges, forest] if command == "check" else
+            [command, edges, "--design", forest]) + COLUMNS
+    rc, out, err = _run(argv, capsys)
+    assert rc == 1, (rc, out, err)
+    first, second = sorted(k for k, p in enumerate(rows) if p == tree[i])
+    assert f"data rows {first + 1} and {second + 1} both name the link" in err, err
+    a, b, _ = links[tree[i]]
+    assert f"{a} -- {b}" in err and f"position {tree[i]}" in err, err
+    _no_internals(err)
+
+
+@FAULTY
+@given(links=_network(), by=st.sampled_from(["position", "pair"]),
+       fault=st.sampled_from(["cycle", "gap"]), data=st.data())
+def test_a_faulty_forest_is_explained_in_labels(tmp_path, capsys, links, by, fault, data):
+    """A forest that closes a cycle or leaves two of its trees joinable: ``check`` exits 3 and
+    names the link that shows it, in labels (the excess read 'nan' with no reason);
+    ``failures --design`` and ``backup --design`` exit 1 naming it in labels (they said
+    'the link at position 1 (1-2)', compact node ids).  The named link is checked with
+    networkx: its ends are joined by the other given links (cycle) or not (gap)."""
+    tree = _mst_positions(links)
+    others = sorted(set(range(len(links))) - set(tree))
+    if fault == "cycle":
+        assume(others)
+        given_ = sorted(tree + [data.draw(st.sampled_from(others), label="added")])
+    else:
+        drop = data.draw(st.sampled_from(tree), label="dropped")
+        given_ = [p for p in tree if p != drop]
+    edges = _write(tmp_path / "links.csv", ["from", "to", "cost"], links)
+    forest = _write_forest(tmp_path / "forest.csv", links, given_, by)
+
+    rc, out, err = _run(["check", edges, forest, "--json"] + COLUMNS, capsys)
+    assert rc == 3, (rc, out, err)
+    report = json.loads(out)
+    key = "closes a cycle" if fault == "cycle" else "joins two of the forest's trees"
+    if fault == "cycle":
+        named = report["closes_a_cycle"]
+        assert named is not None and named["position"] in given_
+    else:
+        assert report["closes_a_cycle"] is None and report["joins_trees"]["links"] >= 1
+        named = report["joins_trees"]["first"][0]
+        assert named["position"] not in given_
+    assert (named["tail"], named["head"]) == links[named["position"]][:2]
+    g = nx.Graph()
+    g.add_nodes_from({x for a, b, _ in links for x in (a, b)})
+    g.add_edges_from(links[p][:2] for p in given_ if p != named["position"])
+    assert nx.has_path(g, named["tail"], named["head"]) == (fault == "cycle")
+
+    rc, out, err = _run(["check", edges, forest] + COLUMNS, capsys)
+    assert rc == 3 and key in out and "nan" not in out, out
+    assert f"{named['tail']} -- {named['head']}" in out, out
+
+    for command in ("failures", "backup"):
+        rc, out, err = _run([command, edges, "--design", forest] + COLUMNS, capsys)
+        assert rc == 1, (command, rc, out, err)
+        assert "not a spanning forest" in err and key in err, err
+        assert f"{named['tail']} -- {named['head']}" in err, err
+        _no_internals(err)

@@ -9,7 +9,7 @@ import json
 
 import fastmst
 from fastmst import io
-from fastmst.cli import common
+from fastmst.cli import common, forests
 from fastmst.cli.common import (CAUTION, EXIT_NOT_MINIMUM, EXIT_OK, UsageError, fmt_num,
                                 plural, yes)
 
@@ -57,7 +57,7 @@ def run(args) -> int:
         edges = common.load_edges(args, rep)
         constraints, links = common.read_constraints(args, edges, rep)
         with rep.phase("reading forest"):
-            pos = io.read_forest_positions(args.forest, edges, func="check")
+            pos = forests.read_forest(args.forest, edges, "FOREST")
         with rep.phase("checking"):
             res = fastmst.check_forest(edges.tail, edges.head, edges.weight, pos,
                                        n_nodes=edges.n_nodes, maximize=args.maximize,
@@ -84,6 +84,7 @@ def run(args) -> int:
            "missing_required": [common.edge_json(edges, p) for p in res.missing_required],
            "used_excluded": [common.edge_json(edges, p) for p in res.used_excluded],
            "profitable_swaps": int(res.violations.size), "links_to_swap_out": len(swaps),
+           **forests.faults_json(edges, res),
            "swaps": swaps, "seconds": common.seconds(rep.times), "caution": CAUTION}
     if links:
         out["links"] = links
@@ -97,8 +98,11 @@ def run(args) -> int:
         if constraints:
             rows += [("keeps every required link", yes(res.missing_required.size == 0)),
                      ("uses no excluded link", yes(res.used_excluded.size == 0))]
+        rows += forests.faults(edges, res)
         rows += [(f"is {kind}{under}", yes(res.is_minimum)),
-                 ("excess over the optimum", fmt_num(excess)),
+                 ("excess over the optimum",
+                  fmt_num(excess) if excess == excess else
+                  "not defined: not a spanning forest that keeps the constraints"),
                  ("profitable swaps", f"{plural(res.violations.size, 'swap')}; "
                                       f"{plural(len(swaps), 'forest link')} to swap out, "
                                       f"ranked by saving")]

@@ -10,7 +10,7 @@ import numpy as np
 
 import fastmst
 from fastmst import io
-from fastmst.cli import common
+from fastmst.cli import common, forests
 from fastmst.cli.common import CAUTION, UsageError
 from fastmst.demo_design import DESIGN_CAUTION, plot_links
 from fastmst.io.labels import all_labels, label_array, lookup
@@ -80,7 +80,8 @@ def read_links(args, edges, rep):
             if args.required:
                 raise UsageError("--design gives the whole design; --required applies to the "
                                  "minimum spanning forest only. Give one of them.")
-            design = io.read_forest_positions(args.design, edges, func="--design")
+            design = forests.read_forest(args.design, edges, "--design")
+            forests.require_spanning_forest(edges, design, excluded, "--design", args.design)
     return required, excluded, design
 
 
