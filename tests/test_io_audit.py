@@ -8,7 +8,7 @@ import os
 import numpy as np
 import pyarrow as pa
 import pytest
-from hypothesis import given, settings
+from hypothesis import Phase, given, settings
 from hypothesis import strategies as st
 
 import fastmst.io as fio
@@ -74,3 +74,82 @@ def test_write_forest_refuses_to_replace_its_input(tmp_path_factory, fmt, how, l
 def _write(path, text):
     path.write_text(text)
     return path
+
+
+# --- floats written to text read back as the same floats ----------------------------------
+
+_TEXT_FORMATS = ["csv", "tsv", "csv.gz", "tsv.zst"]
+
+_FLOATS_PENDING = pytest.mark.xfail(
+    strict=True, reason="CSV/TSV output writes the float 1.0 as 1 and -0.0 as -0 (pyarrow's "
+    "writer), which read back as int64 1 and 0; the fix changes that output to 1.0/-0.0 and "
+    "waits for tests/test_io.py::test_spreadsheet_formulas_verbatim_by_default, which expects "
+    "'-1,' for the weight -1.0")
+
+
+@given(names=st.lists(st.text(st.characters(blacklist_categories=("Cs",),
+                                            blacklist_characters="\r\n"), min_size=1),
+                      min_size=3, max_size=9, unique=True),
+       fmt=st.sampled_from(_TEXT_FORMATS + ["parquet", "npz"]))
+def test_labels_read_back_as_written(tmp_path_factory, names, fmt):
+    # commas, quotes, tabs, spaces, leading zeros, formulas, numbers-as-text, any script
+    n = len(names) - 1
+    table = pa.table({"tail": names[:n], "head": names[1:], "weight": np.arange(n) + 0.5})
+    path = tmp_path_factory.mktemp("labels") / f"t.{fmt}"
+    fio.write_table(path, table)
+    back = fio.read_edges(path)
+    # reference: the written labels themselves
+    assert back.label(back.tail).tolist() == names[:n]
+    assert back.label(back.head).tolist() == names[1:]
+
+
+@_FLOATS_PENDING
+@settings(phases=(Phase.explicit, Phase.generate))   # no shrinking while the failure is known
+@given(weights=st.lists(st.one_of(st.sampled_from([0.0, -0.0, 1.0, -3.0, 1e16, 2.0**53, 1e-7]),
+                                  st.floats(allow_nan=False, allow_infinity=False),
+                                  st.integers(-2**40, 2**40).map(float)),
+                        min_size=2, max_size=8),
+       extra=st.lists(st.one_of(st.none(), st.floats(width=32, allow_nan=False,
+                                                    allow_infinity=False),
+                                st.integers(-9, 9).map(float)),
+                      min_size=8, max_size=8).filter(lambda v: v[0] is not None),
+       names=st.lists(st.text(st.characters(blacklist_categories=("Cs",),
+                                            blacklist_characters="\r\n"), min_size=1),
+                      min_size=9, max_size=9, unique=True),
+       fmt=st.sampled_from(_TEXT_FORMATS))
+def test_text_output_keeps_floats_float(tmp_path_factory, weights, extra, names, fmt):
+    # carried columns: the first cell is a number (a column of missing cells only, or one
+    # with nan/inf cells, is read back as text by the carried-column typing rule)
+    n = len(weights)
+    table = pa.table({"tail": names[:n], "head": names[1:n + 1],
+                      "weight": pa.array(weights, pa.float64()),
+                      "extra": pa.array(extra[:n], pa.float64())})
+    path = tmp_path_factory.mktemp("floats") / f"t.{fmt}"
+    fio.write_table(path, table)
+    back = fio.read_edges(path)
+    # reference: the written values themselves, bit for bit (the sign of -0.0 included)
+    assert back.label(back.tail).tolist() == names[:n]
+    assert back.label(back.head).tolist() == names[1:n + 1]
+    assert back.weight.dtype == np.float64
+    assert np.asarray(weights, np.float64).view(np.int64).tolist() == \
+        back.weight.view(np.int64).tolist()
+    got = back.attributes.column("extra")
+    assert got.type == pa.float64()
+    want = pa.array(extra[:n], pa.float64())
+    assert got.is_null().to_pylist() == want.is_null().to_pylist()
+    a = np.asarray(want.fill_null(0.0)), np.asarray(got.fill_null(0.0))
+    assert np.array_equal(a[0], a[1], equal_nan=True)
+    assert np.array_equal(np.signbit(a[0]), np.signbit(a[1]))
+
+
+@_FLOATS_PENDING
+def test_forest_csv_keeps_float_weights(tmp_path):
+    # -0.0 and whole-number float weights: written as -0 and 1 they read back as int64 0 and 1
+    edges = fio.from_table(pa.table({"tail": ["a", "b", "c"], "head": ["b", "c", "a"],
+                                     "weight": [-0.0, 1.0, 2.0]}))
+    forest = edges.solve()
+    fio.write_forest(tmp_path / "f.csv", forest, edges)
+    back = fio.read_edges(tmp_path / "f.csv")
+    # reference: the forest's own weights (-0.0 and 1.0, the two lightest)
+    assert back.weight.dtype == np.float64
+    assert back.weight.tolist() == [-0.0, 1.0] and np.signbit(back.weight[0])
