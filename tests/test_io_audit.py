@@ -153,3 +153,54 @@ def test_forest_csv_keeps_float_weights(tmp_path):
     # reference: the forest's own weights (-0.0 and 1.0, the two lightest)
     assert back.weight.dtype == np.float64
     assert back.weight.tolist() == [-0.0, 1.0] and np.signbit(back.weight[0])
+
+
+# --- integer weights in text files are read exactly or refused, never rounded --------------
+
+def _text_file(path, rows, delimiter):
+    import gzip
+    text = delimiter.join(["tail", "head", "w"]) + "\n" + "".join(
+        delimiter.join([f"n{i}", f"n{i + 1}", v]) + "\n" for i, v in enumerate(rows))
+    if path.suffix == ".gz":
+        path.write_bytes(gzip.compress(text.encode()))
+    else:
+        path.write_text(text)
+    return path
+
+
+@given(values=st.lists(st.one_of(st.integers(-2**63, 2**64 - 1),
+                                 st.integers(2**53 - 4, 2**53 + 4),
+                                 st.integers(2**63 - 2, 2**64 - 1),
+                                 st.integers(2**64, 2**70)),
+                       min_size=1, max_size=6),
+       decimal=st.booleans(),
+       fmt=st.sampled_from(["csv", "tsv", "csv.gz"]))
+def test_large_integer_weights_exact_or_refused(tmp_path_factory, values, decimal, fmt):
+    rows = [str(v) for v in values] + (["0.5"] if decimal else [])
+    path = _text_file(tmp_path_factory.mktemp("big") / f"w.{fmt}", rows,
+                      "\t" if fmt == "tsv" else ",")
+    fits = not decimal and (all(-2**63 <= v < 2**63 for v in values)
+                            or all(0 <= v < 2**64 for v in values))
+    try:
+        back = fio.read_edges(path)
+    except fio.FileFormatError as exc:
+        assert not fits   # 64-bit integers are always read
+        assert "cannot hold exactly" in str(exc) and "w" in str(exc)
+        return
+    # reference: the integers as written (Python's arbitrary-precision int)
+    got = [int(x) for x in back.weight.tolist()[:len(values)]]
+    assert got == values
+    if fits:
+        assert back.weight.dtype.kind in "iu"
+
+
+def test_uint64_forest_weights_round_trip_through_csv(tmp_path):
+    w = np.array([2**64 - 1, 2**63 + 1, 5], dtype=np.uint64)
+    edges = fio.from_table(pa.table({"tail": ["a", "b", "c"], "head": ["b", "c", "a"],
+                                     "weight": w}))
+    forest = edges.solve()
+    for fmt in _TEXT_FORMATS:
+        back = fio.read_edges(fio.write_forest(tmp_path / f"f.{fmt}", forest, edges))
+        # reference: the forest's own uint64 weights (5 and 2**63 + 1, the two lightest)
+        assert back.weight.dtype == np.uint64
+        assert back.weight.tolist() == np.asarray(forest.weights).tolist() == [5, 2**63 + 1]
