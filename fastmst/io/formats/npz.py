@@ -2,6 +2,9 @@
 names); text labels as dtype ``U``, never pickled objects."""
 from __future__ import annotations
 
+import zipfile
+import zlib
+
 import numpy as np
 
 from fastmst.io import registry
@@ -25,8 +28,13 @@ def read_edges(path, compression, request):
     import pyarrow as pa
     try:
         z = np.load(str(path), allow_pickle=False)
-    except (ValueError, OSError) as exc:
-        raise FileFormatError(f"{path}: not a readable .npz file ({exc}).") from None
+    except (ValueError, OSError, EOFError, zipfile.BadZipFile) as exc:
+        raise FileFormatError(f"{path}: not a readable .npz file ({exc}); is it complete and "
+                              f"written by numpy.savez?") from None
+    if not isinstance(z, np.lib.npyio.NpzFile):   # a single .npy array under an .npz name
+        raise FileFormatError(f"{path}: holds one NumPy array, not an .npz archive of columns; "
+                              f"save the columns with numpy.savez(path, tail=..., head=..., "
+                              f"weight=...).")
     with z:
         names = list(z.files)
         if {"tail", "head"} <= set(names):  # the conventional names come first
@@ -36,8 +44,14 @@ def read_edges(path, compression, request):
         try:
             arrays = {c: z[c] for c in cols if c in names}
         except ValueError as exc:
+            if "pickle" not in str(exc):
+                raise FileFormatError(f"{path}: an array could not be read ({exc}); is the "
+                                      f"file complete?") from None
             raise FileFormatError(f"{path}: an array needs pickle to load ({exc}); save labels "
                                   f"as NumPy text (dtype 'U') or integers instead.") from None
+        except (OSError, EOFError, zipfile.BadZipFile, zlib.error) as exc:
+            raise FileFormatError(f"{path}: an array could not be read ({exc}); is the file "
+                                  f"complete and written by numpy.savez?") from None
     lengths = {a.shape[0] if a.ndim else -1 for a in arrays.values()}
     if any(a.ndim != 1 for a in arrays.values()) or len(lengths) != 1:
         shapes = {c: a.shape for c, a in arrays.items()}
