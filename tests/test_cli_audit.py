@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import csv
 import json
+from pathlib import Path
 
 import networkx as nx
 import pytest
@@ -15,6 +16,7 @@ from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
 from fastmst import cli
+from fastmst.cli import common, solve
 from fastmst.cli.common import CAUTION
 
 LINKS = [("depot", "north", 4.0), ("north", "east", 1.5), ("east", "depot", 2.0),
@@ -240,12 +242,12 @@ def test_demo_never_replaces_the_users_files(tmp_path_factory, demo_files, capsy
 
 
 def test_demo_out_is_a_file_or_cannot_be_made(tmp_path, capsys):
-    """--out naming a file is refused (exit 2) and the file kept ('[Errno 17] File exists'
-    before); a folder that cannot be made is one message naming --out (exit 1)."""
+    """--out naming a file is refused and the file kept ('[Errno 17] File exists' before); a
+    folder that cannot be made is one message naming --out; exit 1 (a wrong path)."""
     f = tmp_path / "notes.csv"
     f.write_text("mine\n")
     rc, out, err = _run(["demo", "--out", str(f), "--sites", "20", "--no-plot"], capsys)
-    assert rc == 2 and "is a file" in err and f.read_text() == "mine\n", (rc, err)
+    assert rc == 1 and f"--out {f}: is a file" in err and "Errno" not in err and f.read_text() == "mine\n", (rc, err)
     rc, out, err = _run(["demo", "--out", str(f / "sub"), "--sites", "20", "--no-plot"], capsys)
     assert rc == 1 and f"--out {f / 'sub'}: cannot create the folder" in err, (rc, err)
     assert "Errno" not in err and f.read_text() == "mine\n"
@@ -273,3 +275,77 @@ def test_demo_numbers_checked_before_any_work(tmp_path, capsys, option, value):
     assert rc == 2, (rc, out, err)
     assert f"{option} {value:,}" in err or f"{option} {value}" in err, err
     assert not (tmp_path / "d").exists()
+
+
+# --- output paths that cannot be written: refused before any work ---------------------------------
+
+# every output option of every command, with the rest of a command line that works
+OUTPUTS = [
+    ("solve", "-o", ".csv", lambda f: ["solve", f["links"]]),
+    ("solve", "--unconnected", ".csv", lambda f: ["solve", f["links"]]),
+    ("check", "--swaps-output", ".csv", lambda f: ["check", f["links"], f["forest"]]),
+    ("clusters", "-o", ".csv", lambda f: ["clusters", f["links"], "-k", "2"]),
+    ("margins", "-o", ".parquet", lambda f: ["margins", f["links"]]),
+    ("path", "-o", ".csv", lambda f: ["path", f["links"], "west", "north"]),
+    ("what-if", "-o", ".tsv", lambda f: ["what-if", f["links"], "--by", "surface",
+                                         "--scale", "road=2"]),
+    ("failures", "-o", ".csv", lambda f: ["failures", f["links"]]),
+    ("backup", "-o", ".npz", lambda f: ["backup", f["links"]]),
+    ("feeders", "-o", ".csv", lambda f: ["feeders", f["links"], "--root", "depot",
+                                         "--capacity", "3"]),
+    ("shallow", "-o", ".csv", lambda f: ["shallow", f["links"], "--root", "depot"]),
+    ("solve", "--plot", ".png", lambda f: ["solve", f["links"], "--nodes", f["sites"]]),
+    ("failures", "--plot", ".png", lambda f: ["failures", f["links"], "--nodes", f["sites"]]),
+]
+
+
+@pytest.mark.parametrize("kind", ["folder", "missing folder", "file as folder"])
+@pytest.mark.parametrize("command, option, suffix, line", OUTPUTS,
+                         ids=[f"{c}{o}" for c, o, _, _ in OUTPUTS])
+def test_an_output_that_cannot_be_written_is_refused_first(files, capsys, command, option,
+                                                           suffix, line, kind):
+    """An output naming a folder, a file in a folder that does not exist, or a file under a
+    file: exit 1 (a missing or wrong file, docs/files-and-cli.md) with a message naming the
+    option and the path, before the edges are read; nothing written.  (It read and solved
+    first, then failed with '[Errno 21] cannot write 'x.csv': cannot write 'x.csv': it is a
+    folder'.)"""
+    d = files["dir"]
+    files["sites"] = _write(d / "sites.csv", ["id", "x", "y"],
+                            [(s, k, k * k % 5) for k, s in
+                             enumerate(["depot", "north", "east", "south", "west"])])
+    (d / ("taken" + suffix)).mkdir()
+    target = {"folder": d / ("taken" + suffix),
+              "missing folder": d / "no" / "such" / ("out" + suffix),
+              "file as folder": Path(files["links"]) / ("out" + suffix)}[kind]
+    before = sorted(p.name for p in d.rglob("*"))
+    argv = line(files) + COLUMNS + [option, str(target)]
+    rc, out, err = _run(argv, capsys)
+    assert rc == 1, (rc, out, err)
+    assert err.startswith(f"fastmst {command}: error: {option} {target}:"), err
+    assert "Errno" not in err and "Traceback" not in err
+    assert "reading" not in out + err
+    assert sorted(p.name for p in d.rglob("*")) == before
+
+
+@given(cls=st.sampled_from([OSError, PermissionError, FileNotFoundError, IsADirectoryError,
+                            NotADirectoryError]),
+       errno_=st.integers(1, 130), words=st.text(min_size=1, max_size=30),
+       name=st.one_of(st.none(), st.text(min_size=1, max_size=20)))
+def test_os_errors_print_without_errno_prefix(cls, errno_, words, name):
+    """Operating-system errors reach the screen in their own words with the file name, never as
+    '[Errno N] ...' (common practice, no source: the number means nothing to users)."""
+    exc = cls(errno_, words) if name is None else cls(errno_, words, name)
+    text = common.os_error_text(exc)
+    assert "[Errno" not in text and words in text
+    if name is not None:
+        assert name in words or repr(name) in text
+
+
+def test_an_os_error_at_write_time_is_one_message(files, capsys, monkeypatch):
+    """A write that fails after all checks (a full disk, a permission): exit 1, one line with
+    the operating system's words and no '[Errno N]'."""
+    def fail(*a, **k):
+        raise PermissionError(13, "Permission denied", "out.csv")
+    monkeypatch.setattr(solve, "run", fail)
+    rc, out, err = _run(["solve", files["links"]] + COLUMNS, capsys)
+    assert rc == 1 and err == "fastmst solve: error: Permission denied: 'out.csv'\n", err

@@ -22,7 +22,7 @@ import sys
 import fastmst
 from fastmst.cli import bench, check, clusters, demo, margins, path, solve, whatif
 from fastmst.cli import backup, failures, feeders, shallow
-from fastmst.cli.common import EXIT_DATA, EXIT_USAGE, UsageError
+from fastmst.cli.common import EXIT_DATA, EXIT_USAGE, UsageError, os_error_text
 
 COMMANDS = (solve, check, clusters, margins, path, whatif, failures, backup, feeders, shallow,
             bench, demo)
@@ -72,7 +72,8 @@ def main(argv=None) -> int:
     except (ValueError, TypeError, OSError, MemoryError, ArithmeticError) as exc:
         if debug:
             raise
-        print(f"fastmst {args.command}: error: {exc}", file=sys.stderr)
+        text = os_error_text(exc) if isinstance(exc, OSError) else exc
+        print(f"fastmst {args.command}: error: {text}", file=sys.stderr)
         if isinstance(exc, MemoryError):
             print("  (out of memory; run again with --debug for the traceback)", file=sys.stderr)
         return EXIT_DATA

@@ -68,8 +68,8 @@ def check_folder(out: str) -> None:
     sites.csv, trenches.csv and more there, and must never replace the user's own files."""
     path = Path(out)
     if path.exists() and not path.is_dir():
-        raise UsageError(f"--out {out}: is a file; expected a folder for the demo's files. "
-                         f"Choose a new folder name.")
+        raise OSError(f"--out {out}: is a file; expected a folder for the demo's files. "
+                      f"Choose a new folder name.")
     if not path.is_dir():
         try:
             path.mkdir(parents=True)
