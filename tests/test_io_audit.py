@@ -242,3 +242,27 @@ def test_single_array_npz_is_a_file_format_error(tmp_path):
         np.save(fh, np.arange(3))
     with pytest.raises(fio.FileFormatError, match="numpy.savez"):
         fio.read_edges(path)
+
+
+# --- every format that writes carried columns reads them back -----------------------------
+
+@given(fmt=st.sampled_from(["csv", "tsv", "parquet", "npz"]),
+       keep=st.sampled_from(["all", ["note"], []]),
+       ids=st.lists(st.text(st.characters(min_codepoint=33, max_codepoint=0x2FFF), min_size=1,
+                            max_size=6), min_size=3, max_size=3, unique=True))
+def test_carried_columns_and_link_ids_read_back(tmp_path_factory, fmt, keep, ids):
+    edges = fio.from_table(pa.table({"tail": ["a", "b", "c"], "head": ["b", "c", "a"],
+                                     "weight": [1.5, 2.5, 3.5], "lid": ids,
+                                     "note": ["x", "y", "z"], "k": [7, 8, 9]}), link_id="lid")
+    forest = edges.solve()
+    path = fio.write_forest(tmp_path_factory.mktemp("carry") / f"f.{fmt}", forest, edges)
+    back = fio.read_edges(path, link_id="lid", keep_columns=keep)
+    # reference: the forest's rows of the input table (positions 0 and 1)
+    want = {"lid": ids[:2], "note": ["x", "y"], "k": [7, 8]}
+    names = ["lid"] + (["note", "k"] if keep == "all" else list(keep))
+    assert back.link_id == "lid"
+    assert back.attributes.column_names == names
+    assert {n: back.attributes.column(n).to_pylist() for n in names} == \
+        {n: want[n] for n in names}
+    with pytest.raises(fio.FileFormatError, match="no column 'nope'"):
+        fio.read_edges(path, keep_columns=["nope"])

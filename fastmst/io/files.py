@@ -65,7 +65,7 @@ def read_edges(path, *, tail=None, head=None, weight=None, format=None, nodes=No
         count is refused unless confirmed by passing it here (CLI ``--declared-nodes N``).
     keep_columns : "all" or list of str, default "all"
         The input's other columns carried to every output under their own names (CSV/TSV,
-        Parquet and tables; CLI ``--keep-columns``): "all", or the names to keep (``[]`` for
+        Parquet, .npz and tables; CLI ``--keep-columns``): "all", or the names to keep (``[]`` for
         none).  In CSV/TSV they are read as text, then as numbers where every cell is a number
         as written (``007`` keeps its text).  A column named ``position`` is not carried (the
         outputs' own column of that name is the edge's row in the input).

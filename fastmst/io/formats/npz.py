@@ -9,7 +9,7 @@ import numpy as np
 
 from fastmst.io import registry
 from fastmst.io.checks import FileFormatError
-from fastmst.io.columns import choose_edge_columns
+from fastmst.io.columns import carried_columns, choose_edge_columns, guessed_roles
 from fastmst.io.edgelist import edges_from_table
 
 
@@ -24,7 +24,8 @@ def _entry(i: int) -> str:
 
 
 def read_edges(path, compression, request):
-    """An EdgeList from the arrays of an .npz file (columns as chosen by ``request``)."""
+    """An EdgeList from the arrays of an .npz file (columns as chosen by ``request``; the other
+    arrays are carried to outputs as ``keep_columns`` and ``link_id`` say, in their own types)."""
     import pyarrow as pa
     try:
         z = np.load(str(path), allow_pickle=False)
@@ -41,8 +42,9 @@ def read_edges(path, compression, request):
             names = ["tail", "head"] + [x for x in names if x not in ("tail", "head")]
         cols = choose_edge_columns(names, request.tail, request.head, request.weight,
                                    str(path), request.nodes is not None)
+        carry = carried_columns(names, cols, request.keep_columns, request.link_id, str(path))
         try:
-            arrays = {c: z[c] for c in cols if c in names}
+            arrays = {c: z[c] for c in list(dict.fromkeys(cols)) + carry if c in names}
         except ValueError as exc:
             if "pickle" not in str(exc):
                 raise FileFormatError(f"{path}: an array could not be read ({exc}); is the "
@@ -60,14 +62,22 @@ def read_edges(path, compression, request):
     if lengths == {0}:
         raise FileFormatError(f"{path}: the arrays are empty; expected one entry per edge.")
     for c, a in arrays.items():
-        if a.dtype.kind not in _KINDS:
+        if c in carry and c not in cols:
+            if a.dtype.kind not in _KINDS + "Mm":
+                raise FileFormatError(f"{path}: the carried array {c!r} holds "
+                                      f"{_KIND_NAMES.get(a.dtype.kind, 'other')} values (dtype "
+                                      f"{a.dtype}), which outputs cannot carry; leave it out "
+                                      f"with keep_columns (CLI --keep-columns) or convert it.")
+        elif a.dtype.kind not in _KINDS:
             kind = _KIND_NAMES.get(a.dtype.kind, "other")
             raise FileFormatError(f"{path}: column {c!r} holds {kind} values (dtype "
                                   f"{a.dtype}); expected integers or real numbers"
                                   f" (weights) and integers or text (labels). Convert it, e.g. "
                                   f"keep the real part of complex weights.")
     table = pa.table({c: pa.array(a) for c, a in arrays.items()})
-    return edges_from_table(table, cols, str(path), _entry, request.nodes, request.ids)
+    return edges_from_table(table, cols, str(path), _entry, request.nodes, request.ids, carry,
+                            request.link_id,
+                            guessed_roles(request.tail, request.head, request.weight))
 
 
 def write_table(table, tmp, compression):
