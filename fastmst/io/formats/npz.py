@@ -84,11 +84,21 @@ def write_table(table, tmp, compression):
     """A pyarrow Table as an .npz archive, text columns as dtype ``U``.
 
     NumPy's ``U`` dtype drops trailing NUL characters, so a text cell ending in one is refused
-    (a ValueError naming it) rather than changed.
+    (a ValueError naming it) rather than changed; so is a missing cell, which NumPy arrays
+    cannot mark.
     """
     arrays = {}
     for name in table.column_names:
-        a = table.column(name).to_numpy(zero_copy_only=False)
+        col = table.column(name)
+        if col.null_count:   # NumPy arrays have no missing cells: None would become "None"
+            i = int(np.flatnonzero(col.is_null().to_numpy(zero_copy_only=False))[0])
+            raise ValueError(f"column {name!r}: row {i} (counting from 0) is missing "
+                             f"({col.null_count} missing cells in all), and .npz arrays cannot "
+                             f"mark a cell missing (text would read back as 'None', integers as "
+                             f"NaN floats); write Parquet (.parquet), which keeps missing cells, "
+                             f"or leave the column out (write_forest(columns=...), CLI "
+                             f"--keep-columns).")
+        a = col.to_numpy(zero_copy_only=False)
         if a.dtype == object:
             values = a.tolist()
             a = np.asarray(values, dtype=str)
