@@ -282,3 +282,41 @@ def test_npz_refuses_missing_cells(tmp_path_factory, kind, at):
     # the same table through Parquet keeps the missing cell (reference: the table itself)
     back = fio.read_edges(fio.write_table(tmp / "t.parquet", table))
     assert back.attributes.column("extra").to_pylist() == values
+
+
+# --- a file of another format under a text name is a FileFormatError ----------------------
+
+def _other_format(tmp, kind):
+    """Bytes of an edge table in format ``kind``, not CSV/TSV text."""
+    table = pa.table({"tail": ["a", "b"], "head": ["b", "c"], "weight": [1.0, 2.0],
+                      "lon": [1.0, 2.0], "lat": [3.0, 4.0]})
+    if kind in ("parquet", "npz", "csv.gz", "tsv.zst", "csv.bz2"):
+        return fio.write_table(tmp / f"t.{kind}", table).read_bytes()
+    if kind == "gpkg":
+        edges = fio.from_table(table.select(["tail", "head", "weight"]),
+                               nodes=pa.table({"id": ["a", "b", "c"], "lon": [1.0, 2.0, 3.0],
+                                               "lat": [3.0, 4.0, 5.0]}))
+        return fio.write_geopackage(tmp / "t.gpkg", edges.solve(), edges).read_bytes()
+    if kind == "npy":
+        with open(tmp / "t.npy", "wb") as fh:
+            np.save(fh, np.arange(6))
+        return (tmp / "t.npy").read_bytes()
+    text = "tail,head,weight,lon,lat\nété,b,1,1,3\nb,c,2,2,4\n"
+    return text.encode("utf-16" if kind == "utf-16" else "latin-1")
+
+
+@settings(max_examples=30)
+@given(kind=st.sampled_from(["parquet", "npz", "csv.gz", "tsv.zst", "csv.bz2", "gpkg", "npy",
+                             "utf-16", "latin-1"]),
+       name=st.sampled_from(["e.csv", "e.tsv", "e.txt"]),
+       reader=st.sampled_from(["edges", "nodes"]))
+def test_other_formats_under_a_text_name(tmp_path_factory, kind, name, reader):
+    tmp = tmp_path_factory.mktemp("named")
+    path = tmp / name
+    path.write_bytes(_other_format(tmp, kind))
+    read = fio.read_edges if reader == "edges" else fio.read_nodes
+    with pytest.raises(fio.FileFormatError) as info:
+        read(path)
+    msg = str(info.value)
+    # (CSV text under a .tsv name is first told about its separator)
+    assert str(path) in msg and ("UTF-8" in msg or "suffix" in msg or "separator" in msg)

@@ -31,10 +31,37 @@ from fastmst.io.edgelist import edges_from_table
 CSV_BLOCK_SIZE = 1 << 22   # bytes per parsing block: fewer, larger chunks than pyarrow's 1 MiB
 
 
+# the first bytes of files that are not CSV/TSV text, and what they are
+_MAGIC = ((b"PAR1", "a Parquet file (name it .parquet)"),
+          (b"PK\x03\x04", "a zip archive (.npz, or a spreadsheet: export it as CSV)"),
+          (b"\x1f\x8b", "gzip-compressed (name it .csv.gz or .tsv.gz)"),
+          (b"\x28\xb5\x2f\xfd", "zstd-compressed (name it .csv.zst or .tsv.zst)"),
+          (b"BZh", "bzip2-compressed (name it .csv.bz2 or .tsv.bz2)"),
+          (b"SQLite format 3\x00", "an SQLite database or GeoPackage (name it .gpkg)"),
+          (b"\x93NUMPY", "a NumPy .npy array"),
+          (b"\xff\xfe", "UTF-16 text (save it as UTF-8)"),
+          (b"\xfe\xff", "UTF-16 text (save it as UTF-8)"))
+
+
+def _check_text(path, head: bytes) -> None:
+    """The first bytes of a CSV/TSV file must be text: binary files (another format under a
+    text name) are a FileFormatError that says what they look like.  A NUL byte in the header
+    line says binary too (labels further down may hold one: they read back as written)."""
+    what = next((w for magic, w in _MAGIC if head.startswith(magic)), None)
+    nul = head.split(b"\n", 1)[0].find(b"\x00")
+    if what is None and nul < 0:
+        return
+    found = f"it looks like {what}" if what else f"it holds a NUL byte at byte {nul}"
+    raise FileFormatError(f"{path}: is not CSV/TSV text ({found}); expected UTF-8 text with a "
+                          f"header line. Give the file the suffix of its format, or pass "
+                          f"format=... (CLI --format).")
+
+
 def _header(path, delimiter, compression):
     import pyarrow as pa
     with pa.input_stream(str(path), compression=compression) as s:
         head = s.read(1 << 16)
+    _check_text(path, head)
     text = head.decode("utf-8-sig", errors="replace")
     if not text.strip():
         raise FileFormatError(f"{path}: the file is empty; expected a header line naming the "
@@ -117,6 +144,9 @@ def _read_unchecked(path, delimiter, compression, columns, numeric, progress=Non
         where = _first_bad_line(path, delimiter, compression, [c for c in numeric(cols) if c],
                                 decimal_comma)
         msg = where or f"the file could not be parsed ({exc})"
+        if where is None and "invalid UTF8" in str(exc):
+            msg = (f"is not UTF-8 text ({exc}); save it as UTF-8 (spreadsheets: 'CSV UTF-8'), "
+                   f"or convert it, e.g. iconv -f latin1 -t utf-8")
         raise FileFormatError(f"{path}: {msg}.") from None
     if table.num_rows == 0:
         raise FileFormatError(f"{path}: the file has a header ({', '.join(header)}) but no "
