@@ -64,11 +64,8 @@ def encode_labels(tail, head, source: str, names=("tail", "head"), ids="text"):
     """
     import pyarrow as pa
 
-    def arrow(a):
-        a = np.asarray(a)
-        return pa.array(a.tolist() if a.dtype == object else a)
-    return encode_label_columns(arrow(tail), arrow(head), source, lambda i: f"entry {i}",
-                                names, ids)
+    return encode_label_columns(label_array(np.asarray(tail)), label_array(np.asarray(head)),
+                                source, lambda i: f"entry {i}", names, ids)
 
 
 def encode_label_columns(tail, head, source, where, names, ids="text", text_as_arrow=False):
@@ -254,11 +251,26 @@ def _dictionary_codes(col):
 
 
 def label_array(labels):
-    """NumPy labels (text as object arrays included) as a pyarrow array."""
+    """NumPy labels (text as object arrays included) as a pyarrow array.
+
+    NumPy text (dtype ``U``) holding a NUL character inside a label goes through Python
+    strings: pyarrow's own conversion of such arrays ends each label at its first NUL
+    (``"0\\x000"`` became ``"0"``)."""
     import pyarrow as pa
-    if labels.dtype == object:
-        return pa.array(labels.tolist())
+    if labels.dtype == object or (labels.dtype.kind == "U" and _inner_nul(labels)):
+        return pa.array(labels.tolist(), type=pa.string() if labels.dtype.kind == "U" else None)
     return pa.array(labels)
+
+
+def _inner_nul(text: np.ndarray) -> bool:
+    """Whether a NumPy ``U`` array holds a NUL character before the end of a label (NumPy
+    pads labels with NULs, so only a NUL followed by another character is part of one)."""
+    width = text.dtype.itemsize // 4
+    if text.size == 0 or width < 2:
+        return False
+    codes = np.ascontiguousarray(text).reshape(-1).view(np.uint32).reshape(-1, width)
+    present = codes != 0
+    return bool((~present[:, :-1] & present[:, 1:]).any())
 
 
 def all_labels(edges):

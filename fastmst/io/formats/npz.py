@@ -11,6 +11,7 @@ from fastmst.io import registry
 from fastmst.io.checks import FileFormatError
 from fastmst.io.columns import carried_columns, choose_edge_columns, guessed_roles
 from fastmst.io.edgelist import edges_from_table
+from fastmst.io.labels import label_array
 
 
 # NumPy dtype kinds an edge column may have: bool, integers, reals, text; and names of others
@@ -74,7 +75,7 @@ def read_edges(path, compression, request):
                                   f"{a.dtype}); expected integers or real numbers"
                                   f" (weights) and integers or text (labels). Convert it, e.g. "
                                   f"keep the real part of complex weights.")
-    table = pa.table({c: pa.array(a) for c, a in arrays.items()})
+    table = pa.table({c: label_array(a) for c, a in arrays.items()})
     return edges_from_table(table, cols, str(path), _entry, request.nodes, request.ids, carry,
                             request.link_id,
                             guessed_roles(request.tail, request.head, request.weight))
