@@ -344,3 +344,38 @@ def test_numpy_labels_with_nul_keep_every_character(tmp_path_factory, names, fmt
     back = fio.read_edges(path)
     assert back.label(back.tail).tolist() == names[:n]
     assert back.label(back.head).tolist() == names[1:]
+
+
+# --- GeoJSON longitudes stay in [-180, 180] -------------------------------------------------
+
+@given(lon=st.lists(st.floats(-900.0, 900.0), min_size=3, max_size=6),
+       lat=st.floats(-80.0, 80.0))
+def test_geojson_longitudes_in_range(tmp_path_factory, lon, lat):
+    import json
+    import math
+    n = len(lon)
+    labels = [f"s{i}" for i in range(n)]
+    nodes = fio.read_nodes(pa.table({"id": labels, "lon": lon,
+                                     "lat": [lat + 0.1 * i for i in range(n)]}))
+    before = nodes.coords.copy()
+    edges = fio.from_table(pa.table({"tail": labels[:-1], "head": labels[1:],
+                                     "weight": np.arange(n - 1) + 1.0}), nodes=nodes)
+    path = tmp_path_factory.mktemp("geo") / "f.geojson"
+    fio.write_geojson(path, edges.solve(), edges, sites=True)
+    doc = json.loads(path.read_text())
+    site = {}
+    for feat in doc["features"]:
+        g = feat["geometry"]
+        points = [g["coordinates"]] if g["type"] == "Point" else \
+            g["coordinates"] if g["type"] == "LineString" else \
+            [p for line in g["coordinates"] for p in line]
+        if g["type"] == "Point":
+            site[feat["properties"]["node"]] = g["coordinates"]
+        for x, _ in points:
+            assert -180.0 <= x <= 180.0   # RFC 7946, section 4
+    for i, name in enumerate(labels):
+        # reference: Python's math.remainder (IEEE remainder, exact) of the given longitude
+        want = math.remainder(lon[i], 360.0)
+        assert site[name][0] == pytest.approx(want, abs=1e-7) or \
+            abs(abs(want) - 180.0) < 1e-7 and abs(site[name][0]) == pytest.approx(180.0)
+    assert np.array_equal(nodes.coords, before)   # the input is not changed

@@ -28,7 +28,8 @@ def write_geojson(path, forest, edges, *, properties=None, sites=False, clusters
     Features:
 
     * one per forest edge: a LineString ([longitude, latitude], WGS 84, rounded to 7 decimals,
-      about 1 cm) with ``"id"`` the edge's ``position`` (its row in the input) and as
+      about 1 cm; longitudes given beyond +-180 degrees, as lon + 360 k, are written in
+      [-180, 180]) with ``"id"`` the edge's ``position`` (its row in the input) and as
       properties every column of the forest table, named as in CSV output (tail, head, weight
       as named in the input, ``position``, the input's carried columns), then the columns of
       ``properties`` (a dict of arrays indexed by forest edge), then ``cluster`` when
@@ -63,7 +64,7 @@ def write_geojson(path, forest, edges, *, properties=None, sites=False, clusters
     to_wgs84 = _transformer(info)
     xy = edges.coords if to_wgs84 is None else np.column_stack(
         to_wgs84(edges.coords[:, 0], edges.coords[:, 1]))
-    xy = np.round(xy, 7)
+    xy = np.round(_wrapped(xy), 7)
     t = np.asarray(forest.tail, dtype=np.int64)
     h = np.asarray(forest.head, dtype=np.int64)
     table = forest_table(forest, edges)
@@ -91,6 +92,17 @@ def write_geojson(path, forest, edges, *, properties=None, sites=False, clusters
         with open(tmp, "w", encoding="utf-8") as fh:
             json.dump(doc, fh, separators=(",", ":"), allow_nan=False, default=str)
     return atomic_write(path, write)
+
+
+def _wrapped(xy):
+    """(longitude, latitude) rows with longitudes brought into [-180, 180] (RFC 7946, section
+    4, wants them there; node tables may give them as lon + 360 k).  Exact: ``fmod`` by 360
+    and one step of 360 change no bit of the position on the sphere."""
+    lon = np.fmod(xy[:, 0], 360.0)
+    lon = np.where(lon > 180.0, lon - 360.0, np.where(lon < -180.0, lon + 360.0, lon))
+    if np.array_equal(lon, xy[:, 0]):
+        return xy
+    return np.column_stack([lon, xy[:, 1]])
 
 
 def _transformer(info):
