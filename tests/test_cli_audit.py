@@ -349,3 +349,81 @@ def test_an_os_error_at_write_time_is_one_message(files, capsys, monkeypatch):
     monkeypatch.setattr(solve, "run", fail)
     rc, out, err = _run(["solve", files["links"]] + COLUMNS, capsys)
     assert rc == 1 and err == "fastmst solve: error: Permission denied: 'out.csv'\n", err
+
+
+# --- what-if: scaled weights exact, unscaled ones untouched, overflow refused ----------------------
+
+@st.composite
+def _scenario(draw):
+    """A connected graph with integer weights of any size (beyond 2**53 too) in two or three
+    categories, and factors for some of them (whole numbers or not)."""
+    n = draw(st.integers(3, 9))
+    pairs = {(draw(st.integers(0, k - 1)), k) for k in range(1, n)}
+    extra = draw(st.lists(st.tuples(st.integers(0, n - 1), st.integers(0, n - 1)),
+                          max_size=2 * n))
+    pairs = sorted(pairs | {(min(a, b), max(a, b)) for a, b in extra if a != b})
+    big = draw(st.sampled_from([2 ** 20, 2 ** 53, 2 ** 62]))
+    weights = [draw(st.integers(-big, big)) for _ in pairs]
+    cats = [draw(st.sampled_from("xyz")) for _ in pairs]
+    scaled = draw(st.lists(st.sampled_from(sorted(set(cats))), min_size=1, unique=True))
+    factors = {c: draw(st.one_of(st.integers(0, 3), st.sampled_from([0.5, 1.25, 2.5])))
+               for c in scaled}
+    return n, pairs, weights, cats, factors
+
+
+def _nx_total(n, pairs, weights):
+    """Minimum spanning tree weight by networkx (exact on Python ints and floats alike)."""
+    g = nx.Graph()
+    g.add_nodes_from(range(n))
+    for (a, b), w in zip(pairs, weights):
+        g.add_edge(a, b, weight=w)
+    return sum(d["weight"] for _, _, d in nx.minimum_spanning_edges(g, data=True))
+
+
+@settings(max_examples=60, deadline=None,
+          suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(sc=_scenario())
+def test_what_if_scales_exactly_or_refuses(tmp_path_factory, capsys, sc):
+    """what-if multiplies the chosen categories' weights and leaves every other weight as read:
+    integer weights under whole-number factors stay exact integers (they went through float64:
+    weights beyond 2**53 were rounded and '--scale x=1' reported a saving of 16); a factor that
+    is not whole on integers beyond 2**53, and a product beyond int64, are refused naming the
+    option (an overflow ended in "unsupported operand type(s) for -: 'str' and 'float'").
+    Totals are checked with networkx minimum_spanning_edges on exact Python numbers."""
+    n, pairs, weights, cats, factors = sc
+    d = tmp_path_factory.mktemp("whatif")
+    links = _write(d / "links.csv", ["from", "to", "cost", "surface"],
+                   [(f"n{a}", f"n{b}", w, c) for (a, b), w, c in zip(pairs, weights, cats)])
+    argv = ["what-if", links, "--by", "surface", "--json"] + COLUMNS
+    for c, f in factors.items():
+        argv += ["--scale", f"{c}={f}"]
+    rc, out, err = _run(argv, capsys)
+    whole = all(float(f).is_integer() for f in factors.values())
+    new = [w * int(factors[c]) if whole and c in factors else
+           (w * factors[c] if c in factors else w) for w, c in zip(weights, cats)]
+    if whole and any(abs(v) > 2 ** 63 - 1 for v in new):
+        assert rc == 1 and "--scale" in err and "beyond the int64" in err, (rc, err)
+        return
+    if not whole and max(abs(w) for w in weights) > 2 ** 53:
+        assert rc == 1 and "2**53" in err, (rc, err)
+        return
+    assert rc == 0, (rc, err)
+    if not whole:
+        new = [float(w) * factors[c] if c in factors else float(w)
+               for w, c in zip(weights, cats)]
+    r = json.loads(out)
+    before, after = _nx_total(n, pairs, weights), _nx_total(n, pairs, new)
+    assert r["total_before"] == pytest.approx(float(before), rel=1e-14, abs=1e-9)
+    assert r["total_after"] == pytest.approx(float(after), rel=1e-14, abs=1e-9)
+    assert r["saving_from_redesign"] >= 0
+    if all(f == 1 for f in factors.values()):   # nothing changes, to the last digit
+        assert r["saving_from_redesign"] == 0
+        assert r["links_entering"] == r["links_leaving"] == 0
+        assert r["total_after"] == r["total_before"]
+
+
+def test_what_if_one_category_scaled_twice_is_refused(files, capsys):
+    """--scale naming one category twice: exit 2 naming both (the last factor won silently)."""
+    rc, out, err = _run(["what-if", files["links"], "--by", "surface", "--scale", "road=2",
+                         "--scale", "road=3"] + COLUMNS, capsys)
+    assert rc == 2 and "'road=3'" in err and "'road=2'" in err, (rc, err)

@@ -12,6 +12,7 @@ import fastmst
 from fastmst import io
 from fastmst.cli import common
 from fastmst.cli.common import CAUTION, EXIT_OK, UsageError, derived, fmt_num, plural
+from fastmst.solve.totals import signed_sum, total
 
 EPILOG = """examples:
   fastmst what-if links.csv --by route_type --scale "asphalt road=1.25"
@@ -43,6 +44,7 @@ def add_parser(sub):
 
 def _factors(items) -> dict:
     out = {}
+    given = {}
     for item in items:
         value, sep, factor = item.rpartition("=")
         try:
@@ -52,8 +54,62 @@ def _factors(items) -> dict:
         if not sep or not value or f is None or not np.isfinite(f) or f < 0:
             raise UsageError(f"--scale {item!r}: expected VALUE=FACTOR with a factor >= 0, "
                              f"e.g. --scale \"asphalt road=1.25\".")
+        if value in given:
+            raise UsageError(f"--scale {item!r}: the category {value!r} is already scaled by "
+                             f"--scale {given[value]!r}; give each category once.")
+        given[value] = item
         out[value] = f
     return out
+
+
+def scaled_weights(edges, category, factors: dict, by: str) -> np.ndarray:
+    """The weights with each category's links multiplied by its factor, every other weight
+    exactly as read.  Integer weights stay integers under whole-number factors; other factors
+    need float64, which holds integers exactly only up to 2**53, so larger ones are refused.
+    A product beyond the weight type's range is refused naming the link (it became inf, or
+    wrapped around)."""
+    w = np.asarray(edges.weight)
+    masks = {v: category == v for v in factors}
+    whole = all(float(f).is_integer() for f in factors.values())
+    if w.dtype.kind in "iu" and whole:
+        out, info = w.copy(), np.iinfo(w.dtype)
+        for v, f in factors.items():
+            m = masks[v]
+            if not m.any():
+                continue
+            lo, hi = int(w[m].min()) * int(f), int(w[m].max()) * int(f)
+            if lo < info.min or hi > info.max:
+                p = int(np.flatnonzero(m)[np.argmax(np.abs(w[m].astype(object)))])
+                raise ValueError(f"--scale {v}={f:g}: {_link(edges, p)} would weigh "
+                                 f"{int(w[p]) * int(f):,}, beyond the {w.dtype} weights of "
+                                 f"{edges.source} (at most {info.max:,}); give a smaller "
+                                 f"factor.")
+            out[m] = w[m] * w.dtype.type(int(f))
+        return out
+    if w.dtype.kind in "iu" and w.size:
+        big = max(abs(int(w.min())), abs(int(w.max())))
+        if big > 2 ** 53:
+            raise ValueError(f"--scale: {edges.source} has integer weights up to {big:,}; a "
+                             f"factor that is not a whole number is applied in float64, which "
+                             f"holds integers exactly only up to 2**53 = {2 ** 53:,}, and "
+                             f"would round weights it was not asked to change. Use whole-"
+                             f"number factors, or weights in smaller units.")
+    out = w.astype(np.float64)
+    with np.errstate(over="ignore"):
+        for v, f in factors.items():
+            out[masks[v]] *= f
+    over = np.flatnonzero(~np.isfinite(out) & np.isfinite(w.astype(np.float64)))
+    if over.size:
+        p = int(over[0])
+        raise ValueError(f"--scale {category[p]}={factors[category[p]]:g}: "
+                         f"{_link(edges, p)} would weigh more than the largest float64 "
+                         f"(about 1.8e308); give a smaller factor, or weights in smaller "
+                         f"units ({by} has {plural(over.size, 'such link')}).")
+    return out
+
+
+def _link(edges, p: int) -> str:
+    return common.link_text(common.link_json(edges, p), edges)
 
 
 def run(args) -> int:
@@ -73,10 +129,7 @@ def run(args) -> int:
             raise ValueError(f"--scale {missing[0]!r}: no link has {args.by} = {missing[0]!r}; "
                              f"the values are {', '.join(sorted(set(category.tolist()))[:12])}.")
         before, links = common.solve_design(args, edges, rep)
-        scale = np.ones(edges.n_edges, dtype=np.float64)
-        for value, f in factors.items():
-            scale[category == value] = f
-        new_weight = np.asarray(edges.weight, dtype=np.float64) * scale
+        new_weight = scaled_weights(edges, category, factors, args.by)
         constraints = {k: v for k, v in (("required", before.required),
                                          ("excluded", before.excluded)) if v.size}
         with rep.phase("solving the scenario"):
@@ -94,12 +147,13 @@ def run(args) -> int:
     old_set, new_set = set(before.edges.tolist()), set(after.edges.tolist())
     entering = sorted(new_set - old_set, key=lambda p: (new_weight[p], p))
     leaving = sorted(old_set - new_set, key=lambda p: (-float(edges.weight[p]), p))
-    old_at_new = derived(float(new_weight[before.edges].sum()))
+    old_at_new = derived(total(new_weight[before.edges]))
+    saving = signed_sum([(new_weight[before.edges], 1), (new_weight[after.edges], -1)])
     out = {"source": edges.source, "by": args.by, "scale": factors,
            "total_before": derived(before.weight),
            "old_design_at_new_costs": old_at_new,
            "total_after": derived(after.weight),
-           "saving_from_redesign": derived(old_at_new - after.weight),
+           "saving_from_redesign": derived(saving),
            "links_entering": len(entering), "links_leaving": len(leaving),
            "entering": [_change(edges, p, new_weight) for p in entering],
            "leaving": [_change(edges, p, new_weight) for p in leaving],
@@ -145,8 +199,8 @@ def _by_category(category, before, after, weight, new_weight) -> dict:
         b = before.edges[category[before.edges] == k]
         a = after.edges[category[after.edges] == k]
         out[k] = {"links_before": int(b.size), "links_after": int(a.size),
-                  "weight_before": derived(float(np.asarray(weight, dtype=np.float64)[b].sum())),
-                  "weight_after": derived(float(new_weight[a].sum()))}
+                  "weight_before": derived(total(np.asarray(weight)[b])),
+                  "weight_after": derived(total(new_weight[a]))}
     return out
 
 
