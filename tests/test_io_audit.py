@@ -379,3 +379,31 @@ def test_geojson_longitudes_in_range(tmp_path_factory, lon, lat):
         assert site[name][0] == pytest.approx(want, abs=1e-7) or \
             abs(abs(want) - 180.0) < 1e-7 and abs(site[name][0]) == pytest.approx(180.0)
     assert np.array_equal(nodes.coords, before)   # the input is not changed
+
+
+# --- writer arguments: errors say what was received and what to do -----------------------
+
+@given(fmt=st.sampled_from(["parquet", "npz", "geojson", "gpkg"]),
+       suffix=st.sampled_from([".gz", ".zst", ".bz2", ".GZ"]))
+def test_compressed_suffix_on_a_binary_output(tmp_path_factory, fmt, suffix):
+    tmp = tmp_path_factory.mktemp("comp")
+    edges = fio.read_edges(_write(tmp / "e.csv", _EDGES), nodes=_write(tmp / "n.csv", _NODES))
+    path = tmp / f"out.{fmt}{suffix}"
+    with pytest.raises(ValueError) as info:
+        fio.write_forest(path, edges.solve(), edges)
+    msg = str(info.value)
+    assert str(path) in msg and "written compressed" in msg and f"{suffix!r} suffix" in msg
+    assert "Decompress" not in msg
+    assert not path.exists()
+
+
+@given(compression=st.one_of(st.sampled_from(["lz4", "GZIP", "zip", ""]), st.integers(),
+                             st.just(b"gzip")))
+def test_write_table_compression_checked(tmp_path_factory, compression):
+    tmp = tmp_path_factory.mktemp("comp")
+    table = pa.table({"tail": ["a"], "head": ["b"], "weight": [1.0]})
+    error = TypeError if not isinstance(compression, str) else ValueError
+    with pytest.raises(error, match="compression must be one of bz2, gzip, zstd or None, "
+                                    "received"):
+        fio.write_table(tmp / "t.csv", table, compression=compression)
+    assert not list(tmp.iterdir())

@@ -165,6 +165,16 @@ def write_table(path, table, *, format=None, compression=None, spreadsheet_safe=
     name, comp = registry.detect_format(path, format, valid=registry.names("write_table"),
                                         func="write_table")
     fmt = registry.get(name)
+    if compression is not None:
+        codecs = sorted(set(registry.COMPRESSIONS.values()))
+        if not isinstance(compression, str):
+            raise TypeError(f"write_table: compression must be one of {', '.join(codecs)} or "
+                            f"None, received {type(compression).__name__} "
+                            f"{shown(compression)}.")
+        if compression not in codecs:
+            raise ValueError(f"write_table: compression must be one of {', '.join(codecs)} or "
+                             f"None, received {compression!r}; or name the file with a "
+                             f".gz, .zst or .bz2 suffix.")
     comp = compression or comp
     if validation.check_bool(spreadsheet_safe, "spreadsheet_safe", "write_table") and \
             fmt.spreadsheet:

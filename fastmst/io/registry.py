@@ -140,6 +140,10 @@ def detect_format(path, format=None, *, valid=None, func="read_edges"):
                          f"end in .gz or .zst). Rename the file" + (" or pass format=... (CLI: --format)."
                                                           if func == "read_edges" else "."))
     if compression and not _REGISTRY[fmt].compressed:
+        if func.startswith("write"):
+            raise ValueError(f"{func}: {str(path)!r} names a compressed {fmt} file; only "
+                             f"{_compressed()} are written compressed. Drop the "
+                             f"{Path(path).suffixes[-1]!r} suffix.")
         raise ValueError(f"{func}: {str(path)!r} is a compressed {fmt} file; only "
                          f"{_compressed()} are read compressed. Decompress it first.")
     return fmt, compression
