@@ -427,3 +427,35 @@ def test_what_if_one_category_scaled_twice_is_refused(files, capsys):
     rc, out, err = _run(["what-if", files["links"], "--by", "surface", "--scale", "road=2",
                          "--scale", "road=3"] + COLUMNS, capsys)
     assert rc == 2 and "'road=3'" in err and "'road=2'" in err, (rc, err)
+
+
+# --- numbers on the screen: never digits the value does not have ----------------------------------
+
+def _significant(text: str) -> int:
+    mantissa = text.replace(",", "").lstrip("-").split("e")[0].replace(".", "")
+    return len(mantissa.lstrip("0").rstrip("0")) if "." in text or "e" in text else \
+        len(mantissa.lstrip("0"))
+
+
+@given(x=st.one_of(st.floats(allow_nan=False, allow_infinity=False),
+                   st.floats(min_value=1e12, max_value=1e17),
+                   st.integers(-2 ** 53, 2 ** 53).map(float)))
+def test_screen_numbers_read_back_without_spurious_digits(x):
+    """fmt_num: from 1e13 up the text reads back as exactly the value (shortest round trip,
+    as Python's repr; common practice, no source), so 1e308 prints '1e+308', not 309 digits
+    of its binary expansion; an integer up to 2**53 prints exactly; no text has more than 17
+    significant digits (float64 carries at most 17)."""
+    text = common.fmt_num(x)
+    if abs(x) >= 1e13 or (x == int(x) and abs(x) <= 2 ** 53):
+        assert float(text.replace(",", "")) == x, (x, text)
+    if x == int(x) and abs(x) <= 2 ** 53:
+        assert text.replace(",", "") == str(int(x))
+    assert _significant(text) <= 17, (x, text)
+
+
+def test_huge_weights_print_as_written(tmp_path, capsys):
+    """A weight of 1e308 in the summary reads 1e+308."""
+    links = _write(tmp_path / "l.csv", ["from", "to", "cost"], [("a", "b", "1e308"),
+                                                                 ("b", "c", "2")])
+    rc, out, err = _run(["solve", links] + COLUMNS, capsys)
+    assert rc == 0 and "total weight       1e+308" in out and "weight 1e+308" in out, out

@@ -399,14 +399,24 @@ def fmt_num(x) -> str:
     ('1,234,567', '11.5', '2', 'inf')
     >>> fmt_num(12876312.4), fmt_num(0.30000000000000004), fmt_num(2.5e-7)
     ('12,876,312.4', '0.3', '2.5e-07')
+    >>> fmt_num(1e308), fmt_num(2.0 ** 54 + 4), fmt_num(999999999999999.9)
+    ('1e+308', '1.8014398509481988e+16', '999,999,999,999,999.9')
     """
     if isinstance(x, (int, np.integer)):
         return f"{int(x):,}"
     x = float(x)
     if not math.isfinite(x):
         return str(x)
-    if x == int(x) and abs(x) < 1e15:
+    if x == int(x) and abs(x) <= 2 ** 53:     # every such integer is exact in float64
         return f"{int(x):,}"
+    if abs(x) >= 1e13:
+        # two decimals would pass 15 significant digits: the shortest text that reads back
+        # as x instead, never the binary value's spurious digits (1e308 is not 1000...01097...)
+        text = repr(x)
+        if "e" in text:
+            return text
+        whole, _, frac = text.partition(".")
+        return f"{int(whole):,}" + (f".{frac}" if frac.strip("0") else "")
     if abs(x) < 1e-3:
         return f"{x:.6g}"
     text = f"{x:,.2f}" if abs(x) >= 1e6 else f"{x:,.4f}"
