@@ -407,3 +407,36 @@ def test_write_table_compression_checked(tmp_path_factory, compression):
                                     "received"):
         fio.write_table(tmp / "t.csv", table, compression=compression)
     assert not list(tmp.iterdir())
+
+
+# --- an empty forest (isolated nodes only) is written in every format ---------------------
+
+@settings(max_examples=30)
+@given(fmt=st.sampled_from(fio.WRITE_FORMATS), text=st.booleans(), n=st.integers(1, 4))
+def test_empty_forest_written_with_typed_columns(tmp_path_factory, fmt, text, n):
+    import pyarrow.parquet as pq
+    labels = [f"s{i}" for i in range(n)] if text else list(range(10, 10 + n))
+    nodes = fio.read_nodes(pa.table({"id": labels, "lon": [1.0 + i for i in range(n)],
+                                     "lat": [2.0 + i for i in range(n)]}))
+    edges = fio.from_table(pa.table({"tail": labels[:1], "head": labels[:1],
+                                     "weight": [1.0]}), nodes=nodes)   # a self-loop only
+    forest = edges.solve()
+    assert len(forest.edges) == 0
+    path = fio.write_forest(tmp_path_factory.mktemp("empty") / f"f.{fmt}", forest, edges)
+    label_type = pa.string() if text else pa.int64()
+    if fmt == "parquet":   # reference: the label type of the node table
+        schema = pq.read_schema(path)
+        assert schema.field("tail").type == label_type == schema.field("head").type
+    if fmt == "gpkg":
+        import pyogrio
+        _, sites = pyogrio.read_arrow(str(path), layer="sites")
+        assert sites.column("node").to_pylist() == labels
+        assert sites.column("isolated").to_pylist() == [True] * n
+        _, lines = pyogrio.read_arrow(str(path), layer="forest")
+        assert lines.num_rows == 0
+    if fmt == "geojson":
+        import json
+        assert json.loads(path.read_text())["features"] == []
+    if fmt in ("csv", "tsv"):
+        assert path.read_text().splitlines() == [
+            '"tail","head","weight","position"'.replace(",", "," if fmt == "csv" else "\t")]

@@ -255,8 +255,11 @@ def label_array(labels):
 
     NumPy text (dtype ``U``) holding a NUL character inside a label goes through Python
     strings: pyarrow's own conversion of such arrays ends each label at its first NUL
-    (``"0\\x000"`` became ``"0"``)."""
+    (``"0\\x000"`` became ``"0"``).  An empty object array is text (labels of an empty
+    forest: pyarrow's null type would be written as a column of no type)."""
     import pyarrow as pa
+    if labels.dtype == object and labels.size == 0:   # no labels to tell the type: text
+        return pa.array([], type=pa.string())         # (not pyarrow's null type)
     if labels.dtype == object or (labels.dtype.kind == "U" and _inner_nul(labels)):
         return pa.array(labels.tolist(), type=pa.string() if labels.dtype.kind == "U" else None)
     return pa.array(labels)
