@@ -440,3 +440,46 @@ def test_empty_forest_written_with_typed_columns(tmp_path_factory, fmt, text, n)
     if fmt in ("csv", "tsv"):
         assert path.read_text().splitlines() == [
             '"tail","head","weight","position"'.replace(",", "," if fmt == "csv" else "\t")]
+
+
+# --- integer ids of any width are looked up exactly ----------------------------------------
+
+_ID = st.one_of(st.integers(0, 5), st.integers(2**63 - 2, 2**64 - 1), st.integers(-2**63, -1),
+                st.integers(2**53 - 2, 2**53 + 2))
+
+
+def _id_column(values, kind):
+    if kind == "text":
+        return pa.array([str(v) for v in values])
+    if kind == "uint64" and all(v >= 0 for v in values):
+        return pa.array(values, pa.uint64())
+    if all(-2**63 <= v < 2**63 for v in values):
+        return pa.array(values, pa.int64())
+    return None
+
+
+@given(node_ids=st.lists(_ID, min_size=2, max_size=5, unique=True),
+       pick=st.lists(st.integers(0, 10), min_size=2, max_size=4),
+       stranger=st.one_of(st.none(), _ID),
+       kinds=st.tuples(st.sampled_from(["int64", "uint64", "text"]),
+                       st.sampled_from(["int64", "uint64", "text"])))
+def test_node_lookup_exact_across_integer_widths(node_ids, pick, stranger, kinds):
+    ends = [node_ids[i % len(node_ids)] for i in pick]
+    if stranger is not None and stranger not in node_ids:
+        ends[-1] = stranger
+    ncol, ecol = _id_column(node_ids, kinds[0]), _id_column(ends, kinds[1])
+    if ncol is None or ecol is None:
+        return   # that type cannot hold these ids
+    nodes = fio.read_nodes(pa.table({"id": ncol, "x": np.arange(len(node_ids), dtype=float),
+                                     "y": np.zeros(len(node_ids))}))
+    table = pa.table({"tail": ecol.slice(0, len(ends) - 1), "head": ecol.slice(1),
+                      "weight": np.ones(len(ends) - 1)})
+    # reference: Python's exact integer comparison of the ids
+    row = {v: i for i, v in enumerate(node_ids)}
+    if any(v not in row for v in ends):
+        with pytest.raises(fio.FileFormatError, match="is not in the node table"):
+            fio.from_table(table, nodes=nodes)
+        return
+    edges = fio.from_table(table, nodes=nodes)
+    assert edges.tail.tolist() == [row[v] for v in ends[:-1]]
+    assert edges.head.tolist() == [row[v] for v in ends[1:]]

@@ -20,7 +20,8 @@ string buffers in place and numbers labels by first appearance (exact byte compa
 same ids for every thread count).  Integer ids that need hashing, and text columns beyond the
 kernel's int32 id range, go through pyarrow's dictionary encoding.
 
-Lookup rule (:func:`lookup`): integer columns are compared as int64, text looked up among
+Lookup rule (:func:`lookup`): integer columns are compared as int64 (as exact decimal text
+when one is uint64), text looked up among
 integer ids is read as integers, columns of one type are compared as they are, anything else as
 text.
 
@@ -286,7 +287,8 @@ def lookup(col, value_set):
 
     Returns (ids, missing, compared): NumPy positions (int32; -1 where missing), the boolean
     mask of cells not in ``value_set``, and ``col`` as compared (for messages).  Integer columns
-    are compared as int64; text looked up among integer ids is read as integers when every cell
+    are compared as int64 (as decimal text, which is exact, when one is uint64: its ids may pass
+    2**63 - 1); text looked up among integer ids is read as integers when every cell
     is one; columns of one type are compared as they are; other combinations as text.
     """
     import pyarrow as pa
@@ -303,7 +305,9 @@ def lookup(col, value_set):
             except pa.ArrowInvalid:
                 pass
         if col.type != value_set.type:
-            if pa.types.is_integer(col.type) and pa.types.is_integer(value_set.type):
+            both = (col.type, value_set.type)
+            if all(pa.types.is_integer(t) for t in both) and \
+                    not any(pa.types.is_uint64(t) for t in both):
                 col, value_set = pc.cast(col, pa.int64()), pc.cast(value_set, pa.int64())
             else:
                 col, value_set = pc.cast(col, pa.string()), pc.cast(value_set, pa.string())
