@@ -459,3 +459,45 @@ def test_huge_weights_print_as_written(tmp_path, capsys):
                                                                  ("b", "c", "2")])
     rc, out, err = _run(["solve", links] + COLUMNS, capsys)
     assert rc == 0 and "total weight       1e+308" in out and "weight 1e+308" in out, out
+
+
+# --- feeders --demand: a bad demand is named by its row and site ----------------------------------
+
+_SITES = ["depot", "north", "east", "south", "west"]
+_BAD = {"empty": None, "negative": -2.5, "nan": float("nan"), "inf": float("inf"),
+        "-inf": float("-inf")}
+
+
+@settings(max_examples=40, deadline=None,
+          suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(rows=st.lists(st.tuples(st.sampled_from(_SITES[1:]),
+                               st.one_of(st.floats(0, 3), st.sampled_from(sorted(_BAD)))),
+                     min_size=1, max_size=6),
+       fmt=st.sampled_from(["csv", "parquet"]))
+def test_a_bad_demand_names_its_row_and_site(tmp_path_factory, capsys, rows, fmt):
+    """A demand that is empty, negative, NaN or infinite: exit 1 naming the file, the data row
+    and the site's label (it was 'capacitated_tree: demand[1] = nan', a compact node id);
+    valid demands solve (exit 0).  CSV and Parquet."""
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+    d = tmp_path_factory.mktemp("demand")
+    links = _write(d / "links.csv", ["from", "to", "cost"], LINKS)
+    values = [_BAD[v] if isinstance(v, str) else v for _, v in rows]
+    path = d / f"demand.{fmt}"
+    if fmt == "csv":
+        _write(path, ["site", "demand"],
+               [(s, "" if v is None else repr(v)) for (s, _), v in zip(rows, values)])
+    else:
+        pq.write_table(pa.table({"site": [s for s, _ in rows],
+                                 "demand": pa.array(values, pa.float64())}), path)
+    rc, out, err = _run(["feeders", links, "--root", "depot", "--capacity", "100",
+                         "--demand", str(path)] + COLUMNS, capsys)
+    bad = [k for k, (_, v) in enumerate(rows) if isinstance(v, str)]
+    if not bad:
+        assert rc == 0, (rc, err)
+        return
+    assert rc == 1, (rc, out, err)
+    k = bad[0]
+    where = f"data row {k + 1}" if fmt == "csv" else f"row {k} (counting from 0)"
+    assert where in err and f"site {rows[k][0]!r}" in err, err
+    assert "demand[" not in err and "capacitated_tree" not in err, err

@@ -11,7 +11,7 @@ import numpy as np
 import fastmst
 from fastmst import io
 from fastmst.cli import common, forests
-from fastmst.cli.common import CAUTION, UsageError
+from fastmst.cli.common import CAUTION, UsageError, plural
 from fastmst.demo_design import DESIGN_CAUTION, plot_links
 from fastmst.io.labels import all_labels, label_array, lookup
 
@@ -118,6 +118,15 @@ def read_demand(path, edges) -> np.ndarray:
     except Exception:
         raise io.FileFormatError(f"{source}: column {col!r} must hold numbers (demands).") \
             from None
+    empty = np.asarray(table.column(col).is_null().to_numpy(zero_copy_only=False), dtype=bool)
+    bad = np.flatnonzero(empty | ~np.isfinite(values) | (values < 0))
+    if bad.size:
+        i = int(bad[0])
+        what = "is empty" if empty[i] else f"is {float(values[i])!r}"
+        raise io.FileFormatError(
+            f"{source}: {where(i)}: the demand of site {shown_col[i].as_py()!r} {what}; "
+            f"expected a finite number >= 0 ({plural(bad.size, 'such row')} in all). Fix or "
+            f"drop those rows (a site not listed has demand 0).")
     demand = np.zeros(edges.n_nodes, dtype=np.float64)
     np.add.at(demand, ids.astype(np.int64), values)
     return demand

@@ -31,7 +31,9 @@ def add_parser(sub):
                    help="the most demand one feeder's subtree may carry")
     g.add_argument("--demand", metavar="FILE",
                    help="site demands: node labels and demands (first two columns, or a "
-                        "'demand' column); default 1 per site, so --capacity counts sites")
+                        "'demand' column), finite and >= 0; a site the file does not list has "
+                        "demand 0, a site listed twice the sum. Without it every site has "
+                        "demand 1, so --capacity counts sites")
     common.add_output_options(p)
     p.set_defaults(run=run)
 
