@@ -483,3 +483,28 @@ def test_node_lookup_exact_across_integer_widths(node_ids, pick, stranger, kinds
     edges = fio.from_table(table, nodes=nodes)
     assert edges.tail.tolist() == [row[v] for v in ends[:-1]]
     assert edges.head.tolist() == [row[v] for v in ends[1:]]
+
+
+@settings(max_examples=25)
+@given(ids=st.lists(st.one_of(st.integers(0, 2**63 - 1), st.integers(2**63, 2**64 - 1)),
+                    min_size=3, max_size=5, unique=True),
+       weights=st.lists(st.integers(0, 2**64 - 1), min_size=2, max_size=2))
+def test_geopackage_keeps_uint64_exact(tmp_path_factory, ids, weights):
+    import pyogrio
+    n = len(ids)
+    nodes = fio.read_nodes(pa.table({"id": pa.array(ids, pa.uint64()),
+                                     "lon": [float(i) for i in range(n)],
+                                     "lat": [float(i) for i in range(n)]}))
+    w = (weights * n)[:n - 1]
+    edges = fio.from_table(pa.table({"tail": pa.array(ids[:-1], pa.uint64()),
+                                     "head": pa.array(ids[1:], pa.uint64()),
+                                     "weight": pa.array(w, pa.uint64())}), nodes=nodes)
+    forest = edges.solve()
+    path = fio.write_geopackage(tmp_path_factory.mktemp("u64") / "f.gpkg", forest, edges)
+    _, sites = pyogrio.read_arrow(str(path), layer="sites")
+    _, lines = pyogrio.read_arrow(str(path), layer="forest")
+    # reference: the ids and weights as given (Python ints), compared exactly
+    assert [int(v) for v in sites.column("node").to_pylist()] == ids
+    pos = lines.column("position").to_pylist()
+    assert [int(v) for v in lines.column("tail").to_pylist()] == [ids[p] for p in pos]
+    assert [int(v) for v in lines.column("weight").to_pylist()] == [w[p] for p in pos]

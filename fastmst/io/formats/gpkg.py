@@ -72,6 +72,7 @@ def _write_layer(tmp, table, wkb, name, geometry_type, crs):
                              f"not; rename one (or leave it out with write_forest(columns=...), "
                              f"CLI --keep-columns).")
         seen[c.lower()] = c
+    table = _signed_integers(table)
     table = table.append_column("geometry", pa.array(list(wkb), type=pa.binary()))
     options = {}
     if "fid" in table.column_names:   # GeoPackage's own feature id column: only unique integers
@@ -83,6 +84,22 @@ def _write_layer(tmp, table, wkb, name, geometry_type, crs):
         warnings.simplefilter("ignore", RuntimeWarning)   # the temporary name's suffix
         pyogrio.write_arrow(table, tmp, layer=name, driver="GPKG", geometry_name="geometry",
                             geometry_type=geometry_type, crs=crs, layer_options=options or None)
+
+
+def _signed_integers(table):
+    """uint64 columns in a form GeoPackage keeps exactly: its integers are signed 64-bit, and
+    GDAL writes uint64 as real numbers (18446744073709551615 became 1.8446744073709552e19).
+    Columns whose values fit in int64 become int64, the others decimal text."""
+    import pyarrow as pa
+    import pyarrow.compute as pc
+    for i, name in enumerate(table.column_names):
+        col = table.column(i)
+        if not pa.types.is_uint64(col.type):
+            continue
+        top = pc.max(col).as_py()
+        col = pc.cast(col, pa.int64() if top is None or top < 2**63 else pa.string())
+        table = table.set_column(i, name, col)
+    return table
 
 
 def write_geopackage(path, forest, edges: EdgeList, *, clusters=None, crs=None):
@@ -103,6 +120,9 @@ def write_geopackage(path, forest, edges: EdgeList, *, clusters=None, crs=None):
     ``clusters`` (only with ``clusters``)
         One MultiPoint per cluster: ``cluster``, ``sites``, ``forest_edges`` (forest edges
         inside the cluster) and ``weight`` (their total).
+
+    GeoPackage integers are signed 64-bit: a column of uint64 labels or weights is written as
+    int64 when every value fits, else as decimal text (exact either way).
 
     Parameters
     ----------
