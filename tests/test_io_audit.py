@@ -508,3 +508,38 @@ def test_geopackage_keeps_uint64_exact(tmp_path_factory, ids, weights):
     pos = lines.column("position").to_pylist()
     assert [int(v) for v in lines.column("tail").to_pylist()] == [ids[p] for p in pos]
     assert [int(v) for v in lines.column("weight").to_pylist()] == [w[p] for p in pos]
+
+
+# --- the header line is found as the parser finds it ---------------------------------------
+
+_NAME = st.text(st.characters(blacklist_categories=("Cs",), blacklist_characters="\r\n\x00"),
+                min_size=1, max_size=12).filter(
+                    lambda s: s not in ("tail", "head", "weight", "position"))
+
+
+@given(names=st.lists(_NAME, min_size=1, max_size=3, unique=True),
+       long=st.booleans(), fmt=st.sampled_from(_TEXT_FORMATS))
+def test_column_names_read_back_as_written(tmp_path_factory, names, long, fmt):
+    # Unicode line breaks (U+2028, \x0b, \x85 ...) in a name, and a header beyond 64 KiB
+    if long:
+        names = names[:-1] + [names[-1] + "x" * 70_000]
+    cols = {"tail": ["a", "b"], "head": ["b", "c"], "weight": [1.5, 2.5]}
+    cols.update({n: [i, i + 1] for i, n in enumerate(names)})
+    path = fio.write_table(tmp_path_factory.mktemp("names") / f"t.{fmt}", pa.table(cols))
+    back = fio.read_edges(path)
+    # reference: the names and values written
+    assert back.attributes.column_names == names
+    assert [back.attributes.column(n).to_pylist() for n in names] == \
+        [[i, i + 1] for i in range(len(names))]
+
+
+@given(blank=st.lists(st.sampled_from(["\n", "\r\n", "\r"]), min_size=1, max_size=3),
+       end=st.sampled_from(["\n", "\r\n", "\r"]))
+def test_blank_lines_before_the_header(tmp_path_factory, blank, end):
+    path = tmp_path_factory.mktemp("blank") / "e.csv"
+    path.write_bytes(("".join(blank) + end.join(["tail,head,w", "a,b,1.5", "b,c,2.5"]) +
+                      end).encode())
+    back = fio.read_edges(path)
+    # reference: the lines written (pyarrow's parser skips the empty lines too)
+    assert back.columns == ("tail", "head", "w")
+    assert back.labels.tolist() == ["a", "b", "c"] and back.weight.tolist() == [1.5, 2.5]

@@ -19,6 +19,7 @@ from __future__ import annotations
 import csv as _csv
 import io as _io
 import os
+import re
 
 import numpy as np
 
@@ -58,16 +59,25 @@ def _check_text(path, head: bytes) -> None:
 
 
 def _header(path, delimiter, compression):
+    """The column names: the first line that is not empty, as pyarrow's parser takes it (a
+    line ends at ``\n`` or ``\r`` only, not at the other Unicode line breaks that
+    ``str.splitlines`` knows), read in blocks until that line is complete."""
     import pyarrow as pa
+    head = b""
     with pa.input_stream(str(path), compression=compression) as s:
-        head = s.read(1 << 16)
-    _check_text(path, head)
+        while True:
+            block = s.read(1 << 16)
+            head += block
+            lines = re.split(rb"\r\n|\r|\n", head.lstrip(b"\r\n"))
+            if not block or len(lines) > 1:
+                break
+    _check_text(path, head[:1 << 16])
     text = head.decode("utf-8-sig", errors="replace")
     if not text.strip():
         raise FileFormatError(f"{path}: the file is empty; expected a header line naming the "
                               f"columns and one line per edge.")
-    first = text.splitlines()[0]
-    return next(_csv.reader([first], delimiter=delimiter))
+    first = re.split(r"\r\n|\r|\n", text.lstrip("\r\n"))[0]
+    return next(_csv.reader([first], delimiter=delimiter), [])
 
 
 def _first_bad_line(path, delimiter, compression, numeric, decimal_comma=False):
