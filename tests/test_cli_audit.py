@@ -501,3 +501,41 @@ def test_a_bad_demand_names_its_row_and_site(tmp_path_factory, capsys, rows, fmt
     where = f"data row {k + 1}" if fmt == "csv" else f"row {k} (counting from 0)"
     assert where in err and f"site {rows[k][0]!r}" in err, err
     assert "demand[" not in err and "capacitated_tree" not in err, err
+
+
+# --- a site named on the command line: one rule for FROM/TO and --root ----------------------------
+
+@settings(max_examples=30, deadline=None,
+          suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(numbers=st.lists(st.integers(0, 999), min_size=3, max_size=6, unique=True),
+       pad=st.integers(1, 4), integer_ids=st.booleans(), data=st.data())
+def test_site_names_match_alike_in_every_command(tmp_path_factory, capsys, numbers, pad,
+                                                  integer_ids, data):
+    """A site given on the command line is matched by one rule in path (FROM/TO) and in
+    --root (failures, shallow): as written, or with --integer-ids as an integer ('007 is node
+    7', --help).  path compared text only, so 'path links.csv 01 4 --integer-ids' failed where
+    '--root 01' found the site."""
+    d = tmp_path_factory.mktemp("names")
+    labels = [str(k).zfill(pad) for k in numbers]
+    chain = [(labels[i], labels[i + 1], i + 1) for i in range(len(labels) - 1)]
+    links = _write(d / "links.csv", ["from", "to", "cost"], chain)
+    k = data.draw(st.integers(0, len(numbers) - 1), label="site")
+    spelling = data.draw(st.sampled_from([labels[k], str(numbers[k]), "+" + str(numbers[k]),
+                                          str(numbers[k]).zfill(pad + 1)]), label="spelling")
+    other = labels[-1] if k != len(labels) - 1 else labels[0]
+    ids = ["--integer-ids"] if integer_ids else []
+    expect = spelling == labels[k] or integer_ids
+    results = {}
+    for name, argv in (("path", ["path", links, spelling, other]),
+                       ("path TO", ["path", links, other, spelling]),
+                       ("failures", ["failures", links, "--root", spelling]),
+                       ("shallow", ["shallow", links, "--root", spelling])):
+        rc, out, err = _run(argv + COLUMNS + ids + ["--json"], capsys)
+        results[name] = rc
+        if rc == 0 and name.startswith("path"):
+            route = json.loads(out)["links"]
+            hops = len(labels) - 1 - k if other == labels[-1] else k   # along the chain
+            assert len(route) == hops, (route, k, labels)
+        if rc:
+            assert "Traceback" not in err and spelling in err, err
+    assert set(results.values()) == {0 if expect else 1}, (results, spelling, labels[k])

@@ -526,14 +526,17 @@ def solve_design(args, edges, rep):
 
 
 def node_id(edges, label, opt: str) -> int:
-    """The compact id of the site called ``label`` (compared as text, as written)."""
-    names = edges.label(np.arange(edges.n_nodes))
-    hits = np.flatnonzero(np.asarray([str(x) for x in names.tolist()], dtype=object) == label)
-    if hits.size == 0:
+    """The compact id of the site called ``label``, matched as the files' site names are
+    (:func:`fastmst.io.labels.lookup`: as written; with --integer-ids as an integer, so 007 is
+    site 7) - the same rule for FROM/TO, --root and the lists of links."""
+    import pyarrow as pa
+    from fastmst.io.labels import all_labels, lookup
+    ids, missing, _ = lookup(pa.array([str(label)]), all_labels(edges))
+    if missing[0]:
         raise ValueError(f"{opt} {label!r}: no site of that name in {edges.source} "
                          f"({plural(edges.n_nodes, 'site')}); site names are compared as "
-                         f"written.")
-    return int(hits[0])
+                         f"written (with --integer-ids, as integers).")
+    return int(ids[0])
 
 
 def link_json(edges, p, weight=None) -> dict:

@@ -58,13 +58,14 @@ def check_outputs(args):
 
 
 def find_node(edges, label: str, option: str) -> int:
-    """The compact id of the node labelled ``label``."""
-    import pyarrow as pa
-    ids, missing, _ = lookup(pa.array([label]), all_labels(edges))
-    if missing[0]:
+    """The compact id of the node labelled ``label`` (:func:`fastmst.cli.common.node_id`'s
+    rule)."""
+    try:
+        return common.node_id(edges, label, option)
+    except ValueError:
         raise ValueError(f"{option} {label}: no node has this label in {edges.source}; give "
-                         f"the label as it is written in the edge file.")
-    return int(ids[0])
+                         f"the label as it is written in the edge file (with --integer-ids, "
+                         f"as an integer).") from None
 
 
 def read_links(args, edges, rep):
