@@ -543,3 +543,35 @@ def test_blank_lines_before_the_header(tmp_path_factory, blank, end):
     # reference: the lines written (pyarrow's parser skips the empty lines too)
     assert back.columns == ("tail", "head", "w")
     assert back.labels.tolist() == ["a", "b", "c"] and back.weight.tolist() == [1.5, 2.5]
+
+
+# --- write_geojson(properties=...) is checked, never cut short or merged -------------------
+
+@given(length=st.integers(0, 5), name=st.sampled_from(["extra", "tail", "head", "weight",
+                                                       "position", "cluster"]),
+       scalar=st.booleans())
+def test_geojson_properties_checked(tmp_path_factory, length, name, scalar):
+    import json
+    tmp = tmp_path_factory.mktemp("props")
+    edges = fio.read_edges(_write(tmp / "e.csv", _EDGES), nodes=_write(tmp / "n.csv", _NODES))
+    forest = edges.solve()
+    n = len(forest.edges)                     # 2 forest edges
+    values = 7 if scalar else list(range(10, 10 + length))
+    path = tmp / "f.geojson"
+    if name != "extra":
+        with pytest.raises(ValueError, match=f"property '{name}' would replace"):
+            fio.write_geojson(path, forest, edges, properties={name: values})
+    elif scalar or length != n:
+        with pytest.raises(ValueError, match=rf"one value per forest edge \({n},"):
+            fio.write_geojson(path, forest, edges, properties={name: values})
+    else:
+        fio.write_geojson(path, forest, edges, properties={name: values})
+        feats = json.loads(path.read_text())["features"]
+        # reference: the values given, in the forest's order
+        assert [f["properties"]["extra"] for f in feats] == values
+        assert [f["properties"]["tail"] for f in feats] == \
+            edges.label(forest.tail).tolist()
+        return
+    assert not path.exists()
+    with pytest.raises(TypeError, match="dict of arrays"):
+        fio.write_geojson(path, forest, edges, properties=[values])

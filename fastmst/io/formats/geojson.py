@@ -69,8 +69,8 @@ def write_geojson(path, forest, edges, *, properties=None, sites=False, clusters
     h = np.asarray(forest.head, dtype=np.int64)
     table = forest_table(forest, edges)
     cols = {name: _json_values(table.column(name).to_pylist()) for name in table.column_names}
-    for k, v in (properties or {}).items():
-        cols[k] = _json_values(np.asarray(v).tolist())
+    for k, v in _checked_properties(properties, len(t), cols).items():
+        cols[k] = _json_values(v.tolist())
     if clusters is not None:
         same = clusters[t] == clusters[h]
         cols["cluster"] = [int(c) if s else None for c, s in zip(clusters[t].tolist(),
@@ -92,6 +92,33 @@ def write_geojson(path, forest, edges, *, properties=None, sites=False, clusters
         with open(tmp, "w", encoding="utf-8") as fh:
             json.dump(doc, fh, separators=(",", ":"), allow_nan=False, default=str)
     return atomic_write(path, write)
+
+
+def _checked_properties(properties, n_edges: int, taken) -> dict:
+    """``properties`` of :func:`write_geojson` as NumPy arrays of one entry per forest edge,
+    checked: a dict of arrays keyed by new column names (a name of the forest table would
+    replace its values)."""
+    func = "write_geojson"
+    if properties is None:
+        return {}
+    if not isinstance(properties, dict):
+        raise TypeError(f"{func}: properties must be a dict of arrays (one value per forest "
+                        f"edge), received {type(properties).__name__}.")
+    out = {}
+    for k, v in properties.items():
+        if not isinstance(k, str):
+            raise TypeError(f"{func}: property names must be strings, received "
+                            f"{type(k).__name__} {k!r}.")
+        if k in taken or k == "cluster":
+            raise ValueError(f"{func}: property {k!r} would replace the forest's own column of "
+                             f"that name (columns: {', '.join(map(repr, taken))}); rename it.")
+        a = np.asarray(v)
+        if a.ndim == 0 or a.shape[0] != n_edges:
+            raise ValueError(f"{func}: property {k!r} must hold one value per forest edge "
+                             f"({n_edges}, in the forest's order), received "
+                             f"{'a single value' if a.ndim == 0 else f'{a.shape[0]} values'}.")
+        out[k] = a
+    return out
 
 
 def _wrapped(xy):
