@@ -575,3 +575,54 @@ def test_geojson_properties_checked(tmp_path_factory, length, name, scalar):
     assert not path.exists()
     with pytest.raises(TypeError, match="dict of arrays"):
         fio.write_geojson(path, forest, edges, properties=[values])
+
+
+# --- a forest is written only with the edges it was solved from ----------------------------
+
+@given(n=st.integers(2, 8), data=st.data(), shuffle=st.booleans(),
+       fmt=st.sampled_from(["csv", "parquet", "npz"]))
+def test_forest_written_with_other_edges_is_refused(tmp_path_factory, n, data, shuffle, fmt):
+    m = data.draw(st.integers(1, 12))
+    ends = data.draw(st.lists(st.tuples(st.integers(0, n - 1), st.integers(0, n - 1)),
+                              min_size=m, max_size=m))
+    table = pa.table({"tail": [f"v{a}" for a, _ in ends], "head": [f"v{b}" for _, b in ends],
+                      "weight": np.arange(m, dtype=float)})
+    order = data.draw(st.permutations(range(m))) if shuffle else list(range(m))
+    other = table.take(pa.array(order, pa.int64()))
+    edges = fio.from_table(table)
+    forest = edges.solve()
+    other_edges = fio.from_table(other)
+    path = tmp_path_factory.mktemp("other") / f"f.{fmt}"
+    try:
+        fio.write_forest(path, forest, other_edges)
+    except ValueError as exc:
+        assert "the forest" in str(exc) and "solved from" in str(exc)
+        assert shuffle and not path.exists()
+        return
+    # whatever is written names rows of the table it was written with (reference: that
+    # table's own rows)
+    if len(forest.edges) == 0:   # self-loops only: a header and no rows
+        assert path.exists()
+        return
+    back = fio.read_edges(path)
+    pos = np.asarray(forest.edges)
+    rows = other.take(pa.array(pos, pa.int64()))
+    got = sorted(zip(back.label(back.tail).tolist(), back.label(back.head).tolist()))
+    want = sorted(zip(rows.column("tail").to_pylist(), rows.column("head").to_pylist()))
+    assert [tuple(sorted(p)) for p in got] == [tuple(sorted(p)) for p in want]
+
+
+@given(n=st.integers(2, 12), fmt=st.sampled_from(["csv", "parquet", "geojson"]))
+def test_point_tree_written_without_edges(tmp_path_factory, n, fmt):
+    import fastmst
+    rng = np.random.default_rng(n)
+    lonlat = np.column_stack([rng.uniform(-10, 10, n), rng.uniform(-10, 10, n)])
+    tree = fastmst.point_spanning_tree(lonlat)
+    tmp = tmp_path_factory.mktemp("pts")
+    fio.write_forest(tmp / f"t.{fmt}", tree, coords=lonlat)   # no edges: the forest itself
+    other = fio.from_table(pa.table({"tail": [f"s{i}" for i in range(n)],
+                                     "head": [f"s{(i + 1) % n}" for i in range(n)],
+                                     "weight": np.ones(n)}))
+    if n > 2 and fmt != "geojson":   # point-pair positions do not name rows of a ring
+        with pytest.raises(ValueError, match="not solved from"):
+            fio.write_forest(tmp / f"u.{fmt}", tree, other)

@@ -185,6 +185,7 @@ def forest_table(forest, edges: EdgeList, columns=None):
     ``columns`` chooses among the carried columns (None: all; ``[]``: none).
     """
     import pyarrow as pa
+    check_forest_of(forest, edges, "forest_table")
     tn, hn, wn = edges.columns
     if wn in (tn, hn):
         wn = "weight"
@@ -203,6 +204,38 @@ def forest_table(forest, edges: EdgeList, columns=None):
             if name not in cols:
                 cols[name] = taken.column(name)
     return pa.table(cols)
+
+
+def check_forest_of(forest, edges: EdgeList, func: str) -> None:
+    """``forest`` must have been solved from ``edges``: the same node count, and each forest
+    edge the input row its ``position`` names (same end points, either way round).  A forest
+    of other edges would be written with wrong labels and positions.  An EdgeList made of the
+    forest's own arrays (``write_forest`` without edges) describes the forest itself."""
+    if edges.tail is getattr(forest, "tail", None) and edges.head is forest.head:
+        return
+    n = getattr(forest, "n_nodes", None)
+    if n != edges.n_nodes:
+        raise ValueError(f"{func}: the forest has {n} nodes but {edges.source} has "
+                         f"{edges.n_nodes}; pass the EdgeList the forest was solved from (or "
+                         f"edges=None to write compact node ids).")
+    pos = np.asarray(forest.edges, dtype=np.int64)
+    if pos.size == 0:
+        return
+    t, h = np.asarray(forest.tail), np.asarray(forest.head)
+    bad = (pos < 0) | (pos >= edges.n_edges)
+    if not bad.any():
+        et, eh = edges.tail[pos], edges.head[pos]
+        bad = ~(((t == et) & (h == eh)) | ((t == eh) & (h == et)))
+    if bad.any():
+        k = int(np.flatnonzero(bad)[0])
+        p = int(pos[k])
+        row = (f"row {p} of {edges.source} joins {int(edges.tail[p])} and "
+               f"{int(edges.head[p])}" if 0 <= p < edges.n_edges else
+               f"{edges.source} has {edges.n_edges} rows")
+        raise ValueError(f"{func}: the forest was not solved from {edges.source}: forest edge "
+                         f"{k} joins nodes {int(t[k])} and {int(h[k])} at position {p}, but "
+                         f"{row} ({int(bad.sum())} such forest edges); pass the EdgeList the "
+                         f"forest was solved from (or edges=None to write compact node ids).")
 
 
 def edge_table(edges: EdgeList, positions=None, columns=None):
