@@ -626,3 +626,36 @@ def test_point_tree_written_without_edges(tmp_path_factory, n, fmt):
     if n > 2 and fmt != "geojson":   # point-pair positions do not name rows of a ring
         with pytest.raises(ValueError, match="not solved from"):
             fio.write_forest(tmp / f"u.{fmt}", tree, other)
+
+
+# --- output columns never replace one another -------------------------------------------
+
+@given(header=st.permutations(["position", "tail", "head", "weight", "w", "x"]),
+       fmt=st.sampled_from(["csv", "parquet", "npz"]))
+def test_output_columns_keep_their_values(tmp_path_factory, header, fmt):
+    # the first two columns are the end points, then 'weight' or else the third column
+    values = {"position": ["p0", "p1", "p2"], "tail": ["t0", "t1", "t2"],
+              "head": ["h0", "h1", "h2"], "weight": [3.5, 1.5, 2.5], "w": [9.5, 8.5, 7.5],
+              "x": ["x0", "x1", "x2"]}
+    tn, hn = header[0], header[1]
+    if any(isinstance(values[c][0], float) for c in (tn, hn)):
+        return   # decimal numbers are not node labels
+    rest = [c for c in header if c not in (tn, hn)]
+    wn = "weight" if "weight" in rest else rest[0]
+    if isinstance(values[wn][0], str):
+        return   # text is not a weight
+    table = pa.table({c: values[c] for c in header})
+    edges = fio.from_table(table)
+    forest = edges.solve()
+    out = fio.forest_table(forest, edges)
+    assert len(set(out.column_names)) == len(out.column_names)
+    pos = out.column("position").to_pylist()
+    # reference: the input table's own rows at the written positions
+    first = out.column_names[:3]
+    for name, role in zip(first, (tn, hn, wn)):
+        assert out.column(name).to_pylist() == [values[role][p] for p in pos]
+    for c in out.column_names[4:]:
+        assert out.column(c).to_pylist() == [values[c][p] for p in pos]
+    path = fio.write_table(tmp_path_factory.mktemp("cols") / f"f.{fmt}", out)
+    assert fio.read_edges(path, tail=first[0], head=first[1], weight=first[2]).n_edges == \
+        len(pos)

@@ -179,16 +179,16 @@ def forest_table(forest, edges: EdgeList, columns=None):
     """The forest as a pyarrow Table, one row per forest edge in the forest's order: tail,
     head (user labels), weight, position (input row), then the input's carried columns.
 
-    The first three are named as in the input (``edges.columns``); the carried columns
-    (``edges.attributes``: a link id, a route type, a length, ...) keep their names and
-    types, so every output format carries the same columns under the same names.
+    The first three are named as in the input (``edges.columns``; :func:`output_names` renames
+    one that would meet another output column, such as an input column called ``position``);
+    the carried columns (``edges.attributes``: a link id, a route type, a length, ...) keep
+    their names and types, so every output format carries the same columns under the same
+    names.
     ``columns`` chooses among the carried columns (None: all; ``[]``: none).
     """
     import pyarrow as pa
     check_forest_of(forest, edges, "forest_table")
-    tn, hn, wn = edges.columns
-    if wn in (tn, hn):
-        wn = "weight"
+    tn, hn, wn = output_names(edges)
     cols = {tn: label_array(edges.label(forest.tail)),
             hn: label_array(edges.label(forest.head)),
             wn: pa.array(np.asarray(forest.weights)),
@@ -204,6 +204,24 @@ def forest_table(forest, edges: EdgeList, columns=None):
             if name not in cols:
                 cols[name] = taken.column(name)
     return pa.table(cols)
+
+
+def output_names(edges: EdgeList) -> tuple:
+    """Names of the tail, head and weight columns of output tables: the input's names, except
+    where one would meet another output column (``position``, the carried columns, or another
+    of the three), which would replace its values; that one gets its role's name ("tail",
+    "head", "weight"), numbered if that is taken too ("tail_2")."""
+    carried = [] if edges.attributes is None else edges.attributes.column_names
+    taken = {"position", *carried}
+    out = []
+    for role, name in zip(("tail", "head", "weight"), edges.columns):
+        if name in taken:
+            name, k = role, 2
+            while name in taken:
+                name, k = f"{role}_{k}", k + 1
+        taken.add(name)
+        out.append(name)
+    return tuple(out)
 
 
 def check_forest_of(forest, edges: EdgeList, func: str) -> None:
@@ -245,9 +263,7 @@ def edge_table(edges: EdgeList, positions=None, columns=None):
     import pyarrow as pa
     pos = (np.arange(edges.n_edges, dtype=np.int64) if positions is None else
            validation.check_positions(positions, edges.n_edges, "positions", "edge_table"))
-    tn, hn, wn = edges.columns
-    if wn in (tn, hn):
-        wn = "weight"
+    tn, hn, wn = output_names(edges)
     cols = {tn: label_array(edges.label(edges.tail[pos])),
             hn: label_array(edges.label(edges.head[pos])),
             wn: pa.array(np.asarray(edges.weight)[pos]), "position": pa.array(pos)}
