@@ -659,3 +659,39 @@ def test_output_columns_keep_their_values(tmp_path_factory, header, fmt):
     path = fio.write_table(tmp_path_factory.mktemp("cols") / f"f.{fmt}", out)
     assert fio.read_edges(path, tail=first[0], head=first[1], weight=first[2]).n_edges == \
         len(pos)
+
+
+# --- weights in text formats (CSV/TSV, DIMACS .gr): exact, or refused -----------------------
+
+_WEIGHT_TEXT = st.one_of(st.integers(-2**63, 2**64 - 1).map(str),
+                         st.integers(2**64, 2**80).map(str),
+                         st.sampled_from(["1e400", "-2e308", "inf", "-inf", "1.5", "2.5e300"]),
+                         st.integers(2**53 - 2, 2**53 + 2).map(str))
+
+
+def _gr_file(path, rows):
+    n = len(rows) + 1
+    path.write_text(f"p sp {n} {len(rows)}\n" +
+                    "".join(f"a {i + 1} {i + 2} {v}\n" for i, v in enumerate(rows)))
+    return path
+
+
+@given(rows=st.lists(_WEIGHT_TEXT, min_size=1, max_size=5),
+       fmt=st.sampled_from(["csv", "tsv", "gr"]))
+def test_text_weights_exact_or_refused(tmp_path_factory, rows, fmt):
+    tmp = tmp_path_factory.mktemp("wt")
+    path = _gr_file(tmp / "w.gr", rows) if fmt == "gr" else \
+        _text_file(tmp / f"w.{fmt}", rows, "\t" if fmt == "tsv" else ",")
+    # reference: Python's own parsing (int for integer text, float otherwise)
+    exact = [int(v) if v.lstrip("-").isdigit() else float(v) for v in rows]
+    overflow = any(v in ("1e400", "-2e308") for v in rows)
+    inexact = any(isinstance(x, int) and float(x) != x for x in exact)
+    try:
+        back = fio.read_edges(path)
+    except fio.FileFormatError as exc:
+        assert overflow or inexact
+        assert ("beyond the range" in str(exc)) or ("cannot hold exactly" in str(exc))
+        return
+    assert not overflow
+    got = back.weight.tolist()
+    assert [int(g) if isinstance(x, int) else g for g, x in zip(got, exact)] == exact

@@ -28,6 +28,7 @@ from fastmst.io.checks import FileFormatError, csv_row
 from fastmst.io.columns import (NULLS, carried_columns, choose_edge_columns, guessed_roles,
                                 typed_text_column)
 from fastmst.io.edgelist import edges_from_table
+from fastmst.io.numbers import exact_numbers, needs_text
 
 CSV_BLOCK_SIZE = 1 << 22   # bytes per parsing block: fewer, larger chunks than pyarrow's 1 MiB
 
@@ -232,20 +233,12 @@ def read_edges(path, compression, request, *, delimiter):
 
 
 def _exact_weights(col, path, delimiter, compression, name, decimal_comma):
-    """The weight column ``col`` as parsed, unless it rounded integers.
-
-    pyarrow's parser reads integers up to 2**63 - 1 as int64 and larger ones as float64, which
-    rounds those beyond 2**53 (18446744073709551615 becomes 18446744073709551616.0).  When a
-    float column holds such magnitudes, the column is read again as text: integers that fit
-    in uint64 become uint64 (as Parquet keeps them), and an integer that a float cannot hold
-    exactly is a FileFormatError naming its row rather than a silently rounded weight.
-    """
+    """The weight column ``col`` as parsed, made exact by :func:`fastmst.io.numbers.
+    exact_numbers` (integers beyond 2**63 - 1 as uint64 rather than rounded floats, no silent
+    overflow to infinity); the column's text is read again only when its magnitudes need it."""
     import pyarrow as pa
-    import pyarrow.compute as pc
     import pyarrow.csv as pcsv
-    if not pa.types.is_floating(col.type) or len(col) == col.null_count:
-        return col
-    if pc.max(pc.abs(col)).as_py() < 2.0**53:   # every integer below 2**53 is exact
+    if not needs_text(col):
         return col
     source = pa.input_stream(str(path), compression=compression) if compression else str(path)
     text = pcsv.read_csv(source, read_options=pcsv.ReadOptions(block_size=CSV_BLOCK_SIZE),
@@ -253,25 +246,7 @@ def _exact_weights(col, path, delimiter, compression, name, decimal_comma):
                          convert_options=pcsv.ConvertOptions(
                              include_columns=[name], column_types={name: pa.string()},
                              null_values=NULLS, strings_can_be_null=True)).column(0)
-    integer = pc.match_substring_regex(text, r"^[-+]?[0-9]+$")
-    if pc.all(pc.or_kleene(integer, pc.is_null(text))).as_py():
-        try:
-            return pc.cast(pc.replace_substring_regex(text, r"^\+", ""), pa.uint64())
-        except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
-            pass   # negative with some beyond int64, or beyond uint64: floats if exact
-    big = pc.and_(pc.fill_null(integer, False), pc.greater_equal(pc.abs(col), 2.0**53))
-    rows = np.flatnonzero(big.to_numpy(zero_copy_only=False))
-    values = text.take(pa.array(rows)).to_pylist()
-    floats = col.take(pa.array(rows)).to_pylist()
-    for i, v, f in zip(rows.tolist(), values, floats):
-        if int(v) != int(f):
-            raise FileFormatError(
-                f"{path}: {csv_row(i)}: weight {v} in column {name!r} is an integer that a "
-                f"64-bit float cannot hold exactly (it would be read as {int(f)}), and the "
-                f"column cannot be read as 64-bit integers (decimals, or integers below 0 and "
-                f"beyond 2**63 - 1, or beyond 2**64 - 1). Write every weight as an integer "
-                f"from 0 to 2**64 - 1 or from -2**63 to 2**63 - 1, or scale the weights down.")
-    return col
+    return exact_numbers(text, col, name, str(path), csv_row)
 
 
 def read_table(path, compression, text=(), *, delimiter, decimal_comma=False):

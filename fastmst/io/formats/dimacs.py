@@ -21,6 +21,7 @@ from fastmst.io.checks import FileFormatError, check_declared_nodes
 from fastmst.io.columns import to_numpy
 from fastmst.io.edgelist import EdgeList
 from fastmst.io.labels import id_dtype
+from fastmst.io.numbers import exact_numbers, needs_text
 
 
 def _read(path, delimiter, handler, skip=0):
@@ -119,9 +120,14 @@ def read_edges(path, compression, request):
             try:
                 w = to_numpy(pc.cast(w, pa.int64()))
             except pa.ArrowInvalid:
-                w = to_numpy(pc.cast(w, pa.float64()))
+                wf = pc.cast(w, pa.float64())
+                if needs_text(wf):   # beyond 2**53: exact integers, no silent overflow
+                    wf = exact_numbers(w, wf, "weight", str(path), lambda i: f"arc {i + 1}")
+                w = to_numpy(wf)
             ok = (min(u.min(), v.min()) >= 1 and max(u.max(), v.max()) <= n
                   and not (w.dtype.kind == "f" and np.isnan(w).any()))
+        except FileFormatError:
+            raise
         except (pa.ArrowInvalid, ValueError, TypeError, IndexError):
             ok = False
         break
