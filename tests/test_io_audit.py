@@ -695,3 +695,19 @@ def test_text_weights_exact_or_refused(tmp_path_factory, rows, fmt):
     assert not overflow
     got = back.weight.tolist()
     assert [int(g) if isinstance(x, int) else g for g, x in zip(got, exact)] == exact
+
+
+@given(fmt=st.sampled_from(["csv", "tsv.gz", "parquet", "npz", "geojson", "gpkg"]),
+       slash=st.booleans())
+def test_output_that_is_a_folder(tmp_path_factory, fmt, slash):
+    tmp = tmp_path_factory.mktemp("dir")
+    edges = fio.read_edges(_write(tmp / "e.csv", _EDGES), nodes=_write(tmp / "n.csv", _NODES))
+    folder = tmp / f"out.{fmt}"
+    folder.mkdir()
+    target = str(folder) + ("/" if slash else "")
+    with pytest.raises(IsADirectoryError) as info:
+        fio.write_forest(target, edges.solve(), edges, format=fmt.split(".")[0])
+    msg = str(info.value)
+    assert msg.count("cannot write") == 1 and "it is a folder" in msg and "name a file" in msg
+    assert list(folder.iterdir()) == [] and sorted(p.name for p in tmp.iterdir()) == \
+        ["e.csv", "n.csv", f"out.{fmt}"]   # no temporary file left

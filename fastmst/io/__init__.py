@@ -25,6 +25,7 @@ This module is the public face; the work is done in its modules:
 ``adapters``       pandas/pyarrow, SciPy and networkx in; tables and graphs out
 ``atomic``         atomic file writing
 ``checks``         file and table checks, ``FileFormatError``
+``numbers``        numbers read from text exactly (no silent rounding or overflow)
 =================  ==============================================================================
 """
 from fastmst.io import formats as _formats  # noqa: F401  (registers every format)

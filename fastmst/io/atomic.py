@@ -68,8 +68,9 @@ def _discard(tmp) -> None:
 
 def _move(tmp, target: Path) -> None:
     """Rename ``tmp`` onto ``target`` with the target's final mode."""
-    if os.path.isdir(target):
-        raise IsADirectoryError(21, f"cannot write {str(target)!r}: it is a folder")
+    if os.path.isdir(target):   # the callers' _named puts "cannot write TARGET: " first
+        raise IsADirectoryError(21, f"it is a folder; name a file in it, such as "
+                                    f"{str(Path(target) / 'forest.csv')!r}")
     os.chmod(tmp, final_mode(target))
     os.replace(tmp, target)
 
