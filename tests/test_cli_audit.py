@@ -539,3 +539,37 @@ def test_site_names_match_alike_in_every_command(tmp_path_factory, capsys, numbe
         if rc:
             assert "Traceback" not in err and spelling in err, err
     assert set(results.values()) == {0 if expect else 1}, (results, spelling, labels[k])
+
+
+# --- counts on the command line: refused out of range, before any work -----------------------------
+
+@pytest.mark.parametrize("command", ["solve", "bench"])
+@given(n=st.integers(-2 ** 70, -1))
+def test_a_negative_thread_count_is_refused(tmp_path_factory, command, n):
+    """--threads below 0: exit 1 naming the option (a negative count meant every core
+    without a word); checked before the edges are read (the file named does not exist)."""
+    import io as _io
+    import contextlib
+    missing = str(tmp_path_factory.getbasetemp() / "not-there.csv")
+    err = _io.StringIO()
+    with contextlib.redirect_stderr(err), contextlib.redirect_stdout(_io.StringIO()):
+        rc = cli.main([command, missing, "--threads", str(n)])
+    assert rc == 1 and err.getvalue().startswith(f"fastmst {command}: error: --threads {n}:"), \
+        err.getvalue()
+
+
+@pytest.mark.parametrize("threads", ["0", "1", "2"])
+def test_thread_counts_give_one_forest(files, capsys, threads):
+    """0 (every core), 1 and 2 threads: the same total as networkx minimum_spanning_edges."""
+    rc, out, err = _run(["solve", files["links"], "--threads", threads, "--json"] + COLUMNS,
+                        capsys)
+    assert rc == 0, err
+    assert json.loads(out)["total_weight"] == _nx_total(
+        5, [(a, b) for a, b, _ in LINKS], [w for _, _, w in LINKS])
+
+
+@pytest.mark.parametrize("repeat", [-1, 0, 1001, 10 ** 12])
+def test_bench_repeat_is_bounded(files, capsys, repeat):
+    """bench --repeat outside 1..1000: exit 2 before reading (10**12 runs ran for ever)."""
+    rc, out, err = _run(["bench", files["links"], "--repeat", str(repeat)] + COLUMNS, capsys)
+    assert rc == 2 and f"--repeat {repeat}: expected 1 to 1000" in err, (rc, err)

@@ -99,8 +99,24 @@ def add_solver_options(p):
     g.add_argument("--maximize", action="store_true", help="maximum spanning forest")
     g.add_argument("--method", default="auto", choices=tuple(fastmst.METHODS),
                    help="algorithm (default auto); every method gives the same forest")
-    g.add_argument("--threads", type=int, metavar="N", help="worker threads (default: all cores)")
+    add_threads_option(g)
     add_constraint_options(g)
+
+
+def add_threads_option(g):
+    """--threads (solve, bench)."""
+    g.add_argument("--threads", type=int, metavar="N",
+                   help="worker threads, 1 or more; 0 or left out: every core")
+
+
+def threads_option(args):
+    """--threads for the solver: None (every core) for 0 or none; a negative count is refused
+    (it meant every core without a word)."""
+    n = getattr(args, "threads", None)
+    if n is not None and n < 0:
+        raise ValueError(f"--threads {n}: expected a number of worker threads, 1 or more (0 or "
+                         f"leave it out for every core).")
+    return n or None
 
 
 def add_constraint_options(g):

@@ -37,11 +37,12 @@ def add_parser(sub):
 def run(args) -> int:
     common.check_outputs(args)
     summaries.check_summary_options(args)
+    threads = common.threads_option(args)
     rep = common.reporter(args)
     with rep:
         edges = common.load_edges(args, rep)
         common.check_coordinates(args, edges.coords is not None)
-        kwargs = dict(method=args.method, maximize=args.maximize, threads=args.threads)
+        kwargs = dict(method=args.method, maximize=args.maximize, threads=threads)
         constraints, links = common.read_constraints(args, edges, rep)
         kwargs.update(constraints)
         with rep.phase("solving"):
