@@ -194,9 +194,12 @@ def _formulas_neutralised(table):
     import pyarrow.compute as pc
     cols = []
     for col in table.columns:
+        if pa.types.is_dictionary(col.type):   # categoricals: their text is written too
+            col = col.cast(col.type.value_type)
         if pa.types.is_string(col.type) or pa.types.is_large_string(col.type):
             risky = pc.match_substring_regex(col, r"^[=+\-@\t\r]")
-            col = pc.if_else(risky, pc.binary_join_element_wise("'", col, ""), col)
+            quote, nothing = pa.scalar("'", col.type), pa.scalar("", col.type)
+            col = pc.if_else(risky, pc.binary_join_element_wise(quote, col, nothing), col)
         cols.append(col)
     return pa.table(cols, names=table.column_names)
 
