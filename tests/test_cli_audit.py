@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import csv
 import json
+import re
 from pathlib import Path
 
 import networkx as nx
@@ -573,3 +574,51 @@ def test_bench_repeat_is_bounded(files, capsys, repeat):
     """bench --repeat outside 1..1000: exit 2 before reading (10**12 runs ran for ever)."""
     rc, out, err = _run(["bench", files["links"], "--repeat", str(repeat)] + COLUMNS, capsys)
     assert rc == 2 and f"--repeat {repeat}: expected 1 to 1000" in err, (rc, err)
+
+
+# --- --help promises only what the command does -----------------------------------------------------
+
+_LONLAT = [("depot", 10.00, 50.00), ("north", 10.01, 50.02), ("east", 10.03, 50.00),
+           ("south", 10.01, 49.98), ("west", 9.97, 50.00)]
+
+
+def _help(command):
+    parser = cli.build_parser()
+    sub = next(a for a in parser._actions if a.dest == "command")
+    return sub.choices[command].format_help()
+
+
+def _promised(help_text):
+    """(suffixes the -o help names, whether --plot is offered)."""
+    flat = " ".join(help_text.split())
+    o = re.search(r"-o OUT, --output OUT (.*?) repeat for several files", flat)
+    suffixes = re.findall(r"\.(csv\.gz|csv|tsv|parquet|npz|geojson|gpkg)\b", o.group(1)) \
+        if o else []
+    return suffixes, "--plot FILE.png" in flat
+
+
+@pytest.mark.parametrize("command", sorted(DESIGN_COMMANDS))
+def test_every_output_the_help_offers_is_written(files, capsys, command):
+    """Each suffix that a command's -o help lists, and --plot when the help offers it, is
+    written (with a node table of longitude/latitude); margins and path offered --plot and
+    .geojson in their help and refused both."""
+    suffixes, plot = _promised(_help(command))
+    if command == "check":
+        assert not suffixes and not plot
+        return
+    assert suffixes, command
+    sites = _write(files["dir"] / "sites.csv", ["id", "lon", "lat"], _LONLAT)
+    for k, suffix in enumerate(suffixes):
+        target = files["dir"] / f"out{k}.{suffix}"
+        rc, out, err = _run(DESIGN_COMMANDS[command](files) + COLUMNS +
+                            ["--nodes", sites, "-o", str(target), "-q"], capsys)
+        assert rc == 0 and target.is_file() and target.stat().st_size, (suffix, rc, err)
+    if plot:
+        target = files["dir"] / "map.png"
+        rc, out, err = _run(DESIGN_COMMANDS[command](files) + COLUMNS +
+                            ["--nodes", sites, "--plot", str(target), "-q"], capsys)
+        assert rc == 0 and target.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n", (rc, err)
+    else:   # not offered: refused with a pointer to the command that draws maps
+        rc, out, err = _run(DESIGN_COMMANDS[command](files) + COLUMNS +
+                            ["--plot", str(files["dir"] / "m.png")], capsys)
+        assert rc == 2 and "draws no map" in err, (rc, err)

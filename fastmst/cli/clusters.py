@@ -32,7 +32,7 @@ def add_parser(sub):
     cut.add_argument("--threshold", type=float, metavar="W",
                      help="cut every forest edge heavier than W")
     common.add_constraint_options(p.add_argument_group("links (required links are never cut)"))
-    common.add_output_options(p)
+    common.add_output_options(p, layers=True)
     p.set_defaults(run=run)
 
 

@@ -7,6 +7,7 @@ ran and the forest is not a minimum spanning forest).
 """
 from __future__ import annotations
 
+import argparse
 import math
 import os
 import sys
@@ -189,14 +190,22 @@ def plural(n, word: str, words: str | None = None) -> str:
     return f"{fmt_num(n)} {word if n == 1 else words}"
 
 
-def add_output_options(p, outputs=True):
-    """-o/--output and --plot (when ``outputs``), --json, --quiet, --debug."""
+TABLES = ".csv, .tsv, .csv.gz, .parquet, .npz"
+
+
+def add_output_options(p, outputs=True, *, layers=False, plot=True):
+    """-o/--output and --plot (when ``outputs``), --json, --quiet, --debug.  The help lists
+    what the command writes: tables, and with ``layers`` GeoJSON and GeoPackage too; without
+    ``plot`` the command draws no map and --plot is hidden (it still says so when given)."""
     g = p.add_argument_group("output")
     if outputs:
+        kinds = TABLES + ("; with node coordinates also .geojson and .gpkg" if layers else "")
         g.add_argument("-o", "--output", action="append", default=[], metavar="OUT",
-                       help="write the result; the format follows the suffix (.csv, .tsv, "
-                            ".csv.gz, .parquet, .npz, .geojson); repeat for several files")
-        g.add_argument("--plot", metavar="FILE.png", help="draw the forest over the nodes")
+                       help=f"write the result; the format follows the suffix ({kinds}); "
+                            f"repeat for several files")
+        g.add_argument("--plot", metavar="FILE.png",
+                       help="draw a map over the nodes (needs node coordinates)" if plot else
+                       argparse.SUPPRESS)
         g.add_argument("--spreadsheet-safe", action="store_true",
                        help="in CSV/TSV outputs, put an apostrophe before text cells beginning "
                             "with = + - @ (spreadsheet formulas); by default labels are "

@@ -35,16 +35,16 @@ def add_parser(sub):
     g.add_argument("--limit", type=int, default=10, metavar="N",
                    help="nearly tied cost choices listed (default 10; -o and --json list "
                         "every link)")
-    common.add_output_options(p)
+    common.add_output_options(p, plot=False)
     p.set_defaults(run=run)
 
 
 def run(args) -> int:
     if args.limit < 0:
         raise UsageError(f"--limit {args.limit}: expected 0 or more links to list.")
-    common.check_outputs(args, geojson=False)
-    if args.plot:
+    if args.plot:   # before the output checks, which would ask for --nodes first
         raise UsageError("--plot: margins draws no map; use 'fastmst solve --plot'.")
+    common.check_outputs(args, geojson=False)
     rep = common.reporter(args)
     with rep:
         edges = common.load_edges(args, rep)

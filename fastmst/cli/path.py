@@ -28,14 +28,14 @@ def add_parser(sub):
     g = p.add_argument_group("design")
     g.add_argument("--maximize", action="store_true", help="maximum spanning forest")
     common.add_constraint_options(g)
-    common.add_output_options(p)
+    common.add_output_options(p, plot=False)
     p.set_defaults(run=run)
 
 
 def run(args) -> int:
-    common.check_outputs(args, geojson=False)
-    if args.plot:
+    if args.plot:   # before the output checks, which would ask for --nodes first
         raise common.UsageError("--plot: path draws no map; use 'fastmst solve --plot'.")
+    common.check_outputs(args, geojson=False)
     rep = common.reporter(args)
     with rep:
         edges = common.load_edges(args, rep)

@@ -29,7 +29,7 @@ def add_parser(sub):
                                    "forest, print a summary and write the forest.")
     common.add_input_options(p)
     common.add_solver_options(p)
-    common.add_output_options(p)
+    common.add_output_options(p, layers=True)
     summaries.add_summary_options(p.add_argument_group("summaries"))
     p.set_defaults(run=run)
 

@@ -38,7 +38,7 @@ def add_parser(sub):
     common.add_constraint_options(g)
     g.add_argument("--limit", type=int, default=10, metavar="N",
                    help="links entering and leaving listed on screen (default 10)")
-    common.add_output_options(p)
+    common.add_output_options(p, layers=True)
     p.set_defaults(run=run)
 
 
@@ -108,6 +108,21 @@ def scaled_weights(edges, category, factors: dict, by: str) -> np.ndarray:
     return out
 
 
+def _plot(path, scenario, before, after, factors, by) -> None:
+    """The scenario's design over the candidate links, the links that enter it in red."""
+    from fastmst.plot import plot_forest
+    entering = np.flatnonzero(~np.isin(after.edges, before.edges))
+    scale = ", ".join(f"{k} x{v:g}" for k, v in factors.items())
+    plot_forest(path, scenario, after, highlight=entering,
+                highlight_label=f"links entering the design ({entering.size:,})",
+                title="What-if: the design with scaled costs",
+                subtitle=f"{scenario.source}: {by} {scale}; {entering.size:,} links enter, "
+                         f"{int(np.count_nonzero(~np.isin(before.edges, after.edges))):,} "
+                         f"leave",
+                footnote="A spanning tree has no redundancy; designs need review by licensed "
+                         "engineers under local codes.")
+
+
 def _link(edges, p: int) -> str:
     return common.link_text(common.link_json(edges, p), edges)
 
@@ -137,12 +152,15 @@ def run(args) -> int:
                                                     edges.n_nodes, maximize=args.maximize,
                                                     **constraints)
         scenario = dataclasses.replace(edges, weight=new_weight)
-        if args.output:
+        if args.output or args.plot:
             with io.StagedOutputs() as staged:
                 with rep.phase("writing"):
                     for out in args.output:
                         io.write_forest(staged.path(out), after, scenario,
                                         spreadsheet_safe=args.spreadsheet_safe)
+                if args.plot:
+                    with rep.phase("plotting"):
+                        _plot(staged.path(args.plot), scenario, before, after, factors, args.by)
                 staged.commit()
     old_set, new_set = set(before.edges.tolist()), set(after.edges.tolist())
     entering = sorted(new_set - old_set, key=lambda p: (new_weight[p], p))
