@@ -797,7 +797,7 @@ def test_spreadsheet_formulas_verbatim_by_default(tmp_path):
     assert set(io.read_edges(plain_).labels.tolist()) == {"=1+2", "@x", "-y", "+3", "ok", "=z"}
     safe = io.write_forest(tmp_path / "s.csv", f, el, spreadsheet_safe=True)
     rows = safe.read_text().splitlines()[1:]
-    assert rows[0].startswith('"\'=1+2","\'+3",-1,')
+    assert rows[0].startswith('"\'=1+2","\'+3","-1.0",')   # floats read back as floats
     assert all(not c.strip('"').startswith(("=", "+", "-", "@"))
                for r in rows for c in r.split(",")[:2])
     pq = io.write_forest(tmp_path / "s.parquet", f, el, spreadsheet_safe=True)

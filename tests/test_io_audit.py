@@ -80,12 +80,6 @@ def _write(path, text):
 
 _TEXT_FORMATS = ["csv", "tsv", "csv.gz", "tsv.zst"]
 
-_FLOATS_PENDING = pytest.mark.xfail(
-    strict=True, reason="CSV/TSV output writes the float 1.0 as 1 and -0.0 as -0 (pyarrow's "
-    "writer), which read back as int64 1 and 0; the fix changes that output to 1.0/-0.0 and "
-    "waits for tests/test_io.py::test_spreadsheet_formulas_verbatim_by_default, which expects "
-    "'-1,' for the weight -1.0")
-
 
 @given(names=st.lists(st.text(st.characters(blacklist_categories=("Cs",),
                                             blacklist_characters="\r\n"), min_size=1),
@@ -103,7 +97,6 @@ def test_labels_read_back_as_written(tmp_path_factory, names, fmt):
     assert back.label(back.head).tolist() == names[1:]
 
 
-@_FLOATS_PENDING
 @settings(phases=(Phase.explicit, Phase.generate))   # no shrinking while the failure is known
 @given(weights=st.lists(st.one_of(st.sampled_from([0.0, -0.0, 1.0, -3.0, 1e16, 2.0**53, 1e-7]),
                                   st.floats(allow_nan=False, allow_infinity=False),
@@ -142,7 +135,6 @@ def test_text_output_keeps_floats_float(tmp_path_factory, weights, extra, names,
     assert np.array_equal(np.signbit(a[0]), np.signbit(a[1]))
 
 
-@_FLOATS_PENDING
 def test_forest_csv_keeps_float_weights(tmp_path):
     # -0.0 and whole-number float weights: written as -0 and 1 they read back as int64 0 and 1
     edges = fio.from_table(pa.table({"tail": ["a", "b", "c"], "head": ["b", "c", "a"],

@@ -261,11 +261,16 @@ def write_table(table, tmp, compression, *, delimiter):
     """A pyarrow Table as CSV/TSV (compressed when ``compression`` names a codec).
 
     Text cells with a line break are refused (a ValueError naming the first), since the reader
-    splits records at line ends.
+    splits records at line ends.  Floating columns are written as text that reads back as the
+    same floats (:func:`_float_text`); being text, they are quoted (``"1.0"``), which CSV
+    readers still read as numbers.
     """
     import pyarrow as pa
     import pyarrow.compute as pc
     import pyarrow.csv as pcsv
+    for i, col in enumerate(table.columns):
+        if pa.types.is_floating(col.type):
+            table = table.set_column(i, table.column_names[i], _float_text(col))
     for name in table.column_names:
         col = table.column(name)
         if pa.types.is_string(col.type) or pa.types.is_large_string(col.type):
@@ -282,6 +287,17 @@ def write_table(table, tmp, compression, *, delimiter):
         pcsv.write_csv(table, sink, write_options=opts)
         if compression:
             sink.close()
+
+
+def _float_text(col):
+    """A floating column as text that reads back as the same floats: pyarrow's shortest
+    round-trip form (``0.1``, ``1e+16``, ``inf``) with ``.0`` after a whole number (pyarrow's
+    writer puts 1.0 as ``1`` and -0.0 as ``-0``, which read back as the integers 1 and 0)."""
+    import pyarrow as pa
+    import pyarrow.compute as pc
+    text = pc.cast(col, pa.string())
+    whole = pc.match_substring_regex(text, r"^[-+]?[0-9]+$")
+    return pc.if_else(whole, pc.binary_join_element_wise(text, ".0", ""), text)
 
 
 for _name, _suffixes, _order, _delimiter in (("csv", (".csv", ".txt"), 10, ","),
