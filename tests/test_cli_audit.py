@@ -622,3 +622,24 @@ def test_every_output_the_help_offers_is_written(files, capsys, command):
         rc, out, err = _run(DESIGN_COMMANDS[command](files) + COLUMNS +
                             ["--plot", str(files["dir"] / "m.png")], capsys)
         assert rc == 2 and "draws no map" in err, (rc, err)
+
+
+# --- GeoJSON from planar coordinates: refused before the solve -------------------------------------
+
+@pytest.mark.parametrize("command", ["solve", "clusters", "what-if"])
+def test_geojson_from_planar_coordinates_is_refused_before_solving(files, capsys, monkeypatch,
+                                                                   command):
+    """-o .geojson with a node table of planar x/y: exit 1 naming -o, before any solve (the
+    writer refused it only after the whole run)."""
+    import fastmst
+
+    def no_solve(*a, **k):
+        raise AssertionError("solved before refusing the output")
+    monkeypatch.setattr(fastmst, "minimum_spanning_forest", no_solve)
+    sites = _write(files["dir"] / "xy.csv", ["id", "x", "y"],
+                   [(s, 1000.0 * k, 500.0 * k * k) for k, s in enumerate(_SITES)])
+    target = files["dir"] / "plan.geojson"
+    rc, out, err = _run(DESIGN_COMMANDS[command](files) + COLUMNS +
+                        ["--nodes", sites, "--planar", "-o", str(target)], capsys)
+    assert rc == 1 and f"-o {target}: the coordinates" in err and "planar" in err, (rc, err)
+    assert not target.exists()

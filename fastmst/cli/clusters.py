@@ -44,6 +44,7 @@ def run(args) -> int:
     with rep:
         edges = common.load_edges(args, rep)
         common.check_coordinates(args, edges.coords is not None)
+        common.check_geojson_coordinates(args, edges)
         constraints, links = common.read_constraints(args, edges, rep)
         with rep.phase("solving"):
             forest = fastmst.minimum_spanning_forest(edges.tail, edges.head, edges.weight,

@@ -322,6 +322,21 @@ def check_coordinates(args, have_coords: bool):
                              f"coordinates: give a node table with --nodes.")
 
 
+def check_geojson_coordinates(args, edges) -> None:
+    """GeoJSON (RFC 7946) holds longitude/latitude only: a -o .geojson with planar
+    coordinates of no known CRS is refused once the edges are read, before the solve (the
+    writer refused it only after all the work)."""
+    for out in getattr(args, "output", []):
+        if io.detect_format(out, None, valid=io.WRITE_FORMATS)[0] != "geojson":
+            continue
+        if edges.coords is not None and not edges.geographic and \
+                getattr(edges, "crs", None) is None:
+            raise ValueError(f"-o {out}: the coordinates of {edges.source} are planar (x/y); "
+                             f"GeoJSON (RFC 7946) needs longitude/latitude in WGS 84. Give "
+                             f"the node table in lon/lat, or write .gpkg, CSV or Parquet "
+                             f"instead.")
+
+
 def reporter(args) -> Reporter:
     """Progress bars on a terminal unless --quiet or --json."""
     return Reporter.for_terminal(args.quiet or args.json)

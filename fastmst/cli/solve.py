@@ -42,6 +42,7 @@ def run(args) -> int:
     with rep:
         edges = common.load_edges(args, rep)
         common.check_coordinates(args, edges.coords is not None)
+        common.check_geojson_coordinates(args, edges)
         kwargs = dict(method=args.method, maximize=args.maximize, threads=threads)
         constraints, links = common.read_constraints(args, edges, rep)
         kwargs.update(constraints)

@@ -133,6 +133,7 @@ def run(args) -> int:
     rep = common.reporter(args)
     with rep:
         edges = common.load_edges(args, rep)
+        common.check_geojson_coordinates(args, edges)
         attrs = edges.attributes
         if attrs is None or args.by not in attrs.column_names:
             have = ", ".join(attrs.column_names) if attrs is not None else "none"
