@@ -184,3 +184,20 @@ def test_delimiter_and_decimal_comma_for_nodes_and_lists(tmp_path):
     (tmp_path / "x.csv").write_text("from;to\nC;A\n")
     links = io.read_links(tmp_path / "x.csv", edges, delimiter=";")
     assert links.positions.tolist() == [2] and links.named_by == "pair"
+
+
+@pytest.mark.parametrize("fmt", ["csv", "parquet"])
+@pytest.mark.parametrize("name", ["tail", "head", "weight", "position"])
+def test_keep_columns_naming_a_column_that_cannot_be_carried(tmp_path, fmt, name):
+    """keep_columns asking for the edges' own columns or 'position' is refused, not ignored."""
+    import pyarrow.csv as pcsv
+    table = pa.table({"tail": ["a", "b"], "head": ["b", "c"], "weight": [1.0, 2.0],
+                      "position": [7, 8], "note": ["p", "q"]})
+    path = tmp_path / f"e.{fmt}"
+    if fmt == "csv":
+        pcsv.write_csv(table, path)
+    else:
+        pq.write_table(table, path)
+    with pytest.raises(ValueError, match=rf"keep_columns names '{name}'"):
+        io.read_edges(path, keep_columns=[name])
+    assert io.read_edges(path, keep_columns=["note"]).attributes.column_names == ["note"]

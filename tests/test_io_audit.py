@@ -733,3 +733,14 @@ def test_spreadsheet_safe_every_text_column(tmp_path_factory, kind, risky, fmt):
     want = ["'" + v if v[0] in "=+-@\t" else v
             for v in (risky[p] for p in np.asarray(forest.edges))]
     assert [str(g) for g in got] == want
+
+
+@pytest.mark.parametrize("column", ["x", "y"])
+def test_node_table_missing_coordinate_says_nodes(tmp_path, column):
+    """A node table row without a coordinate is refused in terms of nodes, not edges."""
+    path = tmp_path / "nodes.csv"
+    row = "b,,1" if column == "x" else "b,1,"
+    path.write_text(f"id,x,y\na,0,0\n{row}\nc,2,2\n")
+    with pytest.raises(fio.FileFormatError, match=rf"line 3\): column '{column}' is empty or "
+                                              r"missing.*every node needs coordinates"):
+        fio.read_nodes(path)

@@ -88,13 +88,15 @@ def check_column(name, present, source: str, role: str, func: str) -> str:
     return name
 
 
-def check_no_missing(missing: np.ndarray, column: str, source: str, where, func: str) -> None:
-    """Raise naming the first True entry of the boolean ``missing`` (``where(i)`` words it)."""
+def check_no_missing(missing: np.ndarray, column: str, source: str, where, func: str,
+                     needs: str = "every edge needs a value there") -> None:
+    """Raise naming the first True entry of the boolean ``missing`` (``where(i)`` words it);
+    ``needs`` says why the value is needed."""
     if missing.size and missing.any():
         first = int(np.flatnonzero(missing)[0])
         raise FileFormatError(f"{source}: {where(first)}: column {column!r} is empty or missing "
-                              f"({int(missing.sum())} such rows in all); every edge needs a "
-                              f"value there. Fill or drop those rows.")
+                              f"({int(missing.sum())} such rows in all); {needs}. Fill or "
+                              f"drop those rows.")
 
 
 # What each kind of numeric column is for, as the NaN message words it.

@@ -83,7 +83,9 @@ def numeric_column(col, name, source, where, what="weight") -> np.ndarray:
     import pyarrow.compute as pc
     col = plain(col)
     if col.null_count:
-        check_no_missing(null_mask(col), name, source, where, "read_edges")
+        check_no_missing(null_mask(col), name, source, where, "read_edges",
+                         "every node needs coordinates" if what == "coordinate" else
+                         "every edge needs a value there")
     if pa.types.is_uint64(col.type):
         return to_numpy(col).astype(np.uint64, copy=False)
     if pa.types.is_integer(col.type):
@@ -180,6 +182,14 @@ def carried_columns(names, cols, keep, link_id, source, func="read_edges") -> li
                             f"received {type(keep).__name__}.") from None
         for c in chosen:
             check_column(c, names, source, "keep_columns", func)
+            if c in cols:   # would be dropped below without a word
+                raise ValueError(f"{func}: keep_columns names {c!r}, which is the edges' "
+                                 f"tail, head or weight column; outputs write it anyway. "
+                                 f"Leave it out of keep_columns.")
+            if c == "position":
+                raise ValueError(f"{func}: keep_columns names 'position', the name outputs "
+                                 f"give each link's row in the input, so that column cannot "
+                                 f"be carried; rename it in the file to carry it.")
     if link_id is not None:
         check_column(link_id, names, source, "link_id", func)
         if link_id in cols:
