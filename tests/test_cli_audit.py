@@ -643,3 +643,36 @@ def test_geojson_from_planar_coordinates_is_refused_before_solving(files, capsys
                         ["--nodes", sites, "--planar", "-o", str(target)], capsys)
     assert rc == 1 and f"-o {target}: the coordinates" in err and "planar" in err, (rc, err)
     assert not target.exists()
+
+
+# --- a reader that stops early ----------------------------------------------------------------------
+
+@pytest.mark.parametrize("command", ["path", "what-if"])
+def test_a_closed_pipe_ends_quietly(tmp_path, command):
+    """'fastmst ... | head': when the reader closes stdout the run ends without a message
+    (it printed 'error: Broken pipe'); exit code 1.  Runs the real command in a subprocess
+    importing fastmst from where this test imported it."""
+    import os
+    import subprocess
+    import sys
+    from pathlib import Path
+    import fastmst
+    n = 6000
+    links = _write(tmp_path / "chain.csv", ["from", "to", "cost", "surface"],
+                   [(f"s{i}", f"s{i + 1}", i % 7 + 1, "road") for i in range(n)] +
+                   [(f"s{i}", f"s{i + 2}", 9, "verge") for i in range(n - 1)])
+    argv = {"path": ["path", links, "s0", f"s{n}"],
+            "what-if": ["what-if", links, "--by", "surface", "--scale", "road=100",
+                        "--limit", str(2 * n)]}[command] + COLUMNS
+    env = dict(os.environ)
+    env["PYTHONPATH"] = os.pathsep.join(
+        [str(Path(fastmst.__file__).resolve().parent.parent)] +
+        [p for p in env.get("PYTHONPATH", "").split(os.pathsep) if p])
+    proc = subprocess.Popen([sys.executable, "-m", "fastmst", *argv], cwd=tmp_path, env=env,
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE)
+    first = proc.stdout.readline()
+    proc.stdout.close()                      # the reader stops after one line
+    err = proc.stderr.read().decode()
+    rc = proc.wait(timeout=120)
+    assert first.startswith(f"fastmst {command}:".encode()), first
+    assert rc == 1 and err == "", (rc, err)

@@ -10,13 +10,15 @@ functions, listed in :data:`COMMANDS`.
 Exit codes: 0 success; 1 bad data (unreadable or malformed files, invalid values); 2 bad usage
 (unknown options, conflicting or missing arguments, unknown output formats); 3 ``check`` ran and
 the given forest is not a minimum spanning forest.  Errors print one message without a traceback;
-``--debug`` shows the traceback.  Anything unexpected is still one message (exit 1) asking for
+``--debug`` shows the traceback.  A reader that closes stdout early (``| head``) ends the
+run quietly (exit 1).  Anything unexpected is still one message (exit 1) asking for
 a report.  Outputs are written only once everything that can fail has succeeded
 (:class:`fastmst.io.StagedOutputs`), so a failed run leaves no output behind.
 """
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 
 import fastmst
@@ -68,6 +70,14 @@ def main(argv=None) -> int:
             raise
         print(f"fastmst {args.command}: error: {exc}; the command line needs its extras: "
               f"pip install \"fastmst[cli]\"", file=sys.stderr)
+        return EXIT_DATA
+    except BrokenPipeError:
+        # the reader of stdout stopped (| head): stop quietly, as command-line tools do; stdout
+        # goes to the null device so that the interpreter's last flush does not fail again
+        try:
+            os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        except (OSError, ValueError):
+            pass
         return EXIT_DATA
     except (ValueError, TypeError, OSError, MemoryError, ArithmeticError) as exc:
         if debug:
