@@ -676,3 +676,28 @@ def test_a_closed_pipe_ends_quietly(tmp_path, command):
     rc = proc.wait(timeout=120)
     assert first.startswith(f"fastmst {command}:".encode()), first
     assert rc == 1 and err == "", (rc, err)
+
+
+@FAULTY
+@given(links=_network(), command=st.sampled_from(["failures", "backup"]), data=st.data())
+def test_a_design_using_an_excluded_link_names_it(tmp_path, capsys, links, command, data):
+    """--design with --excluded that removes some of its links: exit 1 naming the first such
+    link in labels (it said 'link_failures: forest holds the excluded link at position 0');
+    excluding only links outside the design runs (exit 0).  The design is networkx's minimum
+    spanning tree."""
+    tree = _mst_positions(links)
+    excluded = sorted(data.draw(st.sets(st.integers(0, len(links) - 1), min_size=1),
+                                label="excluded"))
+    edges = _write(tmp_path / "links.csv", ["from", "to", "cost"], links)
+    design = _write_forest(tmp_path / "design.csv", links, tree, "position")
+    banned = _write(tmp_path / "banned.csv", ["position"], [(p,) for p in excluded])
+    rc, out, err = _run([command, edges, "--design", design, "--excluded", banned] + COLUMNS,
+                        capsys)
+    used = [p for p in excluded if p in tree]
+    if not used:
+        assert rc == 0, (rc, err)
+        return
+    assert rc == 1, (rc, out, err)
+    a, b, _ = links[used[0]]
+    assert f"the design uses {a} -- {b}" in err and f"position {used[0]}" in err, err
+    _no_internals(err)

@@ -68,10 +68,17 @@ def faults_json(edges, res) -> dict:
 
 
 def require_spanning_forest(edges, design, excluded, opt: str, path) -> None:
-    """Refuse (ValueError) a design that is not a spanning forest of the links it may use,
-    naming the link that closes a cycle or joins two of its trees."""
+    """Refuse (ValueError) a design that uses an excluded link or is not a spanning forest of
+    the links it may use, naming the link (in labels) that shows it."""
     res = fastmst.check_forest(edges.tail, edges.head, edges.weight, design,
                                n_nodes=edges.n_nodes, excluded=excluded)
+    used = np.asarray(res.used_excluded)
+    if used.size:
+        raise ValueError(f"{opt} {path}: the design uses {link_words(edges, int(used[0]))}, "
+                         f"which --excluded excludes"
+                         + (f" ({common.plural(used.size, 'such link')} in all)"
+                            if used.size > 1 else "")
+                         + "; drop it from the design or from the --excluded list.")
     if res.is_forest and res.is_spanning:
         return
     why = "; ".join(text for _, text in faults(edges, res))
