@@ -701,3 +701,29 @@ def test_a_design_using_an_excluded_link_names_it(tmp_path, capsys, links, comma
     a, b, _ = links[used[0]]
     assert f"the design uses {a} -- {b}" in err and f"position {used[0]}" in err, err
     _no_internals(err)
+
+
+@FAULTY
+@given(links=_network(), command=st.sampled_from(["solve", "check", "clusters", "margins",
+                                                   "what-if", "failures", "backup"]),
+       by=st.sampled_from(["position", "pair"]), data=st.data())
+def test_a_link_both_required_and_excluded_names_it(tmp_path, capsys, links, command, by,
+                                                    data):
+    """--required and --excluded sharing a link: exit 1 naming the link in labels and both
+    files (it was 'minimum_spanning_forest: positions [0] are both required and excluded')."""
+    k = data.draw(st.integers(0, len(links) - 1), label="shared link")
+    edges = _write(tmp_path / "links.csv", ["from", "to", "cost", "surface"],
+                   [(a, b, w, "road") for a, b, w in links])
+    must = _write_forest(tmp_path / "must.csv", links, [k], by)
+    ban = _write_forest(tmp_path / "ban.csv", links, [k], by)
+    forest = _write_forest(tmp_path / "forest.csv", links, _mst_positions(links), "position")
+    line = {"solve": ["solve", edges], "check": ["check", edges, forest],
+            "clusters": ["clusters", edges, "-k", "2"], "margins": ["margins", edges],
+            "what-if": ["what-if", edges, "--by", "surface", "--scale", "road=2"],
+            "failures": ["failures", edges], "backup": ["backup", edges]}[command]
+    rc, out, err = _run(line + COLUMNS + ["--required", must, "--excluded", ban], capsys)
+    assert rc == 1, (rc, out, err)
+    a, b, _ = links[k]
+    assert f"{a} -- {b}" in err and "is both required" in err, err
+    assert f"--required {must}" in err and f"--excluded {ban}" in err, err
+    _no_internals(err)

@@ -154,7 +154,21 @@ def read_constraints(args, edges, rep):
                     {"tail": jsonable(a), "head": jsonable(b), "links": c}
                     for a, b, c in links.several]
             info[opt] = d
+    check_disjoint(edges, kwargs.get("required"), kwargs.get("excluded"), args)
     return kwargs, info
+
+
+def check_disjoint(edges, required, excluded, args) -> None:
+    """A link both required and excluded is refused naming it in labels and both files."""
+    if required is None or excluded is None:
+        return
+    both = np.intersect1d(required, excluded)
+    if both.size:
+        d = link_json(edges, int(both[0]))
+        more = f" ({plural(both.size, 'such link')} in all)" if both.size > 1 else ""
+        raise ValueError(f"{link_text(d, edges)} is both required (--required {args.required}) "
+                         f"and excluded (--excluded {args.excluded}){more}; a link can be only "
+                         f"one of them. Remove it from one list.")
 
 
 def constraint_rows(info) -> list:

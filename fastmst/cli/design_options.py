@@ -77,6 +77,7 @@ def read_links(args, edges, rep):
         if args.excluded:
             excluded = io.read_positions(args.excluded, edges, all_parallel=True,
                                          func="--excluded")
+        common.check_disjoint(edges, required, excluded, args)
         if getattr(args, "design", None):
             if args.required:
                 raise UsageError("--design gives the whole design; --required applies to the "
