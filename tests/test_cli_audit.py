@@ -17,7 +17,7 @@ from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
 from fastmst import cli
-from fastmst.cli import common, solve
+from fastmst.cli import common, paths, solve
 from fastmst.cli.common import CAUTION
 
 LINKS = [("depot", "north", 4.0), ("north", "east", 1.5), ("east", "depot", 2.0),
@@ -336,7 +336,7 @@ def test_os_errors_print_without_errno_prefix(cls, errno_, words, name):
     """Operating-system errors reach the screen in their own words with the file name, never as
     '[Errno N] ...' (common practice, no source: the number means nothing to users)."""
     exc = cls(errno_, words) if name is None else cls(errno_, words, name)
-    text = common.os_error_text(exc)
+    text = paths.os_error_text(exc)
     assert "[Errno" not in text and words in text
     if name is not None:
         assert name in words or repr(name) in text
@@ -724,6 +724,6 @@ def test_a_link_both_required_and_excluded_names_it(tmp_path, capsys, links, com
     rc, out, err = _run(line + COLUMNS + ["--required", must, "--excluded", ban], capsys)
     assert rc == 1, (rc, out, err)
     a, b, _ = links[k]
-    assert f"{a} -- {b}" in err and "is both required" in err, err
+    assert f"{a} -- {b}" in err and "is both required and excluded" in err, err
     assert f"--required {must}" in err and f"--excluded {ban}" in err, err
     _no_internals(err)

@@ -24,7 +24,8 @@ import sys
 import fastmst
 from fastmst.cli import bench, check, clusters, demo, margins, path, solve, whatif
 from fastmst.cli import backup, failures, feeders, shallow
-from fastmst.cli.common import EXIT_DATA, EXIT_USAGE, UsageError, os_error_text
+from fastmst.cli.common import EXIT_DATA, EXIT_USAGE, UsageError
+from fastmst.cli.paths import os_error_text
 
 COMMANDS = (solve, check, clusters, margins, path, whatif, failures, backup, feeders, shallow,
             bench, demo)

@@ -16,6 +16,7 @@ import numpy as np
 
 import fastmst
 from fastmst import io
+from fastmst.cli.paths import check_writable
 from fastmst.cli.progress import Reporter
 
 CAUTION = ("Caution: a spanning tree has no redundancy - one failed link disconnects every site "
@@ -166,9 +167,9 @@ def check_disjoint(edges, required, excluded, args) -> None:
     if both.size:
         d = link_json(edges, int(both[0]))
         more = f" ({plural(both.size, 'such link')} in all)" if both.size > 1 else ""
-        raise ValueError(f"{link_text(d, edges)} is both required (--required {args.required}) "
-                         f"and excluded (--excluded {args.excluded}){more}; a link can be only "
-                         f"one of them. Remove it from one list.")
+        raise ValueError(f"{link_text(d, edges)} is both required and excluded (--required "
+                         f"{args.required}, --excluded {args.excluded}){more}; a link can be "
+                         f"only one of them. Remove it from one list.")
 
 
 def constraint_rows(info) -> list:
@@ -292,35 +293,6 @@ def check_not_inputs(args) -> None:
             if _same_file(out, other):
                 raise UsageError(f"{opt} {out}: named twice (also {opt2} {other}); give each "
                                  f"output its own file name.")
-
-
-def check_writable(opt: str, out: str) -> None:
-    """An output path names a file in a folder that exists and may be written: checked before
-    any work, so a long run does not end in a write that cannot succeed.  A bad path is an
-    OSError (exit 1, as a missing input file)."""
-    if os.path.isdir(out):
-        example = os.path.join(out, "map.png" if opt == "--plot" else "result.csv")
-        raise OSError(f"{opt} {out}: is a folder; expected a file name, e.g. {example}.")
-    folder = os.path.dirname(out) or "."
-    if not os.path.isdir(folder):
-        what = "is a file, not a folder" if os.path.exists(folder) else "does not exist"
-        raise OSError(f"{opt} {out}: {folder!r} {what}; create the folder first or choose "
-                      f"another path.")
-    if not os.access(folder, os.W_OK | os.X_OK):
-        raise OSError(f"{opt} {out}: the folder {folder!r} may not be written; choose a folder "
-                      f"you may write to.")
-
-
-def os_error_text(exc: OSError) -> str:
-    """An operating-system error for the screen: its own words and the file, without the
-    ``[Errno N]`` prefix of ``str(exc)``."""
-    if not exc.strerror:
-        return str(exc)
-    names = [n for n in (exc.filename, exc.filename2) if n is not None]
-    text = exc.strerror
-    if names and all(str(n) not in text for n in names):
-        text += ": " + " -> ".join(repr(str(n)) for n in names)
-    return text
 
 
 def check_coordinates(args, have_coords: bool):
