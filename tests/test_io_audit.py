@@ -744,3 +744,41 @@ def test_node_table_missing_coordinate_says_nodes(tmp_path, column):
     with pytest.raises(fio.FileFormatError, match=rf"line 3\): column '{column}' is empty or "
                                               r"missing.*every node needs coordinates"):
         fio.read_nodes(path)
+
+
+def test_geopackage_without_crs_writes_without_warning(tmp_path):
+    """Planar coordinates of unknown CRS are written without one, as documented; pyogrio's
+    warning about the missing CRS is not passed on (it printed twice under the CLI's -q)."""
+    import warnings
+    pytest.importorskip("pyogrio")
+    nodes = tmp_path / "nodes.csv"
+    nodes.write_text("id,x,y\na,0,0\nb,3,4\nc,6,0\n")
+    edges = tmp_path / "edges.csv"
+    edges.write_text("tail,head,weight\na,b,5\nb,c,5\na,c,6\n")
+    el = fio.read_edges(edges, nodes=fio.read_nodes(nodes))
+    with warnings.catch_warnings(record=True) as seen:
+        warnings.simplefilter("always")
+        out = fio.write_geopackage(tmp_path / "f.gpkg", el.solve(), el)
+    assert not [w for w in seen if "crs" in str(w.message).lower()]
+    import pyogrio
+    assert pyogrio.read_info(out, layer="forest")["crs"] is None
+
+
+def test_table_with_header_and_no_rows_says_rows(tmp_path):
+    """A table that is not an edge list (a node or demand table) is not told it has no edges."""
+    path = tmp_path / "demand.csv"
+    path.write_text("site,demand\n")
+    with pytest.raises(fio.FileFormatError, match="but no data rows; expected one line per "
+                                                  "data row"):
+        fio.load_table(path)
+    edges = tmp_path / "e.csv"
+    edges.write_text("tail,head,weight\n")
+    with pytest.raises(fio.FileFormatError, match="but no edges; expected one line per edge"):
+        fio.read_edges(edges)
+
+
+def test_missing_column_message_names_the_cli_option_as_spelled(tmp_path):
+    path = tmp_path / "e.csv"
+    path.write_text("tail,head,weight\na,b,1\n")
+    with pytest.raises(fio.FileFormatError, match=r"\(CLI: --keep-columns COLUMN\)"):
+        fio.read_edges(path, keep_columns=["nope"])

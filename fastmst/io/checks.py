@@ -83,8 +83,9 @@ def check_column(name, present, source: str, role: str, func: str) -> str:
                         f"{type(name).__name__} {name!r}.")
     if name not in present:
         listed = ", ".join(map(repr, present)) or "none"
+        option = role.replace("_", "-")
         raise FileFormatError(f"{source}: no column {name!r} for the {role}; the columns present "
-                              f"are {listed}. Pick one of them (CLI: --{role} COLUMN).")
+                              f"are {listed}. Pick one of them (CLI: --{option} COLUMN).")
     return name
 
 

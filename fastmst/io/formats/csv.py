@@ -107,17 +107,18 @@ def _first_bad_line(path, delimiter, compression, numeric, decimal_comma=False):
 
 
 def read_csv(path, delimiter, compression, columns, numeric, progress=None, text=(),
-             decimal_comma=False):
+             decimal_comma=False, record="edge"):
     """(table, header, chosen columns) of a CSV/TSV file.
 
     ``columns(header)`` picks the columns to read; ``numeric(cols)`` names those that must be
     numbers (for the error scan); ``text`` names columns read as text, as written;
     ``progress(done_bytes, total_bytes)`` is called while reading; ``decimal_comma`` reads
-    ``12,5`` as 12.5 in number columns.
+    ``12,5`` as 12.5 in number columns; ``record`` names what one data row is ("edge") for the
+    message about a file with a header and no rows.
     """
     try:
         return _read_unchecked(path, delimiter, compression, columns, numeric, progress, text,
-                               decimal_comma)
+                               decimal_comma, record)
     except OSError as exc:   # pyarrow reports corrupt or truncated compressed data this way
         how = (f"is it complete and really {compression}-compressed?" if compression else
                "is it a complete text file?")
@@ -125,7 +126,7 @@ def read_csv(path, delimiter, compression, columns, numeric, progress=None, text
 
 
 def _read_unchecked(path, delimiter, compression, columns, numeric, progress=None, text=(),
-                    decimal_comma=False):
+                    decimal_comma=False, record="edge"):
     import pyarrow as pa
     import pyarrow.csv as pcsv
     header = _header(path, delimiter, compression)
@@ -161,7 +162,7 @@ def _read_unchecked(path, delimiter, compression, columns, numeric, progress=Non
         raise FileFormatError(f"{path}: {msg}.") from None
     if table.num_rows == 0:
         raise FileFormatError(f"{path}: the file has a header ({', '.join(header)}) but no "
-                              f"edges; expected one line per edge after the header.")
+                              f"{record}s; expected one line per {record} after the header.")
     return table, header, cols
 
 
@@ -253,7 +254,7 @@ def read_table(path, compression, text=(), *, delimiter, decimal_comma=False):
     """Every column of a CSV/TSV file, with its row wording; ``text(header)`` (or a list)
     names the columns read as text; ``decimal_comma`` reads ``12,5`` as 12.5."""
     table, _, _ = read_csv(path, delimiter, compression, lambda header: header, lambda cols: [],
-                           text=text, decimal_comma=decimal_comma)
+                           text=text, decimal_comma=decimal_comma, record="data row")
     return table, csv_row
 
 

@@ -82,6 +82,9 @@ def _write_layer(tmp, table, wkb, name, geometry_type, crs):
             options["FID"] = "gpkg_fid"
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", RuntimeWarning)   # the temporary name's suffix
+        if crs is None:   # planar coordinates without a CRS: written so on purpose, and said
+            warnings.filterwarnings("ignore", message=".*'crs' was not provided",
+                                    category=UserWarning)
         pyogrio.write_arrow(table, tmp, layer=name, driver="GPKG", geometry_name="geometry",
                             geometry_type=geometry_type, crs=crs, layer_options=options or None)
 
