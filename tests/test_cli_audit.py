@@ -727,3 +727,27 @@ def test_a_link_both_required_and_excluded_names_it(tmp_path, capsys, links, com
     assert f"{a} -- {b}" in err and "is both required and excluded" in err, err
     assert f"--required {must}" in err and f"--excluded {ban}" in err, err
     _no_internals(err)
+
+
+@pytest.mark.parametrize("command", ["backup", "failures", "shallow"])
+@pytest.mark.parametrize("header", [["position", "why", "weight"], ["a", "b", "why"],
+                                    ["why", "position", "w"]])
+def test_design_link_tables_keep_every_value(tmp_path, capsys, command, header):
+    """Input columns named like the link table's own columns (position, why) are renamed, not
+    overwritten: the labels and weights written are those of the input rows."""
+    rows = [["a", "b", "1"], ["b", "c", "2"], ["a", "c", "3"], ["c", "d", "4"], ["b", "d", "5"]]
+    src = tmp_path / "e.csv"
+    _write(src, header, rows)
+    out = tmp_path / "o.csv"
+    argv = [command, str(src), "-o", str(out), "-q"]
+    if command == "shallow":
+        argv += ["--root", "a"]
+    _run(argv, capsys)
+    with open(out, newline="") as fh:
+        table = list(csv.DictReader(fh))
+    names = list(table[0])
+    assert names.count("position") == 1 and names.count("why") == 1
+    tn, hn, wn = names[:3]
+    for r in table:
+        p = int(r["position"])
+        assert (r[tn], r[hn], r[wn]) == tuple(rows[p])

@@ -13,6 +13,7 @@ from fastmst import io
 from fastmst.cli import common, forests
 from fastmst.cli.common import CAUTION, UsageError, plural
 from fastmst.demo_design import DESIGN_CAUTION, plot_links
+from fastmst.io.adapters import output_names
 from fastmst.io.labels import all_labels, label_array, lookup
 
 def add_design_options(p, *, root: str | None, design: bool):
@@ -147,9 +148,7 @@ def link_table(edges, positions, why, **columns):
     """A pyarrow table of links: tail, head (labels), weight, position, why, then ``columns``."""
     import pyarrow as pa
     pos = np.asarray(positions, dtype=np.int64)
-    tn, hn, wn = edges.columns
-    if wn in (tn, hn):
-        wn = "weight"
+    tn, hn, wn = output_names(edges, reserved=("why", *columns))
     cols = {tn: label_array(edges.label(edges.tail[pos])),
             hn: label_array(edges.label(edges.head[pos])),
             wn: pa.array(np.asarray(edges.weight[pos])),

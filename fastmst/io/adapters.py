@@ -206,13 +206,14 @@ def forest_table(forest, edges: EdgeList, columns=None):
     return pa.table(cols)
 
 
-def output_names(edges: EdgeList) -> tuple:
+def output_names(edges: EdgeList, reserved=()) -> tuple:
     """Names of the tail, head and weight columns of output tables: the input's names, except
-    where one would meet another output column (``position``, the carried columns, or another
-    of the three), which would replace its values; that one gets its role's name ("tail",
-    "head", "weight"), numbered if that is taken too ("tail_2")."""
+    where one would meet another output column (``position``, the carried columns, the
+    ``reserved`` names of the caller's own columns, or another of the three), which would
+    replace its values; that one gets its role's name ("tail", "head", "weight"), numbered if
+    that is taken too ("tail_2")."""
     carried = [] if edges.attributes is None else edges.attributes.column_names
-    taken = {"position", *carried}
+    taken = {"position", *carried, *reserved}
     out = []
     for role, name in zip(("tail", "head", "weight"), edges.columns):
         if name in taken:
