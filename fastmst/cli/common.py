@@ -17,6 +17,7 @@ import numpy as np
 import fastmst
 from fastmst import io
 from fastmst.cli.paths import check_writable
+from fastmst.io.labels import all_labels, lookup
 from fastmst.cli.progress import Reporter
 
 CAUTION = ("Caution: a spanning tree has no redundancy - one failed link disconnects every site "
@@ -556,7 +557,6 @@ def node_id(edges, label, opt: str) -> int:
     (:func:`fastmst.io.labels.lookup`: as written; with --integer-ids as an integer, so 007 is
     site 7) - the same rule for FROM/TO, --root and the lists of links."""
     import pyarrow as pa
-    from fastmst.io.labels import all_labels, lookup
     ids, missing, _ = lookup(pa.array([str(label)]), all_labels(edges))
     if missing[0]:
         raise ValueError(f"{opt} {label!r}: no site of that name in {edges.source} "

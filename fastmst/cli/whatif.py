@@ -12,6 +12,7 @@ import fastmst
 from fastmst import io
 from fastmst.cli import common
 from fastmst.cli.common import CAUTION, EXIT_OK, UsageError, derived, fmt_num, plural
+from fastmst.plot import plot_forest
 from fastmst.solve.totals import signed_sum, total
 
 EPILOG = """examples:
@@ -110,7 +111,6 @@ def scaled_weights(edges, category, factors: dict, by: str) -> np.ndarray:
 
 def _plot(path, scenario, before, after, factors, by) -> None:
     """The scenario's design over the candidate links, the links that enter it in red."""
-    from fastmst.plot import plot_forest
     entering = np.flatnonzero(~np.isin(after.edges, before.edges))
     scale = ", ".join(f"{k} x{v:g}" for k, v in factors.items())
     plot_forest(path, scenario, after, highlight=entering,
