@@ -1,5 +1,7 @@
 """Shared test configuration: a deterministic hypothesis profile, the `slow` marks of tests in
 other modules, and small graph helpers."""
+import csv
+
 import numpy as np
 import pytest
 from hypothesis import HealthCheck, settings
@@ -98,3 +100,12 @@ def assert_is_spanning_forest(f, tail, head, n_nodes):
         # Ours are numbered by first appearance.
         first = np.unique(f.labels, return_index=True)[1]
         assert np.all(np.diff(first) > 0)
+
+
+def write_csv(path, header, rows) -> str:
+    """A CSV file of ``header`` and ``rows`` (the csv module's quoting); returns its path."""
+    with open(path, "w", newline="", encoding="utf-8") as fh:
+        w = csv.writer(fh)
+        w.writerow(header)
+        w.writerows(rows)
+    return str(path)

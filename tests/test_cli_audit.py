@@ -18,6 +18,7 @@ from hypothesis import strategies as st
 
 from fastmst import cli
 from fastmst.cli import common, paths, solve
+from conftest import write_csv
 from fastmst.cli.common import CAUTION
 
 LINKS = [("depot", "north", 4.0), ("north", "east", 1.5), ("east", "depot", 2.0),
@@ -25,12 +26,7 @@ LINKS = [("depot", "north", 4.0), ("north", "east", 1.5), ("east", "depot", 2.0)
          ("west", "south", 5.0), ("north", "west", 9.0)]
 
 
-def _write(path, header, rows):
-    with open(path, "w", newline="", encoding="utf-8") as fh:
-        w = csv.writer(fh)
-        w.writerow(header)
-        w.writerows(rows)
-    return str(path)
+_write = write_csv
 
 
 @pytest.fixture

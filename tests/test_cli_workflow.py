@@ -15,6 +15,7 @@ import pytest
 
 import fastmst
 from fastmst import cli
+from conftest import write_csv
 
 # link id, from, to, cost (decimals on purpose), route type, length
 LINKS = [("L01", "a", "b", 45.3, "duct", 120.5), ("L02", "b", "c", 33.0, "aerial", 80.25),
@@ -25,12 +26,7 @@ LINKS = [("L01", "a", "b", 45.3, "duct", 120.5), ("L02", "b", "c", 33.0, "aerial
 SITES = ["a", "b", "c", "d", "e", "f", "g", "h"]
 
 
-def _write(path, header, rows):
-    with open(path, "w", newline="", encoding="utf-8") as fh:
-        w = csv.writer(fh)
-        w.writerow(header)
-        w.writerows(rows)
-    return str(path)
+_write = write_csv
 
 
 @pytest.fixture
