@@ -21,6 +21,8 @@ from fastmst.io import atomic_write
 DENSE_EDGES = 50_000
 #: Nodes up to which every site is drawn as a dot.
 MAX_SITE_DOTS = 5_000
+#: Highlighted links get a ring at their middle up to this many; more rings would cover the map.
+MAX_RINGS = 200
 #: Cluster colours: qualitative, distinct on white; clusters are coloured by a graph colouring
 #: (linked clusters differ), so the palette repeats only where clusters are far apart.
 PALETTE = ["#1f77b4", "#ff7f0e", "#2ca02c", "#d62728", "#9467bd", "#8c564b", "#e377c2",
@@ -198,7 +200,8 @@ def plot_forest(path, edges, forest, *, title=None, subtitle=None, groups=None, 
       palette lasts; forest links between clusters (the cuts) are black;
     * **required links**: a broad green band under the forest line;
     * **excluded links**: dashed red lines;
-    * **highlighted links** (``highlight``): thick red lines with a ring at their middle;
+    * **highlighted links** (``highlight``): thick red lines with a ring at their middle (up
+      to ``MAX_RINGS``, 200; more are drawn as red lines only, which rings would bury);
     * **sites**: small dark dots (up to 5,000 nodes);
     * **isolated sites**: orange squares, nodes without any forest link (no candidate link, or
       only excluded ones);
@@ -362,12 +365,16 @@ def plot_forest(path, edges, forest, *, title=None, subtitle=None, groups=None, 
                               label=f"excluded links ({len(exc):,})"))
     if highlight is not None and len(highlight):
         hl = np.asarray(highlight, dtype=np.int64)
-        ax.add_collection(LineCollection(list(fpaths[hl]), colors="#d62728", linewidths=3.0,
+        ringed = len(hl) <= MAX_RINGS
+        lw = 3.0 if ringed else 1.6
+        ax.add_collection(LineCollection(list(fpaths[hl]), colors="#d62728", linewidths=lw,
                                          zorder=3))
-        mid = fseg[hl].mean(axis=1)   # rings make short links findable
-        ax.scatter(mid[:, 0], mid[:, 1], s=140, facecolors="none", edgecolors="#d62728",
-                   linewidths=1.6, zorder=3.5)
-        handles.append(Line2D([], [], color="#d62728", lw=3, marker="o", mfc="none", ms=9,
+        if ringed:
+            mid = fseg[hl].mean(axis=1)   # rings make short links findable
+            ax.scatter(mid[:, 0], mid[:, 1], s=140, facecolors="none", edgecolors="#d62728",
+                       linewidths=1.6, zorder=3.5)
+        handles.append(Line2D([], [], color="#d62728", lw=lw, marker="o" if ringed else None,
+                              mfc="none", ms=9,
                               label=highlight_label or f"highlighted links ({len(hl):,})"))
     if 0 < edges.n_nodes <= MAX_SITE_DOTS:
         dots = "#333333" if clusters is None else \

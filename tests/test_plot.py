@@ -254,3 +254,24 @@ def test_text_inside_over_extents_and_aspects(geographic, log_w, log_ratio, cx, 
         assert texts_outside(fig) == []
     finally:
         matplotlib.pyplot.close(fig)
+
+
+@pytest.mark.parametrize("many", [False, True])
+def test_highlight_rings_only_while_few(many):
+    """Up to MAX_RINGS highlighted links get a ring each (findable when short); beyond, red
+    lines only, so thousands of rings do not cover the map (pygsp's Minnesota roads)."""
+    from matplotlib.collections import PathCollection
+    from fastmst.plot import MAX_RINGS
+    el = _minnesota()
+    f = el.solve()
+    k = min(f.edges.size, MAX_RINGS + 1) if many else 3
+    assert (k > MAX_RINGS) == many
+    fig = plot_forest(None, el, f, highlight=np.arange(k))
+    try:
+        rings = [c for c in fig.axes[0].collections if isinstance(c, PathCollection)
+                 and len(c.get_offsets()) == k]
+        assert len(rings) == (0 if many else 1)
+        labels = [t.get_text() for t in fig.legends[0].get_texts()]
+        assert f"highlighted links ({k:,})" in labels
+    finally:
+        matplotlib.pyplot.close(fig)
