@@ -747,3 +747,25 @@ def test_design_link_tables_keep_every_value(tmp_path, capsys, command, header):
     for r in table:
         p = int(r["position"])
         assert (r[tn], r[hn], r[wn]) == tuple(rows[p])
+
+
+@pytest.mark.parametrize("delimiter", [";;", "", '"', "ab"])
+def test_bad_delimiter_is_a_usage_error_in_cli_terms(tmp_path, capsys, delimiter):
+    src = _write(tmp_path / "e.csv", ["tail", "head", "weight"], [["a", "b", "1"]])
+    rc, _, err = _run(["solve", src, "--delimiter", delimiter, "-q"], capsys)
+    assert rc == common.EXIT_USAGE
+    assert f"--delimiter {delimiter!r}: expected one character" in err
+    assert "read_edges" not in err
+
+
+@pytest.mark.parametrize("option,code", [(["-k", "100"], "EXIT_DATA"), (["-k", "0"], "EXIT_USAGE"),
+                                         (["--threshold", "nan"], "EXIT_DATA")])
+def test_cluster_option_out_of_range_in_cli_terms(tmp_path, capsys, option, code):
+    """More clusters than sites is a value the data refuses (exit 1), k = 0 bad usage (exit 2);
+    either is worded with the option as typed."""
+    src = _write(tmp_path / "e.csv", ["tail", "head", "weight"],
+                 [["a", "b", "1"], ["b", "c", "2"], ["c", "d", "3"]])
+    rc, _, err = _run(["clusters", src, *option, "-q"], capsys)
+    assert rc == getattr(common, code)
+    assert f"error: {' '.join(option)}: " in err
+    assert "SpanningForest" not in err and "Traceback" not in err

@@ -50,7 +50,11 @@ def run(args) -> int:
             forest = fastmst.minimum_spanning_forest(edges.tail, edges.head, edges.weight,
                                                      edges.n_nodes, **constraints)
         with rep.phase("clustering"):
-            labels = np.asarray(forest.clusters(k=args.k, threshold=args.threshold))
+            try:
+                labels = np.asarray(forest.clusters(k=args.k, threshold=args.threshold))
+            except ValueError as exc:   # said in the command's terms, not the API's
+                opt = f"-k {args.k}" if args.k is not None else f"--threshold {args.threshold}"
+                raise ValueError(f"{opt}: {str(exc).split(': ', 1)[-1]}") from None
         table = io.node_table(edges, cluster=labels.astype(np.int64))
         # outputs under temporary names, renamed onto their targets only when all succeeded
         with io.StagedOutputs() as staged:

@@ -384,7 +384,11 @@ def layer_note(edges) -> str | None:
 def delimiter_option(args):
     """--delimiter, with '\\t' and 'tab' meaning a tab."""
     d = getattr(args, "delimiter", None)
-    return "\t" if d in ("\\t", "tab") else d
+    d = "\t" if d in ("\\t", "tab") else d
+    if d is not None and (len(d) != 1 or d in "\"\r\n"):
+        raise UsageError(f"--delimiter {d!r}: expected one character other than a quote or a "
+                         f"line break, such as ';' or '|'; for tabs pass 'tab'.")
+    return d
 
 
 def keep_columns(text: str):
