@@ -17,8 +17,8 @@ import numpy as np
 import fastmst
 from fastmst import io
 from fastmst.cli.paths import check_writable
-from fastmst.io.labels import all_labels, lookup
 from fastmst.cli.progress import Reporter
+from fastmst.io.labels import all_labels, lookup
 
 CAUTION = ("Caution: a spanning tree has no redundancy - one failed link disconnects every site "
            "beyond it. Designs for utilities or roads need review by licensed engineers under "

@@ -11,6 +11,7 @@ import numpy as np
 import fastmst
 from fastmst import io
 from fastmst.cli import common
+from fastmst.cli.forests import link_words
 from fastmst.cli.common import CAUTION, EXIT_OK, UsageError, derived, fmt_num, plural
 from fastmst.plot import plot_forest
 from fastmst.solve.totals import signed_sum, total
@@ -81,7 +82,7 @@ def scaled_weights(edges, category, factors: dict, by: str) -> np.ndarray:
             lo, hi = int(w[m].min()) * int(f), int(w[m].max()) * int(f)
             if lo < info.min or hi > info.max:
                 p = int(np.flatnonzero(m)[np.argmax(np.abs(w[m].astype(object)))])
-                raise ValueError(f"--scale {v}={f:g}: {_link(edges, p)} would weigh "
+                raise ValueError(f"--scale {v}={f:g}: {link_words(edges, p)} would weigh "
                                  f"{int(w[p]) * int(f):,}, beyond the {w.dtype} weights of "
                                  f"{edges.source} (at most {info.max:,}); give a smaller "
                                  f"factor.")
@@ -103,7 +104,7 @@ def scaled_weights(edges, category, factors: dict, by: str) -> np.ndarray:
     if over.size:
         p = int(over[0])
         raise ValueError(f"--scale {category[p]}={factors[category[p]]:g}: "
-                         f"{_link(edges, p)} would weigh more than the largest float64 "
+                         f"{link_words(edges, p)} would weigh more than the largest float64 "
                          f"(about 1.8e308); give a smaller factor, or weights in smaller "
                          f"units ({by} has {plural(over.size, 'such link')}).")
     return out
@@ -119,12 +120,7 @@ def _plot(path, scenario, before, after, factors, by) -> None:
                 subtitle=f"{scenario.source}: {by} {scale}; {entering.size:,} links enter, "
                          f"{int(np.count_nonzero(~np.isin(before.edges, after.edges))):,} "
                          f"leave",
-                footnote="A spanning tree has no redundancy; designs need review by licensed "
-                         "engineers under local codes.")
-
-
-def _link(edges, p: int) -> str:
-    return common.link_text(common.link_json(edges, p), edges)
+                footnote=CAUTION)
 
 
 def run(args) -> int:

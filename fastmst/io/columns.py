@@ -151,11 +151,8 @@ def check_distinct_columns(names, roles, source) -> None:
     tail and head are two different columns (one column for both makes every edge a self-loop).
     """
     for role, col in roles.items():
-        at = [i + 1 for i, n in enumerate(names) if n == col]
-        if len(at) > 1:
-            raise FileFormatError(f"{source}: the header names {len(at)} columns {col!r} "
-                                  f"(columns {', '.join(map(str, at))}), so the {role} column "
-                                  f"is ambiguous; rename them so that each name is unique.")
+        _check_named_once(names, col, source, f"the {role} column is ambiguous: rename "
+                                              f"them so that each name is unique")
     if roles.get("tail") is not None and roles.get("tail") == roles.get("head"):
         raise FileFormatError(f"{source}: tail and head are both column {roles['tail']!r}; "
                               f"an edge needs two endpoint columns. Name the head column "
@@ -198,14 +195,20 @@ def carried_columns(names, cols, keep, link_id, source, func="read_edges") -> li
                                   f"(--link-id) or choose --tail/--head/--weight.")
         chosen = [link_id] + [c for c in chosen if c != link_id]
     carried = [c for c in dict.fromkeys(chosen) if c not in cols and c != "position"]
-    for c in carried:
-        at = [i + 1 for i, n in enumerate(names) if n == c]
-        if len(at) > 1:   # carrying one would drop the other's values unseen
-            raise FileFormatError(f"{source}: the header names {len(at)} columns {c!r} "
-                                  f"(columns {', '.join(map(str, at))}); rename them so that "
-                                  f"each name is unique, or leave {c!r} out of keep_columns "
-                                  f"(CLI: --keep-columns).")
+    for c in carried:   # carrying one of two alike would drop the other's values unseen
+        _check_named_once(names, c, source, f"rename them so that each name is unique, or "
+                                            f"leave {c!r} out of keep_columns (CLI: "
+                                            f"--keep-columns)")
     return carried
+
+
+def _check_named_once(names, col, source, fix: str) -> None:
+    """A FileFormatError when the header ``names`` holds ``col`` more than once (``fix`` says
+    what to do)."""
+    at = [i + 1 for i, n in enumerate(names) if n == col]
+    if len(at) > 1:
+        raise FileFormatError(f"{source}: the header names {len(at)} columns {col!r} (columns "
+                              f"{', '.join(map(str, at))}); {fix}.")
 
 
 # a number as written in a file: no leading zeros (007 stays text), optional fraction/exponent

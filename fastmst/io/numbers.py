@@ -18,12 +18,14 @@ _INFINITY = r"^[-+]?(?i:inf|infinity)$"
 
 def needs_text(col) -> bool:
     """Whether the float column ``col`` holds magnitudes where parsing may have rounded an
-    integer or overflowed (>= 2**53, or infinite): only then is the text needed."""
+    integer or overflowed (>= 2**53, or infinite): only then is the text needed.  One pass, no
+    copy of the column (it runs on every read of a text file)."""
     import pyarrow as pa
     import pyarrow.compute as pc
     if not pa.types.is_floating(col.type) or len(col) == col.null_count:
         return False
-    return pc.max(pc.abs(col)).as_py() >= 2.0**53
+    lo, hi = pc.min_max(col).values()
+    return max(-lo.as_py(), hi.as_py()) >= 2.0**53
 
 
 def exact_numbers(text, col, name: str, source: str, where, what: str = "weight"):
@@ -31,7 +33,9 @@ def exact_numbers(text, col, name: str, source: str, where, what: str = "weight"
 
     Returns ``col`` as it is, or a uint64 column when every cell is an integer that fits;
     raises FileFormatError (``where(i)`` words row ``i``) for an integer a float cannot hold
-    exactly and for a finite number that overflowed to infinity.
+    exactly and for a finite number that overflowed to infinity.  Only the cells of magnitude
+    >= 2**53 are looked at, and those written as decimals or as ``inf`` are cleared without a
+    Python loop.
     """
     import pyarrow as pa
     import pyarrow.compute as pc
@@ -42,23 +46,39 @@ def exact_numbers(text, col, name: str, source: str, where, what: str = "weight"
         except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
             pass   # negative with some beyond int64, or beyond uint64: floats if exact
     huge = pc.fill_null(pc.greater_equal(pc.abs(col), 2.0**53), False)
-    rows = np.flatnonzero(huge.to_numpy(zero_copy_only=False))
-    values = text.take(pa.array(rows, pa.int64())).to_pylist()
-    floats = col.take(pa.array(rows, pa.int64())).to_pylist()
-    spelled_inf = pc.match_substring_regex(pa.array(values, pa.string()), _INFINITY) \
-        .to_pylist() if values else []
-    for i, v, f, inf in zip(rows.tolist(), values, floats, spelled_inf):
-        if np.isinf(f) and not inf:
+    rows = pa.array(np.flatnonzero(huge.to_numpy(zero_copy_only=False)), pa.int64())
+    values, floats = text.take(rows), col.take(rows)
+    is_inf = pc.is_inf(floats)
+    overflow = pc.and_(is_inf, pc.invert(pc.match_substring_regex(values, _INFINITY)))
+    if pc.any(overflow).as_py():
+        k = int(np.flatnonzero(overflow.to_numpy(zero_copy_only=False))[0])
+        raise FileFormatError(
+            f"{source}: {where(rows[k].as_py())}: {what} {values[k].as_py()} in column "
+            f"{name!r} is beyond the range of 64-bit floats (about 1.8e308) and would be read "
+            f"as infinity; write it as 'inf' if infinity is meant, or scale the values down.")
+    # integers written out in full: the float must be that very integer
+    whole = pc.and_(pc.invert(is_inf), pc.match_substring_regex(values, _INTEGER))
+    # within int64 compared as columns (the text without sign '+' and leading zeros against
+    # the float as an integer); the few beyond one by one in Python integers
+    inside = pc.less(pc.abs(floats), 2.0**63)
+    near = pc.and_(whole, inside)
+    if pc.any(near).as_py():
+        digits = pc.replace_substring_regex(pc.filter(values, near), r"^\+?(-?)0*([0-9])",
+                                            r"\1\2")
+        exact = pc.equal(digits, pc.cast(pc.cast(pc.filter(floats, near), pa.int64()),
+                                         pa.string()))
+        if not pc.all(exact).as_py():
+            whole = near   # report the first that differs, below
+        else:
+            whole = pc.and_(whole, pc.invert(inside))
+    for k in np.flatnonzero(whole.to_numpy(zero_copy_only=False)).tolist():
+        v, f = values[k].as_py(), floats[k].as_py()
+        if int(v) != int(f):
             raise FileFormatError(
-                f"{source}: {where(i)}: {what} {v} in column {name!r} is beyond the range of "
-                f"64-bit floats (about 1.8e308) and would be read as infinity; write it as "
-                f"'inf' if infinity is meant, or scale the values down.")
-        if not np.isinf(f) and pc.match_substring_regex(pa.scalar(v), _INTEGER).as_py() \
-                and int(v) != int(f):
-            raise FileFormatError(
-                f"{source}: {where(i)}: {what} {v} in column {name!r} is an integer that a "
-                f"64-bit float cannot hold exactly (it would be read as {int(f)}), and the "
-                f"column cannot be read as 64-bit integers (decimals, or integers below 0 and "
-                f"beyond 2**63 - 1, or beyond 2**64 - 1). Write every {what} as an integer "
-                f"from 0 to 2**64 - 1 or from -2**63 to 2**63 - 1, or scale the values down.")
+                f"{source}: {where(rows[k].as_py())}: {what} {v} in column {name!r} is an "
+                f"integer that a 64-bit float cannot hold exactly (it would be read as "
+                f"{int(f)}), and the column cannot be read as 64-bit integers (decimals, or "
+                f"integers below 0 and beyond 2**63 - 1, or beyond 2**64 - 1). Write every "
+                f"{what} as an integer from 0 to 2**64 - 1 or from -2**63 to 2**63 - 1, or scale "
+                f"the values down.")
     return col
