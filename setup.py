@@ -17,7 +17,9 @@ Build time:
   Python versions, the compiler and its flags).  A later build -- a second ``pip install .``
   in the same checkout, or ``build_ext --inplace`` after editing one kernel -- copies the
   modules whose fingerprint it finds instead of generating and compiling them again.
-  ``build_ext --force`` ignores the cache; deleting ``build/`` empties it.
+  ``build_ext --force`` ignores the cache; deleting ``build/`` empties it;
+* an in-place build removes a compiled module of ``_kernels`` whose ``.pyx`` is gone (renamed
+  to ``_X.pyx`` beside a Python ``X.py``, say): an extension module would shadow the ``.py``.
 
 ``FASTMST_BUILD_JOBS`` sets the parallel compile jobs (default: the CPU count).
 """
@@ -153,6 +155,20 @@ class CachedBuildExt(build_ext):
                 digest.update(_read(src))
         suffix = sysconfig.get_config_var("EXT_SUFFIX") or ".so"
         return os.path.join(CACHE_DIR, f"{ext.name}.{digest.hexdigest()[:24]}{suffix}")
+
+    def _remove_orphans(self):
+        """In-place builds: delete compiled kernels whose source is gone."""
+        suffix = sysconfig.get_config_var("EXT_SUFFIX") or ".so"
+        for path in glob.glob(os.path.join(KERNELS, "*" + suffix)):
+            stem = os.path.basename(path)[:-len(suffix)]
+            if not os.path.exists(os.path.join(KERNELS, stem + ".pyx")):
+                os.remove(path)
+                print(f"fastmst build: removed {path} (its .pyx is gone)", file=sys.stderr)
+
+    def run(self):
+        if self.inplace:    # setuptools clears it while building, then copies into the tree
+            self._remove_orphans()
+        super().run()
 
     def build_extensions(self):
         inputs = _build_inputs(self.compiler)
