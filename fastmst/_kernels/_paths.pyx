@@ -1,13 +1,17 @@
-"""Tree path queries on spanning forests.
+"""Compiled kernels of the tree path queries on spanning forests (``paths.py`` holds the public
+functions and ``PathMaxIndex``; it checks the inputs, allocates every array and assembles the
+results).
 
-Three near-linear kernels, each behind a thin ``def`` that allocates and checks shapes:
+Every ``def`` here is thin: it takes the arrays already allocated, checks that their lengths
+protect memory, releases the GIL and runs a private ``noexcept nogil`` kernel.  Node ids in
+[0, n_nodes) are the caller's to check (``fastmst.validation``), as before.
 
 ``kruskal_tree``
     The merge tree of a forest: its edges, taken in the tie-rule order, are joined one by one
     with a disjoint set; edge ``i`` becomes internal node ``n_nodes + i`` whose children are the
     two subtrees it joins.  The heaviest edge on the tree path between two nodes is their lowest
     common ancestor in this tree, and the tree is the single-linkage dendrogram.
-``PathMaxIndex``
+``leaf_tables`` / ``path_max``
     Range maxima over the merge tree's leaf order: the heaviest edge on the tree path of any
     node pair in a few memory lookups, after an O(V) build.
 ``root_forest`` / ``cover_paths``
@@ -16,18 +20,18 @@ Three near-linear kernels, each behind a thin ``def`` that allocates and checks 
     "Sensitivity analysis of minimum spanning trees and shortest path trees", 1982).  A disjoint
     set whose sets are the connected regions of marked edges jumps over marked edges, so each
     tree edge is marked once: O((V + E) alpha(V)).
+``union_parent``
+    Union-find parents after joining every given pair.
 
 The disjoint-set primitives come from ``dsu.pxd``.  Internal arrays are int64, except the
-lookup tables of ``PathMaxIndex``, which are int32 while node and edge counts fit.
+lookup tables of the path-maxima index, which are int32 while node and edge counts fit.
 """
-import numpy as np
 from libc.stdint cimport int32_t, int64_t, uint8_t
 
 from fastmst._kernels._typedefs cimport index_t
 from fastmst._kernels.csr cimport pair_offsets, shift_back
 from fastmst._kernels.dsu cimport dsu_find, dsu_link
 from cython.parallel cimport prange
-
 
 cdef int64_t _kruskal_tree(const index_t[::1] ftail, const index_t[::1] fhead, int64_t n,
                            int64_t[::1] dsu, uint8_t[::1] rank, int64_t[::1] top,
@@ -63,46 +67,24 @@ cdef int64_t _kruskal_tree(const index_t[::1] ftail, const index_t[::1] fhead, i
         top[r] = node
     return -1
 
-
-def kruskal_tree(const index_t[::1] ftail, const index_t[::1] fhead, Py_ssize_t n_nodes):
-    """Merge tree of a forest whose edges are given in tie-rule order.
-
-    Parameters
-    ----------
-    ftail, head : ndarray of shape (F,), dtype=int32 or int64
-        Endpoints of the forest edges, ids in [0, n_nodes), ordered by the tie rule.
-    n_nodes : int
-
-    Returns
-    -------
-    kparent : ndarray of shape (n_nodes + F,), dtype=int64
-        Parent of every merge-tree node (-1 for the root of each tree).
-    left, right : ndarray of shape (F,), dtype=int64
-        Children of internal node ``n_nodes + i`` (left < right).
-    size : ndarray of shape (F,), dtype=int64
-        Number of leaves under internal node ``n_nodes + i``.
-    cycle : int
-        Index (into the given order) of the first edge that closes a cycle, or -1.  When it is
-        not -1 the other outputs are incomplete.
-    """
-    if ftail.shape[0] != fhead.shape[0]:
-        raise ValueError("kruskal_tree: ftail and fhead must have one length.")
-    cdef int64_t n = n_nodes
-    cdef int64_t f = ftail.shape[0]
-    kparent = np.empty(n + f, dtype=np.int64)
-    left = np.empty(f, dtype=np.int64)
-    right = np.empty(f, dtype=np.int64)
-    size = np.empty(f, dtype=np.int64)
-    dsu = np.empty(max(n, 1), dtype=np.int64)
-    top = np.empty(max(n, 1), dtype=np.int64)
-    rank = np.zeros(max(n, 1), dtype=np.uint8)
-    cdef int64_t[::1] kp = kparent, l = left, r = right, s = size, d = dsu, t = top
-    cdef uint8_t[::1] rk = rank
+def kruskal_tree(const index_t[::1] ftail, const index_t[::1] fhead, int64_t[::1] dsu,
+                 uint8_t[::1] rank, int64_t[::1] top, int64_t[::1] kparent, int64_t[::1] left,
+                 int64_t[::1] right, int64_t[::1] size):
+    """Fill the merge tree (kparent of n_nodes + F entries; left, right, size of F) of the F
+    forest edges (ftail, fhead); dsu, rank (zeros) and top are work arrays of >= n_nodes
+    entries.  Return the first edge that closes a cycle, or -1."""
+    cdef Py_ssize_t f = ftail.shape[0]
+    cdef Py_ssize_t n = kparent.shape[0] - f
+    if fhead.shape[0] != f or left.shape[0] != f or right.shape[0] != f or \
+            size.shape[0] != f or n < 0:
+        raise ValueError("kruskal_tree: ftail, fhead, left, right and size must have one "
+                         "length F, kparent n_nodes + F.")
+    if dsu.shape[0] < n or rank.shape[0] < n or top.shape[0] < n:
+        raise ValueError("kruskal_tree: dsu, rank and top need n_nodes entries.")
     cdef int64_t cycle
     with nogil:
-        cycle = _kruskal_tree(ftail, fhead, n, d, rk, t, kp, l, r, s)
-    return kparent, left, right, size, int(cycle)
-
+        cycle = _kruskal_tree(ftail, fhead, n, dsu, rank, top, kparent, left, right, size)
+    return cycle
 
 cdef void _root_forest(const index_t[::1] ftail, const index_t[::1] fhead, int64_t n,
                        int64_t[::1] start, int64_t[::1] adj, int64_t[::1] nbr,
@@ -146,35 +128,23 @@ cdef void _root_forest(const index_t[::1] ftail, const index_t[::1] fhead, int64
                     queue[tail_q] = y
                     tail_q += 1
 
-
-def root_forest(const index_t[::1] ftail, const index_t[::1] fhead, Py_ssize_t n_nodes):
-    """Root every tree of an (acyclic) forest at its smallest node, by breadth-first search.
-
-    Returns
-    -------
-    pnode : ndarray of shape (n_nodes,), dtype=int64
-        Parent node (-1 at roots).
-    pedge : ndarray of shape (n_nodes,), dtype=int64
-        Index of the forest edge to the parent (-1 at roots).
-    depth : ndarray of shape (n_nodes,), dtype=int64
-    """
-    if ftail.shape[0] != fhead.shape[0]:
-        raise ValueError("root_forest: ftail and fhead must have one length.")
-    cdef int64_t n = n_nodes
-    cdef int64_t f = ftail.shape[0]
-    start = np.empty(n + 1, dtype=np.int64)
-    adj = np.empty(max(2 * f, 1), dtype=np.int64)
-    nbr = np.empty(max(2 * f, 1), dtype=np.int64)
-    pnode = np.empty(max(n, 1), dtype=np.int64)
-    pedge = np.empty(max(n, 1), dtype=np.int64)
-    depth = np.empty(max(n, 1), dtype=np.int64)
-    queue = np.empty(max(n, 1), dtype=np.int64)
-    cdef int64_t[::1] st = start, ad = adj, nb = nbr, pn = pnode, pe = pedge, dp = depth
-    cdef int64_t[::1] qu = queue
+def root_forest(const index_t[::1] ftail, const index_t[::1] fhead, int64_t[::1] start,
+                int64_t[::1] adj, int64_t[::1] nbr, int64_t[::1] pnode, int64_t[::1] pedge,
+                int64_t[::1] depth, int64_t[::1] queue):
+    """Root the forest (ftail, fhead) over n_nodes = len(start) - 1 nodes (OUT: pnode, pedge,
+    depth, >= n_nodes entries each); adj and nbr are work arrays of >= 2 F entries, queue of
+    >= n_nodes."""
+    cdef Py_ssize_t f = ftail.shape[0]
+    cdef Py_ssize_t n = start.shape[0] - 1
+    if fhead.shape[0] != f or adj.shape[0] < 2 * f or nbr.shape[0] < 2 * f:
+        raise ValueError("root_forest: ftail and fhead must have one length F, adj and nbr "
+                         ">= 2 F.")
+    if n < 0 or pnode.shape[0] < n or pedge.shape[0] < n or depth.shape[0] < n or \
+            queue.shape[0] < n:
+        raise ValueError("root_forest: pnode, pedge, depth and queue need n_nodes = "
+                         "len(start) - 1 entries.")
     with nogil:
-        _root_forest(ftail, fhead, n, st, ad, nb, pn, pe, dp, qu)
-    return pnode[:n], pedge[:n], depth[:n]
-
+        _root_forest(ftail, fhead, n, start, adj, nbr, pnode, pedge, depth, queue)
 
 cdef int64_t _cover_paths(const int64_t[::1] pnode, const int64_t[::1] pedge,
                           const int64_t[::1] depth, const index_t[::1] qa,
@@ -207,42 +177,23 @@ cdef int64_t _cover_paths(const int64_t[::1] pnode, const int64_t[::1] pedge,
             x = t
     return -1
 
-
 def cover_paths(const int64_t[::1] pnode, const int64_t[::1] pedge, const int64_t[::1] depth,
-                Py_ssize_t n_forest_edges, const index_t[::1] qa, const index_t[::1] qb):
-    """For every forest edge, the first pair (in the given order) whose tree path contains it.
-
-    Parameters
-    ----------
-    pnode, pedge, depth : outputs of ``root_forest``
-    n_forest_edges : int
-    qa, qb : ndarray of shape (Q,), dtype=int32 or int64
-        Node pairs in the same tree, in the order of priority (the tie-rule order of the
-        non-tree edges for sensitivity).
-
-    Returns
-    -------
-    cover : ndarray of shape (n_forest_edges,), dtype=int64
-        Index of the first covering pair, -1 when no pair covers the edge.
-    bad : int
-        Index of a pair whose nodes lie in two trees (then ``cover`` is incomplete), or -1.
-    """
+                const index_t[::1] qa, const index_t[::1] qb, int64_t[::1] dsu,
+                uint8_t[::1] rank, int64_t[::1] top, int64_t[::1] cover):
+    """Fill ``cover`` (one entry per forest edge) with the first pair covering each edge; dsu,
+    rank (zeros) and top are work arrays of >= n_nodes entries.  Return the index of a pair in
+    two trees, or -1."""
+    cdef Py_ssize_t n = pnode.shape[0]
     if qa.shape[0] != qb.shape[0]:
         raise ValueError("cover_paths: qa and qb must have one length.")
-    if pedge.shape[0] != pnode.shape[0] or depth.shape[0] != pnode.shape[0]:
+    if pedge.shape[0] != n or depth.shape[0] != n:
         raise ValueError("cover_paths: pnode, pedge and depth must have one length.")
-    cdef int64_t n = pnode.shape[0]
-    cover = np.empty(n_forest_edges, dtype=np.int64)
-    dsu = np.empty(max(n, 1), dtype=np.int64)
-    top = np.empty(max(n, 1), dtype=np.int64)
-    rank = np.zeros(max(n, 1), dtype=np.uint8)
-    cdef int64_t[::1] c = cover, d = dsu, t = top
-    cdef uint8_t[::1] rk = rank
+    if dsu.shape[0] < n or rank.shape[0] < n or top.shape[0] < n:
+        raise ValueError("cover_paths: dsu, rank and top need n_nodes entries.")
     cdef int64_t bad
     with nogil:
-        bad = _cover_paths(pnode, pedge, depth, qa, qb, d, rk, t, c)
-    return cover, int(bad)
-
+        bad = _cover_paths(pnode, pedge, depth, qa, qb, dsu, rank, top, cover)
+    return bad
 
 cdef void _union_pass(const index_t[::1] ftail, const index_t[::1] fhead, int64_t[::1] dsu,
                       uint8_t[::1] rank) noexcept nogil:
@@ -255,25 +206,17 @@ cdef void _union_pass(const index_t[::1] ftail, const index_t[::1] fhead, int64_
         if ru != rv:
             dsu_link(&dsu[0], &rank[0], ru, rv)
 
-
-def union_parent(const index_t[::1] ftail, const index_t[::1] fhead, Py_ssize_t n_nodes):
-    """Union-find parents after joining every given pair (feed to ``labels_from_parent``).
-
-    Returns
-    -------
-    parent : ndarray of shape (n_nodes,), dtype=int64
-    """
+def union_parent(const index_t[::1] ftail, const index_t[::1] fhead, int64_t[::1] parent,
+                 uint8_t[::1] rank):
+    """Fill ``parent`` (one entry per node) with union-find parents after joining every pair;
+    ``rank`` is a work array of zeros, >= len(parent) entries."""
     if ftail.shape[0] != fhead.shape[0]:
         raise ValueError("union_parent: ftail and fhead must have one length.")
-    parent = np.empty(n_nodes, dtype=np.int64)
-    rank = np.zeros(max(n_nodes, 1), dtype=np.uint8)
-    cdef int64_t[::1] d = parent
-    cdef uint8_t[::1] rk = rank
-    if n_nodes > 0:
+    if rank.shape[0] < parent.shape[0]:
+        raise ValueError("union_parent: rank needs one entry per node.")
+    if parent.shape[0] > 0:
         with nogil:
-            _union_pass(ftail, fhead, d, rk)
-    return parent
-
+            _union_pass(ftail, fhead, parent, rank)
 
 # --- Path maxima by range maxima over the merge tree's leaf order ---------------------------
 #
@@ -287,7 +230,6 @@ def union_parent(const index_t[::1] ftail, const index_t[::1] fhead, Py_ssize_t 
 
 cdef enum:
     _BLOCK = 32
-
 
 cdef void _leaf_order(int64_t n, const int64_t[::1] kparent, const int64_t[::1] left,
                       const int64_t[::1] right, const int64_t[::1] size, int64_t[::1] offset,
@@ -310,7 +252,6 @@ cdef void _leaf_order(int64_t n, const int64_t[::1] kparent, const int64_t[::1] 
         offset[b] = offset[x] + sa
         gap[offset[x] + sa - 1] = i
 
-
 cdef void _block_tables(const int64_t[::1] gap, int64_t[::1] pre, int64_t[::1] suf,
                         int64_t[::1] table, int64_t nb, int64_t levels) noexcept nogil:
     cdef int64_t g = gap.shape[0]
@@ -332,20 +273,44 @@ cdef void _block_tables(const int64_t[::1] gap, int64_t[::1] pre, int64_t[::1] s
             b = table[(k - 1) * nb + j + half]
             table[k * nb + j] = a if a > b else b
 
-
 cdef inline int64_t _floor_log2(int64_t x) noexcept nogil:
     cdef int64_t k = 0
     while (x >> (k + 1)) > 0:
         k += 1
     return k
 
+BLOCK = _BLOCK
+
+
+def leaf_tables(const int64_t[::1] kparent, const int64_t[::1] left, const int64_t[::1] right,
+                const int64_t[::1] size, int64_t[::1] offset, int64_t[::1] gap,
+                int64_t[::1] pre, int64_t[::1] suf, int64_t[::1] table):
+    """Fill the path-maxima tables of a merge tree (``kruskal_tree``'s outputs, n_nodes =
+    len(kparent) - F): the leaf ``offset`` (>= n_nodes + F entries), and over the G >= n_nodes - 1
+    ``gap`` entries (preset to F) the in-block prefix and suffix maxima ``pre``, ``suf`` (G each)
+    and the sparse ``table`` over block maxima (>= levels x nb entries, nb = ceil(G / BLOCK),
+    levels = floor(log2(nb)) + 1)."""
+    cdef Py_ssize_t f = left.shape[0]
+    cdef Py_ssize_t n = kparent.shape[0] - f
+    cdef Py_ssize_t g = gap.shape[0]
+    cdef int64_t nb = (g + _BLOCK - 1) // _BLOCK
+    cdef int64_t levels = _floor_log2(nb) + 1
+    if right.shape[0] != f or size.shape[0] != f or n < 0:
+        raise ValueError("PathMaxIndex: kparent, left, right and size do not describe one "
+                         "merge tree.")
+    if offset.shape[0] < n + f or g < n - 1 or pre.shape[0] != g or suf.shape[0] != g or \
+            table.shape[0] < levels * nb:
+        raise ValueError("leaf_tables: offset, gap, pre, suf or table is too short.")
+    with nogil:
+        if n > 0:
+            _leaf_order(n, kparent, left, right, size, offset, gap)
+        _block_tables(gap, pre, suf, table, nb, levels)
 
 ctypedef fused rank_t:
     # Lookup tables of the path-maxima index: int32 while node and edge counts fit (half the
     # memory traffic of the random lookups that dominate the queries), int64 beyond.
     int32_t
     int64_t
-
 
 cdef void _path_max(const rank_t[::1] pos, const rank_t[::1] gap, const rank_t[::1] pre,
                     const rank_t[::1] suf, const rank_t[::1] table, int64_t nb, int64_t f,
@@ -384,82 +349,17 @@ cdef void _path_max(const rank_t[::1] pos, const rank_t[::1] gap, const rank_t[:
                 best = -1
         out[q] = best
 
-
-cdef class PathMaxIndex:
-    """Heaviest forest edge on the tree path of any node pair, in O(1) memory lookups plus at
-    most a 32-gap scan per pair, after an O(V) build from the merge tree.
-
-    Parameters
-    ----------
-    kparent, left, right, size : outputs of ``kruskal_tree`` (without a cycle)
-    n_nodes : int
-    """
-    cdef readonly object pos
-    cdef readonly object gap
-    cdef object _pre, _suf, _table, _args
-    cdef int64_t _nb, _f, _n
-
-    def __init__(self, const int64_t[::1] kparent, const int64_t[::1] left,
-                 const int64_t[::1] right, const int64_t[::1] size, Py_ssize_t n_nodes):
-        if left.shape[0] != right.shape[0] or size.shape[0] != left.shape[0] or \
-                kparent.shape[0] != n_nodes + left.shape[0]:
-            raise ValueError("PathMaxIndex: kparent, left, right and size do not describe one "
-                             "merge tree.")
-        cdef int64_t n = n_nodes
-        cdef int64_t f = left.shape[0]
-        cdef int64_t g = max(n - 1, 1)
-        offset = np.empty(max(n + f, 1), dtype=np.int64)
-        gap = np.full(g, f, dtype=np.int64)
-        cdef int64_t nb = (g + _BLOCK - 1) // _BLOCK
-        cdef int64_t levels = _floor_log2(nb) + 1
-        pre = np.empty(g, dtype=np.int64)
-        suf = np.empty(g, dtype=np.int64)
-        table = np.empty(levels * nb, dtype=np.int64)
-        cdef int64_t[::1] o = offset, gp = gap, pr = pre, sf = suf, tb = table
-        with nogil:
-            if n > 0:
-                _leaf_order(n, kparent, left, right, size, o, gp)
-            _block_tables(gp, pr, sf, tb, nb, levels)
-        if n + f < 2**31 - 1:
-            offset, gap, pre, suf, table = [a.astype(np.int32)
-                                            for a in (offset, gap, pre, suf, table)]
-        self.pos = offset[:n]
-        self.gap = gap
-        self._pre, self._suf, self._table = pre, suf, table
-        self._nb, self._f, self._n = nb, f, n
-        self._args = (np.asarray(kparent), np.asarray(left), np.asarray(right),
-                      np.asarray(size), n_nodes)
-
-    def __reduce__(self):
-        """Pickle as the merge tree it was built from (rebuilt in O(V) on load)."""
-        return (PathMaxIndex, self._args)
-
-    def query(self, const index_t[::1] qa, const index_t[::1] qb, int threads=1):
-        """Index (into the tie-rule order of the forest edges) of the heaviest edge on each
-        pair's path; -1 for pairs in different trees, -2 for a node with itself.
-
-        ``qa`` and ``qb`` must be validated ids in [0, n_nodes).  ``threads`` >= 1 worker
-        threads share the pairs (the answer does not depend on it).
-        """
-        if threads < 1:
-            raise ValueError(f"PathMaxIndex.query: threads must be >= 1, received {threads}.")
-        # Below ~64k pairs thread start-up costs more than it saves.
-        threads = min(threads, max(1, qa.shape[0] // 65536))
-        if qa.shape[0] != qb.shape[0]:
-            raise ValueError("PathMaxIndex.query: qa and qb must have one length.")
-        if qa.shape[0] and self._n == 0:
-            raise ValueError("PathMaxIndex.query: the forest has no nodes.")
-        out = np.empty(qa.shape[0], dtype=np.int64)
-        cdef int64_t[::1] o = out
-        # the index tables are all int32 or all int64 (see __init__)
-        cdef const int32_t[::1] p4, g4, pr4, sf4, tb4
-        cdef const int64_t[::1] p8, g8, pr8, sf8, tb8
-        if self.pos.dtype == np.int32:
-            p4, g4, pr4, sf4, tb4 = self.pos, self.gap, self._pre, self._suf, self._table
-            with nogil:
-                _path_max(p4, g4, pr4, sf4, tb4, self._nb, self._f, qa, qb, o, threads)
-        else:
-            p8, g8, pr8, sf8, tb8 = self.pos, self.gap, self._pre, self._suf, self._table
-            with nogil:
-                _path_max(p8, g8, pr8, sf8, tb8, self._nb, self._f, qa, qb, o, threads)
-        return out
+def path_max(const rank_t[::1] pos, const rank_t[::1] gap, const rank_t[::1] pre,
+             const rank_t[::1] suf, const rank_t[::1] table, int64_t n_forest_edges,
+             const index_t[::1] qa, const index_t[::1] qb, int64_t[::1] out, int threads):
+    """Fill ``out`` with the heaviest edge on each pair's path (tables of ``leaf_tables``, all
+    int32 or all int64); ``qa`` and ``qb`` must be ids in [0, len(pos))."""
+    cdef Py_ssize_t g = gap.shape[0]
+    cdef int64_t nb = (g + _BLOCK - 1) // _BLOCK
+    if qb.shape[0] != qa.shape[0] or out.shape[0] != qa.shape[0] or threads < 1:
+        raise ValueError("path_max: qa, qb and out must have one length; threads >= 1.")
+    if pre.shape[0] != g or suf.shape[0] != g or table.shape[0] < (_floor_log2(nb) + 1) * nb \
+            or (qa.shape[0] and pos.shape[0] == 0):
+        raise ValueError("path_max: the tables do not fit together.")
+    with nogil:
+        _path_max(pos, gap, pre, suf, table, nb, n_forest_edges, qa, qb, out, threads)
