@@ -1,17 +1,18 @@
 """Compiled kernels of the tree path queries on spanning forests (``paths.py`` holds the public
-functions and ``PathMaxIndex``; it checks the inputs, allocates every array and assembles the
+functions and ``PathMaxIndex``: it checks the inputs, allocates every array and assembles the
 results).
 
 Every ``def`` here is thin: it takes the arrays already allocated, checks that their lengths
-protect memory, releases the GIL and runs a private ``noexcept nogil`` kernel.  Node ids in
-[0, n_nodes) are the caller's to check (``fastmst.validation``), as before.
+protect memory, releases the GIL and runs a private ``noexcept nogil`` kernel.  The defs take
+positional arguments only (no keyword parsing to compile).  Node ids in [0, n_nodes) are the
+caller's to check (``fastmst.validation``).
 
 ``kruskal_tree``
     The merge tree of a forest: its edges, taken in the tie-rule order, are joined one by one
     with a disjoint set; edge ``i`` becomes internal node ``n_nodes + i`` whose children are the
     two subtrees it joins.  The heaviest edge on the tree path between two nodes is their lowest
     common ancestor in this tree, and the tree is the single-linkage dendrogram.
-``leaf_tables`` / ``path_max``
+``leaf_tables`` / ``path_max32``, ``path_max64``
     Range maxima over the merge tree's leaf order: the heaviest edge on the tree path of any
     node pair in a few memory lookups, after an O(V) build.
 ``root_forest`` / ``cover_paths``
@@ -32,6 +33,7 @@ from fastmst._kernels._typedefs cimport index_t
 from fastmst._kernels.csr cimport pair_offsets, shift_back
 from fastmst._kernels.dsu cimport dsu_find, dsu_link
 from cython.parallel cimport prange
+
 
 cdef int64_t _kruskal_tree(const index_t[::1] ftail, const index_t[::1] fhead, int64_t n,
                            int64_t[::1] dsu, uint8_t[::1] rank, int64_t[::1] top,
@@ -67,9 +69,10 @@ cdef int64_t _kruskal_tree(const index_t[::1] ftail, const index_t[::1] fhead, i
         top[r] = node
     return -1
 
+
 def kruskal_tree(const index_t[::1] ftail, const index_t[::1] fhead, int64_t[::1] dsu,
                  uint8_t[::1] rank, int64_t[::1] top, int64_t[::1] kparent, int64_t[::1] left,
-                 int64_t[::1] right, int64_t[::1] size):
+                 int64_t[::1] right, int64_t[::1] size, /):
     """Fill the merge tree (kparent of n_nodes + F entries; left, right, size of F) of the F
     forest edges (ftail, fhead); dsu, rank (zeros) and top are work arrays of >= n_nodes
     entries.  Return the first edge that closes a cycle, or -1."""
@@ -85,6 +88,7 @@ def kruskal_tree(const index_t[::1] ftail, const index_t[::1] fhead, int64_t[::1
     with nogil:
         cycle = _kruskal_tree(ftail, fhead, n, dsu, rank, top, kparent, left, right, size)
     return cycle
+
 
 cdef void _root_forest(const index_t[::1] ftail, const index_t[::1] fhead, int64_t n,
                        int64_t[::1] start, int64_t[::1] adj, int64_t[::1] nbr,
@@ -128,9 +132,10 @@ cdef void _root_forest(const index_t[::1] ftail, const index_t[::1] fhead, int64
                     queue[tail_q] = y
                     tail_q += 1
 
+
 def root_forest(const index_t[::1] ftail, const index_t[::1] fhead, int64_t[::1] start,
                 int64_t[::1] adj, int64_t[::1] nbr, int64_t[::1] pnode, int64_t[::1] pedge,
-                int64_t[::1] depth, int64_t[::1] queue):
+                int64_t[::1] depth, int64_t[::1] queue, /):
     """Root the forest (ftail, fhead) over n_nodes = len(start) - 1 nodes (OUT: pnode, pedge,
     depth, >= n_nodes entries each); adj and nbr are work arrays of >= 2 F entries, queue of
     >= n_nodes."""
@@ -145,6 +150,7 @@ def root_forest(const index_t[::1] ftail, const index_t[::1] fhead, int64_t[::1]
                          "len(start) - 1 entries.")
     with nogil:
         _root_forest(ftail, fhead, n, start, adj, nbr, pnode, pedge, depth, queue)
+
 
 cdef int64_t _cover_paths(const int64_t[::1] pnode, const int64_t[::1] pedge,
                           const int64_t[::1] depth, const index_t[::1] qa,
@@ -177,9 +183,10 @@ cdef int64_t _cover_paths(const int64_t[::1] pnode, const int64_t[::1] pedge,
             x = t
     return -1
 
+
 def cover_paths(const int64_t[::1] pnode, const int64_t[::1] pedge, const int64_t[::1] depth,
                 const index_t[::1] qa, const index_t[::1] qb, int64_t[::1] dsu,
-                uint8_t[::1] rank, int64_t[::1] top, int64_t[::1] cover):
+                uint8_t[::1] rank, int64_t[::1] top, int64_t[::1] cover, /):
     """Fill ``cover`` (one entry per forest edge) with the first pair covering each edge; dsu,
     rank (zeros) and top are work arrays of >= n_nodes entries.  Return the index of a pair in
     two trees, or -1."""
@@ -195,6 +202,7 @@ def cover_paths(const int64_t[::1] pnode, const int64_t[::1] pedge, const int64_
         bad = _cover_paths(pnode, pedge, depth, qa, qb, dsu, rank, top, cover)
     return bad
 
+
 cdef void _union_pass(const index_t[::1] ftail, const index_t[::1] fhead, int64_t[::1] dsu,
                       uint8_t[::1] rank) noexcept nogil:
     cdef int64_t i, ru, rv
@@ -206,8 +214,9 @@ cdef void _union_pass(const index_t[::1] ftail, const index_t[::1] fhead, int64_
         if ru != rv:
             dsu_link(&dsu[0], &rank[0], ru, rv)
 
+
 def union_parent(const index_t[::1] ftail, const index_t[::1] fhead, int64_t[::1] parent,
-                 uint8_t[::1] rank):
+                 uint8_t[::1] rank, /):
     """Fill ``parent`` (one entry per node) with union-find parents after joining every pair;
     ``rank`` is a work array of zeros, >= len(parent) entries."""
     if ftail.shape[0] != fhead.shape[0]:
@@ -218,18 +227,22 @@ def union_parent(const index_t[::1] ftail, const index_t[::1] fhead, int64_t[::1
         with nogil:
             _union_pass(ftail, fhead, parent, rank)
 
+
 # --- Path maxima by range maxima over the merge tree's leaf order ---------------------------
 #
 # Laying the merge tree's leaves out left to right makes every subtree a contiguous run, and the
 # merge that joins two neighbouring leaves is their lowest common ancestor.  So the heaviest edge
 # between nodes u and v is the largest merge index among the gaps between pos[u] and pos[v]
 # (Gabow, Bentley and Tarjan, "Scaling and related techniques for geometry problems", 1984, for
-# reducing LCA to range maxima; citation recalled from memory).  Gaps between two trees hold the sentinel F.  Range maxima use
-# blocks of _BLOCK gaps with in-block prefix/suffix maxima and a sparse table over block maxima:
-# O(V log V / _BLOCK) memory, and at most a _BLOCK-long scan per query.
+# reducing LCA to range maxima; citation recalled from memory).  Gaps between two trees hold the
+# sentinel F.  Range maxima use blocks of _BLOCK gaps with in-block prefix/suffix maxima and a
+# sparse table over block maxima: O(V log V / _BLOCK) memory, and at most a _BLOCK-long scan per
+# query.  ``paths.PathMaxIndex`` allocates the tables (``BLOCK`` is _BLOCK for it).
+
 
 cdef enum:
     _BLOCK = 32
+
 
 cdef void _leaf_order(int64_t n, const int64_t[::1] kparent, const int64_t[::1] left,
                       const int64_t[::1] right, const int64_t[::1] size, int64_t[::1] offset,
@@ -252,6 +265,7 @@ cdef void _leaf_order(int64_t n, const int64_t[::1] kparent, const int64_t[::1] 
         offset[b] = offset[x] + sa
         gap[offset[x] + sa - 1] = i
 
+
 cdef void _block_tables(const int64_t[::1] gap, int64_t[::1] pre, int64_t[::1] suf,
                         int64_t[::1] table, int64_t nb, int64_t levels) noexcept nogil:
     cdef int64_t g = gap.shape[0]
@@ -273,18 +287,20 @@ cdef void _block_tables(const int64_t[::1] gap, int64_t[::1] pre, int64_t[::1] s
             b = table[(k - 1) * nb + j + half]
             table[k * nb + j] = a if a > b else b
 
+
 cdef inline int64_t _floor_log2(int64_t x) noexcept nogil:
     cdef int64_t k = 0
     while (x >> (k + 1)) > 0:
         k += 1
     return k
 
+
 BLOCK = _BLOCK
 
 
 def leaf_tables(const int64_t[::1] kparent, const int64_t[::1] left, const int64_t[::1] right,
                 const int64_t[::1] size, int64_t[::1] offset, int64_t[::1] gap,
-                int64_t[::1] pre, int64_t[::1] suf, int64_t[::1] table):
+                int64_t[::1] pre, int64_t[::1] suf, int64_t[::1] table, /):
     """Fill the path-maxima tables of a merge tree (``kruskal_tree``'s outputs, n_nodes =
     len(kparent) - F): the leaf ``offset`` (>= n_nodes + F entries), and over the G >= n_nodes - 1
     ``gap`` entries (preset to F) the in-block prefix and suffix maxima ``pre``, ``suf`` (G each)
@@ -306,11 +322,13 @@ def leaf_tables(const int64_t[::1] kparent, const int64_t[::1] left, const int64
             _leaf_order(n, kparent, left, right, size, offset, gap)
         _block_tables(gap, pre, suf, table, nb, levels)
 
+
 ctypedef fused rank_t:
     # Lookup tables of the path-maxima index: int32 while node and edge counts fit (half the
     # memory traffic of the random lookups that dominate the queries), int64 beyond.
     int32_t
     int64_t
+
 
 cdef void _path_max(const rank_t[::1] pos, const rank_t[::1] gap, const rank_t[::1] pre,
                     const rank_t[::1] suf, const rank_t[::1] table, int64_t nb, int64_t f,
@@ -349,17 +367,37 @@ cdef void _path_max(const rank_t[::1] pos, const rank_t[::1] gap, const rank_t[:
                 best = -1
         out[q] = best
 
-def path_max(const rank_t[::1] pos, const rank_t[::1] gap, const rank_t[::1] pre,
-             const rank_t[::1] suf, const rank_t[::1] table, int64_t n_forest_edges,
-             const index_t[::1] qa, const index_t[::1] qb, int64_t[::1] out, int threads):
-    """Fill ``out`` with the heaviest edge on each pair's path (tables of ``leaf_tables``, all
-    int32 or all int64); ``qa`` and ``qb`` must be ids in [0, len(pos))."""
-    cdef Py_ssize_t g = gap.shape[0]
+
+cdef int _check_tables(Py_ssize_t n, Py_ssize_t g, Py_ssize_t n_pre, Py_ssize_t n_suf,
+                       Py_ssize_t n_table, Py_ssize_t n_qa, Py_ssize_t n_qb, Py_ssize_t n_out,
+                       int threads) except -1:
+    """The length preconditions of ``path_max32`` / ``path_max64``."""
     cdef int64_t nb = (g + _BLOCK - 1) // _BLOCK
-    if qb.shape[0] != qa.shape[0] or out.shape[0] != qa.shape[0] or threads < 1:
+    if n_qb != n_qa or n_out != n_qa or threads < 1:
         raise ValueError("path_max: qa, qb and out must have one length; threads >= 1.")
-    if pre.shape[0] != g or suf.shape[0] != g or table.shape[0] < (_floor_log2(nb) + 1) * nb \
-            or (qa.shape[0] and pos.shape[0] == 0):
+    if n_pre != g or n_suf != g or n_table < (_floor_log2(nb) + 1) * nb or (n_qa and n == 0):
         raise ValueError("path_max: the tables do not fit together.")
+    return 0
+
+
+def path_max32(const int32_t[::1] pos, const int32_t[::1] gap, const int32_t[::1] pre,
+               const int32_t[::1] suf, const int32_t[::1] table, int64_t n_forest_edges,
+               const index_t[::1] qa, const index_t[::1] qb, int64_t[::1] out, int threads, /):
+    """Fill ``out`` with the heaviest edge on each pair's path (int32 tables of
+    ``leaf_tables``); ``qa`` and ``qb`` must be ids in [0, len(pos))."""
+    _check_tables(pos.shape[0], gap.shape[0], pre.shape[0], suf.shape[0], table.shape[0],
+                  qa.shape[0], qb.shape[0], out.shape[0], threads)
     with nogil:
-        _path_max(pos, gap, pre, suf, table, nb, n_forest_edges, qa, qb, out, threads)
+        _path_max(pos, gap, pre, suf, table, (gap.shape[0] + _BLOCK - 1) // _BLOCK,
+                  n_forest_edges, qa, qb, out, threads)
+
+
+def path_max64(const int64_t[::1] pos, const int64_t[::1] gap, const int64_t[::1] pre,
+               const int64_t[::1] suf, const int64_t[::1] table, int64_t n_forest_edges,
+               const index_t[::1] qa, const index_t[::1] qb, int64_t[::1] out, int threads, /):
+    """``path_max32`` over int64 tables."""
+    _check_tables(pos.shape[0], gap.shape[0], pre.shape[0], suf.shape[0], table.shape[0],
+                  qa.shape[0], qb.shape[0], out.shape[0], threads)
+    with nogil:
+        _path_max(pos, gap, pre, suf, table, (gap.shape[0] + _BLOCK - 1) // _BLOCK,
+                  n_forest_edges, qa, qb, out, threads)

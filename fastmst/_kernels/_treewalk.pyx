@@ -3,8 +3,9 @@ network-design tools (``treewalk.py`` holds the public functions: it checks the 
 every value range, allocates the arrays and assembles the results).
 
 Every ``def`` here is thin: it takes the arrays already allocated, checks that their lengths
-protect memory, releases the GIL and runs a private ``noexcept nogil`` kernel.  Value ranges
-(node ids, parents, depths) are the caller's to check, as ``treewalk.py`` does.
+protect memory, releases the GIL and runs a private ``noexcept nogil`` kernel.  The defs take
+positional arguments only (no keyword parsing to compile).  Value ranges (node ids, parents,
+depths) are the caller's to check, as ``treewalk.py`` does.
 
 ``sides_beyond``
     For every tree edge (parent, child): the number of nodes on the side away from a chosen
@@ -27,6 +28,7 @@ from libc.math cimport INFINITY
 from libc.stdint cimport int64_t
 
 from fastmst._kernels.csr cimport pair_offsets, shift_back
+
 
 cdef void _sides_beyond(const int64_t[::1] pnode, const int64_t[::1] depth, int64_t root,
                         int64_t[::1] start, int64_t[::1] order, int64_t[::1] size,
@@ -63,9 +65,10 @@ cdef void _sides_beyond(const int64_t[::1] pnode, const int64_t[::1] depth, int6
             beyond[v] = whole - size[v]
             v = pnode[v]
 
+
 def sides_beyond(const int64_t[::1] pnode, const int64_t[::1] depth, int64_t root,
                  int64_t[::1] start, int64_t[::1] order, int64_t[::1] size, int64_t[::1] top,
-                 int64_t[::1] beyond):
+                 int64_t[::1] beyond, /):
     """Fill ``beyond``, ``top`` and ``size`` (>= n entries each, n = len(pnode)); depths must
     lie in [0, len(start) - 2], ``order`` is a work array of >= n entries."""
     cdef Py_ssize_t n = pnode.shape[0]
@@ -76,6 +79,7 @@ def sides_beyond(const int64_t[::1] pnode, const int64_t[::1] depth, int64_t roo
         raise ValueError("sides_beyond: start, order, size, top or beyond is too short.")
     with nogil:
         _sides_beyond(pnode, depth, root, start, order, size, top, beyond)
+
 
 cdef void _light_shallow_walk(const int64_t[::1] indptr, const int64_t[::1] adj,
                               const double[::1] adjw, const int64_t[::1] adjpos, int64_t root,
@@ -134,12 +138,13 @@ cdef void _light_shallow_walk(const int64_t[::1] indptr, const int64_t[::1] adj,
                     parent[v] = u
                     ppos[v] = adjpos[k]
 
+
 def light_shallow_walk(const int64_t[::1] indptr, const int64_t[::1] adj,
                        const double[::1] adjw, const int64_t[::1] adjpos, int64_t root,
                        const double[::1] dist, const int64_t[::1] spt_parent,
                        const int64_t[::1] spt_pos, double alpha, double[::1] d,
                        int64_t[::1] parent, int64_t[::1] ppos, int64_t[::1] tparent,
-                       int64_t[::1] stack, int64_t[::1] cursor):
+                       int64_t[::1] stack, int64_t[::1] cursor, /):
     """Fill ``d``, ``parent`` and ``ppos`` (n = len(d) entries, n = len(dist)); ``tparent``,
     ``stack`` and ``cursor`` are work arrays of >= n entries."""
     cdef Py_ssize_t n = dist.shape[0]
@@ -158,6 +163,7 @@ def light_shallow_walk(const int64_t[::1] indptr, const int64_t[::1] adj,
     with nogil:
         _light_shallow_walk(indptr, adj, adjw, adjpos, root, dist, spt_parent, spt_pos, alpha,
                             d, parent, ppos, tparent, stack, cursor)
+
 
 cdef void _tree_distances(const int64_t[::1] parent, const double[::1] pw, int64_t root,
                           int64_t[::1] start, int64_t[::1] child, int64_t[::1] queue,
@@ -190,9 +196,10 @@ cdef void _tree_distances(const int64_t[::1] parent, const double[::1] pw, int64
             queue[tail_q] = i
             tail_q += 1
 
+
 def tree_distances(const int64_t[::1] parent, const double[::1] pw, int64_t root,
                    int64_t[::1] start, int64_t[::1] child, int64_t[::1] queue,
-                   double[::1] dist):
+                   double[::1] dist, /):
     """Fill ``dist`` (>= n entries, n = len(parent)); parents must be -1 or nodes; ``start``
     (>= n + 1 entries), ``child`` and ``queue`` (>= n) are work arrays."""
     cdef Py_ssize_t n = parent.shape[0]
@@ -202,6 +209,7 @@ def tree_distances(const int64_t[::1] parent, const double[::1] pw, int64_t root
         raise ValueError("tree_distances: start, child, queue or dist is too short.")
     with nogil:
         _tree_distances(parent, pw, root, start, child, queue, dist)
+
 
 cdef void _adjacency(const int64_t[::1] a, const int64_t[::1] b, int64_t[::1] indptr,
                      int64_t[::1] nbr, int64_t[::1] link) noexcept nogil:
@@ -220,8 +228,9 @@ cdef void _adjacency(const int64_t[::1] a, const int64_t[::1] b, int64_t[::1] in
         indptr[b[i]] += 1
     shift_back(indptr)
 
+
 def adjacency(const int64_t[::1] a, const int64_t[::1] b, int64_t[::1] indptr,
-              int64_t[::1] nbr, int64_t[::1] link):
+              int64_t[::1] nbr, int64_t[::1] link, /):
     """Fill ``indptr`` (n_nodes + 1 entries), ``nbr`` and ``link`` (>= 2 m entries) from the m
     links (a, b), ids in [0, n_nodes)."""
     cdef Py_ssize_t m = a.shape[0]
@@ -230,6 +239,7 @@ def adjacency(const int64_t[::1] a, const int64_t[::1] b, int64_t[::1] indptr,
                          "indptr >= 1.")
     with nogil:
         _adjacency(a, b, indptr, nbr, link)
+
 
 cdef void _parent_links(const int64_t[::1] indptr, const int64_t[::1] nbr,
                         const int64_t[::1] link, const double[::1] w,
@@ -246,8 +256,9 @@ cdef void _parent_links(const int64_t[::1] indptr, const int64_t[::1] nbr,
                         best = l
         out[v] = best
 
+
 def parent_links(const int64_t[::1] indptr, const int64_t[::1] nbr, const int64_t[::1] link,
-                 const double[::1] w, const int64_t[::1] pred, int64_t[::1] out):
+                 const double[::1] w, const int64_t[::1] pred, int64_t[::1] out, /):
     """Fill ``out`` (>= n entries, n = len(pred)) with every node's lightest link to its parent;
     parents must be -1 or nodes, links in [0, len(w))."""
     cdef Py_ssize_t n = pred.shape[0]

@@ -138,16 +138,10 @@ def union_parent(ftail, fhead, n_nodes):
     return parent
 
 
-# --- Path maxima by range maxima over the merge tree's leaf order ---------------------------
-#
-# Laying the merge tree's leaves out left to right makes every subtree a contiguous run, and the
-# merge that joins two neighbouring leaves is their lowest common ancestor.  So the heaviest edge
-# between nodes u and v is the largest merge index among the gaps between pos[u] and pos[v]
-# (Gabow, Bentley and Tarjan, "Scaling and related techniques for geometry problems", 1984, for
-# reducing LCA to range maxima; citation recalled from memory).  Gaps between two trees hold the
-# sentinel F.  Range maxima use blocks of _paths.BLOCK gaps with in-block prefix/suffix maxima
-# and a sparse table over block maxima: O(V log V / BLOCK) memory, and at most a BLOCK-long scan
-# per query.
+# --- Path maxima by range maxima over the merge tree's leaf order (see ``_paths.pyx`` for the
+# method and its source): the index holds the leaf positions, the gaps between neighbouring
+# leaves and the range-maxima tables over blocks of ``_paths.BLOCK`` gaps.
+
 
 class PathMaxIndex:
     """Heaviest forest edge on the tree path of any node pair, in O(1) memory lookups plus at
@@ -218,6 +212,7 @@ class PathMaxIndex:
             raise ValueError("PathMaxIndex.query: the forest has no nodes.")
         out = np.empty(qa.shape[0], dtype=np.int64)
         # the index tables are all int32 or all int64 (see __init__)
-        _paths.path_max(self._pos, self._gap, self._pre, self._suf, self._table, self._f,
-                        qa, qb, out, threads)
+        path_max = _paths.path_max32 if self._gap.dtype == np.int32 else _paths.path_max64
+        path_max(self._pos, self._gap, self._pre, self._suf, self._table, self._f, qa, qb, out,
+                 threads)
         return out
