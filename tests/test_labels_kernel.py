@@ -1,4 +1,5 @@
-"""fastmst._kernels.labels.text_ids against two outside references.
+"""fastmst._kernels.labels.text_ids against two outside references, and the compiled
+_labels defs' refusals of arrays that do not fit.
 
 References: NumPy's ``np.unique(..., return_index=True)`` (distinct labels with the index of
 their first occurrence, reordered by that index: first-appearance numbering), and pyarrow's
@@ -115,3 +116,66 @@ def test_text_ids_refuses_nulls_and_other_types():
         K.text_ids([pa.array(["a"])], 2, 1)
     with pytest.raises(ValueError, match="threads"):
         K.text_ids([pa.array(["a"])], 1, 0)
+
+
+def _piece_arrays(values, threads=1):
+    """The arguments ``labels.text_ids`` hands to ``_labels.map_piece`` for one piece."""
+    from fastmst._kernels import _labels
+    pieces = [K._pieces(pa.array(values))]
+    seg, rows = K._segment_table(pieces, K._segments(pieces, len(values))[0])
+    nblk = 8 * threads if threads > 1 else 1
+    block = (rows + nblk - 1) // nblk
+    words = (rows + 63) // 64
+    return pieces, dict(
+        tables=_labels.LabelTables(), seg=seg.reshape(-1),
+        segblk=np.zeros(((rows - 1) >> _labels.SEG_ROWS_LOG2) + 1, dtype=np.intp),
+        rows=rows, block=block, hist=np.empty(nblk * _labels.N_PARTS, dtype=np.intp),
+        off=np.empty(nblk * _labels.N_PARTS, dtype=np.intp),
+        start=np.empty(_labels.N_PARTS + 1, dtype=np.intp),
+        ent=np.empty(rows * _labels.ENTRY_BYTES, dtype=np.uint8),
+        part=np.empty(rows, dtype=np.uint8), eid=np.empty(rows, dtype=np.int32),
+        bits=np.empty(words, dtype=np.uint64), below=np.empty(words, dtype=np.intp),
+        out=np.empty(rows, dtype=np.int32), threads=threads)
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.lists(st.sampled_from(["a", "bb", "a much longer label", "é", ""]), min_size=1,
+                max_size=300),
+       st.sampled_from(["seg", "segblk", "hist", "off", "start", "ent", "part", "eid", "bits",
+                        "below", "out"]),
+       st.sampled_from([1, 2]))
+def test_map_piece_refuses_any_array_too_short_for_the_piece(values, name, threads):
+    """The compiled def checks every array against the piece before its passes write: one
+    array short by one element (or one segment word) is a ValueError, and the full-size set
+    maps the piece as the reference does (reference: NumPy's np.unique, above)."""
+    from fastmst._kernels import _labels
+    pieces, args = _piece_arrays(values, threads)
+    full = dict(args)
+    short = args[name][:-1] if name != "hist" else args[name][:-_labels.N_PARTS]
+    args[name] = short
+    with pytest.raises(ValueError, match="map_piece"):
+        _labels.map_piece(**args)
+    count = _labels.map_piece(**full)
+    ids, labels = reference(values)
+    assert count == len(labels)
+    assert full["out"].tolist() == ids.tolist()
+
+
+def test_label_bytes_refuses_offsets_that_do_not_match_the_lengths():
+    """Offsets that would copy more or fewer bytes than a label holds are refused before any
+    copy (the compiled def compares them with the recorded lengths)."""
+    from fastmst._kernels import _labels
+    pieces, args = _piece_arrays(["alpha", "be", "alpha", "gamma ray"])
+    count = _labels.map_piece(**args)
+    lengths = np.empty(count, dtype=np.int64)
+    _labels.label_lengths(args["tables"], lengths)
+    assert lengths.tolist() == [5, 2, 9]
+    good = np.concatenate([[0], np.cumsum(lengths)])
+    out = np.empty(int(good[-1]), dtype=np.uint8)
+    _labels.label_bytes(args["tables"], good, out)
+    assert out.tobytes() == b"alphabegamma ray"
+    for bad in (good + np.array([0, 1, 1, 1]), np.array([0, 2, 4, 16]), good[:-1]):
+        with pytest.raises(ValueError, match="label_bytes"):
+            _labels.label_bytes(args["tables"], bad, np.empty(int(bad[-1]), dtype=np.uint8))
+    with pytest.raises(ValueError, match="label_lengths"):
+        _labels.label_lengths(args["tables"], np.empty(count + 1, dtype=np.int64))

@@ -8,7 +8,8 @@ Exact: each label's 64-bit hash sits in an open-addressing table with its length
 of up to 8 bytes are hashed by a bijection of their zero-padded bytes, so equal hash and length
 means equal label; longer labels are also compared byte by byte with their first occurrence.
 
-Cache-sized work (radix partitioning by hash): the rows are taken in pieces of ``PIECE_ROWS``.
+Cache-sized work (radix partitioning by hash): the rows are taken in pieces of
+``labels.PIECE_ROWS``.
 One pass over a piece hashes every row and counts the rows of each of ``PARTS`` partitions (the
 hash's top byte); a second hashes again (cheaper than storing the hashes and reading them back)
 and writes 16-byte (hash, row, length) entries into the partitions, each in row order.  Every
@@ -22,11 +23,16 @@ writes each row's id, reading the partitions' id lists in row order.  Scratch an
 come from pyarrow's memory pool, which keeps freed memory between calls (fresh NumPy arrays of
 this size cost page faults and zeroing on every call).
 
+Files: this module holds the passes and thin typed ``def``s over one piece (``map_piece``) and
+over the distinct labels at the end (``label_lengths``, ``label_bytes``);
+``fastmst/_kernels/labels.py`` holds ``text_ids``, which checks the chunks, cuts them into
+pieces and allocates every array.
+
 Threads: the row passes split a piece into position blocks (each block's entries sit in block
 order within every partition), the partition passes take partitions; every id is fixed by the
 rows alone, so the ids are the same for every thread count.
 """
-import numpy as np
+cimport cython
 from cython.parallel cimport prange
 from libc.stdint cimport int32_t, int64_t, uint8_t, uint32_t, uint64_t
 from libc.stdlib cimport calloc, free, realloc
@@ -66,9 +72,6 @@ ctypedef fused offset_t:
 cdef enum:
     PARTS = 256     # partitions (top byte of the hash)
     EMPTY = 0       # the second word of an empty table slot
-
-#: Rows handed to one round of the passes (tests lower it to run several rounds).
-PIECE_ROWS = 1 << 22
 
 
 ctypedef struct Entry:      # 16 bytes; the label's bytes are found from its row (_row_bytes)
@@ -402,187 +405,169 @@ cdef void _write_rows(const uint8_t* part, const int32_t* ids, const Py_ssize_t*
                      (b + 1) * block if (b + 1) * block < rows else rows, out)
 
 
-cdef void _gather_bytes(const uint64_t[::1] ptr, const int64_t[::1] offsets,
-                        uint8_t[::1] out) noexcept nogil:
-    """Concatenate the labels at ``ptr`` (lengths from ``offsets``) into ``out``."""
+cdef void _gather_bytes(const uint64_t* ptr, Py_ssize_t n, const int64_t* offsets,
+                        uint8_t* out) noexcept nogil:
+    """Concatenate the labels at ``ptr[:n]`` (lengths from ``offsets``) into ``out``."""
     cdef Py_ssize_t i, k
-    for i in range(ptr.shape[0]):
+    for i in range(n):
         k = offsets[i + 1] - offsets[i]
         if k:
             memcpy(&out[offsets[i]], <const void *>ptr[i], k)
 
 
-def _empty(Py_ssize_t n, dtype):
-    """An uninitialised writable NumPy array from pyarrow's memory pool, which keeps freed
-    memory for the next call (a fresh NumPy array of this size costs page faults and zeroing
-    by the kernel on every call)."""
-    import pyarrow as pa
-    dtype = np.dtype(dtype)
-    return np.frombuffer(pa.allocate_buffer(max(n, 1) * dtype.itemsize), dtype=dtype)[:n]
+cdef void _offsets(const Py_ssize_t* hist, Py_ssize_t nblk, Py_ssize_t rows, Py_ssize_t* off,
+                   Py_ssize_t* start) noexcept nogil:
+    """Entry offsets from the per-block counts ``hist`` (nblk x PARTS): partitions in order,
+    blocks in order within a partition.  OUT: ``off[b * PARTS + q]``, the first entry of block
+    b in partition q; ``start[q]``, partition q's first entry (``start[PARTS] = rows``)."""
+    cdef Py_ssize_t q, b, acc = 0
+    for q in range(PARTS):
+        start[q] = acc
+        for b in range(nblk):
+            off[b * PARTS + q] = acc
+            acc += hist[b * PARTS + q]
+    start[PARTS] = rows
 
 
-def _pieces(chunk):
-    """(offsets as NumPy, data memoryview) of one Arrow string chunk, checked."""
-    import pyarrow as pa
-    if pa.types.is_string(chunk.type):
-        width = np.int32
-    elif pa.types.is_large_string(chunk.type):
-        width = np.int64
-    else:
-        raise TypeError(f"text_ids: expected string or large_string chunks, received "
-                        f"{chunk.type}; cast the column to text first.")
-    if chunk.null_count:
-        raise ValueError(f"text_ids: a chunk holds {chunk.null_count} missing labels; expected "
-                         f"none. Refuse or drop the missing rows first.")
-    bufs = chunk.buffers()
-    n = len(chunk)
-    offs = np.frombuffer(bufs[1], dtype=width, count=chunk.offset + n + 1)[chunk.offset:] \
-        if n else np.zeros(1, dtype=width)
-    if offs.size and int(offs[n]) - int(offs[0]) >= 2**32:
-        raise ValueError("text_ids: a chunk holds 4 GiB of label bytes or more; expected less. "
-                         "Split the column into smaller chunks.")
-    data = np.frombuffer(bufs[2], dtype=np.uint8) if bufs[2] is not None and bufs[2].size \
-        else np.zeros(1, dtype=np.uint8)
-    return offs, data
-
-
-def _segments(pieces, Py_ssize_t size):
-    """Rounds of at most ``size`` rows: lists of (chunk index, lo, hi)."""
-    rounds, cur, room = [], [], size
-    for c, (offs, _) in enumerate(pieces):
-        n = int(offs.shape[0]) - 1
-        lo = 0
-        while lo < n:
-            hi = min(n, lo + room)
-            cur.append((c, lo, hi))
-            room -= hi - lo
-            lo = hi
-            if room == 0:
-                rounds.append(cur)
-                cur, room = [], size
-    if cur:
-        rounds.append(cur)
-    return rounds
-
-
-def text_ids(chunks, Py_ssize_t n_tail, int threads=1):
-    """Compact ids of Arrow string chunks by first appearance.
-
-    ``chunks``: the tail column's chunks then the head column's (``string`` or
-    ``large_string``, no nulls); ``n_tail`` rows belong to the tail.  Returns (tail ids, head
-    ids) as int32, and the distinct labels as (int64 offsets, uint8 bytes) in id order.
-    """
-    cdef Py_ssize_t total, size, rows, block, nblk, at, base, q, k, nseg, done
-    cdef Py_ssize_t[::1] sv
-    cdef Py_ssize_t[::1] sbv
-    cdef uint64_t[::1] gptr
-    cdef int64_t[::1] glen
-    cdef Py_ssize_t fresh
-    cdef Part* parts = NULL
-    if threads < 1:
-        raise ValueError(f"text_ids: threads must be positive, received {threads}.")
-    pieces = [_pieces(c) for c in chunks]
-    total = sum([int(o.shape[0]) - 1 for o, _ in pieces])
-    if n_tail < 0 or n_tail > total:
-        raise ValueError(f"text_ids: n_tail={n_tail} is outside 0..{total} (the rows given).")
-    if total >= 2**31 - 1:
-        raise ValueError(f"text_ids: {total} rows need ids beyond int32; expected fewer than "
-                         f"{2**31 - 1} rows.")
-    ids_a = _empty(total, np.int32)
-    size = max(1, min(int(PIECE_ROWS), total))
-    nblk = 8 * threads if threads > 1 else 1
-    block = (size + nblk - 1) // nblk
-    part_a = _empty(size, np.uint8)
-    ent_a = _empty(size * sizeof(Entry), np.uint8)
-    eid_a = _empty(size, np.int32)
-    hist_a = np.empty((nblk + 1) * PARTS, dtype=np.intp)
-    off_a = np.empty(nblk * PARTS, dtype=np.intp)
-    start_a = np.empty(PARTS + 1, dtype=np.intp)
-    bits_a = _empty((size + 63) // 64, np.uint64)
-    below_a = _empty((size + 63) // 64, np.intp)
-    cdef uint8_t[::1] part = part_a
-    cdef uint8_t[::1] entv = ent_a
-    cdef int32_t[::1] eid = eid_a
-    cdef Py_ssize_t[::1] hist = hist_a
-    cdef Py_ssize_t[::1] off = off_a
-    cdef Py_ssize_t[::1] start = start_a
-    cdef uint64_t[::1] bits = bits_a
-    cdef Py_ssize_t[::1] below = below_a
-    cdef int32_t[::1] ids = ids_a
-    cdef Entry* ent = <Entry*>&entv[0]
-    parts = <Part*>calloc(PARTS, sizeof(Part))
+cdef void _free_parts(Part* parts) noexcept nogil:
+    cdef Py_ssize_t q
     if parts == NULL:
-        raise MemoryError("text_ids: no memory for the label tables.")
-    gptr_a = np.empty(1, dtype=np.uint64)
-    glen_a = np.empty(1, dtype=np.int64)
-    try:
-        base = 0
-        done = 0
-        for segs in _segments(pieces, size):
-            rows = sum([hi - lo for _, lo, hi in segs])
-            seg_a = np.zeros((len(segs), 6), dtype=np.intp)
-            at = 0
-            for r, (c, lo, hi) in enumerate(segs):
-                offs, data = pieces[c]
-                seg_a[r] = (offs.ctypes.data + lo * offs.itemsize, data.ctypes.data, data.size,
-                            at, hi - lo, offs.itemsize == 8)
-                at += hi - lo
-            sv = seg_a.reshape(-1)
-            nseg = len(segs)
-            # the segment holding the first row of each block of 2**SEG_SHIFT rows
-            segblk_a = (np.searchsorted(seg_a[:, 3] + seg_a[:, 4],
-                                        np.arange(0, rows, 1 << SEG_SHIFT), side="right")
-                        .astype(np.intp))
-            sbv = segblk_a
-            hist_a[:] = 0
-            with nogil:
-                _row_pass(<const Seg*>&sv[0], nseg, rows, block, &hist[0], ent, &part[0], False,
-                          threads)
-            # entries: partitions in order, blocks in order within a partition
-            h2 = hist_a[:nblk * PARTS].reshape(nblk, PARTS)
-            flat = h2.T.ravel()
-            starts = np.cumsum(flat) - flat
-            off_a[:] = starts.reshape(PARTS, nblk).T.ravel()
-            start_a[:PARTS] = starts.reshape(PARTS, nblk)[:, 0]
-            start_a[PARTS] = rows
-            off0 = off_a.copy()
-            with nogil:
-                _row_pass(<const Seg*>&sv[0], nseg, rows, block, &off[0], ent, &part[0], True,
-                          threads)
-            off_a[:] = off0
-            with nogil:
-                _probe_all(parts, ent, &start[0], &eid[0], <const Seg*>&sv[0], &sbv[0],
-                           threads)
-            for q in range(PARTS):
-                if parts[q].failed:
-                    raise MemoryError("text_ids: no memory for the label tables.")
-            fresh = 0
-            for q in range(PARTS):
-                fresh += parts[q].count
-            if fresh > gptr_a.shape[0]:
-                k = max(fresh, 2 * gptr_a.shape[0])
-                gptr_a = np.concatenate([gptr_a[:base], np.empty(k - base, np.uint64)])
-                glen_a = np.concatenate([glen_a[:base], np.empty(k - base, np.int64)])
-            gptr = gptr_a
-            glen = glen_a
-            with nogil:
-                _rank_new(parts, &bits[0], &below[0], rows, base, <const Seg*>&sv[0], nseg,
-                          &gptr[0], &glen[0], threads)
-                _global_ids(parts, &start[0], &eid[0], threads)
-                _write_rows(&part[0], &eid[0], &off[0], rows, block, &ids[done], threads)
-            base = fresh
-            done += rows
-        kk = base
-    finally:
+        return
+    for q in range(PARTS):
+        free(parts[q].slots)
+        free(parts[q].first)
+        free(parts[q].uptr)
+        free(parts[q].gid)
+    free(parts)
+
+
+# ---------------------------------------------------------------------------------------------
+# the thin defs (their Python half, which slices the chunks into pieces and allocates every
+# array, is fastmst/_kernels/labels.py)
+
+#: Partitions of a piece (the hash's top byte), bytes of one entry, rows per segment block.
+N_PARTS = PARTS
+ENTRY_BYTES = sizeof(Entry)
+SEG_ROWS_LOG2 = SEG_SHIFT
+
+
+@cython.auto_pickle(False)
+cdef class LabelTables:
+    """LabelTables()
+
+    The label tables of one ``text_ids`` call: one open-addressing table per partition and
+    the first occurrence (address, length) of every distinct label so far, in id order.
+    Freed with the object."""
+    cdef Part* parts
+    cdef uint64_t* gptr
+    cdef int64_t* glen
+    cdef Py_ssize_t count, gcap
+
+    def __cinit__(self):
+        self.parts = <Part*>calloc(PARTS, sizeof(Part))
+        if self.parts == NULL:
+            raise MemoryError("text_ids: no memory for the label tables.")
+
+    def __dealloc__(self):
+        _free_parts(self.parts)
+        free(self.gptr)
+        free(self.glen)
+
+
+def map_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
+              const Py_ssize_t[::1] segblk, Py_ssize_t rows, Py_ssize_t block,
+              Py_ssize_t[::1] hist, Py_ssize_t[::1] off, Py_ssize_t[::1] start,
+              uint8_t[::1] ent, uint8_t[::1] part, int32_t[::1] eid, uint64_t[::1] bits,
+              Py_ssize_t[::1] below, int32_t[::1] out, int threads):
+    """Write the ids of the ``rows`` positions of one piece to ``out[:rows]`` and return the
+    number of distinct labels so far.
+
+    ``seg``: the piece's segments, 6 words each (offsets address from the segment's first
+    row, data address, readable bytes, piece position, rows, 1 for int64 offsets), made by
+    ``labels._segment_table`` from Arrow buffers that stay alive during the call; ``segblk``:
+    the segment of each block of 2**SEG_ROWS_LOG2 rows.  The rest is scratch of the sizes
+    ``labels.text_ids`` gives (``hist`` and ``off``: blocks x N_PARTS with blocks * block >=
+    rows).
+    """
+    cdef Py_ssize_t nseg = seg.shape[0] // 6, nblk = hist.shape[0] // PARTS, q, fresh = 0
+    cdef Py_ssize_t k
+    if threads < 1:
+        raise ValueError(f"map_piece: threads must be positive, received {threads}.")
+    if (rows < 1 or block < 1 or nseg < 1 or seg.shape[0] != 6 * nseg
+            or hist.shape[0] != nblk * PARTS or off.shape[0] != hist.shape[0]
+            or nblk * block < rows or start.shape[0] != PARTS + 1
+            or ent.shape[0] < rows * <Py_ssize_t>sizeof(Entry) or part.shape[0] < rows
+            or eid.shape[0] < rows or out.shape[0] < rows
+            or bits.shape[0] < (rows + 63) // 64 or below.shape[0] < (rows + 63) // 64
+            or segblk.shape[0] < ((rows - 1) >> SEG_SHIFT) + 1):
+        raise ValueError("map_piece: the segment table or a scratch array does not fit the "
+                         "piece; use labels.text_ids, which sizes them.")
+    with nogil:
+        memset(&hist[0], 0, hist.shape[0] * sizeof(Py_ssize_t))
+        _row_pass(<const Seg*>&seg[0], nseg, rows, block, &hist[0], <Entry*>&ent[0], &part[0],
+                  False, threads)
+        _offsets(&hist[0], nblk, rows, &off[0], &start[0])
+        _row_pass(<const Seg*>&seg[0], nseg, rows, block, &off[0], <Entry*>&ent[0], &part[0],
+                  True, threads)
+        _offsets(&hist[0], nblk, rows, &off[0], &start[0])    # the scatter moved them on
+        _probe_all(tables.parts, <const Entry*>&ent[0], &start[0], &eid[0],
+                   <const Seg*>&seg[0], &segblk[0], threads)
         for q in range(PARTS):
-            free(parts[q].slots)
-            free(parts[q].first)
-            free(parts[q].uptr)
-            free(parts[q].gid)
-        free(parts)
-    # the distinct labels in id order
-    offsets = np.zeros(kk + 1, dtype=np.int64)
-    np.cumsum(glen_a[:kk], out=offsets[1:])
-    out = np.empty(int(offsets[kk]), dtype=np.uint8)
-    _gather_bytes(gptr_a[:kk], offsets, out)
-    return ids_a[:n_tail], ids_a[n_tail:], offsets, out
+            fresh += tables.parts[q].count
+            if tables.parts[q].failed:
+                fresh = -1
+                break
+        if fresh > tables.gcap:
+            k = fresh if fresh > 2 * tables.gcap else 2 * tables.gcap
+            if not _grow_labels(tables, k):
+                fresh = -1
+    if fresh < 0:
+        raise MemoryError("text_ids: no memory for the label tables.")
+    with nogil:
+        _rank_new(tables.parts, &bits[0], &below[0], rows, tables.count, <const Seg*>&seg[0],
+                  nseg, tables.gptr, tables.glen, threads)
+        _global_ids(tables.parts, &start[0], &eid[0], threads)
+        _write_rows(&part[0], &eid[0], &off[0], rows, block, &out[0], threads)
+    tables.count = fresh
+    return fresh
+
+
+cdef bint _grow_labels(LabelTables t, Py_ssize_t k) noexcept nogil:
+    """Room for ``k`` distinct labels' (address, length) (False when memory ran out)."""
+    cdef void* a = realloc(t.gptr, k * sizeof(uint64_t))
+    if a == NULL:
+        return False
+    t.gptr = <uint64_t*>a
+    a = realloc(t.glen, k * sizeof(int64_t))
+    if a == NULL:
+        return False
+    t.glen = <int64_t*>a
+    t.gcap = k
+    return True
+
+
+def label_lengths(LabelTables tables not None, int64_t[::1] out):
+    """Byte lengths of the distinct labels in id order, written to ``out`` (one per label)."""
+    if out.shape[0] != tables.count:
+        raise ValueError(f"label_lengths: out must hold {tables.count} lengths, received "
+                         f"{out.shape[0]}.")
+    if tables.count:
+        memcpy(&out[0], tables.glen, tables.count * sizeof(int64_t))
+
+
+def label_bytes(LabelTables tables not None, const int64_t[::1] offsets, uint8_t[::1] out):
+    """The distinct labels' bytes concatenated in id order into ``out``, at ``offsets`` (the
+    running sum of ``label_lengths``, with a leading 0).  The chunks must still be alive."""
+    cdef Py_ssize_t n = tables.count, i
+    cdef bint fits = offsets.shape[0] == n + 1 and offsets[0] == 0
+    if fits:
+        for i in range(n):
+            if offsets[i + 1] - offsets[i] != tables.glen[i]:
+                fits = False
+                break
+    if not fits or out.shape[0] != offsets[n]:
+        raise ValueError("label_bytes: offsets must be the running sum of label_lengths "
+                         "(with a leading 0) and out hold their last value in bytes.")
+    if n and offsets[n]:
+        with nogil:
+            _gather_bytes(tables.gptr, n, &offsets[0], &out[0])

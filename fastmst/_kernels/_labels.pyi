@@ -1,0 +1,21 @@
+"""Stubs for fastmst._kernels._labels (the compiled passes of text labels to ids; the Python
+half, ``text_ids``, is fastmst/_kernels/labels.py)."""
+import numpy as np
+import numpy.typing as npt
+
+N_PARTS: int
+ENTRY_BYTES: int
+SEG_ROWS_LOG2: int
+
+class LabelTables:
+    def __init__(self) -> None: ...
+
+def map_piece(tables: LabelTables, seg: npt.NDArray[np.intp], segblk: npt.NDArray[np.intp],
+              rows: int, block: int, hist: npt.NDArray[np.intp], off: npt.NDArray[np.intp],
+              start: npt.NDArray[np.intp], ent: npt.NDArray[np.uint8],
+              part: npt.NDArray[np.uint8], eid: npt.NDArray[np.int32],
+              bits: npt.NDArray[np.uint64], below: npt.NDArray[np.intp],
+              out: npt.NDArray[np.int32], threads: int) -> int: ...
+def label_lengths(tables: LabelTables, out: npt.NDArray[np.int64]) -> None: ...
+def label_bytes(tables: LabelTables, offsets: npt.NDArray[np.int64],
+                out: npt.NDArray[np.uint8]) -> None: ...

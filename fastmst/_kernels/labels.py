@@ -1,0 +1,124 @@
+"""Text labels to compact ids by first appearance: the Python half of ``_labels.pyx``.
+
+``text_ids`` checks the Arrow string chunks, cuts their rows into pieces of ``PIECE_ROWS``,
+allocates every array and hands each piece to the compiled ``_labels.map_piece`` (the passes,
+the hashing and the tables are there, with the method's notes).  Nothing here loops over rows.
+"""
+import numpy as np
+import pyarrow as pa
+
+from fastmst._kernels import _labels
+
+#: Rows handed to one round of the passes (tests lower it to run several rounds).
+PIECE_ROWS = 1 << 22
+
+
+def _empty(n, dtype):
+    """An uninitialised writable NumPy array from pyarrow's memory pool, which keeps freed
+    memory for the next call (a fresh NumPy array of this size costs page faults and zeroing
+    by the kernel on every call)."""
+    dtype = np.dtype(dtype)
+    return np.frombuffer(pa.allocate_buffer(max(n, 1) * dtype.itemsize), dtype=dtype)[:n]
+
+
+def _pieces(chunk):
+    """(offsets as NumPy, data as NumPy bytes) of one Arrow string chunk, checked."""
+    if pa.types.is_string(chunk.type):
+        width = np.int32
+    elif pa.types.is_large_string(chunk.type):
+        width = np.int64
+    else:
+        raise TypeError(f"text_ids: expected string or large_string chunks, received "
+                        f"{chunk.type}; cast the column to text first.")
+    if chunk.null_count:
+        raise ValueError(f"text_ids: a chunk holds {chunk.null_count} missing labels; expected "
+                         f"none. Refuse or drop the missing rows first.")
+    bufs = chunk.buffers()
+    n = len(chunk)
+    offs = np.frombuffer(bufs[1], dtype=width, count=chunk.offset + n + 1)[chunk.offset:] \
+        if n else np.zeros(1, dtype=width)
+    if offs.size and int(offs[n]) - int(offs[0]) >= 2**32:
+        raise ValueError("text_ids: a chunk holds 4 GiB of label bytes or more; expected less. "
+                         "Split the column into smaller chunks.")
+    data = np.frombuffer(bufs[2], dtype=np.uint8) if bufs[2] is not None and bufs[2].size \
+        else np.zeros(1, dtype=np.uint8)
+    return offs, data
+
+
+def _segments(pieces, size):
+    """Rounds of at most ``size`` rows: lists of (chunk index, lo, hi)."""
+    rounds, cur, room = [], [], size
+    for c, (offs, _) in enumerate(pieces):
+        n = int(offs.shape[0]) - 1
+        lo = 0
+        while lo < n:
+            hi = min(n, lo + room)
+            cur.append((c, lo, hi))
+            room -= hi - lo
+            lo = hi
+            if room == 0:
+                rounds.append(cur)
+                cur, room = [], size
+    if cur:
+        rounds.append(cur)
+    return rounds
+
+
+def _segment_table(pieces, segs):
+    """The segment words of one round (see ``_labels.map_piece``) and its row count."""
+    table = np.zeros((len(segs), 6), dtype=np.intp)
+    at = 0
+    for r, (c, lo, hi) in enumerate(segs):
+        offs, data = pieces[c]
+        table[r] = (offs.ctypes.data + lo * offs.itemsize, data.ctypes.data, data.size,
+                    at, hi - lo, offs.itemsize == 8)
+        at += hi - lo
+    return table, at
+
+
+def text_ids(chunks, n_tail, threads=1):
+    """Compact ids of Arrow string chunks by first appearance.
+
+    ``chunks``: the tail column's chunks then the head column's (``string`` or
+    ``large_string``, no nulls); ``n_tail`` rows belong to the tail.  Returns (tail ids, head
+    ids) as int32, and the distinct labels as (int64 offsets, uint8 bytes) in id order.
+    """
+    if threads < 1:
+        raise ValueError(f"text_ids: threads must be positive, received {threads}.")
+    pieces = [_pieces(c) for c in chunks]
+    total = sum([int(o.shape[0]) - 1 for o, _ in pieces])
+    if n_tail < 0 or n_tail > total:
+        raise ValueError(f"text_ids: n_tail={n_tail} is outside 0..{total} (the rows given).")
+    if total >= 2**31 - 1:
+        raise ValueError(f"text_ids: {total} rows need ids beyond int32; expected fewer than "
+                         f"{2**31 - 1} rows.")
+    ids = _empty(total, np.int32)
+    size = max(1, min(int(PIECE_ROWS), total))
+    nblk = 8 * threads if threads > 1 else 1
+    block = (size + nblk - 1) // nblk
+    words = (size + 63) // 64
+    scratch = dict(hist=np.empty(nblk * _labels.N_PARTS, dtype=np.intp),
+                   off=np.empty(nblk * _labels.N_PARTS, dtype=np.intp),
+                   start=np.empty(_labels.N_PARTS + 1, dtype=np.intp),
+                   ent=_empty(size * _labels.ENTRY_BYTES, np.uint8),
+                   part=_empty(size, np.uint8), eid=_empty(size, np.int32),
+                   bits=_empty(words, np.uint64), below=_empty(words, np.intp))
+    tables = _labels.LabelTables()
+    done = count = 0
+    for segs in _segments(pieces, size):
+        seg, rows = _segment_table(pieces, segs)
+        # the segment holding the first row of each block of 2**SEG_ROWS_LOG2 rows
+        segblk = np.searchsorted(seg[:, 3] + seg[:, 4],
+                                 np.arange(0, rows, 1 << _labels.SEG_ROWS_LOG2),
+                                 side="right").astype(np.intp)
+        count = _labels.map_piece(tables, seg.reshape(-1), segblk, rows, block,
+                                  out=ids[done:], threads=threads, **scratch)
+        done += rows
+    # the distinct labels in id order (the chunks, which hold their bytes, are alive here)
+    offsets = np.zeros(count + 1, dtype=np.int64)
+    lengths = np.empty(count, dtype=np.int64)
+    _labels.label_lengths(tables, lengths)
+    np.cumsum(lengths, out=offsets[1:])
+    data = np.empty(int(offsets[count]), dtype=np.uint8)
+    _labels.label_bytes(tables, offsets, data)
+    return ids[:n_tail], ids[n_tail:], offsets, data
