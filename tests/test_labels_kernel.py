@@ -154,8 +154,8 @@ def test_map_piece_refuses_any_array_too_short_for_the_piece(values, name, threa
     short = args[name][:-1] if name != "hist" else args[name][:-_labels.N_PARTS]
     args[name] = short
     with pytest.raises(ValueError, match="map_piece"):
-        _labels.map_piece(**args)
-    count = _labels.map_piece(**full)
+        _labels.map_piece(*args.values())
+    count = _labels.map_piece(*full.values())
     ids, labels = reference(values)
     assert count == len(labels)
     assert full["out"].tolist() == ids.tolist()
@@ -166,7 +166,7 @@ def test_label_bytes_refuses_offsets_that_do_not_match_the_lengths():
     copy (the compiled def compares them with the recorded lengths)."""
     from fastmst._kernels import _labels
     pieces, args = _piece_arrays(["alpha", "be", "alpha", "gamma ray"])
-    count = _labels.map_piece(**args)
+    count = _labels.map_piece(*args.values())
     lengths = np.empty(count, dtype=np.int64)
     _labels.label_lengths(args["tables"], lengths)
     assert lengths.tolist() == [5, 2, 9]

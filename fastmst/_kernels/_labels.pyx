@@ -478,7 +478,7 @@ def map_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
               const Py_ssize_t[::1] segblk, Py_ssize_t rows, Py_ssize_t block,
               Py_ssize_t[::1] hist, Py_ssize_t[::1] off, Py_ssize_t[::1] start,
               uint8_t[::1] ent, uint8_t[::1] part, int32_t[::1] eid, uint64_t[::1] bits,
-              Py_ssize_t[::1] below, int32_t[::1] out, int threads):
+              Py_ssize_t[::1] below, int32_t[::1] out, int threads, /):
     """Write the ids of the ``rows`` positions of one piece to ``out[:rows]`` and return the
     number of distinct labels so far.
 
@@ -546,7 +546,7 @@ cdef bint _grow_labels(LabelTables t, Py_ssize_t k) noexcept nogil:
     return True
 
 
-def label_lengths(LabelTables tables not None, int64_t[::1] out):
+def label_lengths(LabelTables tables not None, int64_t[::1] out, /):
     """Byte lengths of the distinct labels in id order, written to ``out`` (one per label)."""
     if out.shape[0] != tables.count:
         raise ValueError(f"label_lengths: out must hold {tables.count} lengths, received "
@@ -555,7 +555,7 @@ def label_lengths(LabelTables tables not None, int64_t[::1] out):
         memcpy(&out[0], tables.glen, tables.count * sizeof(int64_t))
 
 
-def label_bytes(LabelTables tables not None, const int64_t[::1] offsets, uint8_t[::1] out):
+def label_bytes(LabelTables tables not None, const int64_t[::1] offsets, uint8_t[::1] out, /):
     """The distinct labels' bytes concatenated in id order into ``out``, at ``offsets`` (the
     running sum of ``label_lengths``, with a leading 0).  The chunks must still be alive."""
     cdef Py_ssize_t n = tables.count, i

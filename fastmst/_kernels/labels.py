@@ -97,12 +97,12 @@ def text_ids(chunks, n_tail, threads=1):
     nblk = 8 * threads if threads > 1 else 1
     block = (size + nblk - 1) // nblk
     words = (size + 63) // 64
-    scratch = dict(hist=np.empty(nblk * _labels.N_PARTS, dtype=np.intp),
-                   off=np.empty(nblk * _labels.N_PARTS, dtype=np.intp),
-                   start=np.empty(_labels.N_PARTS + 1, dtype=np.intp),
-                   ent=_empty(size * _labels.ENTRY_BYTES, np.uint8),
-                   part=_empty(size, np.uint8), eid=_empty(size, np.int32),
-                   bits=_empty(words, np.uint64), below=_empty(words, np.intp))
+    # hist, off, start, ent, part, eid, bits, below (map_piece's order)
+    scratch = (np.empty(nblk * _labels.N_PARTS, dtype=np.intp),
+               np.empty(nblk * _labels.N_PARTS, dtype=np.intp),
+               np.empty(_labels.N_PARTS + 1, dtype=np.intp),
+               _empty(size * _labels.ENTRY_BYTES, np.uint8), _empty(size, np.uint8),
+               _empty(size, np.int32), _empty(words, np.uint64), _empty(words, np.intp))
     tables = _labels.LabelTables()
     done = count = 0
     for segs in _segments(pieces, size):
@@ -111,8 +111,8 @@ def text_ids(chunks, n_tail, threads=1):
         segblk = np.searchsorted(seg[:, 3] + seg[:, 4],
                                  np.arange(0, rows, 1 << _labels.SEG_ROWS_LOG2),
                                  side="right").astype(np.intp)
-        count = _labels.map_piece(tables, seg.reshape(-1), segblk, rows, block,
-                                  out=ids[done:], threads=threads, **scratch)
+        count = _labels.map_piece(tables, seg.reshape(-1), segblk, rows, block, *scratch,
+                                  ids[done:], threads)
         done += rows
     # the distinct labels in id order (the chunks, which hold their bytes, are alive here)
     offsets = np.zeros(count + 1, dtype=np.int64)
