@@ -1,5 +1,7 @@
-"""Covering a rooted forest's links by the halves of candidate links: the kernels of backup
-links (``fastmst.design.redundancy``).
+"""Covering a rooted forest's links by the halves of candidate links: the compiled kernels of
+backup links (``fastmst.design.redundancy``).  ``halves.py`` checks the inputs with NumPy,
+allocates every work and output array and assembles the results; the ``def``s here take those
+arrays, check that their lengths agree, release the GIL and run the ``noexcept nogil`` kernels.
 
 ``common_ancestors``
     Lowest common ancestors of node pairs, offline (Tarjan 1979): where each candidate link is
@@ -11,7 +13,6 @@ links (``fastmst.design.redundancy``).
 Both take the nodes in a depth-first postorder (``_postorder``), children in node-id order.
 Inputs are int64 (node ids, parents, depths) and float64 (costs); int32 inside.
 """
-import numpy as np
 from libc.math cimport INFINITY
 from libc.stdint cimport int32_t, int64_t, uint8_t
 
@@ -109,61 +110,6 @@ cdef int64_t _common_ancestors(const int64_t[::1] pnode, const int64_t[::1] a,
     return -1
 
 
-def common_ancestors(const int64_t[::1] pnode, const int64_t[::1] a, const int64_t[::1] b):
-    """Lowest common ancestors of node pairs in a rooted forest, offline (Tarjan, "Applications
-    of path compression on balanced trees", J. ACM 26(4), 1979): a depth-first postorder in
-    which every finished node joins its parent's set, so a pair is answered when its second
-    node finishes, by the set of the first (``dsu.pxd``'s find, path compression, no ranks:
-    a finished node's set hangs under its parent's).  O((V + Q) log V) at worst, close to
-    linear in practice.  Fewer than 2**31 nodes and pairs.
-
-    Parameters
-    ----------
-    pnode : ndarray of shape (n,), dtype=int64
-        Parent of every node, -1 at tree tops (``paths.root_forest``).
-    a, b : ndarray of shape (q,), dtype=int64
-        The pairs, both nodes of a pair in one tree.
-
-    Returns
-    -------
-    lca : ndarray of shape (q,), dtype=int64
-    """
-    cdef int64_t n = pnode.shape[0]
-    cdef int64_t q = a.shape[0]
-    if b.shape[0] != q:
-        raise ValueError(f"common_ancestors: a and b must have one length, received {q} and "
-                         f"{b.shape[0]}.")
-    if n >= 2**31 - 1 or 2 * q >= 2**31 - 1:
-        raise ValueError(f"common_ancestors: at most 2**31 - 2 nodes and 2**30 - 1 pairs, "
-                         f"received {n} nodes and {q} pairs.")
-    if n and (int(np.min(pnode)) < -1 or int(np.max(pnode)) >= n):
-        raise ValueError("common_ancestors: parents must be -1 or nodes.")
-    if q and (min(int(np.min(a)), int(np.min(b))) < 0 or
-              max(int(np.max(a)), int(np.max(b))) >= n):
-        raise ValueError(f"common_ancestors: pair nodes must lie in [0, {n}).")
-    cptr, kids, cursor, stack, order, rank, first = _postorder_scratch(n)
-    qptr = np.empty(n + 1, dtype=np.int32)
-    qlist = np.empty(2 * q, dtype=np.int32)
-    dsu = np.empty(n, dtype=np.int32)
-    done = np.empty(n, dtype=np.uint8)
-    out = np.empty(q, dtype=np.int64)
-    cdef int32_t[::1] cp = cptr, ki = kids, cu = cursor, sk = stack, od = order, rk = rank
-    cdef int32_t[::1] fi = first, qp = qptr, ql = qlist, ds = dsu
-    cdef uint8_t[::1] dn = done
-    cdef int64_t[::1] ov = out
-    cdef int64_t bad
-    if n == 0:
-        return out
-    with nogil:
-        bad = _common_ancestors(pnode, a, b, cp, ki, cu, sk, od, rk, fi, qp, ql, ds, dn, ov)
-    if bad == -2:
-        raise ValueError("common_ancestors: pnode is not a forest: parent links form a cycle.")
-    if bad >= 0:
-        raise ValueError(f"common_ancestors: the pair {bad} ({a[bad]}, {b[bad]}) joins two "
-                         f"trees.")
-    return out
-
-
 # cover_by_halves works in "rank space": nodes renumbered in the order they are taken (children
 # before parents: a depth-first postorder, children by node id) and halves renumbered by the
 # rank of their start, so every subtree is a range of ranks and the halves starting in it one
@@ -172,7 +118,7 @@ def common_ancestors(const int64_t[::1] pnode, const int64_t[::1] a, const int64
 # to every key, and removing one half.  The tree is the iterative one with add tags kept at
 # the nodes (a node's value is the least of its children's plus its own tag), so an operation
 # touches O(log H) nodes near the two ends of the range, and the ranges of consecutive nodes
-# lie side by side: the nodes touched stay in cache.  Ids are int32 inside (the def refuses
+# lie side by side: the nodes touched stay in cache.  Ids are int32 inside (halves.py refuses
 # 2**31 or more nodes or halves).
 cdef struct tie_t:
     int64_t tie         # the caller's tie value (the earlier candidate first)
@@ -389,106 +335,89 @@ cdef int64_t _cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth
     return n
 
 
-def _postorder_scratch(Py_ssize_t n):
-    """The int32 work arrays of ``_postorder`` over n nodes: (child offsets, kids, cursor,
-    stack, order, rank, first)."""
-    return (np.empty(n + 1, dtype=np.int32),) + tuple([np.empty(n, dtype=np.int32)
-                                                       for _ in range(6)])
+# ---------------------------------------------------------------------------- the thin defs
+# halves.py has checked the values (parents, pair ends and starts are nodes, sizes below
+# 2**31) and allocated every array; these check only that the lengths agree, so that the
+# kernels stay inside the arrays.
+
+def common_ancestors(const int64_t[::1] pnode, const int64_t[::1] a, const int64_t[::1] b,
+                     int32_t[::1] cptr, int32_t[::1] kids, int32_t[::1] cursor,
+                     int32_t[::1] stack, int32_t[::1] order, int32_t[::1] rank,
+                     int32_t[::1] first, int32_t[::1] qptr, int32_t[::1] qlist,
+                     int32_t[::1] dsu, uint8_t[::1] done, int64_t[::1] out, /):
+    """Lowest common ancestors of the pairs (a[k], b[k]) into ``out`` (``halves.py``'s
+    ``common_ancestors`` checks and allocates).  Work arrays: cptr and qptr n + 1 entries,
+    qlist 2q, the others n; out q.  Returns -1 when done, -2 when the parent links form a
+    cycle, else the first pair k that joins two trees."""
+    cdef Py_ssize_t n = pnode.shape[0]
+    cdef Py_ssize_t q = a.shape[0]
+    cdef int64_t bad
+    if (b.shape[0] != q or out.shape[0] != q or qlist.shape[0] != 2 * q
+            or cptr.shape[0] != n + 1 or qptr.shape[0] != n + 1 or kids.shape[0] != n
+            or cursor.shape[0] != n or stack.shape[0] != n or order.shape[0] != n
+            or rank.shape[0] != n or first.shape[0] != n or dsu.shape[0] != n
+            or done.shape[0] != n):
+        raise ValueError("_halves.common_ancestors: arrays of the wrong lengths; expected a, b "
+                         "and out of q entries, qlist 2q, cptr and qptr n + 1, the other work "
+                         "arrays n (n = len(pnode)).  Call fastmst._kernels.halves."
+                         "common_ancestors, which allocates them.")
+    if n == 0:
+        return -1
+    with nogil:
+        bad = _common_ancestors(pnode, a, b, cptr, kids, cursor, stack, order, rank, first,
+                                qptr, qlist, dsu, done, out)
+    return bad
 
 
 def cover_by_halves(const int64_t[::1] pnode, const int64_t[::1] depth,
                     const int64_t[::1] starts, const int64_t[::1] top_depth,
-                    const double[::1] cost, const int64_t[::1] tie):
-    """The cheapest covering of a rooted forest's links by upward paths ("halves"), exactly.
-
-    Half ``h`` runs from node ``starts[h]`` up to an ancestor at depth ``top_depth[h]`` (less
-    than the start's) and covers the links on the way; it costs ``cost[h]`` (>= 0).  Nodes are
-    taken children first (a depth-first postorder), so the halves starting in a subtree are one
-    range of a segment tree's leaves: each node takes the least key among those still running
-    above it (the cheapest cover of the subtree that uses the half, minus the children's
-    covers; halves that end at the node are removed as they come up), and subtracts it from
-    the range.  O((V + H) log H) after the postorder and a counting sort of the halves by
-    start; ties by ``tie``, then half index.  Fewer than 2**31 nodes and halves.
-
-    Returns
-    -------
-    best : ndarray of shape (n,), dtype=int64
-        The half covering each node's link to its parent in the optimum seen from below (-1:
-        no half covers it, or a tree top).
-    total : ndarray of shape (n,), dtype=float64
-        Cheapest cover of each node's subtree and link to its parent (at tops: of the tree).
-    chosen : ndarray of shape (H,), dtype=bool
-        The halves of one optimal cover.
-    """
-    cdef int64_t n = pnode.shape[0]
-    cdef int64_t H = cost.shape[0]
-    if depth.shape[0] != n:
-        raise ValueError("cover_by_halves: pnode and depth must have one length.")
-    if starts.shape[0] != H or top_depth.shape[0] != H or tie.shape[0] != H:
-        raise ValueError("cover_by_halves: starts, top_depth, cost and tie must have one "
-                         "length.")
-    if n >= 2**31 - 1 or H >= 2**30:
-        raise ValueError(f"cover_by_halves: at most 2**31 - 2 nodes and 2**30 - 1 halves, "
-                         f"received {n} nodes and {H} halves.")
-    if n and (int(np.min(pnode)) < -1 or int(np.max(pnode)) >= n):
-        raise ValueError("cover_by_halves: parents must be -1 or nodes.")
-    pn = np.asarray(pnode)
-    dp = np.asarray(depth)
-    has = pn >= 0
-    if n and (bool((dp[~has] != 0).any()) or bool((dp[has] != dp[pn[has]] + 1).any())):
-        raise ValueError("cover_by_halves: depth must be 0 at tree tops and its parent's + 1 "
-                         "elsewhere (as root_forest returns).")
-    st = np.asarray(starts)
-    td = np.asarray(top_depth)
-    if H and (int(st.min()) < 0 or int(st.max()) >= n):
-        raise ValueError("cover_by_halves: starts must be nodes.")
-    if H and bool((td >= np.asarray(depth)[st]).any() or (td < 0).any()):
-        raise ValueError("cover_by_halves: every half must end above its start.")
-    cdef int64_t size = 1
-    cdef int32_t levels = 0
-    while size < H:
-        size *= 2
-        levels += 1
-    hptr, kids, cursor, stack, order, rank, first = _postorder_scratch(n)
-    prank = np.empty(max(n, 1), dtype=np.int32)
-    drank = np.empty(max(n, 1), dtype=np.int32)
-    hstart = np.empty(H, dtype=np.int32)
-    horig = np.empty(H, dtype=np.int32)
-    htop = np.empty(H, dtype=np.int32)
-    val = np.empty(2 * size, dtype=np.float64)
-    tag = np.empty(size, dtype=np.float64)
-    arg = np.empty(2 * size, dtype=np.int32)
-    ties = np.empty((max(H, 1), sizeof(tie_t) // 8), dtype=np.int64)
-    best_r = np.empty(max(n, 1), dtype=np.int32)
-    total_r = np.empty(max(n, 1), dtype=np.float64)
-    alive = np.empty(n, dtype=np.int32)
-    claimed = np.empty(H, dtype=np.uint8)
-    chosen_r = np.empty(H, dtype=np.uint8)
-    best = np.empty(n, dtype=np.int64)
-    total = np.empty(n, dtype=np.float64)
-    chosen = np.empty(H, dtype=np.uint8)
-    cdef double[::1] vv = val, tv = tag
-    cdef int32_t[::1] av = arg
-    cdef int64_t[:, ::1] tiv = ties
+                    const double[::1] cost, const int64_t[::1] tie, int32_t[::1] order,
+                    int32_t[::1] rank, int32_t[::1] prank, int32_t[::1] kids,
+                    int32_t[::1] cursor, int32_t[::1] stack, int32_t[::1] drank,
+                    int32_t[::1] hptr, int32_t[::1] hstart, int32_t[::1] horig,
+                    int32_t[::1] htop, double[::1] val, double[::1] tag, int32_t[::1] arg,
+                    int64_t[:, ::1] ties, int32_t[::1] best_r, double[::1] total_r,
+                    int32_t[::1] alive, uint8_t[::1] claimed, uint8_t[::1] chosen_r,
+                    int64_t[::1] best, double[::1] total, uint8_t[::1] chosen,
+                    int32_t[::1] first, /):
+    """The cheapest cover by halves into ``best``, ``total`` and ``chosen`` (``halves.py``'s
+    ``cover_by_halves`` checks and allocates).  Work arrays: hptr n + 1 entries, the other
+    node arrays n (prank, drank, best_r and total_r at least 1), the half arrays H; the segment
+    tree over ``size`` leaves (a power of two >= H): tag size, val and arg 2 size, ties
+    max(H, 1) rows of 2 (tie, half).  Returns the number of nodes the postorder reached (n
+    unless parent links form a cycle)."""
+    cdef Py_ssize_t n = pnode.shape[0]
+    cdef Py_ssize_t H = cost.shape[0]
+    cdef Py_ssize_t m = n if n > 1 else 1
     cdef seg_t seg
-    seg.val = &vv[0]
-    seg.tag = &tv[0]
-    seg.arg = &av[0]
-    seg.tb = <tie_t*>&tiv[0, 0]
-    seg.size = size
-    seg.levels = levels
-    cdef int32_t[::1] od = order, rk = rank, pr = prank, dr = drank, hp = hptr, hs = hstart
-    cdef int32_t[::1] ki = kids, cu = cursor, sk = stack, ht = htop
-    cdef int32_t[::1] ho = horig, be = best_r, al = alive, fi = first
-    cdef double[::1] to = total_r, to_out = total
-    cdef int64_t[::1] be_out = best
-    cdef uint8_t[::1] cl = claimed, ch = chosen_r, ch_out = chosen
     cdef int64_t reached
+    seg.size = tag.shape[0]
+    seg.levels = 0
+    while (<int64_t>1 << seg.levels) < seg.size:
+        seg.levels += 1
+    if (depth.shape[0] != n or best.shape[0] != n or total.shape[0] != n
+            or order.shape[0] != n or rank.shape[0] != n or kids.shape[0] != n
+            or cursor.shape[0] != n or stack.shape[0] != n or alive.shape[0] != n
+            or first.shape[0] != n or hptr.shape[0] != n + 1 or prank.shape[0] < m
+            or drank.shape[0] < m or best_r.shape[0] < m or total_r.shape[0] < m
+            or starts.shape[0] != H or top_depth.shape[0] != H or tie.shape[0] != H
+            or hstart.shape[0] != H or horig.shape[0] != H or htop.shape[0] != H
+            or claimed.shape[0] != H or chosen_r.shape[0] != H or chosen.shape[0] != H
+            or seg.size < 1 or seg.size < H or (<int64_t>1 << seg.levels) != seg.size
+            or val.shape[0] != 2 * seg.size or arg.shape[0] != 2 * seg.size
+            or ties.shape[0] < H or ties.shape[0] < 1
+            or ties.shape[1] * sizeof(int64_t) != sizeof(tie_t)):
+        raise ValueError("_halves.cover_by_halves: arrays of the wrong lengths; expected the "
+                         "node arrays of n entries (hptr n + 1), the half arrays of H, tag a "
+                         "power of two >= H, val and arg twice that, ties (max(H, 1), 2).  "
+                         "Call fastmst._kernels.halves.cover_by_halves, which allocates them.")
+    seg.val = &val[0]
+    seg.tag = &tag[0]
+    seg.arg = &arg[0]
+    seg.tb = <tie_t*>&ties[0, 0]
     with nogil:
-        reached = _cover_by_halves(pnode, depth, starts, top_depth, cost, tie, od, rk, pr, ki,
-                                   cu, sk, dr, hp, hs, ho, ht, &seg, be,
-                                   to, al, cl, ch, be_out, to_out, ch_out, fi)
-    if reached != n:
-        raise ValueError(f"cover_by_halves: pnode is not a forest: {n - reached} nodes lie on "
-                         f"cycles of parent links.")
-    return best, total, chosen.view(bool)
+        reached = _cover_by_halves(pnode, depth, starts, top_depth, cost, tie, order, rank,
+                                   prank, kids, cursor, stack, drank, hptr, hstart, horig,
+                                   htop, &seg, best_r, total_r, alive, claimed, chosen_r,
+                                   best, total, chosen, first)
+    return reached
