@@ -1,8 +1,8 @@
 """The tree kernels under the design tools (fastmst._kernels.halves and
-fastmst._kernels.replacements) against outside references on random forests: lowest common ancestors against networkx
-(networkx.tree_all_pairs_lowest_common_ancestor), the first covering link of every forest link
-against brute force over the tree paths (networkx.shortest_path in the forest), and the halves'
-cheapest cover against its exact optimum (scipy.optimize.milp)."""
+fastmst._kernels.replacements) against outside references on random forests: lowest common
+ancestors against networkx (networkx.tree_all_pairs_lowest_common_ancestor), the first covering
+link of every forest link against brute force over the tree paths (networkx.shortest_path in
+the forest), and the halves' cheapest cover against its exact optimum (scipy.optimize.milp)."""
 import networkx as nx
 import numpy as np
 import pytest
