@@ -7,6 +7,8 @@ chunks with its slot offsets (NumPy over 2048 buckets per chunk, negligible next
 the edges) and the assembly of the result.  The result is exactly plain Kruskal's, for any
 chunking and any thread count.
 """
+import operator
+
 import numpy as np
 
 from fastmst._kernels import _filter_kruskal as _fk
@@ -192,11 +194,11 @@ def filter_kruskal(tail, head, weight, n_nodes, maximize=False, target=-1, threa
     m = tail.shape[0]
     bits, kind, target = check_record_inputs(m, head.shape[0], weight, n_nodes, target,
                                              "filter_kruskal")
-    n_nodes = int(n_nodes)
+    n_nodes = operator.index(n_nodes)
     maximize = bool(maximize)
-    threads = int(threads)
-    threshold = int(threshold)
-    chunk = int(chunk)
+    threads = operator.index(threads)
+    threshold = operator.index(threshold)
+    chunk = operator.index(chunk)
     if threshold <= 0:
         threshold = max(1 << 16, n_nodes // 2)
     dtype = tail.dtype
