@@ -10,23 +10,21 @@ released throughout.  Without OpenMP the same code runs serially.
 
 Weights are compared through the tie rule's keys of their bits (``tie_rule.rank_key``), so the
 kernel is compiled for two id widths and two key widths, whatever the weight dtype.
+
+Files: ``boruvka.py`` holds the public function (checks, allocations, result); this compiled
+module the kernel and a thin ``def`` for it and for the labelling.  The weight bits and the
+per-component hints reach the ``def`` as bytes with their width (4 or 8), so that only the
+kernel, not the ``def``, is specialised per key width.
 """
-import numpy as np
 from cython.parallel cimport parallel, prange, threadid
-from libc.stdint cimport int32_t, int64_t, uint32_t, uint64_t
+from libc.stdint cimport int64_t, uint8_t, uint32_t, uint64_t
 from libc.stdlib cimport free, malloc
 from libc.string cimport memmove
 
 from fastmst._kernels._atomics cimport cas64, load64, load_relaxed, store_relaxed, prefetch_w
-from fastmst._kernels._typedefs cimport check_edge_arrays, index_t
+from fastmst._kernels._typedefs cimport index_t
 from fastmst._kernels.dsu cimport dsu_find, label_first_appearance
 from fastmst._kernels.tie_rule cimport rank_key, ukey_t
-from fastmst._kernels.tie_rule import weight_bits
-
-
-#: Edges per thread below which fewer threads are used (each round enters several parallel
-#: regions; on a busy machine each costs a wake-up).  Tests lower it.
-MIN_EDGES_PER_THREAD = 1 << 20
 
 # Bound on the rounds (never reached: see the comment on the round sizes in _boruvka).
 cdef enum:
@@ -231,69 +229,50 @@ cdef Py_ssize_t _boruvka(const index_t* tail, const index_t* head, const ukey_t*
     return count
 
 
-def boruvka(const index_t[::1] tail, const index_t[::1] head, weight,
-            Py_ssize_t n_nodes, bint maximize=False, int threads=1):
-    """Minimum (or maximum) spanning forest by parallel Borůvka rounds.
+def boruvka_rounds(const index_t[::1] tail, const index_t[::1] head, const uint8_t[::1] bits,
+                   int width, int kind, bint maximize, int threads, uint8_t[::1] hint,
+                   int64_t[::1] out, index_t[::1] final_label, Py_ssize_t[::1] n_final):
+    """Borůvka rounds over ``m`` edges and ``n = final_label.shape[0]`` nodes (``_boruvka``).
 
-    Parameters
-    ----------
-    tail, head : ndarray of shape (E,), dtype=int32 or int64
-        Validated endpoint ids in [0, n_nodes) (read in place).
-    weight : ndarray of shape (E,)
-        Validated weights (read in place), checked by ``tie_rule.weight_bits``: a kernel dtype,
-        native byte order, contiguous.
-    n_nodes : int
-    maximize : bool
-    threads : int
-        OpenMP threads (capped by the work); the result does not depend on it.
-
-    Returns
-    -------
-    edges : ndarray of shape (F,), dtype=int64
-        Accepted positions, in round order (the caller sorts them).
-    labels : ndarray of shape (n_nodes,), dtype=int64
-        Component ids 0..k-1 in order of first appearance.
-    n_components : int
+    ``bits``: the weight bits as bytes, ``width`` (4 or 8) per edge, of key kind ``kind``.
+    SCRATCH: ``hint`` (n + 1 keys of that width).  OUT: ``out`` (n - 1 positions; returns how
+    many), ``final_label`` (n), ``n_final[0]`` (the number of components).  Returns -1 when
+    memory runs out.  Needs m >= 1 and n >= 2.
     """
-    cdef Py_ssize_t m = tail.shape[0], n = n_nodes, count = 0, nfin = 0, k = 0
-    bits, kind = weight_bits(weight, m, "boruvka")
-    check_edge_arrays(m, head.shape[0], -1, n_nodes, "boruvka")
-    cdef int nt = max(1, min(threads, m // MIN_EDGES_PER_THREAD + 1))
-    dtype = np.int32 if index_t is int32_t else np.int64
-    out = np.empty(max(0, n - 1), dtype=np.int64)
-    lab = np.empty(n, dtype=dtype)
-    labels = np.empty(n, dtype=np.int64)
-    cdef int64_t[::1] o = out
-    cdef index_t[::1] lb = lab
-    cdef int64_t[::1] lbl = labels
-    cdef int64_t[::1] tbl
-    if n == 0:
-        return out[:0], labels, 0
-    if m == 0 or n == 1:
-        return out[:0], np.arange(n, dtype=np.int64), n
-    cdef int code = kind
-    cdef const uint32_t[::1] b32
-    cdef const uint64_t[::1] b64
-    cdef uint32_t[::1] h32
-    cdef uint64_t[::1] h64
-    hint_a = np.empty(n + 1, dtype=bits.dtype)   # per-component key of the best edge so far
-    if bits.dtype == np.uint32:
-        b32 = bits
-        h32 = hint_a
-        with nogil:
-            count = _boruvka(&tail[0], &head[0], &b32[0], code, n, m, maximize, nt, &h32[0],
-                             &o[0], &lb[0], &nfin)
-    else:
-        b64 = bits
-        h64 = hint_a
-        with nogil:
-            count = _boruvka(&tail[0], &head[0], &b64[0], code, n, m, maximize, nt, &h64[0],
-                             &o[0], &lb[0], &nfin)
-    if count < 0:
-        raise MemoryError("boruvka: out of memory for the per-round edge arrays; use "
-                          "method='kruskal', which needs less extra memory.")
-    table = np.full(nfin, -1, dtype=np.int64)
-    tbl = table
+    cdef Py_ssize_t m = tail.shape[0], n = final_label.shape[0], count
+    if width != 4 and width != 8:
+        raise ValueError(f"boruvka_rounds: the weight bits must be 4 or 8 bytes wide, "
+                         f"received {width}.")
+    if (m < 1 or n < 2 or head.shape[0] != m or bits.shape[0] != m * width
+            or hint.shape[0] != (n + 1) * width or out.shape[0] != n - 1
+            or n_final.shape[0] != 1):
+        raise ValueError(f"boruvka_rounds: {m} >= 1 edges and {n} >= 2 nodes need {m} heads, "
+                         f"{m * width} bytes of weight bits, {(n + 1) * width} bytes of hints, "
+                         f"{n - 1} output slots and one count; received {head.shape[0]}, "
+                         f"{bits.shape[0]}, {hint.shape[0]}, {out.shape[0]} and "
+                         f"{n_final.shape[0]}.")
     with nogil:
-        k = label_first_appearance(&lb[0], n, &tbl[0], &lbl[0])
-    return out[:count], labels, k
+        if width == 4:
+            count = _boruvka(&tail[0], &head[0], <const uint32_t*>&bits[0], kind, n, m,
+                             maximize, threads, <uint32_t*>&hint[0], &out[0], &final_label[0],
+                             &n_final[0])
+        else:
+            count = _boruvka(&tail[0], &head[0], <const uint64_t*>&bits[0], kind, n, m,
+                             maximize, threads, <uint64_t*>&hint[0], &out[0], &final_label[0],
+                             &n_final[0])
+    return count
+
+
+def first_appearance(const index_t[::1] ids, int64_t[::1] table, int64_t[::1] out):
+    """OUT: ``out[i]``, the number of ``ids[i]`` in order of first appearance (0, 1, ...).
+    SCRATCH: ``table``, all -1, one entry per possible id (ids in [0, table.shape[0]), the
+    caller's to ensure).  Returns the number of distinct ids."""
+    cdef Py_ssize_t n = ids.shape[0]
+    cdef int64_t k = 0
+    if out.shape[0] != n:
+        raise ValueError(f"first_appearance: {n} ids need {n} output entries, received "
+                         f"{out.shape[0]}.")
+    if n:
+        with nogil:
+            k = label_first_appearance(&ids[0], n, &table[0], &out[0])
+    return k
