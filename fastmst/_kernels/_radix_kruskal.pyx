@@ -5,38 +5,18 @@ The records of every edge are split into the 2048 top-digit buckets of the rule 
 (``radix.split_records``); the buckets are then sorted one at a time, just before they are
 scanned, so buckets after the last edge the forest needs are never sorted.  With
 ``presorted=True`` the weights are already in rule order and the positions are scanned directly.
-"""
-import numpy as np
-from cython.parallel cimport parallel, threadid
-from libc.stdint cimport int32_t, int64_t, uint8_t, uint32_t
 
-from fastmst._kernels._typedefs cimport check_edge_arrays, index_t
+Files: ``radix_kruskal.py`` holds the public function (checks, the split into records,
+allocations, result); this compiled module the scans and the sort/scan pipeline, each behind a
+thin ``def`` (``scan_positions``, ``kruskal_buckets``).
+"""
+from cython.parallel cimport parallel, threadid
+from libc.stdint cimport int64_t, uint8_t, uint32_t
+
+from fastmst._kernels._typedefs cimport index_t
 from fastmst._kernels.dsu cimport dsu_find, dsu_link
 from fastmst._kernels._atomics cimport prefetch
 from fastmst._kernels.radix cimport Rec, sort_bucket
-from fastmst._kernels import radix
-from fastmst._kernels.tie_rule import key_range, weight_bits
-
-
-#: Below this many edges the sort/scan pipeline of kruskal_radix runs on one thread (too short
-#: to pay for waking a second one).  Tests lower it to run the parallel code on small graphs.
-MIN_EDGES_PIPELINE = 1 << 22
-
-
-def check_record_inputs(Py_ssize_t m, Py_ssize_t n_head, weight, Py_ssize_t n_nodes,
-                        Py_ssize_t target, str func):
-    """The preconditions shared by the record-based Kruskal kernels (``kruskal_radix``,
-    ``filter_kruskal``): ``m`` tails, ``n_head`` heads, weights checked by
-    ``tie_rule.weight_bits``, fewer than 2**32 edges (32-bit record positions).  Returns
-    (weight bits, key kind, target), ``target`` -1 becoming ``n_nodes - 1``."""
-    bits, kind = weight_bits(weight, m, func)
-    check_edge_arrays(m, n_head, -1, n_nodes, func)
-    if m >= radix.MAX_RECORDS:
-        raise ValueError(f"{func}: needs E < 2**32 edges (32-bit record positions), received "
-                         f"{m}.")
-    if target < 0:
-        target = max(0, n_nodes - 1)
-    return bits, kind, target
 
 
 cdef Py_ssize_t _scan(const Rec* a, Py_ssize_t n, const index_t* tail, const index_t* head,
@@ -153,66 +133,43 @@ cdef Py_ssize_t _kruskal_buckets(Rec* a, const Py_ssize_t* bounds, int shift,
     return shared_count[0]
 
 
-def kruskal_radix(const index_t[::1] tail, const index_t[::1] head, weight,
-                  Py_ssize_t n_nodes, bint maximize=False, Py_ssize_t target=-1,
-                  int threads=1, bint presorted=False):
-    """Cache-aware Kruskal: radix split, lazy bucket sort, prefetching scan, early exit.
+# ------------------------------------------------------------------ the thin defs (callers: .py)
 
-    Parameters
-    ----------
-    tail, head : ndarray of shape (E,), dtype=int32 or int64
-        Validated endpoint ids in [0, n_nodes) (read in place).
-    weight : ndarray of shape (E,)
-        Validated weights (read in place, ``E < 2**32``), checked by ``tie_rule.weight_bits``:
-        a kernel dtype, native byte order, contiguous.
-    n_nodes : int
-    maximize : bool
-    target : int
-        Stop after this many accepted edges; ``-1`` means ``n_nodes - 1``.
-    threads : int
-        Threads for the split and the bucket sorts; the result does not depend on it.
-    presorted : bool
-        The weights are already in tie-rule order: scan positions directly, no sort.
+cdef int _check_scan(Py_ssize_t m, Py_ssize_t n_head, Py_ssize_t n_parent, Py_ssize_t n_rank,
+                     Py_ssize_t n_out, Py_ssize_t target) except -1:
+    if n_head != m or n_rank != n_parent or n_parent < 2 or not 0 < target <= n_out:
+        raise ValueError(f"radix_kruskal scan: {m} tails need {m} heads, parent and rank of one "
+                         f"length >= 2 and 0 < target <= output length; received {n_head}, "
+                         f"{n_parent}, {n_rank}, target {target} and {n_out}.")
+    return 0
 
-    Returns
-    -------
-    edges : ndarray of shape (F,), dtype=int64
-        Accepted positions in tie-rule order.
-    parent : ndarray of shape (n_nodes,)
-        Union-find parents of the forest (complete components when the scan ran to the end
-        or stopped at n_nodes - n_components).
-    """
-    cdef Py_ssize_t m = tail.shape[0]
-    bits, kind, target = check_record_inputs(m, head.shape[0], weight, n_nodes, target,
-                                             "kruskal_radix")
-    parent_a = np.arange(n_nodes, dtype=np.int32 if index_t is int32_t else np.int64)
-    rank_a = np.zeros(n_nodes, dtype=np.uint8)
-    out_a = np.empty(max(0, min(target, m)), dtype=np.int64)
-    cdef index_t[::1] parent = parent_a
-    cdef uint8_t[::1] rank = rank_a
-    cdef int64_t[::1] out = out_a
-    cdef Py_ssize_t count = 0, wave
-    cdef Py_ssize_t[::1] bd
-    cdef uint8_t[::1] r
-    cdef int shift
-    if m == 0 or n_nodes < 2 or target == 0:
-        return out_a[:0], parent_a
-    if presorted or m == 1:
-        with nogil:
-            count = _scan_positions(0, m, &tail[0], &head[0], &parent[0], &rank[0], &out[0],
-                                    0, target)
-        return out_a[:count], parent_a
-    kmin, top_bits = key_range(weight, maximize)
-    raw, bounds, shift = radix.split_records(bits, kind, maximize, kmin, top_bits, threads)
-    r = raw
-    bd = bounds
-    # Waves of the sort/scan pipeline: at least 2**16 records, so that sorting a wave takes
-    # long against entering a parallel region, and at most 64 waves over the graph, so the scan
-    # waits for the first wave's sort only (1/64 of the work) before the pipeline fills.
-    wave = max(1 << 16, m // 64)
-    if m < MIN_EDGES_PIPELINE:
-        threads = 1
+
+def scan_positions(const index_t[::1] tail, const index_t[::1] head, index_t[::1] parent,
+                   uint8_t[::1] rank, Py_ssize_t target, int64_t[::1] out):
+    """Kruskal scan in position order (presorted input) until ``target`` accepted edges
+    (OUT: ``out``).  Returns the number accepted.  Ids in range are the caller's to ensure."""
+    cdef Py_ssize_t m = tail.shape[0], count
+    _check_scan(m, head.shape[0], parent.shape[0], rank.shape[0], out.shape[0], target)
     with nogil:
-        count = _kruskal_buckets(<Rec*>&r[0], &bd[0], shift, &tail[0], &head[0], &parent[0],
-                                 &rank[0], &out[0], target, wave, threads)
-    return out_a[:count], parent_a
+        count = _scan_positions(0, m, &tail[0], &head[0], &parent[0], &rank[0], &out[0], 0,
+                                target)
+    return count
+
+
+def kruskal_buckets(uint8_t[::1] raw, const Py_ssize_t[::1] bounds, int shift,
+                    const index_t[::1] tail, const index_t[::1] head, index_t[::1] parent,
+                    uint8_t[::1] rank, int64_t[::1] out, Py_ssize_t target, Py_ssize_t wave,
+                    int threads):
+    """Sort the 2048 top buckets of the records ``raw`` (``radix.split_records``) lazily and
+    scan them in key order until ``target`` edges (``_kruskal_buckets``; OUT: ``out``).
+    Returns the number accepted."""
+    cdef Py_ssize_t count
+    _check_scan(tail.shape[0], head.shape[0], parent.shape[0], rank.shape[0], out.shape[0],
+                target)
+    if bounds.shape[0] != 2049 or bounds[2048] > raw.shape[0] // 12:
+        raise ValueError(f"kruskal_buckets: needs 2049 bucket bounds within the "
+                         f"{raw.shape[0] // 12} records, received {bounds.shape[0]}.")
+    with nogil:
+        count = _kruskal_buckets(<Rec*>&raw[0], &bounds[0], shift, &tail[0], &head[0],
+                                 &parent[0], &rank[0], &out[0], target, wave, threads)
+    return count
