@@ -11,6 +11,7 @@ from fastmst import validation
 from fastmst._kernels.boruvka import boruvka
 from fastmst._kernels.filter_kruskal import filter_kruskal
 from fastmst._kernels.radix_kruskal import kruskal_radix
+from fastmst._kernels.scan import forest_bound, forest_size, kruskal
 from fastmst._kernels.tie_rule import edge_order
 from fastmst.solve.methods import RUNNERS, choose_method
 
@@ -365,7 +366,6 @@ def test_hypothesis_methods_equal_networkx(graph, maximize):
 def test_forest_bound_same_for_every_thread_count(index_dtype):
     """forest_bound is (nodes with an edge) - 1 for every thread count; the reference count of
     touched nodes is numpy.unique over both endpoint arrays."""
-    from fastmst._kernels.scan import forest_bound
     rng = np.random.default_rng(11)
     n = 3000
     for m in (1, 2, 7, 500, 4000):
@@ -434,3 +434,57 @@ def test_kernel_defs_refuse_weights_they_would_misread(kernel):
         run(tail, head, w[:m].astype(np.float16), n)          # not a kernel dtype
     with pytest.raises(TypeError):
         run(tail, head, list(w[:m]), n)                       # not an array
+
+
+SCAN_KERNELS = {
+    **KERNELS,
+    "forest_size": lambda t, h, w, n: forest_size(t, h, n),
+    "forest_bound": lambda t, h, w, n: (forest_bound(t, h, n),),
+    "kruskal": lambda t, h, w, n: kruskal(np.arange(len(h), dtype=np.int64), t, h, n, n - 1),
+}
+
+
+@pytest.mark.parametrize("kernel", sorted(SCAN_KERNELS))
+def test_kernel_functions_refuse_id_arrays_they_cannot_read(kernel):
+    """Each kernel function checks its id arrays before it allocates (the compiled defs take
+    contiguous int32 or int64 ids of one dtype): other dtypes, mixed dtypes, 2-D, lists and
+    strided views raise TypeError/ValueError; lengths that disagree and a negative node count
+    raise ValueError.  Correct arrays give a result."""
+    rng = np.random.default_rng(13)
+    n, m = 30, 200
+    tail = rng.integers(0, n, 2 * m)
+    head = rng.integers(0, n, m)
+    w = rng.standard_normal(m)
+    run = SCAN_KERNELS[kernel]
+    run(tail[:m].copy(), head, w, n)
+    for bad in (tail[:m].astype(np.float64), tail[:m].astype(np.int16), list(tail[:m]),
+                tail[:m].astype(np.int32), tail[:m].astype(">i8"), tail[:m].reshape(10, 20)):
+        with pytest.raises(TypeError):
+            run(bad, head, w, n)
+    with pytest.raises(ValueError):
+        run(tail[::2], head, w, n)                            # strided (not contiguous)
+    with pytest.raises(ValueError):
+        run(tail[:m + 1].copy(), head, np.append(w, 0.5), n)  # one head short
+    with pytest.raises(ValueError):
+        run(tail[:m].copy(), head, w, -1)                     # negative node count
+
+
+def test_compiled_passes_refuse_sizes_that_would_overrun():
+    """The thin defs of the compiled passes check the sizes that protect memory (ValueError,
+    never a write past an array): counters per block, slot space, output lengths."""
+    from fastmst._kernels import _filter_kruskal, _radix_kruskal, _scan
+    t = np.array([0, 1, 2], dtype=np.int32)
+    h = np.array([1, 2, 0], dtype=np.int32)
+    bits = np.arange(3, dtype=np.uint64).view(np.uint8)
+    with pytest.raises(ValueError):   # 2 blocks need 4096 counters
+        _filter_kruskal.digit_histogram(bits, 8, 3, 0, False, 0, 0, np.zeros(2048, np.intp), 2, 1)
+    with pytest.raises(ValueError):   # 3 edges of 8-byte bits read as 4-byte
+        _filter_kruskal.digit_histogram(bits, 4, 3, 0, False, 0, 0, np.zeros(2048, np.intp), 1, 1)
+    with pytest.raises(ValueError):   # 2 slots of records, 1 of side entries
+        _filter_kruskal.scatter(bits, 8, t, h, 0, False, 0, 0, 0, 2048, np.zeros(2048, np.intp),
+                                np.zeros(24, np.uint8), np.zeros(3, np.int32), 1, 1)
+    with pytest.raises(ValueError):   # target beyond the output
+        _radix_kruskal.scan_positions(t, h, np.arange(3, dtype=np.int32), np.zeros(3, np.uint8),
+                                      3, np.zeros(2, np.int64))
+    with pytest.raises(ValueError):   # one row of 1 word for 2 threads
+        _scan.count_touched(t, h, np.zeros(1, np.uint64), 1, 2)

@@ -89,7 +89,8 @@ def _fk_stream(bits, kind, comp, kmin, top_bits, tail, head, parent, op, ot, oh,
     s = top_bits - 11 if top_bits > 11 else 0
     # s < 32: the top digit holds the whole key, so every bucket is one key in slot order
     shift = s - 8 if s >= 32 else -1
-    rate = np.array([0, 0, max(1, FILTER_WINDOW), 0], dtype=np.intp)  # scanned, accepted, window, filtering
+    # the filter decision carried from chunk to chunk: scanned, accepted, window, filtering
+    rate = np.array([0, 0, max(1, FILTER_WINDOW), 0], dtype=np.intp)
     giant = np.zeros((parent.shape[0] + 63) // 64 + 1, dtype=np.uint64)
     state = np.zeros(2049, dtype=np.uint8)
     # position blocks, taken by the threads dynamically: 8 per thread, so that a thread the OS
