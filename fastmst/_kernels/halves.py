@@ -27,7 +27,7 @@ def _postorder_scratch(n):
                                                        for _ in range(6)])
 
 
-def _int64_vector(func, name, x):
+def int64_vector(func, name, x):
     """x as a one-dimensional int64 array (no copy), refused with a ValueError otherwise, so
     that the NumPy checks below index with it only when the kernel would accept it too."""
     arr = np.asarray(x)
@@ -57,9 +57,9 @@ def common_ancestors(pnode, a, b):
     -------
     lca : ndarray of shape (q,), dtype=int64
     """
-    pnode = _int64_vector("common_ancestors", "pnode", pnode)
-    a = _int64_vector("common_ancestors", "a", a)
-    b = _int64_vector("common_ancestors", "b", b)
+    pnode = int64_vector("common_ancestors", "pnode", pnode)
+    a = int64_vector("common_ancestors", "a", a)
+    b = int64_vector("common_ancestors", "b", b)
     n = pnode.shape[0]
     q = a.shape[0]
     if b.shape[0] != q:
@@ -113,10 +113,10 @@ def cover_by_halves(pnode, depth, starts, top_depth, cost, tie):
     chosen : ndarray of shape (H,), dtype=bool
         The halves of one optimal cover.
     """
-    pn = _int64_vector("cover_by_halves", "pnode", pnode)
-    dp = _int64_vector("cover_by_halves", "depth", depth)
-    st = _int64_vector("cover_by_halves", "starts", starts)
-    td = _int64_vector("cover_by_halves", "top_depth", top_depth)
+    pn = int64_vector("cover_by_halves", "pnode", pnode)
+    dp = int64_vector("cover_by_halves", "depth", depth)
+    st = int64_vector("cover_by_halves", "starts", starts)
+    td = int64_vector("cover_by_halves", "top_depth", top_depth)
     n = pn.shape[0]
     H = np.shape(cost)[0] if np.ndim(cost) else 0
     if dp.shape[0] != n:

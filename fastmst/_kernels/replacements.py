@@ -14,22 +14,12 @@ import operator
 import numpy as np
 
 from fastmst._kernels import _replacements
+from fastmst._kernels.halves import int64_vector
 
 # int32 words of one node's record (_replacements.pyx's walk_t: up, top, pnode, depth, cover,
 # rank and two words of padding), and the word that holds the cover
 _RECORD_WORDS = 8
 _COVER_WORD = 4
-
-
-def _int64_vector(name, x):
-    """x as a one-dimensional int64 array (no copy), refused with a ValueError otherwise, so
-    that the NumPy checks below index with it only when the kernel would accept it too."""
-    arr = np.asarray(x)
-    if arr.ndim != 1 or arr.dtype != np.int64:
-        raise ValueError(f"first_covers: {name} must be a one-dimensional int64 array, "
-                         f"received {arr.ndim} dimension(s) of {arr.dtype}; convert it with "
-                         f"np.ascontiguousarray({name}, dtype=np.int64).")
-    return arr
 
 
 def first_covers(pnode, pedge, depth, n_links, tail, head, ranked):
@@ -58,10 +48,10 @@ def first_covers(pnode, pedge, depth, n_links, tail, head, ranked):
     cover : ndarray of shape (n_links,), dtype=int64
         Position of the first covering link, -1 where none covers it.
     """
-    pnode = _int64_vector("pnode", pnode)
-    pe = _int64_vector("pedge", pedge)
-    depth = _int64_vector("depth", depth)
-    rk = _int64_vector("ranked", ranked)
+    pnode = int64_vector("first_covers", "pnode", pnode)
+    pe = int64_vector("first_covers", "pedge", pedge)
+    depth = int64_vector("first_covers", "depth", depth)
+    rk = int64_vector("first_covers", "ranked", ranked)
     n_links = operator.index(n_links)
     n = pnode.shape[0]
     e = np.shape(tail)[0] if np.ndim(tail) else 0
