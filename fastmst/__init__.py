@@ -3,7 +3,7 @@
 The public API is re-exported here; see ``minimum_spanning_forest`` for the semantics and the
 tie rule shared by every function.
 """
-from fastmst._kernels.dsu import DisjointSet
+from fastmst._kernels.disjoint_set import DisjointSet
 from fastmst.solve import METHODS, SpanningForest, minimum_spanning_forest
 from fastmst.io import EdgeList, read_edges, read_nodes, write_forest
 from fastmst.toolkit.certify import ForestCheck, check_forest

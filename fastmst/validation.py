@@ -29,9 +29,9 @@ MAX_THREADS = 4096
 def node_bytes(n_nodes: int) -> int:
     """Bytes per node that every solve allocates at least: the union-find parent (4-byte ids
     below 2**31 nodes, 8-byte beyond), the int64 labels of the result and the int64 table
-    that numbers the components (``fastmst._kernels.dsu.labels_from_parent``).  Borůvka needs
-    more (40 bytes per node with 8-byte ids); this is the floor, so a refusal based on it is
-    never premature."""
+    that numbers the components (``fastmst._kernels.disjoint_set.labels_from_parent``).
+    Borůvka needs more (40 bytes per node with 8-byte ids); this is the floor, so a refusal
+    based on it is never premature."""
     return (4 if n_nodes < INT32_LIMIT else 8) + 8 + 8
 
 

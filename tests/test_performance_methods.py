@@ -11,8 +11,8 @@ from fastmst import validation
 from fastmst._kernels.boruvka import boruvka
 from fastmst._kernels.filter_kruskal import filter_kruskal
 from fastmst._kernels.radix_kruskal import kruskal_radix
+from fastmst._kernels.rule_order import edge_order
 from fastmst._kernels.scan import forest_bound, forest_size, kruskal
-from fastmst._kernels.tie_rule import edge_order
 from fastmst.solve.methods import RUNNERS, choose_method
 
 nx = pytest.importorskip("networkx")

@@ -1,4 +1,5 @@
-"""The tie rule's one home (fastmst._kernels.tie_rule) against NumPy as the reference.
+"""The tie rule (defined in fastmst._kernels.tie_rule; Python face fastmst._kernels.rule_order)
+against NumPy as the reference.
 
 The rule: weight ascending (descending with maximize), equal weights by input position, and
 -0.0 == +0.0 (IEEE 754 equality, which NumPy's comparisons and sorts follow).  Each property is
@@ -9,8 +10,8 @@ import numpy as np
 import pytest
 from hypothesis import given, strategies as st
 
-from fastmst._kernels.tie_rule import (edge_order, first_unsorted, key_range, sort_positions,
-                                       weight_bits, weight_keys, weights_from_keys)
+from fastmst._kernels.rule_order import (edge_order, first_unsorted, key_range, sort_positions,
+                                         weight_bits, weight_keys, weights_from_keys)
 
 UINT = {4: np.uint32, 8: np.uint64}
 

@@ -11,7 +11,7 @@ import numpy as np
 
 from fastmst._kernels import _boruvka
 from fastmst._kernels.edge_checks import check_edge_arrays, check_id_arrays
-from fastmst._kernels.tie_rule import weight_bits
+from fastmst._kernels.rule_order import weight_bits
 
 #: Edges per thread below which fewer threads are used (each round enters several parallel
 #: regions; on a busy machine each costs a wake-up).  Tests lower it.
@@ -26,7 +26,7 @@ def boruvka(tail, head, weight, n_nodes, maximize=False, threads=1):
     tail, head : ndarray of shape (E,), dtype=int32 or int64
         Validated endpoint ids in [0, n_nodes) (read in place).
     weight : ndarray of shape (E,)
-        Validated weights (read in place), checked by ``tie_rule.weight_bits``: a kernel dtype,
+        Validated weights (read in place), checked by ``rule_order.weight_bits``: a kernel dtype,
         native byte order, contiguous.
     n_nodes : int
     maximize : bool

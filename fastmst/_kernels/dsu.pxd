@@ -114,11 +114,3 @@ cdef inline int64_t label_first_appearance(const index_t* ids, Py_ssize_t n, int
         out[i] = table[ids[i]]
     return k
 
-
-cdef class DisjointSet:
-    cdef readonly object _parent
-    cdef readonly object _rank
-    cdef readonly object _size
-    cdef readonly Py_ssize_t n
-    cdef Py_ssize_t _n_sets
-    cdef bint _wide

@@ -1,27 +1,17 @@
-"""Disjoint set (union-find) with union by rank and true path compression."""
-import os
+"""Disjoint sets (union-find, union by rank, true path compression): the thin compiled defs.
 
-import numpy as np
+The union-find itself is ``dsu.pxd`` (inline, cimported by the kernels).  The Python face --
+the ``DisjointSet`` class, ``labels_from_parent`` and ``first_appearance``, with their checks,
+dtype choices and allocations -- is ``fastmst/_kernels/disjoint_set.py``.  This module keeps the
+typed defs it calls, one per parent dtype (int32 below 2**31 elements, int64 beyond):
+``find_int32/64``, ``union_pairs_int32/64``, ``label_parents_int32/64``, and ``label_ids``.
+They check that the array lengths agree; the element ids must be in range (the Python face
+checks them).
+"""
 from libc.stdint cimport int32_t, int64_t, uint8_t
 
 from fastmst._kernels._typedefs cimport index_t
 from fastmst._kernels.dsu cimport dsu_find, dsu_link, label_first_appearance
-
-
-_INT32_LIMIT = 2 ** 31
-
-
-def _element_bytes(n):
-    """Bytes per element of a DisjointSet of ``n``: parent (4 or 8), rank (1), size (8)."""
-    return (8 if n >= _INT32_LIMIT else 4) + 1 + 8
-
-
-def _memory_bytes():
-    """Physical memory of this machine, or None where it cannot be read."""
-    try:
-        return int(os.sysconf("SC_PHYS_PAGES")) * int(os.sysconf("SC_PAGE_SIZE"))
-    except (AttributeError, ValueError, OSError):
-        return None
 
 
 cdef index_t _find_grow(index_t* parent, int64_t* size, uint8_t* rank,
@@ -50,148 +40,6 @@ cdef Py_ssize_t _union_pairs(index_t[::1] parent, uint8_t[::1] rank, int64_t[::1
     return merges
 
 
-cdef class DisjointSet:
-    """Disjoint sets over the elements 0..n-1.
-
-    Union by rank with true path compression: every ``find`` re-points each node on the walked
-    path straight at its root, so a sequence of m operations costs O(m alpha(n)).  Parents are
-    stored as int32 when ``n < 2**31`` and as int64 beyond.
-
-    Parameters
-    ----------
-    n : int
-        Number of elements, ``n >= 0``.
-
-    Examples
-    --------
-    >>> ds = DisjointSet(4)
-    >>> ds.union(0, 1), ds.union(1, 0)
-    (True, False)
-    >>> ds.connected(0, 1), ds.n_sets, ds.set_size(1)
-    (True, 3, 2)
-    >>> ds.labels().tolist()
-    [0, 0, 1, 2]
-    """
-
-    def __init__(self, n):
-        if isinstance(n, bool) or not isinstance(n, (int, np.integer)):
-            raise TypeError(f"DisjointSet(n): n must be an integer, received {type(n).__name__} "
-                            f"{n!r}; pass the number of elements, e.g. DisjointSet(10).")
-        n = int(n)
-        if n < 0:
-            raise ValueError(f"DisjointSet(n): n must be >= 0, received {n}; pass the number of "
-                             f"elements.")
-        need = n * _element_bytes(n)
-        have = _memory_bytes()
-        if need >= 2**63 or (have is not None and need > have):
-            where = ("beyond any address space" if have is None or need >= 2**63 else
-                     f"more than this machine's {have / 2**30:,.1f} GiB of memory")
-            raise ValueError(f"DisjointSet(n): n={n} elements would need "
-                             f"{need / 2**30:,.1f} GiB ({_element_bytes(n)} bytes each), "
-                             f"{where}; expected n at most "
-                             f"{(have or 2**63) // _element_bytes(n):,}. Pass the number of "
-                             f"elements actually used (ids 0..n-1).")
-        self.n = n
-        self._n_sets = n
-        self._wide = n >= _INT32_LIMIT
-        self._parent = np.arange(n, dtype=np.int64 if self._wide else np.int32)
-        self._rank = np.zeros(n, dtype=np.uint8)
-        self._size = np.ones(n, dtype=np.int64)
-
-    def _check(self, x, name="x"):
-        if isinstance(x, bool) or not isinstance(x, (int, np.integer)):
-            raise TypeError(f"DisjointSet: {name} must be an integer element id, received "
-                            f"{type(x).__name__} {x!r}.")
-        x = int(x)
-        if not 0 <= x < self.n:
-            raise ValueError(f"DisjointSet: {name}={x} is out of range; expected 0 <= {name} < "
-                             f"{self.n}.")
-        return x
-
-    def find(self, x):
-        """Return the representative (root) of the set holding ``x``; compresses the path."""
-        x = self._check(x)
-        cdef int32_t[::1] p32
-        cdef int64_t[::1] p64
-        if self._wide:
-            p64 = self._parent
-            return int(dsu_find(&p64[0], <int64_t>x))
-        p32 = self._parent
-        return int(dsu_find(&p32[0], <int32_t>x))
-
-    def union(self, a, b):
-        """Merge the sets of ``a`` and ``b``; return True when two different sets merged."""
-        a = self._check(a, "a")
-        b = self._check(b, "b")
-        out = self.union_pairs(np.array([a], dtype=np.int64), np.array([b], dtype=np.int64))
-        return bool(out[0])
-
-    def union_pairs(self, a, b):
-        """Union the pairs ``(a[i], b[i])`` in order.
-
-        Returns
-        -------
-        merged : ndarray of shape (len(a),), dtype=bool
-            ``merged[i]`` is True when pair i joined two different sets at the moment it was
-            applied (so the True pairs form a spanning forest of the pairs).
-        """
-        a = np.asarray(a)
-        b = np.asarray(b)
-        if a.ndim != 1 or b.ndim != 1 or a.shape[0] != b.shape[0]:
-            raise ValueError(f"DisjointSet.union_pairs: a and b must be 1-D arrays of one length, "
-                             f"received shapes {a.shape} and {b.shape}.")
-        for name, arr in (("a", a), ("b", b)):
-            if arr.size and arr.dtype.kind not in "iu":
-                raise TypeError(f"DisjointSet.union_pairs: {name} must hold integers, received "
-                                f"dtype {arr.dtype}; convert with .astype(np.int64).")
-            if arr.size:
-                bad = np.flatnonzero((arr < 0) | (arr >= self.n))
-                if bad.size:
-                    raise ValueError(f"DisjointSet.union_pairs: {name}[{bad[0]}] = {arr[bad[0]]} "
-                                     f"is out of range; expected 0 <= value < {self.n}.")
-        a64 = np.ascontiguousarray(a, dtype=np.int64)
-        b64 = np.ascontiguousarray(b, dtype=np.int64)
-        out = np.zeros(a64.shape[0], dtype=np.uint8)
-        cdef Py_ssize_t merges
-        if a64.shape[0] == 0:
-            return out.view(bool)
-        if self._wide:
-            merges = _union_pairs[int64_t](self._parent, self._rank, self._size, a64, b64, out)
-        else:
-            merges = _union_pairs[int32_t](self._parent, self._rank, self._size, a64, b64, out)
-        self._n_sets -= merges
-        return out.view(bool)
-
-    def connected(self, a, b):
-        """True when ``a`` and ``b`` are in the same set."""
-        return self.find(a) == self.find(b)
-
-    def set_size(self, x):
-        """Number of elements in the set holding ``x``."""
-        return int(self._size[self.find(x)])
-
-    @property
-    def n_sets(self):
-        """Number of disjoint sets."""
-        return self._n_sets
-
-    def labels(self):
-        """Compact set ids.
-
-        Returns
-        -------
-        labels : ndarray of shape (n,), dtype=int64
-            Ids 0..k-1, numbered in order of first appearance when scanning elements 0..n-1.
-        """
-        return labels_from_parent(self._parent)[0]
-
-    def __len__(self):
-        return self.n
-
-    def __repr__(self):
-        return f"DisjointSet(n={self.n}, n_sets={self._n_sets})"
-
-
 cdef int64_t _labels_from_parent(index_t[::1] parent, int64_t[::1] table,
                                  int64_t[::1] out) noexcept nogil:
     cdef Py_ssize_t i, n = parent.shape[0]
@@ -200,64 +48,84 @@ cdef int64_t _labels_from_parent(index_t[::1] parent, int64_t[::1] table,
     return label_first_appearance(&parent[0], n, &table[0], &out[0])
 
 
-def labels_from_parent(index_t[::1] parent):
-    """Compact component ids from a union-find parent array (compresses it in place).
+cdef int _check_lengths(str func, Py_ssize_t n, Py_ssize_t n1, Py_ssize_t n2) except -1:
+    if n1 != n or n2 != n:
+        raise ValueError(f"{func}: the arrays must have one length, received {n}, {n1} and "
+                         f"{n2}; pass arrays allocated for the same elements.")
+    return 0
 
-    Parameters
-    ----------
-    parent : ndarray of shape (n,), dtype=int32 or int64
-        A parent array in the ``parent[root] == root`` form, entries in [0, n).
 
-    Returns
-    -------
-    labels : ndarray of shape (n,), dtype=int64
-        Ids 0..k-1 in order of first appearance.
-    k : int
-        Number of components.
-    """
-    cdef Py_ssize_t n = parent.shape[0]
-    out = np.empty(n, dtype=np.int64)
-    table = np.full(n, -1, dtype=np.int64)
-    cdef int64_t[::1] o = out
-    cdef int64_t[::1] t = table
-    cdef int64_t k = 0
-    if n:
+cdef int _check_element(Py_ssize_t x, Py_ssize_t n) except -1:
+    if not 0 <= x < n:
+        raise ValueError(f"find: x={x} is out of range; expected 0 <= x < {n}.")
+    return 0
+
+
+def find_int32(int32_t[::1] parent, Py_ssize_t x):
+    """Root of ``x`` in an int32 parent array; compresses the path (``0 <= x < len(parent)``)."""
+    _check_element(x, parent.shape[0])
+    return dsu_find(&parent[0], <int32_t>x)
+
+
+def find_int64(int64_t[::1] parent, Py_ssize_t x):
+    """As ``find_int32`` for an int64 parent array."""
+    _check_element(x, parent.shape[0])
+    return dsu_find(&parent[0], <int64_t>x)
+
+
+def union_pairs_int32(int32_t[::1] parent, uint8_t[::1] rank, int64_t[::1] size,
+                      const int64_t[::1] a, const int64_t[::1] b, uint8_t[::1] out):
+    """Union the pairs ``(a[i], b[i])`` in order (ids in [0, len(parent)), checked by the
+    caller); OUT: ``out[i]`` 1 when pair i merged two sets.  Returns the number of merges."""
+    cdef Py_ssize_t merges = 0
+    _check_lengths("union_pairs", parent.shape[0], rank.shape[0], size.shape[0])
+    _check_lengths("union_pairs", a.shape[0], b.shape[0], out.shape[0])
+    if a.shape[0]:
         with nogil:
-            k = _labels_from_parent(parent, t, o)
-    return out, k
+            merges = _union_pairs(parent, rank, size, a, b, out)
+    return merges
 
 
-def first_appearance(const int64_t[::1] ids, Py_ssize_t n_ids):
-    """Relabel ids by order of first appearance.
-
-    Parameters
-    ----------
-    ids : ndarray of shape (n,), dtype=int64
-        Ids in [0, n_ids) (checked).
-    n_ids : int
-        Bound on the ids (the size of the lookup table).
-
-    Returns
-    -------
-    labels : ndarray of shape (n,), dtype=int64
-        ``labels[i]`` is the number of ``ids[i]`` among the distinct ids in order of first
-        appearance (0, 1, ...).
-    k : int
-        Number of distinct ids.
-    """
-    cdef Py_ssize_t n = ids.shape[0]
-    if n_ids < 0:
-        raise ValueError(f"first_appearance: n_ids must be >= 0, received {n_ids}.")
-    arr = np.asarray(ids)
-    if n and (arr.min() < 0 or arr.max() >= n_ids):
-        raise ValueError(f"first_appearance: ids must be in [0, {n_ids}), received values in "
-                         f"[{arr.min()}, {arr.max()}].")
-    out = np.empty(n, dtype=np.int64)
-    table = np.full(n_ids, -1, dtype=np.int64)
-    cdef int64_t[::1] o = out
-    cdef int64_t[::1] t = table
-    cdef int64_t k = 0
-    if n:
+def union_pairs_int64(int64_t[::1] parent, uint8_t[::1] rank, int64_t[::1] size,
+                      const int64_t[::1] a, const int64_t[::1] b, uint8_t[::1] out):
+    """As ``union_pairs_int32`` for an int64 parent array."""
+    cdef Py_ssize_t merges = 0
+    _check_lengths("union_pairs", parent.shape[0], rank.shape[0], size.shape[0])
+    _check_lengths("union_pairs", a.shape[0], b.shape[0], out.shape[0])
+    if a.shape[0]:
         with nogil:
-            k = label_first_appearance(&ids[0], n, &t[0], &o[0])
-    return out, k
+            merges = _union_pairs(parent, rank, size, a, b, out)
+    return merges
+
+
+def label_parents_int32(int32_t[::1] parent, int64_t[::1] table, int64_t[::1] out):
+    """OUT: ``out``, the component ids of an int32 parent array (compressed in place) by first
+    appearance.  SCRATCH: ``table``, all -1.  Returns the number of components."""
+    cdef int64_t k = 0
+    _check_lengths("labels_from_parent", parent.shape[0], table.shape[0], out.shape[0])
+    if parent.shape[0]:
+        with nogil:
+            k = _labels_from_parent(parent, table, out)
+    return k
+
+
+def label_parents_int64(int64_t[::1] parent, int64_t[::1] table, int64_t[::1] out):
+    """As ``label_parents_int32`` for an int64 parent array."""
+    cdef int64_t k = 0
+    _check_lengths("labels_from_parent", parent.shape[0], table.shape[0], out.shape[0])
+    if parent.shape[0]:
+        with nogil:
+            k = _labels_from_parent(parent, table, out)
+    return k
+
+
+def label_ids(const int64_t[::1] ids, int64_t[::1] table, int64_t[::1] out):
+    """OUT: ``out[i]``, the number of ``ids[i]`` among the distinct ids in order of first
+    appearance.  SCRATCH: ``table``, all -1, one entry per possible id (ids in
+    [0, len(table)), checked by the caller).  Returns the number of distinct ids."""
+    cdef int64_t k = 0
+    _check_lengths("first_appearance", ids.shape[0], out.shape[0], out.shape[0])
+    if ids.shape[0]:
+        with nogil:
+            k = label_first_appearance(&ids[0], ids.shape[0], &table[0], &out[0])
+    return k

@@ -15,7 +15,7 @@ from fastmst._kernels import _filter_kruskal as _fk
 from fastmst._kernels import radix
 from fastmst._kernels.edge_checks import check_id_arrays
 from fastmst._kernels.radix_kruskal import check_record_inputs, kruskal_radix
-from fastmst._kernels.tie_rule import key_range, weights_from_keys
+from fastmst._kernels.rule_order import key_range, weights_from_keys
 
 #: Scanned edges between two decisions on filtering (tests lower it to filter small graphs).
 FILTER_WINDOW = 8192
@@ -167,7 +167,7 @@ def filter_kruskal(tail, head, weight, n_nodes, maximize=False, target=-1, threa
     ----------
     tail, head, weight, n_nodes, maximize, target
         As for ``radix_kruskal.kruskal_radix`` (``weight`` checked by
-        ``tie_rule.weight_bits``: a kernel dtype, native byte order, contiguous, one per edge).
+        ``rule_order.weight_bits``: a kernel dtype, native byte order, contiguous, one per edge).
     threads : int
         Threads for the counting, copying and filtering passes; the scan is serial and the
         result does not depend on it.

@@ -11,7 +11,7 @@ import numpy as np
 from fastmst._kernels import _radix_kruskal as _rk
 from fastmst._kernels import radix
 from fastmst._kernels.edge_checks import check_edge_arrays, check_id_arrays
-from fastmst._kernels.tie_rule import key_range, weight_bits
+from fastmst._kernels.rule_order import key_range, weight_bits
 
 #: Below this many edges the sort/scan pipeline of kruskal_radix runs on one thread (too short
 #: to pay for waking a second one).  Tests lower it to run the parallel code on small graphs.
@@ -21,7 +21,7 @@ MIN_EDGES_PIPELINE = 1 << 22
 def check_record_inputs(m, n_head, weight, n_nodes, target, func):
     """The preconditions shared by the record-based Kruskal kernels (``kruskal_radix``,
     ``filter_kruskal``): ``m`` tails, ``n_head`` heads, weights checked by
-    ``tie_rule.weight_bits``, fewer than 2**32 edges (32-bit record positions).  Returns
+    ``rule_order.weight_bits``, fewer than 2**32 edges (32-bit record positions).  Returns
     (weight bits, key kind, target), ``target`` -1 becoming ``n_nodes - 1``."""
     m = operator.index(m)
     n_nodes = operator.index(n_nodes)
@@ -45,7 +45,7 @@ def kruskal_radix(tail, head, weight, n_nodes, maximize=False, target=-1, thread
     tail, head : ndarray of shape (E,), dtype=int32 or int64
         Validated endpoint ids in [0, n_nodes) (read in place).
     weight : ndarray of shape (E,)
-        Validated weights (read in place, ``E < 2**32``), checked by ``tie_rule.weight_bits``:
+        Validated weights (read in place, ``E < 2**32``), checked by ``rule_order.weight_bits``:
         a kernel dtype, native byte order, contiguous.
     n_nodes : int
     maximize : bool

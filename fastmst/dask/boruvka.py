@@ -18,8 +18,8 @@ import numpy as np
 import dask
 
 from fastmst import validation
-from fastmst._kernels.dsu import DisjointSet
-from fastmst._kernels.tie_rule import weight_keys
+from fastmst._kernels.disjoint_set import DisjointSet
+from fastmst._kernels.rule_order import weight_keys
 from fastmst.dask import chunks, runner, tree_filter
 
 #: Components per range at least (smaller ranges only add tasks), and ranges at most.

@@ -18,7 +18,7 @@ import pandas as pd
 from dask.delayed import Delayed
 
 from fastmst import validation
-from fastmst._kernels.tie_rule import weight_keys
+from fastmst._kernels.rule_order import weight_keys
 from fastmst.dask import checks
 
 FUNC = "fastmst.dask.minimum_spanning_forest"

@@ -43,7 +43,7 @@ import numpy as np
 
 import dask
 
-from fastmst._kernels.tie_rule import weight_keys
+from fastmst._kernels.rule_order import weight_keys
 from fastmst.dask import boruvka, chunks, runner
 from fastmst import validation
 from fastmst.solve import constraints

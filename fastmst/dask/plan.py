@@ -9,7 +9,7 @@ import numpy as np
 import dask
 
 from fastmst import validation
-from fastmst._kernels.dsu import first_appearance
+from fastmst._kernels.disjoint_set import first_appearance
 from fastmst.dask import boruvka, chunks, filter_kruskal, runner
 from fastmst.solve.result import SpanningForest
 from fastmst.solve.solve import solve_trusted

@@ -5,7 +5,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from fastmst._kernels.tie_rule import edge_order
+from fastmst._kernels.rule_order import edge_order
 from fastmst._kernels.replacements import first_covers
 from fastmst.design.checks import graph_and_design
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from fastmst._kernels.tie_rule import edge_order
+from fastmst._kernels.rule_order import edge_order
 
 
 def cheapest_pairs(g, usable: np.ndarray):

@@ -12,7 +12,7 @@ from __future__ import annotations
 import numpy as np
 
 from fastmst import validation
-from fastmst._kernels.dsu import first_appearance, labels_from_parent
+from fastmst._kernels.disjoint_set import first_appearance, labels_from_parent
 from fastmst._kernels.paths import kruskal_tree, root_forest, union_parent
 from fastmst.solve import methods, totals
 

@@ -15,7 +15,7 @@ import numpy as np
 
 from fastmst import validation
 from fastmst._kernels.boruvka import boruvka
-from fastmst._kernels.dsu import labels_from_parent
+from fastmst._kernels.disjoint_set import labels_from_parent
 from fastmst._kernels.filter_kruskal import filter_kruskal
 from fastmst._kernels.radix import MAX_RECORDS
 from fastmst._kernels.radix_kruskal import kruskal_radix
@@ -23,7 +23,7 @@ from fastmst._kernels.scan import forest_bound, forest_size, kruskal
 from fastmst._kernels.small import MAX_EDGES as SMALL_EDGES
 from fastmst._kernels.small import MAX_NODES as SMALL_NODES
 from fastmst._kernels.small import small_forest
-from fastmst._kernels.tie_rule import edge_order, sort_positions
+from fastmst._kernels.rule_order import edge_order, sort_positions
 
 
 class KernelResult(NamedTuple):

@@ -5,7 +5,7 @@ import numpy as np
 
 from fastmst import validation
 from fastmst._kernels.small import small_forest
-from fastmst._kernels.tie_rule import first_unsorted
+from fastmst._kernels.rule_order import first_unsorted
 from fastmst.solve.constraints import constrained_forest, forest_fields, run
 from fastmst.solve.methods import METHODS
 from fastmst.solve.result import SpanningForest

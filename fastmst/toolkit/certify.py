@@ -10,7 +10,7 @@ from fastmst.solve import totals
 from fastmst.solve.constraints import constrained_forest
 from fastmst.solve.solve import solve_validated
 from fastmst.toolkit.checks import constrained_order, validate_graph_with_forest, weight_gap
-from fastmst._kernels.tie_rule import sort_positions
+from fastmst._kernels.rule_order import sort_positions
 from fastmst.toolkit.pathmax import heaviest_on_paths, merge_tree
 
 _FUNC = "check_forest"

@@ -12,7 +12,7 @@ import math
 import numpy as np
 
 from fastmst import validation
-from fastmst._kernels.dsu import labels_from_parent
+from fastmst._kernels.disjoint_set import labels_from_parent
 from fastmst._kernels.paths import union_parent
 
 

@@ -5,7 +5,7 @@ import numpy as np
 
 from fastmst import validation
 from fastmst._kernels.paths import cover_paths, root_forest
-from fastmst._kernels.tie_rule import edge_order, sort_positions
+from fastmst._kernels.rule_order import edge_order, sort_positions
 from fastmst.toolkit.checks import constrained_order, validate_graph_with_forest, weight_gap
 from fastmst.toolkit.pathmax import heaviest_on_paths, merge_tree
 

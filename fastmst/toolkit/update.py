@@ -8,7 +8,7 @@ from __future__ import annotations
 import numpy as np
 
 from fastmst import validation
-from fastmst._kernels.tie_rule import edge_order
+from fastmst._kernels.rule_order import edge_order
 from fastmst.solve.constraints import constrained_forest, excess, forest_fields, run
 
 _FUNC = "SpanningForest.add_edges"
