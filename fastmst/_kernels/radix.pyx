@@ -14,6 +14,11 @@ digits that are constant within the bucket skipped, insertion sort from 24 recor
 copying back after each pass; larger buckets, or when the buffer cannot be allocated, are sorted
 in place by 8-bit American-flag passes.  Peak memory is the 12-byte records plus one bucket's
 scratch per sorting thread.
+
+This compiled module keeps the kernels and thin typed defs over them (``split_buckets32/64``,
+``sort_buckets``, ``openmp_max_threads``); ``split_records``, which checks, sizes and allocates
+the arrays and calls ``split_buckets32/64``, is the Python module ``records.py`` (also reachable
+as ``radix.split_records``).
 """
 import numpy as np
 from cython.parallel cimport prange
@@ -284,47 +289,41 @@ cdef void _fill_split(const ukey_t[::1] bits, int kind, bint complement, uint64_
             out[j].pos = <uint32_t>i
 
 
-def split_records(const ukey_t[::1] bits, int kind, bint maximize, uint64_t kmin, int top_bits,
-                  int threads=1):
-    """Records of validated weights, already split into 2048 top-digit buckets in key order.
-
-    Parameters
-    ----------
-    bits : ndarray of shape (E,), dtype=uint32 or uint64
-        The weight bits and their key kind, from ``tie_rule.weight_bits``; ``2 <= E < 2**32``.
-    kind : int
-    maximize : bool
-        Complement the keys (descending weight order).
-    kmin, top_bits : int
-        From ``tie_rule.key_range`` of the same weights and ``maximize``.
-    threads : int
-        Threads for the two passes; the result does not depend on it.
-
-    Returns
-    -------
-    records : ndarray of shape (12 * E,), dtype=uint8
-        Packed records; bucket b is ``records[12*bounds[b]:12*bounds[b+1]]``, each bucket in
-        position order (not yet sorted by key within).
-    bounds : ndarray of shape (2049,), dtype=intp
-    next_shift : int
-        The shift to pass to the bucket sort.
-    """
-    cdef Py_ssize_t m = bits.shape[0]
-    if m >= MAX_RECORDS or m < 2:
+cdef int _check_split(Py_ssize_t m, int top_bits, Py_ssize_t n_raw, Py_ssize_t n_hist,
+                      Py_ssize_t n_bounds, int threads) except -1:
+    if m >= (<Py_ssize_t>1) << 32 or m < 2:           # MAX_RECORDS
         raise ValueError(f"split_records: needs 2 <= E < 2**32 edges, received {m}.")
     if not 1 <= top_bits <= 96:
         raise ValueError(f"split_records: top_bits must be in [1, 96], received {top_bits}.")
-    threads = max(1, min(threads, m // MIN_EDGES_PER_THREAD + 1))
-    raw = np.empty(12 * m, dtype=np.uint8)
-    bounds = np.empty(2049, dtype=np.intp)
-    hist = np.empty(threads * 2048, dtype=np.intp)
-    cdef uint8_t[::1] r = raw
-    cdef Py_ssize_t[::1] bd = bounds
-    cdef Py_ssize_t[::1] hs = hist
+    if threads < 1 or n_raw != 12 * m or n_hist < 2048 * threads or n_bounds != 2049:
+        raise ValueError(f"split_records: needs threads >= 1 and arrays of 12 * E bytes, "
+                         f"2048 * threads and 2049 entries, received threads={threads}, E={m}, "
+                         f"{n_raw}, {n_hist} and {n_bounds}; allocate them as records.py does.")
+    return 0
+
+
+def split_buckets32(const uint32_t[::1] bits, int kind, bint maximize, uint64_t kmin,
+                    int top_bits, uint8_t[::1] raw, Py_ssize_t[::1] hist,
+                    Py_ssize_t[::1] bounds, int threads):
+    """OUT: ``raw``, the records of 4-byte weight bits split into 2048 top-digit buckets, and
+    ``bounds``.  SCRATCH: ``hist``.  Returns the shift to pass to ``sort_buckets``
+    (``records.split_records`` allocates the arrays and documents the arguments)."""
+    _check_split(bits.shape[0], top_bits, raw.shape[0], hist.shape[0], bounds.shape[0], threads)
     with nogil:
-        _fill_split(bits, kind, maximize, kmin, top_bits, <Rec*>&r[0], &hs[0], &bd[0], threads)
-    s = top_bits - 11 if top_bits > 11 else 0
-    return raw, bounds, _next_shift(s)
+        _fill_split(bits, kind, maximize, kmin, top_bits, <Rec*>&raw[0], &hist[0], &bounds[0],
+                    threads)
+    return _next_shift(top_bits - 11 if top_bits > 11 else 0)
+
+
+def split_buckets64(const uint64_t[::1] bits, int kind, bint maximize, uint64_t kmin,
+                    int top_bits, uint8_t[::1] raw, Py_ssize_t[::1] hist,
+                    Py_ssize_t[::1] bounds, int threads):
+    """As ``split_buckets32`` for 8-byte weight bits."""
+    _check_split(bits.shape[0], top_bits, raw.shape[0], hist.shape[0], bounds.shape[0], threads)
+    with nogil:
+        _fill_split(bits, kind, maximize, kmin, top_bits, <Rec*>&raw[0], &hist[0], &bounds[0],
+                    threads)
+    return _next_shift(top_bits - 11 if top_bits > 11 else 0)
 
 
 def sort_buckets(uint8_t[::1] raw, const Py_ssize_t[::1] bounds, int next_shift,
@@ -349,3 +348,13 @@ def openmp_max_threads():
     default (``OMP_NUM_THREADS``, or the limit ``threadpoolctl.threadpool_limits`` set); 0 when
     the kernels were built without OpenMP."""
     return omp_max_threads()
+
+
+def __getattr__(name):
+    """``split_records``, whose Python half is ``records.py``, looked up on first use so that
+    code calling ``radix.split_records`` keeps working (PEP 562)."""
+    if name == "split_records":
+        from fastmst._kernels.records import split_records
+        globals()[name] = split_records      # later look-ups find it directly
+        return split_records
+    raise AttributeError(f"module 'fastmst._kernels.radix' has no attribute {name!r}")

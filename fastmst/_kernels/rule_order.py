@@ -19,7 +19,7 @@ import operator
 
 import numpy as np
 
-from fastmst._kernels import radix, tie_rule
+from fastmst._kernels import radix, records, tie_rule
 
 __all__ = ["KERNEL_DTYPES", "key_kind", "weight_bits", "weight_keys", "weights_from_keys",
            "key_range", "first_unsorted", "edge_order", "sort_positions"]
@@ -221,7 +221,7 @@ def edge_order(weight, descending=False, threads=1):
         return np.arange(m, dtype=np.int64)
     bits, kind = weight_bits(weight, m, "edge_order")
     kmin, top_bits = key_range(weight, descending)
-    raw, bounds, shift = radix.split_records(bits, kind, descending, kmin, top_bits, threads)
+    raw, bounds, shift = records.split_records(bits, kind, descending, kmin, top_bits, threads)
     radix.sort_buckets(raw, bounds, shift, 0, 2048, threads)
     return raw.view(radix.RECORD_DTYPE)["pos"].astype(np.int64)
 

@@ -3,14 +3,15 @@ inverse; the Python face is fastmst._kernels.rule_order, whose names are importa
 import numpy as np
 import numpy.typing as npt
 
-from fastmst._kernels.rule_order import (KERNEL_DTYPES as KERNEL_DTYPES,
-                                         edge_order as edge_order,
+from fastmst._kernels.rule_order import (edge_order as edge_order,
                                          first_unsorted as first_unsorted,
                                          key_kind as key_kind, key_range as key_range,
                                          sort_positions as sort_positions,
                                          weight_bits as weight_bits,
                                          weight_keys as weight_keys,
                                          weights_from_keys as weights_from_keys)
+
+KERNEL_DTYPES: frozenset[np.dtype]
 
 def fill_keys32(bits: npt.NDArray[np.uint32], kind: int, complement: bool,
                 out: npt.NDArray[np.uint64]) -> None: ...

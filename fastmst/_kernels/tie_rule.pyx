@@ -127,5 +127,7 @@ def __getattr__(name):
     that code importing them from here keeps working (PEP 562)."""
     from fastmst._kernels import rule_order
     if name in rule_order.__all__:
-        return getattr(rule_order, name)
+        value = getattr(rule_order, name)
+        globals()[name] = value              # later look-ups find it directly
+        return value
     raise AttributeError(f"module 'fastmst._kernels.tie_rule' has no attribute {name!r}")
