@@ -5,20 +5,13 @@ tree Prim grows is the unique minimum spanning tree under that order.  Each step
 not yet in the tree in blocks (``prange`` over blocks when OpenMP is available): a block updates
 each point's best link to the tree with the newest tree point and reports its own best point; the
 blocks' winners are then compared serially, so the answer does not depend on the thread count.
+
+This compiled module keeps the kernel and ``prim``, its thin typed def; ``points.py`` beside it
+(``dense_prim``, ``METRIC_CODES``, ``DEF_BLOCK``) checks the input and allocates the arrays.
 """
-import numpy as np
 from cython.parallel cimport prange
 from libc.math cimport sqrt, fabs, pow, INFINITY
 from libc.stdint cimport int64_t, uint8_t
-
-
-# Metric codes of the native kernel (points.py maps names to these).
-METRIC_CODES = {"euclidean": 0, "sqeuclidean": 1, "cityblock": 2, "chebyshev": 3,
-                "minkowski": 4}
-
-#: Default points per block of the scan (``dense_prim(block=...)``): a block's coordinates and
-#: best links stay in cache while it is relaxed.
-DEF_BLOCK = 1024
 
 
 cdef inline double _dist(const double* x, const double* y, Py_ssize_t d, int metric,
@@ -159,62 +152,26 @@ cdef int _prim(double[:, ::1] Xs, int metric, double p, int n_threads, Py_ssize_
     return 0
 
 
-def dense_prim(const double[:, ::1] X, int metric, double p=2.0, int n_threads=1,
-               Py_ssize_t block=DEF_BLOCK, Py_ssize_t par_min=16384):
-    """Minimum spanning tree of the complete graph on the rows of X (native metrics).
-
-    Parameters
-    ----------
-    X : ndarray of shape (n, d), dtype=float64, C-contiguous
-    metric : int
-        A code from ``METRIC_CODES``.
-    p : float
-        Exponent for minkowski.
-    n_threads : int
-    block : int
-        Points per block of the parallel scan.
-    par_min : int
-        Steps with fewer points left than this scan serially (a parallel step costs one
-        fork/join, worth it only for long scans).
-
-    Returns
-    -------
-    tail, head : ndarray of shape (n - 1,), dtype=int64
-        Tree edges with tail < head, in the order Prim added them.
-    length : ndarray of shape (n - 1,), dtype=float64
-    """
-    cdef Py_ssize_t n = X.shape[0]
-    if metric < 0 or metric > 4:
-        raise ValueError(f"dense_prim: unknown metric code {metric}.")
-    if block < 1:
-        raise ValueError(f"dense_prim: block must be >= 1, received {block}.")
-    if n <= 1:
-        e = np.empty(0, dtype=np.int64)
-        return e, e.copy(), np.empty(0, dtype=np.float64)
-    if X.shape[1] < 1:
-        raise ValueError("dense_prim: points need at least one coordinate.")
-    Xs_arr = np.array(X[1:], dtype=np.float64, order="C")      # slots: every point but 0
-    ids = np.arange(1, n, dtype=np.int64)
-    bd = np.full(n - 1, INFINITY, dtype=np.float64)
-    thr = np.full(n - 1, INFINITY, dtype=np.float64)
-    bu = np.full(n - 1, -1, dtype=np.int64)
-    xu = np.array(X[0], dtype=np.float64)
-    added = np.empty(n - 1, dtype=np.int64)
-    out_u = np.empty(n - 1, dtype=np.int64)
-    out_d = np.empty(n - 1, dtype=np.float64)
-    nb = (n + block - 1) // block
-    blk_pos = np.empty(nb, dtype=np.int64)
-    blk_nan = np.zeros(nb, dtype=np.uint8)
-    cdef double[:, ::1] Xs_v = Xs_arr
-    cdef int64_t[::1] ids_v = ids, bu_v = bu, added_v = added, out_u_v = out_u
-    cdef int64_t[::1] blk_pos_v = blk_pos
-    cdef double[::1] bd_v = bd, thr_v = thr, xu_v = xu, out_d_v = out_d
-    cdef uint8_t[::1] blk_nan_v = blk_nan
+def prim(double[:, ::1] Xs, int metric, double p, int n_threads, Py_ssize_t block,
+         int64_t[::1] ids, double[::1] bd, double[::1] thr, int64_t[::1] bu, double[::1] xu,
+         int64_t[::1] added, int64_t[::1] out_u, double[::1] out_d, int64_t[::1] blk_pos,
+         uint8_t[::1] blk_nan, Py_ssize_t par_min):
+    """Grow the tree from point 0 over the other points' slots (``points.dense_prim`` sets up
+    and documents the arrays; IN/OUT: all of them).  Returns 1 when a distance was NaN."""
+    cdef Py_ssize_t m = Xs.shape[0]
     cdef int bad
+    if metric < 0 or metric > 4 or block < 1 or n_threads < 1 or m < 1 or Xs.shape[1] < 1:
+        raise ValueError(f"prim: needs a metric code 0..4, block >= 1, n_threads >= 1 and at "
+                         f"least one slot of one coordinate, received {metric}, {block}, "
+                         f"{n_threads}, shape ({m}, {Xs.shape[1]}).")
+    if (ids.shape[0] != m or bd.shape[0] != m or thr.shape[0] != m or bu.shape[0] != m
+            or added.shape[0] != m or out_u.shape[0] != m or out_d.shape[0] != m
+            or xu.shape[0] != Xs.shape[1] or blk_pos.shape[0] < (m + block - 1) // block
+            or blk_nan.shape[0] != blk_pos.shape[0]):
+        raise ValueError("prim: the work arrays need one entry per slot (ids, bd, thr, bu, "
+                         "added, out_u, out_d), per coordinate (xu) and per block (blk_pos, "
+                         "blk_nan); allocate them as points.dense_prim does.")
     with nogil:
-        bad = _prim(Xs_v, metric, p, max(1, n_threads), block, ids_v, bd_v, thr_v, bu_v, xu_v,
-                    added_v, out_u_v, out_d_v, blk_pos_v, blk_nan_v, par_min)
-    if bad:
-        raise ValueError("dense_prim: a distance evaluated to NaN; every pair of points needs a "
-                         "comparable distance.")
-    return np.minimum(out_u, added), np.maximum(out_u, added), out_d
+        bad = _prim(Xs, metric, p, n_threads, block, ids, bd, thr, bu, xu, added, out_u, out_d,
+                    blk_pos, blk_nan, par_min)
+    return bad
