@@ -1,9 +1,10 @@
 """Kernels of the Steiner tree heuristic: Voronoi regions, path expansion, leaf pruning.
 
 The graph arrives as a CSR adjacency of arcs (each undirected edge twice) with float64 lengths.
+This compiled module keeps the kernels and their thin typed defs (``voronoi_regions``,
+``mark_path_edges``, ``prune_forest``); ``steiner.py`` beside it (``voronoi``, ``mark_paths``,
+``prune_leaves``) allocates the arrays and documents the results.
 """
-import numpy as np
-from libc.math cimport INFINITY
 from libc.stdint cimport int64_t, uint8_t
 
 
@@ -92,39 +93,25 @@ cdef void _voronoi(const int64_t[::1] indptr, const int64_t[::1] nbr, const doub
                 size = _heap_push(&hkey[0], &hnode[0], size, nd, v)
 
 
-def voronoi(const int64_t[::1] indptr, const int64_t[::1] nbr, const double[::1] length,
-            const int64_t[::1] arc_edge, const int64_t[::1] sources):
-    """Voronoi regions of ``sources`` by one multi-source Dijkstra.
-
-    Parameters
-    ----------
-    indptr : ndarray of shape (n + 1,), dtype=int64
-    nbr, arc_edge : ndarray of shape (A,), dtype=int64
-        Arc heads and the input edge position of each arc.
-    length : ndarray of shape (A,), dtype=float64, non-negative
-    sources : ndarray of shape (k,), dtype=int64, distinct node ids
-
-    Returns
-    -------
-    dist : ndarray of shape (n,), dtype=float64 (inf where unreached)
-    region, pred_edge, pred_node : ndarray of shape (n,), dtype=int64 (-1 where none)
-    """
-    cdef Py_ssize_t n = indptr.shape[0] - 1
-    dist = np.full(n, INFINITY, dtype=np.float64)
-    region = np.full(n, -1, dtype=np.int64)
-    pred_edge = np.full(n, -1, dtype=np.int64)
-    pred_node = np.full(n, -1, dtype=np.int64)
-    done = np.zeros(n, dtype=np.uint8)
-    cap = nbr.shape[0] + sources.shape[0] + 1
-    hkey = np.empty(cap, dtype=np.float64)
-    hnode = np.empty(cap, dtype=np.int64)
-    cdef double[::1] dist_v = dist, hkey_v = hkey
-    cdef int64_t[::1] region_v = region, pe_v = pred_edge, pn_v = pred_node, hnode_v = hnode
-    cdef uint8_t[::1] done_v = done
+def voronoi_regions(const int64_t[::1] indptr, const int64_t[::1] nbr, const double[::1] length,
+                    const int64_t[::1] arc_edge, const int64_t[::1] sources, double[::1] dist,
+                    int64_t[::1] region, int64_t[::1] pred_edge, int64_t[::1] pred_node,
+                    uint8_t[::1] done, double[::1] hkey, int64_t[::1] hnode):
+    """OUT: dist, region, pred_edge, pred_node (filled with inf, -1, -1, -1 on entry; ``done``
+    zeros) of one multi-source Dijkstra from ``sources``.  SCRATCH: the heap hkey/hnode, of
+    at least A + k + 1 entries (``steiner.voronoi`` allocates them and documents the rest)."""
+    cdef Py_ssize_t n = indptr.shape[0] - 1, arcs = nbr.shape[0]
+    if (n < 0 or length.shape[0] != arcs or arc_edge.shape[0] != arcs or dist.shape[0] != n
+            or region.shape[0] != n or pred_edge.shape[0] != n or pred_node.shape[0] != n
+            or done.shape[0] != n or hnode.shape[0] != hkey.shape[0]
+            or hkey.shape[0] < arcs + sources.shape[0] + 1):
+        raise ValueError("voronoi_regions: needs indptr of n + 1 entries, nbr, length and "
+                         "arc_edge of one length A, dist, region, pred_edge, pred_node and done "
+                         "of n, and a heap of at least A + len(sources) + 1; allocate them as "
+                         "steiner.voronoi does.")
     with nogil:
-        _voronoi(indptr, nbr, length, arc_edge, sources, dist_v, region_v, pe_v, pn_v,
-                 done_v, hkey_v, hnode_v)
-    return dist, region, pred_edge, pred_node
+        _voronoi(indptr, nbr, length, arc_edge, sources, dist, region, pred_edge, pred_node,
+                 done, hkey, hnode)
 
 
 cdef void _mark_paths(const int64_t[::1] starts, const int64_t[::1] pred_edge,
@@ -141,20 +128,16 @@ cdef void _mark_paths(const int64_t[::1] starts, const int64_t[::1] pred_edge,
             v = pred_node[v]
 
 
-def mark_paths(const int64_t[::1] starts, const int64_t[::1] pred_edge,
-               const int64_t[::1] pred_node, Py_ssize_t n_edges):
-    """Mark the edges of the shortest paths from each start node back to its source.
-
-    Returns
-    -------
-    edge_mark : ndarray of shape (n_edges,), dtype=bool
-    """
-    node_seen = np.zeros(pred_edge.shape[0], dtype=np.uint8)
-    edge_mark = np.zeros(n_edges, dtype=np.uint8)
-    cdef uint8_t[::1] seen_v = node_seen, mark_v = edge_mark
+def mark_path_edges(const int64_t[::1] starts, const int64_t[::1] pred_edge,
+                    const int64_t[::1] pred_node, uint8_t[::1] node_seen,
+                    uint8_t[::1] edge_mark):
+    """OUT: ``edge_mark`` (zeros on entry), 1 on the edges of the paths from each start back to
+    its source.  SCRATCH: ``node_seen``, zeros, one per node (``steiner.mark_paths``)."""
+    if pred_node.shape[0] != pred_edge.shape[0] or node_seen.shape[0] != pred_edge.shape[0]:
+        raise ValueError("mark_path_edges: pred_edge, pred_node and node_seen need one entry "
+                         "per node; allocate them as steiner.mark_paths does.")
     with nogil:
-        _mark_paths(starts, pred_edge, pred_node, seen_v, mark_v)
-    return edge_mark.view(np.bool_)
+        _mark_paths(starts, pred_edge, pred_node, node_seen, edge_mark)
 
 
 cdef Py_ssize_t _prune(const int64_t[::1] indptr, const int64_t[::1] nbr,
@@ -187,21 +170,19 @@ cdef Py_ssize_t _prune(const int64_t[::1] indptr, const int64_t[::1] nbr,
     return removed
 
 
-def prune_leaves(const int64_t[::1] indptr, const int64_t[::1] nbr, const int64_t[::1] arc_edge,
-                 const uint8_t[::1] keep_node, Py_ssize_t n_edges):
-    """Repeatedly remove leaves not in ``keep_node`` from a forest given as a CSR adjacency.
-
-    Returns
-    -------
-    edge_alive : ndarray of shape (n_edges,), dtype=bool
-        True for the edges that remain (indexed by ``arc_edge`` values).
-    """
+def prune_forest(const int64_t[::1] indptr, const int64_t[::1] nbr, const int64_t[::1] arc_edge,
+                 const uint8_t[::1] keep_node, int64_t[::1] degree, uint8_t[::1] edge_alive,
+                 int64_t[::1] stack):
+    """IN/OUT: ``degree`` (the node degrees), ``edge_alive`` (ones on entry; 0 for the pruned
+    edges).  SCRATCH: ``stack``, at least one per node (``steiner.prune_leaves``).  Returns the
+    number of edges removed."""
     cdef Py_ssize_t n = indptr.shape[0] - 1
-    degree = np.diff(np.asarray(indptr)).astype(np.int64)
-    edge_alive = np.ones(n_edges, dtype=np.uint8)
-    stack = np.empty(max(n, 1), dtype=np.int64)
-    cdef int64_t[::1] degree_v = degree, stack_v = stack
-    cdef uint8_t[::1] alive_v = edge_alive
+    cdef Py_ssize_t removed
+    if (n < 0 or keep_node.shape[0] != n or degree.shape[0] != n or stack.shape[0] < n
+            or arc_edge.shape[0] != nbr.shape[0]):
+        raise ValueError("prune_forest: needs indptr of n + 1 entries, keep_node, degree and "
+                         "stack of n, and nbr and arc_edge of one length; allocate them as "
+                         "steiner.prune_leaves does.")
     with nogil:
-        _prune(indptr, nbr, arc_edge, keep_node, degree_v, alive_v, stack_v)
-    return edge_alive.view(np.bool_)
+        removed = _prune(indptr, nbr, arc_edge, keep_node, degree, edge_alive, stack)
+    return removed
