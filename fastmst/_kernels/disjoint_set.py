@@ -56,10 +56,12 @@ class DisjointSet:
     __slots__ = ("_n", "_n_sets", "_wide", "_parent", "_rank", "_size", "_find", "_union")
 
     def __init__(self, n):
-        if isinstance(n, bool) or not isinstance(n, (int, np.integer)):
-            raise TypeError(f"DisjointSet(n): n must be an integer, received {type(n).__name__} "
-                            f"{n!r}; pass the number of elements, e.g. DisjointSet(10).")
-        n = int(n)
+        if type(n) is not int:
+            if isinstance(n, bool) or not isinstance(n, (int, np.integer)):
+                raise TypeError(f"DisjointSet(n): n must be an integer, received "
+                                f"{type(n).__name__} {n!r}; pass the number of elements, e.g. "
+                                f"DisjointSet(10).")
+            n = int(n)
         if n < 0:
             raise ValueError(f"DisjointSet(n): n must be >= 0, received {n}; pass the number of "
                              f"elements.")

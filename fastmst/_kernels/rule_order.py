@@ -28,18 +28,17 @@ __all__ = ["KERNEL_DTYPES", "key_kind", "weight_bits", "weight_keys", "weights_f
 KERNEL_DTYPES = frozenset([np.dtype(t) for t in (np.float32, np.float64, np.int32, np.int64,
                                                  np.uint32, np.uint64)])
 
-# Key kind codes, as ``tie_rule.pxd`` numbers them (KIND_UNSIGNED, KIND_SIGNED, KIND_FLOAT).
-KIND_UNSIGNED, KIND_SIGNED, KIND_FLOAT = 0, 1, 2
-_KIND_OF = {"u": KIND_UNSIGNED, "i": KIND_SIGNED, "f": KIND_FLOAT}
-# Native kernel dtype -> (kind, unsigned bits dtype); looked up once per call, not rebuilt.
-_KINDS = {d: (_KIND_OF[d.kind], np.dtype(np.uint32 if d.itemsize == 4 else np.uint64))
+# Native kernel dtype -> (key kind code, unsigned dtype of its bits); the codes are the enum of
+# tie_rule.pxd (tie_rule.KEY_KINDS).
+_KINDS = {d: (tie_rule.KEY_KINDS[d.kind], np.dtype(np.uint32 if d.itemsize == 4 else np.uint64))
           for d in KERNEL_DTYPES}
 _U32 = np.dtype(np.uint32)
 
 
 def key_kind(dtype):
     """``(kind, ubits)`` of a kernel weight dtype: the key kind code (KIND_UNSIGNED,
-    KIND_SIGNED or KIND_FLOAT) and the unsigned dtype of the same width that views its bits."""
+    KIND_SIGNED or KIND_FLOAT of tie_rule.pxd) and the unsigned dtype of the same width that
+    views its bits."""
     dtype = np.dtype(dtype)
     found = _KINDS.get(dtype.newbyteorder("="))
     if found is None:

@@ -12,6 +12,7 @@ from fastmst._kernels.rule_order import (edge_order as edge_order,
                                          weights_from_keys as weights_from_keys)
 
 KERNEL_DTYPES: frozenset[np.dtype]
+KEY_KINDS: dict[str, int]
 
 def fill_keys32(bits: npt.NDArray[np.uint32], kind: int, complement: bool,
                 out: npt.NDArray[np.uint64]) -> None: ...

@@ -39,6 +39,9 @@ module as well (``__getattr__`` below hands them over from ``rule_order``).
 """
 from libc.stdint cimport uint32_t, uint64_t
 
+#: The key kind code (the enum of tie_rule.pxd) of each NumPy dtype kind of a kernel dtype.
+KEY_KINDS = {"u": KIND_UNSIGNED, "i": KIND_SIGNED, "f": KIND_FLOAT}
+
 
 cdef void _fill_keys(const ukey_t[::1] bits, int kind, bint complement,
                      uint64_t[::1] out) noexcept nogil:
