@@ -2,7 +2,7 @@
 early exit.
 
 The records of every edge are split into the 2048 top-digit buckets of the rule order
-(``radix.split_records``); the buckets are then sorted one at a time, just before they are
+(``records.split_records``); the buckets are then sorted one at a time, just before they are
 scanned, so buckets after the last edge the forest needs are never sorted.  With
 ``presorted=True`` the weights are already in rule order and the positions are scanned directly.
 
@@ -160,7 +160,7 @@ def kruskal_buckets(uint8_t[::1] raw, const Py_ssize_t[::1] bounds, int shift,
                     const index_t[::1] tail, const index_t[::1] head, index_t[::1] parent,
                     uint8_t[::1] rank, int64_t[::1] out, Py_ssize_t target, Py_ssize_t wave,
                     int threads):
-    """Sort the 2048 top buckets of the records ``raw`` (``radix.split_records``) lazily and
+    """Sort the 2048 top buckets of the records ``raw`` (``records.split_records``) lazily and
     scan them in key order until ``target`` edges (``_kruskal_buckets``; OUT: ``out``).
     Returns the number accepted."""
     cdef Py_ssize_t count

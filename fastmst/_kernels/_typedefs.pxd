@@ -4,10 +4,10 @@
 # traffic of int64 in every find/union), int64 beyond.  Edge positions are always int64 (intp on
 # every supported platform), since edge counts pass 2**31 long before node counts do.
 #
-# Weights are read in place as their bits (tie_rule.weight_bits) and compared through the rule's
+# Weights are read in place as their bits (rule_order.weight_bits) and compared through the rule's
 # order-preserving keys (tie_rule.pxd), so kernels are specialised on the key width (uint32 for
 # 4-byte, uint64 for 8-byte weights) and the id width only, not on the six weight dtypes
-# (tie_rule.KERNEL_DTYPES).  Narrower dtypes (int8, int16, uint8, uint16, float16) are widened
+# (rule_order.KERNEL_DTYPES).  Narrower dtypes (int8, int16, uint8, uint16, float16) are widened
 # once by validation.py before any kernel runs.
 from libc.stdint cimport int32_t, int64_t, uint32_t, uint64_t, uint8_t
 

@@ -3,8 +3,6 @@ half of split_records is fastmst._kernels.records)."""
 import numpy as np
 import numpy.typing as npt
 
-from fastmst._kernels.records import split_records as split_records
-
 RECORD_DTYPE: np.dtype
 MAX_RECORDS: int
 MIN_EDGES_PER_THREAD: int

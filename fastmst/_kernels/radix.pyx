@@ -17,8 +17,7 @@ scratch per sorting thread.
 
 This compiled module keeps the kernels and thin typed defs over them (``split_buckets32/64``,
 ``sort_buckets``, ``openmp_max_threads``); ``split_records``, which checks, sizes and allocates
-the arrays and calls ``split_buckets32/64``, is the Python module ``records.py`` (also reachable
-as ``radix.split_records``).
+the arrays and calls ``split_buckets32/64``, is the Python module ``records.py``.
 """
 import numpy as np
 from cython.parallel cimport prange
@@ -349,12 +348,3 @@ def openmp_max_threads():
     the kernels were built without OpenMP."""
     return omp_max_threads()
 
-
-def __getattr__(name):
-    """``split_records``, whose Python half is ``records.py``, looked up on first use so that
-    code calling ``radix.split_records`` keeps working (PEP 562)."""
-    if name == "split_records":
-        from fastmst._kernels.records import split_records
-        globals()[name] = split_records      # later look-ups find it directly
-        return split_records
-    raise AttributeError(f"module 'fastmst._kernels.radix' has no attribute {name!r}")

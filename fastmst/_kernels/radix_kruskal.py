@@ -2,7 +2,7 @@
 
 The method is described in the compiled module ``_radix_kruskal`` (the scans and the sort/scan
 pipeline behind thin ``def``s); this module checks the inputs, splits the records
-(``radix.split_records``), allocates and assembles the result.
+(``records.split_records``), allocates and assembles the result.
 """
 import operator
 
@@ -11,6 +11,7 @@ import numpy as np
 from fastmst._kernels import _radix_kruskal as _rk
 from fastmst._kernels import radix
 from fastmst._kernels.edge_checks import check_edge_arrays, check_id_arrays
+from fastmst._kernels.records import split_records
 from fastmst._kernels.rule_order import key_range, weight_bits
 
 #: Below this many edges the sort/scan pipeline of kruskal_radix runs on one thread (too short
@@ -80,7 +81,7 @@ def kruskal_radix(tail, head, weight, n_nodes, maximize=False, target=-1, thread
         count = _rk.scan_positions(tail, head, parent, rank, out.shape[0], out)
         return out[:count], parent
     kmin, top_bits = key_range(weight, maximize)
-    raw, bounds, shift = radix.split_records(bits, kind, maximize, kmin, top_bits, threads)
+    raw, bounds, shift = split_records(bits, kind, maximize, kmin, top_bits, threads)
     # Waves of the sort/scan pipeline: at least 2**16 records, so that sorting a wave takes
     # long against entering a parallel region, and at most 64 waves over the graph, so the scan
     # waits for the first wave's sort only (1/64 of the work) before the pipeline fills.

@@ -4,7 +4,7 @@
 per-thread histograms, and calls the thin typed defs ``radix.split_buckets32/64``, which run the
 counting and scatter kernels of ``radix.pyx`` without the GIL.  The record layout, the sort
 itself and the constants (``RECORD_DTYPE``, ``MAX_RECORDS``, ``MIN_EDGES_PER_THREAD``) are in
-``radix.pyx``; ``radix.split_records`` is this function.
+``radix.pyx``.
 """
 import numpy as np
 
@@ -19,12 +19,12 @@ def split_records(bits, kind, maximize, kmin, top_bits, threads=1):
     Parameters
     ----------
     bits : ndarray of shape (E,), dtype=uint32 or uint64
-        The weight bits and their key kind, from ``tie_rule.weight_bits``; ``2 <= E < 2**32``.
+        The weight bits and their key kind, from ``rule_order.weight_bits``; ``2 <= E < 2**32``.
     kind : int
     maximize : bool
         Complement the keys (descending weight order).
     kmin, top_bits : int
-        From ``tie_rule.key_range`` of the same weights and ``maximize``.
+        From ``rule_order.key_range`` of the same weights and ``maximize``.
     threads : int
         Threads for the two passes; the result does not depend on it.
 

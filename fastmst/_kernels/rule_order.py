@@ -12,8 +12,6 @@ dtype choices, NumPy checks and allocations, around the thin compiled defs of ``
 * ``weight_bits``: the precondition check of every kernel that reads weights as bits;
 * ``weight_keys`` and its inverse ``weights_from_keys``; ``key_range``;
 * ``first_unsorted`` (is rule-sorted), ``edge_order`` and ``sort_positions`` (the rule order).
-
-The same names can also be imported from ``fastmst._kernels.tie_rule``.
 """
 import operator
 

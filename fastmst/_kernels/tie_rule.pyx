@@ -21,8 +21,8 @@ for each kernel dtype (float32/float64, int32/int64, uint32/uint64):
 
 A maximum forest complements every key within its width (descending weight becomes ascending
 key) instead of negating a copy of the weights; the position order of ties is unchanged.  The
-map is inverted exactly by ``weights_from_keys`` (and ``bits_of`` in ``tie_rule.pxd``), except
-that ``-0.0`` comes back as ``+0.0``: both have one key.
+map is inverted exactly by ``rule_order.weights_from_keys`` (and ``bits_of`` in
+``tie_rule.pxd``), except that ``-0.0`` comes back as ``+0.0``: both have one key.
 
 Where each part lives
 ---------------------
@@ -34,8 +34,7 @@ in place).  Its Python face -- ``KERNEL_DTYPES``, ``key_kind``, ``weight_bits`` 
 precondition check of every kernel that reads weights as bits), ``weight_keys``,
 ``weights_from_keys``, ``key_range``, ``first_unsorted`` and the rule order (``edge_order``,
 ``sort_positions``) -- is ``fastmst/_kernels/rule_order.py``, which does the dtype choices,
-NumPy checks and allocations and calls these defs.  Those names stay importable from this
-module as well (``__getattr__`` below hands them over from ``rule_order``).
+NumPy checks and allocations and calls these defs.
 """
 from libc.stdint cimport uint32_t, uint64_t
 
@@ -124,13 +123,3 @@ def keys_to_weight_bits(uint64_t[::1] keys, int kind, bint complement, uint64_t 
         with nogil:
             keys_to_bits(&keys[0], n, kind, complement, kmin, width)
 
-
-def __getattr__(name):
-    """The names of the rule's Python face (``rule_order.__all__``), looked up on first use so
-    that code importing them from here keeps working (PEP 562)."""
-    from fastmst._kernels import rule_order
-    if name in rule_order.__all__:
-        value = getattr(rule_order, name)
-        globals()[name] = value              # later look-ups find it directly
-        return value
-    raise AttributeError(f"module 'fastmst._kernels.tie_rule' has no attribute {name!r}")
