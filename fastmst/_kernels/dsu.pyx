@@ -73,10 +73,10 @@ def find_int64(int64_t[::1] parent, Py_ssize_t x):
     return dsu_find(&parent[0], <int64_t>x)
 
 
-def union_pairs_int32(int32_t[::1] parent, uint8_t[::1] rank, int64_t[::1] size,
-                      const int64_t[::1] a, const int64_t[::1] b, uint8_t[::1] out):
-    """Union the pairs ``(a[i], b[i])`` in order (ids in [0, len(parent)), checked by the
-    caller); OUT: ``out[i]`` 1 when pair i merged two sets.  Returns the number of merges."""
+cdef Py_ssize_t _union_checked(index_t[::1] parent, uint8_t[::1] rank, int64_t[::1] size,
+                               const int64_t[::1] a, const int64_t[::1] b,
+                               uint8_t[::1] out) except -1:
+    """``union_pairs_int32/64``: the length checks, then ``_union_pairs`` without the GIL."""
     cdef Py_ssize_t merges = 0
     _check_lengths("union_pairs", parent.shape[0], rank.shape[0], size.shape[0])
     _check_lengths("union_pairs", a.shape[0], b.shape[0], out.shape[0])
@@ -84,39 +84,42 @@ def union_pairs_int32(int32_t[::1] parent, uint8_t[::1] rank, int64_t[::1] size,
         with nogil:
             merges = _union_pairs(parent, rank, size, a, b, out)
     return merges
+
+
+cdef int64_t _labels_checked(index_t[::1] parent, int64_t[::1] table,
+                             int64_t[::1] out) except -1:
+    """``label_parents_int32/64``: the length check, then ``_labels_from_parent`` without the
+    GIL."""
+    cdef int64_t k = 0
+    _check_lengths("labels_from_parent", parent.shape[0], table.shape[0], out.shape[0])
+    if parent.shape[0]:
+        with nogil:
+            k = _labels_from_parent(parent, table, out)
+    return k
+
+
+def union_pairs_int32(int32_t[::1] parent, uint8_t[::1] rank, int64_t[::1] size,
+                      const int64_t[::1] a, const int64_t[::1] b, uint8_t[::1] out):
+    """Union the pairs ``(a[i], b[i])`` in order (ids in [0, len(parent)), checked by the
+    caller); OUT: ``out[i]`` 1 when pair i merged two sets.  Returns the number of merges."""
+    return _union_checked(parent, rank, size, a, b, out)
 
 
 def union_pairs_int64(int64_t[::1] parent, uint8_t[::1] rank, int64_t[::1] size,
                       const int64_t[::1] a, const int64_t[::1] b, uint8_t[::1] out):
     """As ``union_pairs_int32`` for an int64 parent array."""
-    cdef Py_ssize_t merges = 0
-    _check_lengths("union_pairs", parent.shape[0], rank.shape[0], size.shape[0])
-    _check_lengths("union_pairs", a.shape[0], b.shape[0], out.shape[0])
-    if a.shape[0]:
-        with nogil:
-            merges = _union_pairs(parent, rank, size, a, b, out)
-    return merges
+    return _union_checked(parent, rank, size, a, b, out)
 
 
 def label_parents_int32(int32_t[::1] parent, int64_t[::1] table, int64_t[::1] out):
     """OUT: ``out``, the component ids of an int32 parent array (compressed in place) by first
     appearance.  SCRATCH: ``table``, all -1.  Returns the number of components."""
-    cdef int64_t k = 0
-    _check_lengths("labels_from_parent", parent.shape[0], table.shape[0], out.shape[0])
-    if parent.shape[0]:
-        with nogil:
-            k = _labels_from_parent(parent, table, out)
-    return k
+    return _labels_checked(parent, table, out)
 
 
 def label_parents_int64(int64_t[::1] parent, int64_t[::1] table, int64_t[::1] out):
     """As ``label_parents_int32`` for an int64 parent array."""
-    cdef int64_t k = 0
-    _check_lengths("labels_from_parent", parent.shape[0], table.shape[0], out.shape[0])
-    if parent.shape[0]:
-        with nogil:
-            k = _labels_from_parent(parent, table, out)
-    return k
+    return _labels_checked(parent, table, out)
 
 
 def label_ids(const int64_t[::1] ids, int64_t[::1] table, int64_t[::1] out):

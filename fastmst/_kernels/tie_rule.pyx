@@ -74,41 +74,46 @@ cdef int _check_out(Py_ssize_t n_bits, Py_ssize_t n_out) except -1:
     return 0
 
 
-def fill_keys32(const uint32_t[::1] bits, int kind, bint complement, uint64_t[::1] out):
-    """OUT: ``out[i]``, the rule key of the 4-byte weight bits ``bits[i]`` (complemented when
-    ``complement``); ``out`` has the length of ``bits``."""
+cdef int _fill_checked(const ukey_t[::1] bits, int kind, bint complement,
+                       uint64_t[::1] out) except -1:
+    """``fill_keys32/64``: the kind and length checks, then ``_fill_keys`` without the GIL."""
     _check_kind(kind)
     _check_out(bits.shape[0], out.shape[0])
     with nogil:
         _fill_keys(bits, kind, complement, out)
+    return 0
+
+
+cdef Py_ssize_t _first_unsorted_checked(const ukey_t[::1] bits, int kind,
+                                        bint descending) except -2:
+    """``first_unsorted32/64``: the kind check, then ``_first_unsorted`` without the GIL."""
+    cdef Py_ssize_t i = -1
+    _check_kind(kind)
+    if bits.shape[0] >= 2:
+        with nogil:
+            i = _first_unsorted(bits, kind, descending)
+    return i
+
+
+def fill_keys32(const uint32_t[::1] bits, int kind, bint complement, uint64_t[::1] out):
+    """OUT: ``out[i]``, the rule key of the 4-byte weight bits ``bits[i]`` (complemented when
+    ``complement``); ``out`` has the length of ``bits``."""
+    _fill_checked(bits, kind, complement, out)
 
 
 def fill_keys64(const uint64_t[::1] bits, int kind, bint complement, uint64_t[::1] out):
     """As ``fill_keys32`` for 8-byte weight bits."""
-    _check_kind(kind)
-    _check_out(bits.shape[0], out.shape[0])
-    with nogil:
-        _fill_keys(bits, kind, complement, out)
+    _fill_checked(bits, kind, complement, out)
 
 
 def first_unsorted32(const uint32_t[::1] bits, int kind, bint descending):
     """Position of the first 4-byte weight whose key is below the one before, or -1."""
-    cdef Py_ssize_t i = -1
-    _check_kind(kind)
-    if bits.shape[0] >= 2:
-        with nogil:
-            i = _first_unsorted(bits, kind, descending)
-    return i
+    return _first_unsorted_checked(bits, kind, descending)
 
 
 def first_unsorted64(const uint64_t[::1] bits, int kind, bint descending):
     """As ``first_unsorted32`` for 8-byte weight bits."""
-    cdef Py_ssize_t i = -1
-    _check_kind(kind)
-    if bits.shape[0] >= 2:
-        with nogil:
-            i = _first_unsorted(bits, kind, descending)
-    return i
+    return _first_unsorted_checked(bits, kind, descending)
 
 
 def keys_to_weight_bits(uint64_t[::1] keys, int kind, bint complement, uint64_t kmin,
