@@ -394,3 +394,23 @@ def test_output_that_is_a_folder(tmp_path_factory, fmt, slash):
     assert msg.count("cannot write") == 1 and "it is a folder" in msg and "name a file" in msg
     assert list(folder.iterdir()) == [] and sorted(p.name for p in tmp.iterdir()) == \
         ["e.csv", "n.csv", f"out.{fmt}"]   # no temporary file left
+
+
+@settings(max_examples=200, deadline=None)
+@given(values=st.lists(st.one_of(st.floats(allow_nan=True, allow_infinity=True),
+                                 st.sampled_from([2.0**53, -2.0**53, 2.0**53 - 1, 1e300]),
+                                 st.none()), min_size=1, max_size=30),
+       cuts=st.lists(st.integers(0, 30), max_size=3), f32=st.booleans())
+def test_needs_text_agrees_with_pyarrow_min_max(values, cuts, f32):
+    """io.numbers.needs_text (NumPy over the chunks when no cell is missing) against its rule
+    computed with pyarrow.compute.min_max (reference: pyarrow, which skips NaN and nulls)."""
+    import pyarrow.compute as pc
+
+    from fastmst.io.numbers import needs_text
+    typ = pa.float32() if f32 else pa.float64()
+    bounds = [0] + sorted(c % (len(values) + 1) for c in cuts) + [len(values)]
+    col = pa.chunked_array([pa.array(values[lo:hi], type=typ, from_pandas=False)
+                            for lo, hi in zip(bounds[:-1], bounds[1:])], type=typ)
+    lo, hi = pc.min_max(col).values()
+    want = lo.as_py() is not None and max(-lo.as_py(), hi.as_py()) >= 2.0**53
+    assert needs_text(col) == want
