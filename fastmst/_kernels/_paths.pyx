@@ -1,28 +1,15 @@
-"""Compiled kernels of the tree path queries on spanning forests (``paths.py`` holds the public
+"""Compiled kernels of the tree path queries on spanning forests.  The method notes (merge
+tree, range maxima, Tarjan's covering of tree paths) are in ``paths.py``, which holds the public
 functions and ``PathMaxIndex``: it checks the inputs, allocates every array and assembles the
-results).
+results.
 
 Every ``def`` here is thin: it takes the arrays already allocated, checks that their lengths
 protect memory, releases the GIL and runs a private ``noexcept nogil`` kernel.  The defs take
 positional arguments only (no keyword parsing to compile).  Node ids in [0, n_nodes) are the
-caller's to check (``fastmst.validation``).
-
-``kruskal_tree``
-    The merge tree of a forest: its edges, taken in the tie-rule order, are joined one by one
-    with a disjoint set; edge ``i`` becomes internal node ``n_nodes + i`` whose children are the
-    two subtrees it joins.  The heaviest edge on the tree path between two nodes is their lowest
-    common ancestor in this tree, and the tree is the single-linkage dendrogram.
-``leaf_tables`` / ``path_max32``, ``path_max64``
-    Range maxima over the merge tree's leaf order: the heaviest edge on the tree path of any
-    node pair in a few memory lookups, after an O(V) build.
-``root_forest`` / ``cover_paths``
-    For sensitivity: the forest rooted by breadth-first search, then non-tree edges taken
-    lightest first each mark the still-unmarked tree edges of their tree path (Tarjan,
-    "Sensitivity analysis of minimum spanning trees and shortest path trees", 1982).  A disjoint
-    set whose sets are the connected regions of marked edges jumps over marked edges, so each
-    tree edge is marked once: O((V + E) alpha(V)).
-``union_parent``
-    Union-find parents after joining every given pair.
+caller's to check (``fastmst.validation``).  The defs: ``kruskal_tree`` (the merge tree),
+``leaf_tables`` and ``path_max32``/``path_max64`` (the path-maxima index and its queries),
+``root_forest`` and ``cover_paths`` (for sensitivity), ``union_parent`` (union-find parents
+after joining every given pair).
 
 The disjoint-set primitives come from ``dsu.pxd``.  Internal arrays are int64, except the
 lookup tables of the path-maxima index, which are int32 while node and edge counts fit.

@@ -1,24 +1,14 @@
 """Compiled kernels of the walks over a rooted spanning forest and CSR adjacency, for the
-network-design tools (``treewalk.py`` holds the public functions: it checks the inputs, including
-every value range, allocates the arrays and assembles the results).
+network-design tools.  The method notes (sides beyond each tree edge; the light shallow walk
+of Khuller, Raghavachari and Young, 1995) are in ``treewalk.py``, which holds the public
+functions: it checks the inputs, including every value range, allocates the arrays and
+assembles the results.
 
 Every ``def`` here is thin: it takes the arrays already allocated, checks that their lengths
 protect memory, releases the GIL and runs a private ``noexcept nogil`` kernel.  The defs take
 positional arguments only (no keyword parsing to compile).  Value ranges (node ids, parents,
-depths) are the caller's to check, as ``treewalk.py`` does.
-
-``sides_beyond``
-    For every tree edge (parent, child): the number of nodes on the side away from a chosen
-    root (the child's subtree, or the rest of the tree when the root lies inside that
-    subtree).  O(V): nodes bucketed by depth, subtree sizes summed deepest first.
-``light_shallow_walk``
-    The depth-first walk of Khuller, Raghavachari and Young, "Balancing minimum spanning trees
-    and shortest-path trees", Algorithmica 14 (1995): walk round the minimum spanning tree
-    relaxing its edges; where a node's current distance exceeds alpha times its shortest-path
-    distance, graft its shortest path from the root.  O(V) after the two input trees.
-``tree_distances``, ``adjacency``, ``parent_links``
-    Distances from the root along the tree, links listed under both ends, the link to each
-    node's shortest-path parent.
+depths) are the caller's to check, as ``treewalk.py`` does.  The defs: ``sides_beyond``,
+``light_shallow_walk``, ``tree_distances``, ``adjacency``, ``parent_links``.
 
 The covering kernels of backup links are in ``halves``, the first covering links of
 single-link failures in ``replacements``.  Inputs are int64 (node ids, parents, CSR offsets)
