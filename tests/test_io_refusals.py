@@ -410,3 +410,56 @@ def test_missing_column_message_names_the_cli_option_as_spelled(tmp_path):
     path.write_text("tail,head,weight\na,b,1\n")
     with pytest.raises(fio.FileFormatError, match=r"\(CLI: --keep-columns COLUMN\)"):
         fio.read_edges(path, keep_columns=["nope"])
+
+
+# --- labels that are not UTF-8 -----------------------------------------------------------------
+
+# Byte sequences Python's UTF-8 decoder refuses (the reference here): a lone continuation
+# byte, a cut two-byte sequence, an encoded surrogate, an overlong form, a code point beyond
+# U+10FFFF, a Latin-1 word.
+_NOT_UTF8 = [b"\x80", b"\xc3", b"\xed\xa0\x80", b"\xc0\xaf", b"\xf5\x80\x80\x80", b"caf\xe9"]
+
+
+@settings(max_examples=60, deadline=None)
+@given(labels=st.lists(st.text(st.characters(blacklist_characters='\r\n",\x00',
+                                             blacklist_categories=("Cs",)),
+                               min_size=1, max_size=6), min_size=2, max_size=40),
+       bad=st.lists(st.tuples(st.integers(0, 39), st.sampled_from(["tail", "head"]),
+                              st.sampled_from(_NOT_UTF8)), max_size=3),
+       compressed=st.booleans())
+def test_labels_not_utf8_are_refused_naming_the_first_row(tmp_path_factory, labels, bad,
+                                                           compressed):
+    """Label columns are parsed as bytes and checked once mapped: every label that Python's
+    decoder refuses is found, the message names the first row that holds one and its column;
+    valid UTF-8 labels read as the text they are."""
+    rows = [[lab.encode(), labels[(i + 1) % len(labels)].encode()]
+            for i, lab in enumerate(labels)]
+    for r, col, junk in bad:
+        rows[r % len(rows)][col == "head"] = junk
+    body = b"tail,head,weight\n" + b"".join(b'"%s","%s",%d\n' % (t, h, i)
+                                             for i, (t, h) in enumerate(rows))
+    path = tmp_path_factory.mktemp("utf8") / ("e.csv.gz" if compressed else "e.csv")
+    if compressed:
+        import gzip
+        body = gzip.compress(body)
+    path.write_bytes(body)
+
+    def decodes(b):
+        try:
+            b.decode("utf-8")
+            return True
+        except UnicodeDecodeError:
+            return False
+    broken = [(i, c) for i, row in enumerate(rows) for c, cell in zip(("tail", "head"), row)
+              if not decodes(cell)]
+    if not broken:
+        el = fio.read_edges(path)
+        assert el.label(el.tail).tolist() == [t.decode() for t, _ in rows]
+        assert el.label(el.head).tolist() == [h.decode() for _, h in rows]
+        return
+    with pytest.raises(fio.FileFormatError) as info:
+        fio.read_edges(path)
+    row, col = broken[0]
+    msg = str(info.value)
+    assert f"data row {row + 1} (line {row + 2})" in msg and f"column {col!r}" in msg
+    assert "not UTF-8" in msg and "iconv" in msg

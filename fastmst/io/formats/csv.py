@@ -7,7 +7,9 @@ parse).  Cells in :data:`NULLS` read as missing in numeric columns ("nan" is not
 reads as NaN and gets its own error).  Label columns (endpoints, node ids, the label pairs of
 lists of links) are read as text, exactly as written, never guessed: ``007`` stays ``007``,
 ``true`` stays ``true``, ``NA`` is a label (:mod:`fastmst.io.labels` turns them into integers
-only when ``ids="integer"`` asks for it).
+only when ``ids="integer"`` asks for it).  Endpoint labels numbered by first appearance (no
+node table, ``ids="text"``) are parsed as bytes and checked for UTF-8 once mapped, on the
+distinct labels rather than on every cell; a label that is not UTF-8 is refused naming its row.
 
 Writing: labels are written verbatim (quoted), so every label reads back unchanged, also those
 beginning with ``=``, ``+``, ``-`` or ``@`` that spreadsheets take for formulas (see
@@ -107,18 +109,19 @@ def _first_bad_line(path, delimiter, compression, numeric, decimal_comma=False):
 
 
 def read_csv(path, delimiter, compression, columns, numeric, progress=None, text=(),
-             decimal_comma=False, record="edge"):
+             decimal_comma=False, record="edge", raw=()):
     """(table, header, chosen columns) of a CSV/TSV file.
 
     ``columns(header)`` picks the columns to read; ``numeric(cols)`` names those that must be
     numbers (for the error scan); ``text`` names columns read as text, as written;
     ``progress(done_bytes, total_bytes)`` is called while reading; ``decimal_comma`` reads
     ``12,5`` as 12.5 in number columns; ``record`` names what one data row is ("edge") for the
-    message about a file with a header and no rows.
+    message about a file with a header and no rows.  ``raw(header)`` (or a list) names text
+    columns read as bytes, not checked for UTF-8 while parsing: the caller checks what it keeps.
     """
     try:
         return _read_unchecked(path, delimiter, compression, columns, numeric, progress, text,
-                               decimal_comma, record)
+                               decimal_comma, record, raw)
     except OSError as exc:   # pyarrow reports corrupt or truncated compressed data this way
         how = (f"is it complete and really {compression}-compressed?" if compression else
                "is it a complete text file?")
@@ -126,7 +129,7 @@ def read_csv(path, delimiter, compression, columns, numeric, progress=None, text
 
 
 def _read_unchecked(path, delimiter, compression, columns, numeric, progress=None, text=(),
-                    decimal_comma=False, record="edge"):
+                    decimal_comma=False, record="edge", raw=()):
     import pyarrow as pa
     import pyarrow.csv as pcsv
     header = _header(path, delimiter, compression)
@@ -134,8 +137,10 @@ def _read_unchecked(path, delimiter, compression, columns, numeric, progress=Non
     parse = pcsv.ParseOptions(delimiter=delimiter)
     cols = columns(header)
     texts = text(header) if callable(text) else text
+    as_bytes = set(raw(header) if callable(raw) else raw)
     convert = pcsv.ConvertOptions(include_columns=list(dict.fromkeys(cols)), null_values=NULLS,
-                                  column_types={c: pa.string() for c in texts if c in cols},
+                                  column_types={c: pa.binary() if c in as_bytes else pa.string()
+                                                for c in texts if c in cols},
                                   strings_can_be_null=False,
                                   decimal_point="," if decimal_comma else ".")
     try:
@@ -213,8 +218,20 @@ def read_edges(path, compression, request, *, delimiter):
     def labels(header):
         return list(chosen["cols"][:2]) + chosen["carry"]
 
+    def as_bytes(header):
+        # text labels numbered by first appearance: parsed as bytes (no UTF-8 check of 20M
+        # cells while parsing), the distinct labels checked once mapped (_utf8_labels)
+        plain_text = request.nodes is None and request.ids == "text"
+        return list(chosen["cols"][:2]) if plain_text else []
+
+    import pyarrow as pa
     table, _, _ = read_csv(path, delimiter, compression, columns, numeric, request.progress,
-                           labels, request.decimal_comma)
+                           labels, request.decimal_comma, raw=as_bytes)
+    raw = as_bytes(None)
+    for name in raw:   # the bytes as text, unchecked until _utf8_labels
+        i = table.column_names.index(name)
+        table = table.set_column(i, name, pa.chunked_array(
+            [c.view(pa.string()) for c in table.column(i).chunks], type=pa.string()))
     if request.progress is not None:   # parsed; checks and labels follow: no total known
         size = os.path.getsize(path)
         request.progress(size, None)
@@ -228,9 +245,45 @@ def read_edges(path, compression, request, *, delimiter):
             i = table.column_names.index(name)
             table = table.set_column(i, name, typed_text_column(table.column(name),
                                                                 request.decimal_comma))
-    return edges_from_table(table, chosen["cols"], str(path), csv_row, request.nodes,
-                            request.ids, chosen["carry"], request.link_id,
-                            guessed_roles(request.tail, request.head, request.weight))
+    edges = edges_from_table(table, chosen["cols"], str(path), csv_row, request.nodes,
+                             request.ids, chosen["carry"], request.link_id,
+                             guessed_roles(request.tail, request.head, request.weight))
+    if raw:
+        _utf8_labels(edges, raw, path)
+    return edges
+
+
+def _utf8_labels(edges, names, path):
+    """The distinct labels of ``edges`` (a pyarrow text array, mapped from label columns read
+    as bytes) must be UTF-8: every cell is one of them.  Otherwise a FileFormatError naming
+    the first row that holds a bad label."""
+    import pyarrow as pa
+    labels = edges.__dict__.get("_labels")
+    if labels is None or isinstance(labels, np.ndarray):
+        return
+    try:
+        labels.validate(full=True)
+        return
+    except pa.ArrowInvalid:
+        pass
+    raw = labels.view(pa.large_binary() if pa.types.is_large_string(labels.type)
+                      else pa.binary())
+    bad = np.array([i for i, b in enumerate(raw.to_pylist()) if not _decodes(b)])
+    in_tail, in_head = np.isin(edges.tail, bad), np.isin(edges.head, bad)
+    row = int(np.flatnonzero(in_tail | in_head)[0])
+    name, ids = (names[0], edges.tail) if in_tail[row] else (names[1], edges.head)
+    raise FileFormatError(f"{path}: {csv_row(row)}: the label in column {name!r} is not UTF-8 "
+                          f"text ({raw[int(ids[row])].as_py()[:40]!r}; {bad.size} such labels "
+                          f"in all); save the file as UTF-8 (spreadsheets: 'CSV UTF-8'), or "
+                          f"convert it, e.g. iconv -f latin1 -t utf-8.")
+
+
+def _decodes(b: bytes) -> bool:
+    try:
+        b.decode("utf-8")
+        return True
+    except UnicodeDecodeError:
+        return False
 
 
 def _exact_weights(col, path, delimiter, compression, name, decimal_comma):
