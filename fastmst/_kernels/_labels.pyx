@@ -272,52 +272,66 @@ cdef bint _grow_table(Part* p) noexcept nogil:
 cdef void _probe(Part* p, const Entry* ent, Py_ssize_t n, int32_t* lids, const Seg* segs,
                  const Py_ssize_t* segblk) noexcept nogil:
     """Local ids (in order of first appearance within the partition) of its entries ``ent[:n]``
-    of this piece, written to ``lids[:n]``."""
-    cdef Py_ssize_t j, slot, mask, lid
+    of this piece, written to ``lids[:n]``.  The table's fields are kept in locals (stores into
+    the table could alias them, so the compiler would reload them on every probe) and written
+    back to ``p`` when the table or the id arrays grow and at the end."""
+    cdef Py_ssize_t j, slot, lid, i
+    cdef Py_ssize_t count = p.count, cap = p.cap, mask = p.cap - 1
+    cdef Py_ssize_t limit = _room(p)      # count may reach this before anything must grow
     cdef uint64_t h, w1, length
-    cdef uint64_t* tbl
+    cdef uint64_t* tbl = p.slots
+    cdef int64_t* first = p.first
+    cdef uint64_t* uptr = p.uptr
     cdef uint64_t warm = 0
-    cdef Py_ssize_t i
-    p.fresh = p.count
+    p.fresh = count
     # read the table once in order (streamed from memory) before the scattered probes, which
     # then hit the cache; the probe of entry j + 16 is prefetched
-    for i in range(0, 2 * p.cap, 8):
-        warm += p.slots[i]
+    for i in range(0, 2 * cap, 8):
+        warm += tbl[i]
     p.warm = warm
     for j in range(n):
-        if 3 * (p.count + 1) > 2 * p.cap:        # load factor <= 2/3
-            if not _grow_table(p):
+        if count >= limit:
+            p.count = count
+            if 3 * (count + 1) > 2 * p.cap and not _grow_table(p):   # load factor <= 2/3
                 p.failed = True
                 return
+            if count + 1 > p.ucap and not _grow_ids(p):
+                p.failed = True
+                return
+            cap, tbl, first, uptr = p.cap, p.slots, p.first, p.uptr
+            mask = cap - 1
+            limit = _room(p)
         if j + 16 < n:
-            prefetch(&p.slots[2 * (ent[j + 16].h & (p.cap - 1))])
-        if p.count + 1 > p.ucap:
-            if not _grow_ids(p):
-                p.failed = True
-                return
+            prefetch(&tbl[2 * (ent[j + 16].h & mask)])
         h = ent[j].h
         length = ent[j].length
-        tbl = p.slots
-        mask = p.cap - 1
         slot = h & mask
         while True:
             w1 = tbl[2 * slot + 1]
             if w1 == EMPTY:
-                lid = p.count
-                p.count = lid + 1
+                lid = count
+                count = lid + 1
                 tbl[2 * slot] = h
                 tbl[2 * slot + 1] = (length << 32) | <uint64_t>(lid + 1)
-                p.first[lid] = ent[j].row
+                first[lid] = ent[j].row
                 if length > 8:      # short labels are never compared byte by byte
-                    p.uptr[lid] = <uint64_t>_row_bytes(segs, segblk, ent[j].row)
+                    uptr[lid] = <uint64_t>_row_bytes(segs, segblk, ent[j].row)
                 break
             if tbl[2 * slot] == h and (w1 >> 32) == length:
                 lid = <Py_ssize_t>(w1 & 0xffffffffULL) - 1
-                if length <= 8 or memcmp(<const void*>p.uptr[lid],
+                if length <= 8 or memcmp(<const void*>uptr[lid],
                                          _row_bytes(segs, segblk, ent[j].row), length) == 0:
                     break
             slot = (slot + 1) & mask
         lids[j] = <int32_t>lid
+    p.count = count
+
+
+cdef inline Py_ssize_t _room(const Part* p) noexcept nogil:
+    """The largest label count for which one more label needs neither a larger table (load
+    factor <= 2/3: 3 * (count + 1) <= 2 * cap) nor larger id arrays (count + 1 <= ucap)."""
+    cdef Py_ssize_t by_table = (2 * p.cap) // 3, by_ids = p.ucap
+    return by_table if by_table < by_ids else by_ids
 
 
 cdef void _probe_all(Part* parts, const Entry* ent, const Py_ssize_t* start, int32_t* lids,
