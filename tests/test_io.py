@@ -1,4 +1,5 @@
-"""Files, tables and adapters: round trips, label mapping, geometry weights, malformed input.
+"""Files, tables and adapters: round trips, geometry weights, malformed input, writing and
+messages (text labels read as written: test_io_text_labels.py).
 
 References are named beside each check.  The small graphs here are test fixtures, not demo data.
 """
@@ -21,27 +22,12 @@ from hypothesis import strategies as st
 from fastmst import io
 from fastmst.geometry.geodesy import EARTH_RADIUS_M, haversine_m
 from fastmst.io import FileFormatError, registry
+from io_reference import nx_mst_weight, write_csv
 
 # A labelled test graph: two components, a zero weight, a negative weight, parallel edges.
 LINKS = [("alpha", "bravo", 4.0), ("bravo", "charlie", 0.0), ("charlie", "alpha", 2.5),
          ("alpha", "bravo", 1.0), ("delta", "echo", -3.0), ("echo", "foxtrot", 7.0),
          ("foxtrot", "delta", 7.0), ("charlie", "golf", 5.5)]
-
-
-def _write_csv(path, header, rows, sep=","):
-    with open(path, "w", encoding="utf-8") as fh:
-        fh.write(sep.join(header) + "\n")
-        for r in rows:
-            fh.write(sep.join(str(x) for x in r) + "\n")
-    return path
-
-
-def _nx_mst_weight(triples):
-    """Reference: networkx minimum spanning forest weight of a labelled (multi)graph."""
-    g = nx.MultiGraph()
-    for u, v, w in triples:
-        g.add_edge(u, v, weight=w)
-    return sum(e[-1]["weight"] for e in nx.minimum_spanning_edges(g, data=True))
 
 
 def _triples(el: io.EdgeList):
@@ -65,7 +51,7 @@ def test_edge_table_round_trip(tmp_path, name):
     assert el.labels.tolist() == sorted({x for a, b, _ in LINKS for x in (a, b)})
     f = el.solve()
     # networkx.minimum_spanning_edges (Kruskal) as the reference
-    assert f.weight == pytest.approx(_nx_mst_weight(LINKS))
+    assert f.weight == pytest.approx(nx_mst_weight(LINKS))
     assert f.n_components == 2
 
 
@@ -123,17 +109,17 @@ def test_integer_labels_noncontiguous_and_big(tmp_path):
     """Integer ids (ids="integer"): map-style int64 ids and 1-based ids are compacted in
     numeric order and mapped back."""
     big = [2**40 + 7, 3, 2**40 + 7, 912_345_678_901]
-    p = _write_csv(tmp_path / "ids.csv", ["u", "v", "weight"],
+    p = write_csv(tmp_path / "ids.csv", ["u", "v", "weight"],
                    [(big[0], big[1], 1), (big[1], big[3], 2), (big[2], big[3], 3)])
     el = io.read_edges(p, ids="integer")
     assert el.labels.tolist() == sorted({big[0], big[1], big[3]})
     assert el.label(el.tail).tolist() == [big[0], big[1], big[2]]
     assert el.weight.dtype == np.int64
-    one = _write_csv(tmp_path / "one.csv", ["u", "v", "w"], [(1, 2, 1), (2, 3, 1), (5, 3, 2)])
+    one = write_csv(tmp_path / "one.csv", ["u", "v", "w"], [(1, 2, 1), (2, 3, 1), (5, 3, 2)])
     el = io.read_edges(one, ids="integer")
     assert el.labels.tolist() == [1, 2, 3, 5] and el.n_nodes == 4
     assert el.solve().n_components == 1  # no phantom nodes 0 or 4
-    dense = _write_csv(tmp_path / "d.csv", ["u", "v", "w"], [(0, 1, 1), (1, 2, 1)])
+    dense = write_csv(tmp_path / "d.csv", ["u", "v", "w"], [(0, 1, 1), (1, 2, 1)])
     assert io.read_edges(dense, ids="integer").labels is None
     mixed = io.from_table(pa.table({"u": pa.array([5, 9], pa.int32()),
                                     "v": pa.array([9, 2**40], pa.int64()), "w": [1, 2]}))
@@ -142,7 +128,7 @@ def test_integer_labels_noncontiguous_and_big(tmp_path):
 
 def test_default_and_chosen_columns(tmp_path):
     """Endpoints default to the first two columns, the weight to 'weight', else the third."""
-    p = _write_csv(tmp_path / "c.csv", ["src", "dst", "note", "weight"],
+    p = write_csv(tmp_path / "c.csv", ["src", "dst", "note", "weight"],
                    [("a", "b", "x", 5), ("b", "c", "y", 1)])
     el = io.read_edges(p)
     assert el.columns == ("src", "dst", "weight") and el.weight.tolist() == [5, 1]
@@ -153,11 +139,11 @@ def test_default_and_chosen_columns(tmp_path):
 def test_weight_length_from_coordinates(tmp_path):
     """weight='length' gives Euclidean lengths for x/y and great-circle metres for lon/lat,
     checked against an independent computation with math (spherical law of cosines)."""
-    e = _write_csv(tmp_path / "e.csv", ["a", "b"], [(1, 2), (2, 3)])
-    xy = _write_csv(tmp_path / "xy.csv", ["id", "x", "y"], [(1, 0, 0), (2, 3, 4), (3, 3, 5)])
+    e = write_csv(tmp_path / "e.csv", ["a", "b"], [(1, 2), (2, 3)])
+    xy = write_csv(tmp_path / "xy.csv", ["id", "x", "y"], [(1, 0, 0), (2, 3, 4), (3, 3, 5)])
     el = io.read_edges(e, weight="length", nodes=xy)
     assert el.weight.tolist() == [5.0, 1.0]
-    ll = _write_csv(tmp_path / "ll.csv", ["id", "lon", "lat"],
+    ll = write_csv(tmp_path / "ll.csv", ["id", "lon", "lat"],
                     [(1, -0.1276, 51.5072), (2, 2.3522, 48.8566), (3, 13.405, 52.52)])
     el = io.read_edges(e, weight="length", nodes=ll)
     assert el.geographic
@@ -190,8 +176,8 @@ def test_haversine_published_example():
 
 def test_node_table_keeps_isolated_nodes(tmp_path):
     """With a node table, compact ids follow its rows, so nodes without edges are isolated."""
-    e = _write_csv(tmp_path / "e.csv", ["a", "b", "w"], [("n2", "n1", 1.0)])
-    n = _write_csv(tmp_path / "n.csv", ["id", "x", "y"], [("n1", 0, 0), ("n2", 1, 0),
+    e = write_csv(tmp_path / "e.csv", ["a", "b", "w"], [("n2", "n1", 1.0)])
+    n = write_csv(tmp_path / "n.csv", ["id", "x", "y"], [("n1", 0, 0), ("n2", 1, 0),
                                                           ("n3", 2, 2)])
     el = io.read_edges(e, nodes=n)
     assert el.labels.tolist() == ["n1", "n2", "n3"]
@@ -229,7 +215,7 @@ def test_dimacs_gr(tmp_path):
     assert el.tail.tolist() == [0, 1, 1, 2, 3] and el.weight.tolist() == [7, 7, 1, 2, 3]
     assert el.label([0, 3]).tolist() == [1, 4]
     triples = _triples(el)
-    assert el.solve().weight == _nx_mst_weight(triples)  # networkx reference
+    assert el.solve().weight == nx_mst_weight(triples)  # networkx reference
 
 
 def test_dimacs_gr_top_comments_take_the_threaded_parse(tmp_path, monkeypatch):
@@ -309,7 +295,7 @@ def test_labels_map_and_back_property(labels, data):
     assert el.label(el.head).tolist() == [p[1] for p in picks]
     used = {x for p in picks for x in p[:2]}
     assert el.n_nodes == len(used)
-    assert el.solve().weight == _nx_mst_weight([(a, b, float(w)) for a, b, w in picks])
+    assert el.solve().weight == nx_mst_weight([(a, b, float(w)) for a, b, w in picks])
 
 
 # --- adapters --------------------------------------------------------------------------------------
@@ -325,7 +311,7 @@ def test_from_scipy_symmetric_and_zeros():
     assert el.n_edges == 3 and el.n_nodes == 4
     assert sorted(el.weight.tolist()) == [0.0, 2.0, 5.0]
     f = el.solve()
-    assert f.weight == _nx_mst_weight(_triples(el)) == 2.0
+    assert f.weight == nx_mst_weight(_triples(el)) == 2.0
     assert f.n_components == 2
     assert io.from_scipy(m, symmetric=False).n_edges == 6
     np.testing.assert_array_equal(m.data, before)  # input not mutated
@@ -440,8 +426,8 @@ def test_bad_number_after_the_first_block(tmp_path):
 
 def test_ids_not_in_node_table(tmp_path):
     """An endpoint missing from the node table is named with its line and the node file."""
-    e = _write_csv(tmp_path / "e.csv", ["a", "b", "w"], [("x", "y", 1), ("y", "zz", 2)])
-    n = _write_csv(tmp_path / "n.csv", ["id", "x", "y"], [("x", 0, 0), ("y", 1, 1)])
+    e = write_csv(tmp_path / "e.csv", ["a", "b", "w"], [("x", "y", 1), ("y", "zz", 2)])
+    n = write_csv(tmp_path / "n.csv", ["id", "x", "y"], [("x", 0, 0), ("y", 1, 1)])
     with pytest.raises(FileFormatError, match=r"line 3\): node 'zz' in column 'b' is not in "
                                               r"the node table"):
         io.read_edges(e, nodes=n)
@@ -449,13 +435,13 @@ def test_ids_not_in_node_table(tmp_path):
 
 def test_bad_node_tables(tmp_path):
     """Duplicate node ids, swapped lon/lat and missing coordinate columns are named."""
-    dup = _write_csv(tmp_path / "d.csv", ["id", "lon", "lat"], [("a", 0, 0), ("a", 1, 1)])
+    dup = write_csv(tmp_path / "d.csv", ["id", "lon", "lat"], [("a", 0, 0), ("a", 1, 1)])
     with pytest.raises(FileFormatError, match="appears twice"):
         io.read_nodes(dup)
-    swapped = _write_csv(tmp_path / "s.csv", ["id", "lon", "lat"], [("a", 45, 120)])
+    swapped = write_csv(tmp_path / "s.csv", ["id", "lon", "lat"], [("a", 45, 120)])
     with pytest.raises(FileFormatError, match="outside \\[-90, 90\\]"):
         io.read_nodes(swapped)
-    nocoord = _write_csv(tmp_path / "c.csv", ["id", "p", "q"], [("a", 0, 0)])
+    nocoord = write_csv(tmp_path / "c.csv", ["id", "p", "q"], [("a", 0, 0)])
     with pytest.raises(FileFormatError, match="cannot find coordinate columns"):
         io.read_nodes(nocoord)
 
@@ -463,7 +449,7 @@ def test_bad_node_tables(tmp_path):
 def test_decimal_ids_and_unknown_suffix(tmp_path):
     """Decimal node ids in a typed column, and files of unknown format, get errors that say
     what to do; in a text file '1.5' is a text label like any other."""
-    p = _write_csv(tmp_path / "f.csv", ["a", "b", "w"], [(1.5, 2, 1)])
+    p = write_csv(tmp_path / "f.csv", ["a", "b", "w"], [(1.5, 2, 1)])
     assert io.read_edges(p).labels.tolist() == ["1.5", "2"]
     with pytest.raises(FileFormatError, match="not an integer"):
         io.read_edges(p, ids="integer")
@@ -500,7 +486,7 @@ def test_atomic_write_keeps_old_file(tmp_path):
 
 def test_progress_callback_reports_bytes(tmp_path):
     """read_edges(progress=...) is called with bytes read up to the file size."""
-    p = _write_csv(tmp_path / "e.csv", ["a", "b", "w"], [(i, i + 1, i) for i in range(2000)])
+    p = write_csv(tmp_path / "e.csv", ["a", "b", "w"], [(i, i + 1, i) for i in range(2000)])
     seen = []
     el = io.read_edges(p, progress=lambda done, total: seen.append((done, total)))
     assert el.n_edges == 2000
@@ -555,7 +541,7 @@ def test_nan_messages_name_the_column_kind(tmp_path):
 def test_wrong_types_raise_type_error(tmp_path):
     """Wrong types are TypeError: a progress that is not callable, geographic not a bool, a
     column not given by name, a table that is not a path or a table."""
-    p = _write_csv(tmp_path / "e.csv", ["a", "b", "w"], [(0, 1, 1.0)])
+    p = write_csv(tmp_path / "e.csv", ["a", "b", "w"], [(0, 1, 1.0)])
     with pytest.raises(TypeError, match="progress must be a function"):
         io.read_edges(p, progress=5)
     n = tmp_path / "n.csv"
@@ -585,309 +571,3 @@ def test_read_positions_by_position_and_by_labels(tmp_path):
     bad.write_text("u,v\nalpha,zulu\n")
     with pytest.raises(FileFormatError, match="node 'zulu' is not a node"):
         io.read_positions(bad, el)
-
-
-# --- labels are text unless the ids are declared integers ------------------------------------------
-
-# Label shapes that a type-guessing reader would change: leading zeros, hex- and float-like
-# text, true/false words, signs, surrounding spaces, unicode, null-like words.
-_TRICKY = ["007", "7", "0x1", "1", "true", "false", "True", "1e3", "1000", "+7", "-0", "0",
-           " 7", "7 ", "NA", "null", "nan", "inf", "é", "名前", "a b", "=1+2", "@x", "1.0"]
-# Text labels without line breaks (a CSV/TSV writer refuses those, see the test below) and
-# without NUL (NumPy's text dtype of .npz cannot end a string with it).
-_TEXT = st.text(st.characters(blacklist_categories=("Cs",),
-                              blacklist_characters="\r\n\x00\x0b\x0c\x1c\x1d\x1e\x85\u2028\u2029"),
-                min_size=1, max_size=6)
-_LABEL = st.one_of(st.sampled_from(_TRICKY), _TEXT,
-                   st.integers(0, 10**6).map(lambda i: f"{i:0{(i % 4) + 1}d}"),
-                   st.integers(0, 255).map(hex))
-
-
-def _csv_file(path, rows, sep=","):
-    """Rows written by Python's csv module (quoting what needs it), as a user's file would be."""
-    import csv
-    with open(path, "w", newline="", encoding="utf-8") as fh:
-        w = csv.writer(fh, delimiter=sep)
-        w.writerow(["tail", "head", "weight"])
-        w.writerows(rows)
-    return path
-
-
-def _first_appearance(picks):
-    seen = {}
-    for x in [p[0] for p in picks] + [p[1] for p in picks]:
-        seen.setdefault(x, len(seen))
-    return list(seen)
-
-
-@settings(deadline=None, derandomize=True, max_examples=60)
-@given(labels=st.lists(_LABEL, min_size=1, max_size=8, unique=True), data=st.data())
-def test_text_labels_read_exactly_and_round_trip_every_writer(tmp_path_factory, labels, data):
-    """CSV/TSV endpoint columns are read as text, exactly as written: '007' and '7' are two
-    nodes, '0x1' and 'true' stay text, and compact ids follow first appearance (tail column,
-    then head column).  Every writer (CSV, TSV, Parquet, .npz, GeoJSON) gives the labels back
-    unchanged; the forest weight equals networkx's on the labelled graph (reference library)."""
-    tmp = tmp_path_factory.mktemp("labels")
-    m = data.draw(st.integers(1, 10))
-    picks = data.draw(st.lists(st.tuples(st.sampled_from(labels), st.sampled_from(labels),
-                                         st.integers(-5, 5)), min_size=m, max_size=m))
-    for name, sep in (("e.csv", ","), ("e.tsv", "\t")):
-        el = io.read_edges(_csv_file(tmp / name, picks, sep))
-        assert el.labels.tolist() == _first_appearance(picks)
-        assert el.label(el.tail).tolist() == [p[0] for p in picks]
-        assert el.label(el.head).tolist() == [p[1] for p in picks]
-        f = el.solve()
-        assert f.weight == _nx_mst_weight([(a, b, w) for a, b, w in picks])
-    want = list(zip(el.label(f.tail).tolist(), el.label(f.head).tolist()))
-    if not want:   # self-loops only: an empty forest has no edge list to read back
-        return
-    for out in ("f.csv", "f.tsv", "f.csv.gz", "f.parquet", "f.npz"):
-        back = io.read_edges(io.write_forest(tmp / out, f, el))
-        assert list(zip(back.label(back.tail).tolist(), back.label(back.head).tolist())) == want
-    coords = np.arange(2 * el.n_nodes, dtype=float).reshape(-1, 2) % 80
-    geo = io.EdgeList(el.tail, el.head, el.weight, el.n_nodes, el.labels, coords, True)
-    doc = json.loads(io.write_forest(tmp / "f.geojson", f, geo).read_text(encoding="utf-8"))
-    assert [(x["properties"]["tail"], x["properties"]["head"]) for x in doc["features"]] == want
-
-
-def test_integer_ids_only_when_asked(tmp_path):
-    """ids="integer" reads endpoint columns as integers ('007' is node 7); the default keeps
-    them as text, also in a node table and in lists of links."""
-    p = _write_csv(tmp_path / "e.csv", ["u", "v", "w"],
-                   [("007", "7", 1), ("7", "0x1", 2), ("true", "007", 3)])
-    el = io.read_edges(p)
-    assert el.labels.tolist() == ["007", "7", "true", "0x1"] and el.n_nodes == 4
-    assert el.solve().n_components == 1
-    q = _write_csv(tmp_path / "i.csv", ["u", "v", "w"], [("007", "7", 1), ("8", "09", 2)])
-    ints = io.read_edges(q, ids="integer")
-    assert ints.labels.tolist() == [7, 8, 9] and ints.n_nodes == 3
-    with pytest.raises(FileFormatError, match=r"line 4\).*'true'.*not an integer"):
-        io.read_edges(p, ids="integer")
-    with pytest.raises(ValueError, match="unknown ids 'int'"):
-        io.read_edges(p, ids="int")
-    nodes = tmp_path / "n.csv"
-    nodes.write_text("id,x,y\n007,0,0\n7,1,0\ntrue,2,0\n0x1,3,0\n")
-    withn = io.read_edges(p, nodes=nodes)
-    assert withn.labels.tolist() == ["007", "7", "true", "0x1"]
-    assert withn.label(withn.tail).tolist() == ["007", "7", "true"]
-    assert io.read_nodes(nodes, ids="text").labels.tolist() == ["007", "7", "true", "0x1"]
-    links = tmp_path / "l.csv"
-    links.write_text("a,b\n7,007\n")
-    assert io.read_positions(links, el).tolist() == [0]
-
-
-def test_same_label_same_node_whatever_the_column_holds(tmp_path):
-    """A label is one node whether its column is all digits or not (CSV and typed tables)."""
-    p = _write_csv(tmp_path / "e.csv", ["u", "v", "w"], [("1", "2", 1), ("3", "x", 1)])
-    el = io.read_edges(p)     # column u is all digits, column v is not
-    assert el.labels.tolist() == ["1", "3", "2", "x"]
-    t = pa.table({"u": pa.array([1, 2], pa.int64()), "v": ["2", "x"], "w": [1.0, 1.0]})
-    mixed = io.from_table(t)
-    assert mixed.n_nodes == 3 and mixed.solve().n_components == 1
-
-
-def test_true_false_labels_round_trip(tmp_path):
-    """true/false labels come back as the same words, not as booleans."""
-    p = _write_csv(tmp_path / "b.csv", ["u", "v", "w"], [("true", "false", 1), ("false", "x", 2)])
-    el = io.read_edges(p)
-    out = io.write_forest(tmp_path / "f.csv", el.solve(), el)
-    assert out.read_text().splitlines()[1:] == ['"true","false",1,0', '"false","x",2,1']
-    assert io.read_edges(out).labels.tolist() == ["true", "false", "x"]
-
-
-def test_csv_writer_refuses_line_breaks_in_labels(tmp_path):
-    """A label with a line break cannot be read back from CSV at full speed: the writer refuses
-    it, naming the label and the formats that keep it (Parquet, .npz)."""
-    el = io.from_table(pa.table({"a": ["x\ny", "b"], "b": ["b", "c"], "w": [1, 2]}))
-    f = el.solve()
-    with pytest.raises(ValueError, match=r"f\.csv.*label 'x\\ny' has a line break.*Parquet"):
-        io.write_forest(tmp_path / "f.csv", f, el)
-    assert not (tmp_path / "f.csv").exists()
-    back = io.read_edges(io.write_forest(tmp_path / "f.parquet", f, el))
-    assert "x\ny" in back.labels.tolist()
-
-
-def test_progress_never_shows_done_while_work_continues(tmp_path):
-    """After the last byte is parsed the reader still checks and maps labels: it says so by a
-    call with total None (a spinner), so a bar never sits at 100 % while work continues."""
-    p = _write_csv(tmp_path / "e.csv", ["a", "b", "w"], [(f"n{i}", f"n{i + 1}", i)
-                                                         for i in range(3000)])
-    seen = []
-    io.read_edges(p, progress=lambda done, total: seen.append((done, total)))
-    full = [i for i, (d, t) in enumerate(seen) if t is not None and d == t]
-    assert full and seen[-1][1] is None and full[-1] < len(seen) - 1
-
-
-# --- hostile and awkward files ---------------------------------------------------------------------
-
-def test_header_declaring_huge_node_counts_is_refused(tmp_path):
-    """A tiny .gr or .mtx whose header declares hundreds of millions of nodes is refused before
-    anything node-sized is allocated; declared_nodes= confirms a genuinely large count."""
-    import tracemalloc
-    gr = tmp_path / "h.gr"
-    gr.write_text("p sp 400000000 1\na 1 2 3\n")
-    mtx = tmp_path / "h.mtx"
-    mtx.write_text("%%MatrixMarket matrix coordinate real general\n400000000 400000000 1\n1 2 3\n")
-    for path in (gr, mtx):
-        tracemalloc.start()
-        try:
-            with pytest.raises(FileFormatError, match=r"declares 400,000,000 nodes.*"
-                                                      r"declared_nodes=400000000"):
-                io.read_edges(path)
-            peak = tracemalloc.get_traced_memory()[1]
-        finally:
-            tracemalloc.stop()
-        assert peak < 64 * 2**20, peak     # nothing node-sized (3.2 GB) was allocated
-        with pytest.raises(FileFormatError, match="declared_nodes=5 does not match"):
-            io.read_edges(path, declared_nodes=5)
-    ok = tmp_path / "ok.gr"
-    ok.write_text("p sp 3000000 1\na 1 2 3\n")
-    with pytest.raises(FileFormatError, match="declares 3,000,000 nodes"):
-        io.read_edges(ok)
-    el = io.read_edges(ok, declared_nodes=3_000_000)
-    assert el.n_nodes == 3_000_000 and el.solve().n_components == 3_000_000 - 1
-
-
-def test_gr_lines_split_on_any_whitespace(tmp_path):
-    """.gr fields are whitespace-separated: tabs, repeated, leading and trailing spaces, CRLF."""
-    p = tmp_path / "w.gr"
-    p.write_bytes(b"c  comment\r\np sp  3\t2 \r\n  a 1\t2   5  \r\na\t2 3\t1\t\r\n")
-    el = io.read_edges(p)
-    assert el.n_nodes == 3 and el.tail.tolist() == [0, 1] and el.weight.tolist() == [5, 1]
-    bad = tmp_path / "bad.gr"
-    bad.write_text("p sp 3 2\na 1 2 5\na 2 x 1\n")
-    with pytest.raises(FileFormatError, match="line 3: node ids"):
-        io.read_edges(bad)
-
-
-# --- writing -----------------------------------------------------------------------------------------
-
-def test_replacing_a_file_keeps_its_permissions(tmp_path):
-    """Replacing an output keeps the target's mode (0600 stays 0600); a new file gets the
-    usual mode of a new file."""
-    el = io.from_table(pa.table({"a": ["x"], "b": ["y"], "w": [1.0]}))
-    out = tmp_path / "f.csv"
-    out.write_text("old\n")
-    os.chmod(out, 0o600)
-    io.write_forest(out, el.solve(), el)
-    assert (os.stat(out).st_mode & 0o777) == 0o600 and out.read_text() != "old\n"
-    umask = os.umask(0)
-    os.umask(umask)
-    new = io.write_forest(tmp_path / "g.parquet", el.solve(), el)
-    assert (os.stat(new).st_mode & 0o777) == 0o666 & ~umask
-
-
-def test_write_errors_name_the_file(tmp_path):
-    """A write that fails names the target file, not a temporary one."""
-    el = io.from_table(pa.table({"a": ["x"], "b": ["y"], "w": [1.0]}))
-    target = tmp_path / "adir.csv"
-    target.mkdir()
-    with pytest.raises(OSError, match=f"cannot write {str(target)!r}"):
-        io.write_forest(target, el.solve(), el)
-    assert sorted(os.listdir(tmp_path)) == ["adir.csv"]
-
-
-def test_spreadsheet_formulas_verbatim_by_default(tmp_path):
-    """Labels starting with = + - @ are written verbatim (they round-trip); spreadsheet_safe
-    prefixes them with an apostrophe in CSV/TSV text cells only (numbers untouched)."""
-    el = io.from_table(pa.table({"a": ["=1+2", "@x", "-y"], "b": ["+3", "ok", "=z"],
-                                 "w": [-1.0, 2.0, 3.0]}))
-    f = el.solve()
-    plain_ = io.write_forest(tmp_path / "p.csv", f, el)
-    assert set(io.read_edges(plain_).labels.tolist()) == {"=1+2", "@x", "-y", "+3", "ok", "=z"}
-    safe = io.write_forest(tmp_path / "s.csv", f, el, spreadsheet_safe=True)
-    rows = safe.read_text().splitlines()[1:]
-    assert rows[0].startswith('"\'=1+2","\'+3","-1.0",')   # floats read back as floats
-    assert all(not c.strip('"').startswith(("=", "+", "-", "@"))
-               for r in rows for c in r.split(",")[:2])
-    pq = io.write_forest(tmp_path / "s.parquet", f, el, spreadsheet_safe=True)
-    assert "=1+2" in io.read_edges(pq).labels.tolist()   # only text formats are changed
-
-
-# --- messages ----------------------------------------------------------------------------------------
-
-def test_messages_show_plain_numbers(tmp_path):
-    """No NumPy scalar reprs (np.int64(7)) in messages about integer labels."""
-    el = io.from_table(pa.table({"a": [7, 8], "b": [8, 9], "w": [1, 2]}))
-    pairs = tmp_path / "p.parquet"
-    io.write_table(pairs, pa.table({"u": [7], "v": [9]}))
-    with pytest.raises(FileFormatError) as e:
-        io.read_positions(pairs, el)
-    assert "np." not in str(e.value) and "no edge joins 7 and 9" in str(e.value)
-    with pytest.raises(FileFormatError) as e:
-        io.read_nodes(pa.table({"id": [5, 5], "x": [0.0, 1.0], "y": [0.0, 1.0]}))
-    assert "np." not in str(e.value) and "node 5 in column 'id' appears twice" in str(e.value)
-
-
-def test_nullable_int_column_reported_as_missing():
-    """A pandas Int64 column with NA is reported as missing values, not as a float dtype."""
-    import pandas as pd
-    df = pd.DataFrame({"a": pd.array([1, None], dtype="Int64"), "b": [2, 3],
-                       "w": pd.array([1, None], dtype="Int64")})
-    with pytest.raises(FileFormatError, match=r"row 1 .*column 'a' is empty or missing"):
-        io.from_table(df)
-    df["a"] = [1, 2]
-    with pytest.raises(FileFormatError, match=r"row 1 .*column 'w' is empty or missing"):
-        io.from_table(df)
-
-
-def test_uint64_weights_read_and_odd_dtypes_refused(tmp_path):
-    """uint64 weights beyond 2**63 are read as uint64 from Parquet and .npz; complex weights
-    are refused with a message naming the file and the column."""
-    big = np.array([2**64 - 1, 2**63, 5], dtype=np.uint64)
-    t, h = np.array([0, 1, 2]), np.array([1, 2, 0])
-    pq_ = tmp_path / "u.parquet"
-    io.write_table(pq_, pa.table({"tail": t, "head": h, "weight": big}))
-    np.savez(tmp_path / "u.npz", tail=t, head=h, weight=big)
-    for p in (pq_, tmp_path / "u.npz"):
-        el = io.read_edges(p)
-        assert el.weight.dtype == np.uint64 and el.weight.tolist() == big.tolist()
-        assert el.solve().edges.tolist() == [2, 1]    # the two lightest of a triangle
-    np.savez(tmp_path / "c.npz", tail=t, head=h, weight=big.astype(complex))
-    with pytest.raises(FileFormatError, match=r"c\.npz: column 'weight' holds complex"):
-        io.read_edges(tmp_path / "c.npz")
-
-
-# A header that names two columns alike: reading by name would take one and drop the other
-# unseen (one column for both endpoints: every edge a self-loop, an empty forest; a carried
-# column: its twin's values lost).  Every such file or table is refused, naming the columns.
-@settings(max_examples=25, deadline=None)
-@given(role=st.sampled_from(["tail", "head", "weight", "carried"]),
-       fmt=st.sampled_from(["csv", "tsv", "parquet", "table"]))
-def test_duplicate_column_names_are_refused(tmp_path_factory, role, fmt):
-    import pyarrow as pa
-    import pyarrow.parquet as pq
-    names = ["tail", "head", "weight", "note"]
-    twin = {"tail": 0, "head": 1, "weight": 2, "carried": 3}[role]
-    names.append(names[twin])
-    cols = [pa.array(["a", "b"]), pa.array(["b", "c"]), pa.array([1.0, 2.0]),
-            pa.array(["p", "q"]), pa.array(["r", "s"])]
-    if twin < 2:
-        cols[4] = pa.array(["c", "a"])
-    elif twin == 2:
-        cols[4] = pa.array([5.0, 6.0])
-    table = pa.Table.from_arrays(cols, names=names)
-    path = tmp_path_factory.mktemp("dup") / f"edges.{ 'txt' if fmt == 'table' else fmt}"
-    if fmt == "table":
-        read = lambda: io.from_table(table)  # noqa: E731
-    else:
-        if fmt == "parquet":
-            pq.write_table(table, path)
-        else:
-            sep = "," if fmt == "csv" else "\t"
-            path.write_text(sep.join(names) + "\n" + "\n".join(
-                sep.join(str(c[i].as_py()) for c in cols) for i in range(2)) + "\n")
-        read = lambda: io.read_edges(path)  # noqa: E731
-    with pytest.raises(io.FileFormatError, match=rf"names 2 columns '{names[twin]}' "
-                                                  rf"\(columns {twin + 1}, 5\)"):
-        read()
-    if role == "carried" and fmt != "table":
-        # leaving the twin out of the carried columns reads the edges
-        assert io.read_edges(path, keep_columns=[]).n_edges == 2
-
-
-def test_tail_and_head_one_column_is_refused(tmp_path):
-    path = tmp_path / "edges.csv"
-    path.write_text("a,b,w\n1,2,3\n")
-    with pytest.raises(io.FileFormatError, match="tail and head are both column 'a'"):
-        io.read_edges(path, tail="a", head="a")
