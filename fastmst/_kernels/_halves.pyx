@@ -1,14 +1,9 @@
-"""Covering a rooted forest's links by the halves of candidate links: the compiled kernels of
-backup links (``fastmst.design.redundancy``).  ``halves.py`` checks the inputs with NumPy,
-allocates every work and output array and assembles the results; the ``def``s here take those
-arrays, check that their lengths agree, release the GIL and run the ``noexcept nogil`` kernels.
-
-``common_ancestors``
-    Lowest common ancestors of node pairs, offline (Tarjan 1979): where each candidate link is
-    cut into its two halves (each end up to the common ancestor).
-``cover_by_halves``
-    The cheapest cover of the forest's links by those upward halves, by a dynamic programme
-    over a segment tree (the arborescence step of Frederickson and JaJa's 2-approximation).
+"""Compiled kernels of backup links (``fastmst.design.redundancy``): offline lowest common
+ancestors and the cover of a rooted forest's links by upward halves of candidate links.  The
+method notes are in ``halves.py``, which checks the inputs with NumPy, allocates every work and
+output array and assembles the results; the ``def``s here (``common_ancestors``,
+``cover_by_halves``) take those arrays, check that their lengths agree, release the GIL and
+run the ``noexcept nogil`` kernels.
 
 Both take the nodes in a depth-first postorder (``_postorder``), children in node-id order.
 Inputs are int64 (node ids, parents, depths) and float64 (costs); int32 inside.

@@ -228,21 +228,23 @@ cdef void _row_pass(const Seg* segs, Py_ssize_t nseg, Py_ssize_t rows, Py_ssize_
 # ---------------------------------------------------------------------------------------------
 # partition passes
 
+cdef bint _resize(void** block, Py_ssize_t n, size_t size) noexcept nogil:
+    """``*block`` reallocated to ``n`` items of ``size`` bytes (False, and ``*block`` as it
+    was, when memory ran out)."""
+    cdef void* a = realloc(block[0], n * size)
+    if a == NULL:
+        return False
+    block[0] = a
+    return True
+
+
 cdef bint _grow_ids(Part* p) noexcept nogil:
     """Room for more distinct labels in ``p`` (False when memory ran out)."""
     cdef Py_ssize_t u = 2 * p.ucap if p.ucap else 256
-    cdef void* a = realloc(p.first, u * sizeof(int64_t))
-    if a == NULL:
+    if not (_resize(<void**>&p.first, u, sizeof(int64_t))
+            and _resize(<void**>&p.uptr, u, sizeof(uint64_t))
+            and _resize(<void**>&p.gid, u, sizeof(int32_t))):
         return False
-    p.first = <int64_t*>a
-    a = realloc(p.uptr, u * sizeof(uint64_t))
-    if a == NULL:
-        return False
-    p.uptr = <uint64_t*>a
-    a = realloc(p.gid, u * sizeof(int32_t))
-    if a == NULL:
-        return False
-    p.gid = <int32_t*>a
     p.ucap = u
     return True
 
@@ -548,14 +550,9 @@ def map_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
 
 cdef bint _grow_labels(LabelTables t, Py_ssize_t k) noexcept nogil:
     """Room for ``k`` distinct labels' (address, length) (False when memory ran out)."""
-    cdef void* a = realloc(t.gptr, k * sizeof(uint64_t))
-    if a == NULL:
+    if not (_resize(<void**>&t.gptr, k, sizeof(uint64_t))
+            and _resize(<void**>&t.glen, k, sizeof(int64_t))):
         return False
-    t.gptr = <uint64_t*>a
-    a = realloc(t.glen, k * sizeof(int64_t))
-    if a == NULL:
-        return False
-    t.glen = <int64_t*>a
     t.gcap = k
     return True
 

@@ -1,12 +1,8 @@
-"""First covering links of a rooted forest's links: the compiled kernel of single-link
-failures (``fastmst.design.failures``), the replacement of every forest link.
-``replacements.py`` checks the inputs with NumPy, allocates the node records and assembles the
-cover of every link; the ``def`` here takes those arrays, checks that their lengths agree,
-releases the GIL and runs the ``noexcept nogil`` kernel.
-
-``first_covers``
-    For every forest link, the first of a list of links whose tree path holds it (Tarjan
-    1982), by a disjoint set that jumps over the links already covered.
+"""The compiled kernel of single-link failures (``fastmst.design.failures``): the first
+covering link of every forest link.  The method notes are in ``replacements.py``, which checks
+the inputs with NumPy, allocates the node records and assembles the cover of every link; the
+``def`` here (``first_covers``) takes those arrays, checks that their lengths agree, releases
+the GIL and runs the ``noexcept nogil`` kernel.
 """
 from libc.stdint cimport int32_t, int64_t
 

@@ -1,12 +1,7 @@
-"""Plain Kruskal scans and forest sizes.
-
-``kruskal`` scans a given edge order (the rule order; used beyond 2**32 - 1 edges, where the
-radix records cannot hold positions); ``forest_size`` counts the forest edges by one union pass;
-``forest_bound`` bounds them by one streaming pass, which lets the Kruskal kernels stop early.
-
-Files: ``scan.py`` holds those public functions (checks, allocations, results); this compiled
-module the kernels, each behind a thin ``def`` (``kruskal_scan``, ``count_merges``,
-``count_touched``) that checks the sizes that protect memory and releases the GIL.
+"""Compiled kernels of the plain Kruskal scans and forest sizes (the functions and their notes
+are in ``scan.py``, which checks, allocates and assembles the results).  Each kernel sits
+behind a thin ``def`` (``kruskal_scan``, ``count_merges``, ``count_touched``) that checks the
+sizes that protect memory and releases the GIL.
 """
 from cython.parallel cimport prange, threadid
 from libc.stdint cimport int64_t, uint8_t, uint64_t

@@ -218,16 +218,17 @@ def read_edges(path, compression, request, *, delimiter):
     def labels(header):
         return list(chosen["cols"][:2]) + chosen["carry"]
 
-    def as_bytes(header):
-        # text labels numbered by first appearance: parsed as bytes (no UTF-8 check of 20M
-        # cells while parsing), the distinct labels checked once mapped (_utf8_labels)
-        plain_text = request.nodes is None and request.ids == "text"
-        return list(chosen["cols"][:2]) if plain_text else []
+    # text labels numbered by first appearance: parsed as bytes (no UTF-8 check of every cell
+    # while parsing), the distinct labels checked once mapped (_utf8_labels)
+    by_bytes = request.nodes is None and request.ids == "text"
+
+    def as_bytes(header=None):
+        return list(chosen["cols"][:2]) if by_bytes else []
 
     import pyarrow as pa
     table, _, _ = read_csv(path, delimiter, compression, columns, numeric, request.progress,
                            labels, request.decimal_comma, raw=as_bytes)
-    raw = as_bytes(None)
+    raw = as_bytes()
     for name in raw:   # the bytes as text, unchecked until _utf8_labels
         i = table.column_names.index(name)
         table = table.set_column(i, name, pa.chunked_array(
