@@ -119,53 +119,149 @@ def test_text_ids_refuses_nulls_and_other_types():
 
 
 def _piece_arrays(values, threads=1):
-    """The arguments ``labels.text_ids`` hands to ``_labels.map_piece`` for one piece."""
+    """The arguments ``labels.text_ids`` hands to ``_labels.count_piece`` and
+    ``_labels.map_piece`` for one piece: (pieces, count_piece args, map_piece args)."""
     from fastmst._kernels import _labels
     pieces = [K._pieces(pa.array(values))]
     seg, rows = K._segment_table(pieces, K._segments(pieces, len(values))[0])
     nblk = 8 * threads if threads > 1 else 1
     block = (rows + nblk - 1) // nblk
+    nblk = (rows + block - 1) // block
     words = (rows + 63) // 64
-    return pieces, dict(
-        tables=_labels.LabelTables(), seg=seg.reshape(-1),
-        segblk=np.zeros(((rows - 1) >> _labels.SEG_ROWS_LOG2) + 1, dtype=np.intp),
-        rows=rows, block=block, hist=np.empty(nblk * _labels.N_PARTS, dtype=np.intp),
+    tables = _labels.LabelTables()
+    segblk = np.zeros(((rows - 1) >> _labels.SEG_ROWS_LOG2) + 1, dtype=np.intp)
+    counting = dict(tables=tables, seg=seg.reshape(-1), segblk=segblk, rows=rows, block=block,
+                    regs=np.empty(nblk * _labels.REG_BYTES, dtype=np.uint8), threads=threads)
+    mapping = dict(
+        tables=tables, seg=seg.reshape(-1), segblk=segblk, rows=rows, block=block,
         off=np.empty(nblk * _labels.N_PARTS, dtype=np.intp),
         start=np.empty(_labels.N_PARTS + 1, dtype=np.intp),
         ent=np.empty(rows * _labels.ENTRY_BYTES, dtype=np.uint8),
         part=np.empty(rows, dtype=np.uint8), eid=np.empty(rows, dtype=np.int32),
         bits=np.empty(words, dtype=np.uint64), below=np.empty(words, dtype=np.intp),
         out=np.empty(rows, dtype=np.int32), threads=threads)
+    return pieces, counting, mapping
 
 
 @settings(max_examples=60, deadline=None)
 @given(st.lists(st.sampled_from(["a", "bb", "a much longer label", "é", ""]), min_size=1,
                 max_size=300),
-       st.sampled_from(["seg", "segblk", "hist", "off", "start", "ent", "part", "eid", "bits",
-                        "below", "out"]),
+       st.sampled_from(["seg", "segblk", "off", "start", "ent", "part", "eid", "bits",
+                        "below", "out", "regs"]),
        st.sampled_from([1, 2]))
 def test_map_piece_refuses_any_array_too_short_for_the_piece(values, name, threads):
-    """The compiled def checks every array against the piece before its passes write: one
+    """The compiled defs check every array against the piece before their passes write: one
     array short by one element (or one segment word) is a ValueError, and the full-size set
     maps the piece as the reference does (reference: NumPy's np.unique, above)."""
     from fastmst._kernels import _labels
-    pieces, args = _piece_arrays(values, threads)
+    pieces, counting, mapping = _piece_arrays(values, threads)
+    args = counting if name in counting else mapping
     full = dict(args)
-    short = args[name][:-1] if name != "hist" else args[name][:-_labels.N_PARTS]
-    args[name] = short
-    with pytest.raises(ValueError, match="map_piece"):
-        _labels.map_piece(*args.values())
-    count = _labels.map_piece(*full.values())
+    args[name] = args[name][:-1]
+    if args is counting:
+        with pytest.raises(ValueError, match="count_piece"):
+            _labels.count_piece(*args.values())
+        _labels.count_piece(*full.values())
+    else:
+        _labels.count_piece(*counting.values())
+        with pytest.raises(ValueError, match="map_piece"):
+            _labels.map_piece(*args.values())
+        _labels.count_piece(*counting.values())
+    count = _labels.map_piece(*(full if args is mapping else mapping).values())
     ids, labels = reference(values)
     assert count == len(labels)
-    assert full["out"].tolist() == ids.tolist()
+    out = (full if args is mapping else mapping)["out"]
+    assert out.tolist() == ids.tolist()
+
+
+def test_map_piece_refuses_a_piece_count_piece_did_not_count():
+    """map_piece uses the partition counts count_piece kept: a piece not counted, counted
+    with other segments, or mapped twice is refused before the scatter could overrun."""
+    from fastmst._kernels import _labels
+    pieces, counting, mapping = _piece_arrays(["a", "b", "a", "c"] * 50)
+    with pytest.raises(ValueError, match="count_piece first"):
+        _labels.map_piece(*mapping.values())
+    _labels.count_piece(*counting.values())
+    other = dict(mapping, seg=mapping["seg"].copy())
+    other["seg"][2] -= 1            # another readable size: another segment table
+    with pytest.raises(ValueError, match="count_piece first"):
+        _labels.map_piece(*other.values())
+    assert _labels.map_piece(*mapping.values()) == 3
+    with pytest.raises(ValueError, match="count_piece first"):
+        _labels.map_piece(*mapping.values())
+
+
+@pytest.mark.parametrize("n_labels", [1, 10, 300, 5_000, 200_000])
+def test_count_piece_estimate_is_close_to_the_distinct_count(n_labels):
+    """The distinct-label estimate that sizes the tables, against the exact count (NumPy's
+    np.unique): HyperLogLog with 2**12 registers has a standard error of 1.04 / 64 = 1.6 %
+    (Flajolet, Fusy, Gandouet, Meunier, "HyperLogLog: the analysis of a near-optimal
+    cardinality estimation algorithm", 2007); 8 % is five of them.  Small counts go through
+    linear counting (same paper), which is close to exact there."""
+    from fastmst._kernels import _labels
+    rng = np.random.default_rng(n_labels)
+    names = np.char.add("v", np.arange(n_labels).astype(str))
+    values = names[rng.integers(0, n_labels, 3 * n_labels + 10)]
+    pieces, counting, mapping = _piece_arrays(values.tolist())
+    exact = np.unique(values).size
+    estimate, most = _labels.count_piece(*counting.values())
+    assert most == 0          # nothing mapped yet
+    assert abs(estimate - exact) <= max(2, 0.08 * exact)
+
+
+@pytest.mark.parametrize("threads", [1, 2])
+def test_tables_too_small_for_the_labels_still_give_exact_ids(threads, monkeypatch):
+    """An estimate far too low (forced here) reserves tables the labels outgrow: they grow
+    into memory of their own, and every id is as the reference gives it (NumPy first
+    appearance, above)."""
+    monkeypatch.setattr(K, "_per_partition", lambda estimate: 1)
+    monkeypatch.setattr(K, "PIECE_ROWS", 3_000)
+    rng = np.random.default_rng(7)
+    names = np.array([f"n{i}" if i % 2 else f"a-much-longer-label-{i}" for i in range(4_000)])
+    tail = names[rng.integers(0, 4_000, 10_000)].tolist()
+    head = names[rng.integers(0, 4_000, 10_000)].tolist()
+    ids, labels = reference(tail + head)
+    ti, hi, offsets, data = K.text_ids([pa.array(tail), pa.array(head)], len(tail), threads)
+    assert np.concatenate([ti, hi]).tolist() == ids.tolist()
+    assert label_arrays(offsets, data) == list(labels)
+
+
+def test_reserve_refuses_buffers_without_room_for_the_labels():
+    """reserve checks the buffers' shapes and that every partition's labels fit (load 2/3
+    at most) before it moves anything; the tables still map exactly afterwards."""
+    from fastmst._kernels import _labels
+    values = [f"x{i}" for i in range(3000)]
+    pieces, counting, mapping = _piece_arrays(values)
+    _labels.count_piece(*counting.values())
+    _labels.map_piece(*mapping.values())
+    P = _labels.N_PARTS
+
+    def bufs(cap, room, labels):
+        return (np.empty(2 * P * cap, np.uint64), np.empty(P * room, np.int64),
+                np.empty(P * room, np.uint64), np.empty(P * room, np.int32),
+                np.empty(labels, np.uint64), np.empty(labels, np.int64))
+    with pytest.raises(ValueError, match="partition"):
+        _labels.reserve(mapping["tables"], *bufs(4, 2, 3000), 1)       # 3000 labels in 256 parts
+    with pytest.raises(ValueError, match="power of two"):
+        _labels.reserve(mapping["tables"], *bufs(48, 32, 3000), 1)
+    with pytest.raises(ValueError, match="at least the labels"):
+        _labels.reserve(mapping["tables"], *bufs(64, 32, 2999), 1)
+    _labels.reserve(mapping["tables"], *bufs(64, 32, 3000), 1)
+    more = values + [f"y{i}" for i in range(100)] + values[::-1]
+    pieces2, counting2, mapping2 = _piece_arrays(more)
+    counting2["tables"] = mapping2["tables"] = mapping["tables"]
+    _labels.count_piece(*counting2.values())
+    _labels.map_piece(*mapping2.values())
+    ids, labels = reference(values + more)
+    assert mapping2["out"].tolist() == ids[len(values):].tolist()
 
 
 def test_label_bytes_refuses_offsets_that_do_not_match_the_lengths():
     """Offsets that would copy more or fewer bytes than a label holds are refused before any
     copy (the compiled def compares them with the recorded lengths)."""
     from fastmst._kernels import _labels
-    pieces, args = _piece_arrays(["alpha", "be", "alpha", "gamma ray"])
+    pieces, counting, args = _piece_arrays(["alpha", "be", "alpha", "gamma ray"])
+    _labels.count_piece(*counting.values())
     count = _labels.map_piece(*args.values())
     lengths = np.empty(count, dtype=np.int64)
     _labels.label_lengths(args["tables"], lengths)

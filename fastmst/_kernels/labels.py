@@ -1,8 +1,10 @@
 """Text labels to compact ids by first appearance: the Python half of ``_labels.pyx``.
 
 ``text_ids`` checks the Arrow string chunks, cuts their rows into pieces of ``PIECE_ROWS``,
-allocates every array and hands each piece to the compiled ``_labels.map_piece`` (the passes,
-the hashing and the tables are there, with the method's notes).  Nothing here loops over rows.
+allocates every array and hands each piece to the compiled ``_labels.count_piece``, then (when
+the estimate of distinct labels calls for more room than the tables have) ``_labels.reserve``,
+then ``_labels.map_piece`` (the passes, the hashing and the tables are there, with the method's
+notes).  Nothing here loops over rows.
 """
 import numpy as np
 import pyarrow as pa
@@ -76,6 +78,28 @@ def _segment_table(pieces, segs):
     return table, at
 
 
+def _per_partition(estimate):
+    """Labels one partition should have room for when ``estimate`` distinct labels are
+    expected in all: the mean share plus slack for the estimate's error (about 1.6 %, see
+    ``_labels._estimate``) and for the spread of a binomial count (three standard deviations)."""
+    mean = estimate / _labels.N_PARTS
+    return int(1.1 * mean + 3.0 * mean ** 0.5) + 16
+
+
+def _reserve(tables, need, count, threads):
+    """Give ``tables`` buffers from the memory pool with room for at least ``need`` labels per
+    partition (tables at load 2/3 or less: a power of two of slots, all of whose 2/3 is then
+    room) and for as many distinct labels in all; returns the room per partition."""
+    parts = _labels.N_PARTS
+    cap = 1 << max(1, ((3 * need + 1) // 2 - 1).bit_length())
+    room = (2 * cap) // 3
+    labels = max(count, parts * room)
+    _labels.reserve(tables, _empty(2 * parts * cap, np.uint64), _empty(parts * room, np.int64),
+                    _empty(parts * room, np.uint64), _empty(parts * room, np.int32),
+                    _empty(labels, np.uint64), _empty(labels, np.int64), threads)
+    return room
+
+
 def text_ids(chunks, n_tail, threads=1):
     """Compact ids of Arrow string chunks by first appearance.
 
@@ -97,22 +121,29 @@ def text_ids(chunks, n_tail, threads=1):
     nblk = 8 * threads if threads > 1 else 1
     block = (size + nblk - 1) // nblk
     words = (size + 63) // 64
-    # hist, off, start, ent, part, eid, bits, below (map_piece's order)
+    # off, start, ent, part, eid, bits, below (map_piece's order)
     scratch = (np.empty(nblk * _labels.N_PARTS, dtype=np.intp),
-               np.empty(nblk * _labels.N_PARTS, dtype=np.intp),
                np.empty(_labels.N_PARTS + 1, dtype=np.intp),
                _empty(size * _labels.ENTRY_BYTES, np.uint8), _empty(size, np.uint8),
                _empty(size, np.int32), _empty(words, np.uint64), _empty(words, np.intp))
+    regs = _empty(nblk * _labels.REG_BYTES, np.uint8)
     tables = _labels.LabelTables()
-    done = count = 0
+    done = count = room = 0
     for segs in _segments(pieces, size):
         seg, rows = _segment_table(pieces, segs)
         # the segment holding the first row of each block of 2**SEG_ROWS_LOG2 rows
         segblk = np.searchsorted(seg[:, 3] + seg[:, 4],
                                  np.arange(0, rows, 1 << _labels.SEG_ROWS_LOG2),
                                  side="right").astype(np.intp)
-        count = _labels.map_piece(tables, seg.reshape(-1), segblk, rows, block, *scratch,
-                                  ids[done:], threads)
+        seg = seg.reshape(-1)
+        pblock = (rows + nblk - 1) // nblk   # the last piece may be shorter
+        estimate, most = _labels.count_piece(tables, seg, segblk, rows, pblock, regs, threads)
+        need = max(_per_partition(estimate), most)
+        if need > room:   # tables sized once for the labels expected, not grown label by label
+            room = _reserve(tables, max(need, room + room // 2), count, threads)
+        count = _labels.map_piece(tables, seg, segblk, rows, pblock,
+                                  scratch[0][:((rows + pblock - 1) // pblock) * _labels.N_PARTS],
+                                  *scratch[1:], ids[done:], threads)
         done += rows
     # the distinct labels in id order (the chunks, which hold their bytes, are alive here)
     offsets = np.zeros(count + 1, dtype=np.int64)
