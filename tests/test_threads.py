@@ -86,6 +86,24 @@ def test_default_is_omp_get_max_threads_on_free_cores(run_queue):
         assert validation.check_threads(2, "f") == 2     # an explicit count is kept
 
 
+def test_cores_at_start_confirms_a_busy_reading(monkeypatch):
+    """A reading that shows other runnable tasks is taken again (up to CONFIRM_READINGS more,
+    CONFIRM_PAUSE apart): tasks that were finishing (Arrow's pool threads right after a
+    threaded read) are not counted; tasks still runnable on every reading are."""
+    cores = len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else os.cpu_count()
+    monkeypatch.setattr(threads, "CONFIRM_PAUSE", 0.0)
+    for queue, free in (([cores + 1, 1], cores),           # gone on the second reading
+                        ([cores + 1, cores + 1, 2], max(1, cores - 1)),   # one stays
+                        ([cores + 1] * 5, 1),               # busy on every reading
+                        ([1, cores + 1], cores)):           # free at once: read once
+        readings = list(queue)
+        monkeypatch.setattr(threads, "_read_runnable", lambda: readings.pop(0))
+        monkeypatch.setattr(threads, "_cached", [-1.0, 0])
+        with threads.cores_at_start():
+            assert threads.free_cores() == free
+        assert len(queue) - len(readings) <= 1 + threads.CONFIRM_READINGS
+
+
 def test_cores_at_start_holds_the_first_reading(run_queue, tmp_path, monkeypatch):
     """Within ``cores_at_start`` the free cores are the reading taken on entry, whatever the
     run queue says later (read_edges: Arrow's pool threads, still runnable right after its

@@ -117,11 +117,34 @@ def cores_at_start():
     threads would otherwise be counted as other load: ``read_edges`` maps labels right after
     Arrow's threaded read, whose pool threads are still in the run queue for a moment, and
     would then take one thread for the mapping on an idle machine."""
-    token = _held.set(free_cores())
+    token = _held.set(confirmed_free_cores())
     try:
         yield
     finally:
         _held.reset(token)
+
+
+#: ``confirmed_free_cores``: further readings taken when one shows other runnable tasks, and
+#: the seconds between them.
+CONFIRM_READINGS = 2
+CONFIRM_PAUSE = 0.001
+
+
+def confirmed_free_cores() -> int:
+    """``free_cores`` read now (not the cached reading), and when other tasks are runnable,
+    read again up to ``CONFIRM_READINGS`` times ``CONFIRM_PAUSE`` seconds apart: the most free
+    cores seen.  A task that was finishing (the pool threads of a threaded read that just
+    ended, in this process or another) is gone a millisecond later; a busy process is still
+    there.  For the start of long calls (``cores_at_start``), where 2 ms do not count."""
+    _cached[0] = -1.0
+    free = free_cores()
+    for _ in range(CONFIRM_READINGS):
+        if free >= _cores():
+            break
+        time.sleep(CONFIRM_PAUSE)
+        _cached[0] = -1.0
+        free = max(free, free_cores())
+    return free
 
 
 def free_cores() -> int:
