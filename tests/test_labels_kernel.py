@@ -134,8 +134,7 @@ def _piece_arrays(values, threads=1):
                     regs=np.empty(nblk * _labels.REG_BYTES, dtype=np.uint8), threads=threads)
     mapping = dict(
         tables=tables, seg=seg.reshape(-1), segblk=segblk, rows=rows, block=block,
-        off=np.empty(nblk * _labels.N_PARTS, dtype=np.intp),
-        start=np.empty(_labels.N_PARTS + 1, dtype=np.intp),
+        off=np.empty(3 * nblk * _labels.N_PARTS, dtype=np.intp),
         ent=np.empty(rows * _labels.ENTRY_BYTES, dtype=np.uint8),
         part=np.empty(rows, dtype=np.uint8), eid=np.empty(rows, dtype=np.int32),
         bits=np.empty(words, dtype=np.uint64), below=np.empty(words, dtype=np.intp),
@@ -146,7 +145,7 @@ def _piece_arrays(values, threads=1):
 @settings(max_examples=60, deadline=None)
 @given(st.lists(st.sampled_from(["a", "bb", "a much longer label", "é", ""]), min_size=1,
                 max_size=300),
-       st.sampled_from(["seg", "segblk", "off", "start", "ent", "part", "eid", "bits",
+       st.sampled_from(["seg", "segblk", "off", "ent", "part", "eid", "bits",
                         "below", "out", "regs"]),
        st.sampled_from([1, 2]))
 def test_map_piece_refuses_any_array_too_short_for_the_piece(values, name, threads):
@@ -189,6 +188,53 @@ def test_map_piece_refuses_a_piece_count_piece_did_not_count():
     assert _labels.map_piece(*mapping.values()) == 3
     with pytest.raises(ValueError, match="count_piece first"):
         _labels.map_piece(*mapping.values())
+
+
+@pytest.mark.parametrize("threads", [1, 2])
+def test_pieces_that_do_not_fit_their_plan_are_counted_and_still_exact(threads, monkeypatch):
+    """After the first piece the runs are planned from the last piece counted; a piece whose
+    rows fall otherwise (here: spread labels, then one label in every row, then spread again)
+    is counted and mapped again (the rest are not).  Ids as the reference gives them (NumPy first appearance),
+    and the same with planning off (PLAN_ROOM = 0: every piece counted)."""
+    from fastmst._kernels import _labels
+    monkeypatch.setattr(K, "PIECE_ROWS", 4_000)
+    counted = []
+    real = _labels.count_piece
+
+    def spy(*args):
+        counted.append(args[3])
+        return real(*args)
+    monkeypatch.setattr(_labels, "count_piece", spy)
+    spread = [f"s{i % 1500}" for i in range(4_000)]
+    values = spread + ["hub"] * 4_000 + spread[::-1] + spread
+    ids, labels = reference(values)
+    ti, hi, offsets, data = K.text_ids([pa.array(values)], len(values), threads)
+    assert ti.tolist() == ids.tolist() and label_arrays(offsets, data) == list(labels)
+    # the first piece and the hub piece are counted; the piece after the hub only when its
+    # rows overflow the 32 spare entries per run planned from the hub piece
+    assert len(counted) in (2, 3)
+    monkeypatch.setattr(K, "PLAN_ROOM", 0)
+    counted.clear()
+    again = K.text_ids([pa.array(values)], len(values), threads)
+    assert again[0].tolist() == ids.tolist() and len(counted) == 4
+
+
+def test_plan_piece_plans_nothing_before_a_count_or_beyond_the_room():
+    """plan_piece needs a counted piece to plan from, and runs that fit the entries given."""
+    from fastmst._kernels import _labels
+    pieces, counting, mapping = _piece_arrays([f"v{i % 40}" for i in range(1000)])
+    args = (counting["tables"], counting["seg"], counting["segblk"], counting["rows"],
+            counting["block"])
+    assert _labels.plan_piece(*args, 10**6) == -1
+    with pytest.raises(ValueError, match="count_piece first"):
+        _labels.map_piece(*mapping.values())
+    _labels.count_piece(*counting.values())
+    _labels.map_piece(*mapping.values())
+    planned = _labels.plan_piece(*args, 10**6)
+    assert 1000 < planned <= int(1.15 * 1000) + 33 * _labels.N_PARTS
+    assert _labels.plan_piece(*args, planned - 1) == -1
+    with pytest.raises(ValueError, match="plan_piece"):
+        _labels.plan_piece(*args[:3], 999, args[4], 10**6)
 
 
 @pytest.mark.parametrize("n_labels", [1, 10, 300, 5_000, 200_000])

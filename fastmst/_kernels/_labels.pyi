@@ -18,9 +18,10 @@ def reserve(tables: LabelTables, slots: npt.NDArray[np.uint64], first: npt.NDArr
             uptr: npt.NDArray[np.uint64], gid: npt.NDArray[np.int32],
             gptr: npt.NDArray[np.uint64], glen: npt.NDArray[np.int64],
             threads: int, /) -> None: ...
+def plan_piece(tables: LabelTables, seg: npt.NDArray[np.intp], segblk: npt.NDArray[np.intp],
+               rows: int, block: int, room: int, /) -> int: ...
 def map_piece(tables: LabelTables, seg: npt.NDArray[np.intp], segblk: npt.NDArray[np.intp],
-              rows: int, block: int, off: npt.NDArray[np.intp],
-              start: npt.NDArray[np.intp], ent: npt.NDArray[np.uint8],
+              rows: int, block: int, off: npt.NDArray[np.intp], ent: npt.NDArray[np.uint8],
               part: npt.NDArray[np.uint8], eid: npt.NDArray[np.int32],
               bits: npt.NDArray[np.uint64], below: npt.NDArray[np.intp],
               out: npt.NDArray[np.int32], threads: int, /) -> int: ...

@@ -28,8 +28,14 @@ buffers from the memory pool with room for that many labels (``reserve``), so th
 grow, rehash and fault in fresh pages label by label; a partition that still outgrows its
 room (an estimate too low, or skew) grows into memory of its own, exactly as before.
 
-Files: this module holds the passes and thin typed ``def``s over one piece (``count_piece``,
-then ``reserve`` when more room is needed, then ``map_piece``) and over the distinct labels at
+Pieces planned, not counted: after the first piece, the runs of entries (one per block and
+partition) are sized from the partition shares of the last piece counted, with slack
+(``plan_piece``; row counts per partition change little from piece to piece), which saves
+the counting pass.  A piece whose rows overflow a run is counted and mapped again; the ids
+never depend on the plan.
+
+Files: this module holds the passes and thin typed ``def``s over one piece (``count_piece``
+or ``plan_piece``, then ``reserve`` when more room is needed, then ``map_piece``) and over the distinct labels at
 the end (``label_lengths``, ``label_bytes``); ``fastmst/_kernels/labels.py`` holds
 ``text_ids``, which checks the chunks, cuts them into pieces and allocates every array.
 
@@ -191,10 +197,12 @@ cdef void _count_span(const offset_t* offs, const uint8_t* data, Py_ssize_t size
             reg[(h >> REG_SHIFT) & (REGS - 1)] = rank
 
 
-cdef void _scatter_span(const offset_t* offs, const uint8_t* data, Py_ssize_t size,
+cdef bint _scatter_span(const offset_t* offs, const uint8_t* data, Py_ssize_t size,
                         Py_ssize_t i0, Py_ssize_t i1, Py_ssize_t at, Py_ssize_t* ob,
-                        Entry* ent, uint8_t* part) noexcept nogil:
-    """Hash again (cheaper than storing the hashes and reading them back) and write entries."""
+                        const Py_ssize_t* end, Entry* ent, uint8_t* part) noexcept nogil:
+    """Hash again (cheaper than storing the hashes and reading them back) and write entries
+    (``ob``: the next entry of each partition's run, ``end``: the runs' ends).  False when a
+    run is full (a planned piece whose rows fall otherwise than planned)."""
     cdef Py_ssize_t i, a, j, n
     cdef uint64_t h
     for i in range(i0, i1):
@@ -202,19 +210,22 @@ cdef void _scatter_span(const offset_t* offs, const uint8_t* data, Py_ssize_t si
         n = offs[i + 1] - a
         h = _hash(data + a, n, a + 8 <= size)
         j = ob[h >> 56]
+        if j >= end[h >> 56]:
+            return False
         ob[h >> 56] = j + 1
         ent[j].h = h
         ent[j].row = <uint32_t>(at + i)
         ent[j].length = <uint32_t>n
         part[i] = <uint8_t>(h >> 56)
+    return True
 
 
-cdef void _row_block(const Seg* segs, Py_ssize_t nseg, Py_ssize_t k0, Py_ssize_t k1,
-                     Py_ssize_t* cnt, Entry* ent, uint8_t* part, uint8_t* reg,
-                     bint scatter) noexcept nogil:
+cdef bint _row_block(const Seg* segs, Py_ssize_t nseg, Py_ssize_t k0, Py_ssize_t k1,
+                     Py_ssize_t* cnt, const Py_ssize_t* end, Entry* ent, uint8_t* part,
+                     uint8_t* reg, bint scatter) noexcept nogil:
     """Count per partition in ``cnt`` and raise the estimate registers ``reg`` (``scatter``
-    False) or scatter (``cnt``: the next entry of each partition) the piece positions
-    ``k0..k1-1``."""
+    False) or scatter (``cnt``: the next entry of each partition's run, ``end``: the runs'
+    ends) the piece positions ``k0..k1-1``.  False when a run filled up."""
     cdef Py_ssize_t s, i0, i1
     cdef const Seg* g
     for s in range(nseg):
@@ -225,25 +236,33 @@ cdef void _row_block(const Seg* segs, Py_ssize_t nseg, Py_ssize_t k0, Py_ssize_t
         i1 = k1 - g.at if k1 < g.at + g.n else g.n
         if scatter:
             if g.wide:
-                _scatter_span(<const int64_t*>g.offs, g.data, g.size, i0, i1, g.at, cnt, ent,
-                              part + g.at)
-            else:
-                _scatter_span(<const int32_t*>g.offs, g.data, g.size, i0, i1, g.at, cnt, ent,
-                              part + g.at)
+                if not _scatter_span(<const int64_t*>g.offs, g.data, g.size, i0, i1, g.at, cnt,
+                                     end, ent, part + g.at):
+                    return False
+            elif not _scatter_span(<const int32_t*>g.offs, g.data, g.size, i0, i1, g.at, cnt,
+                                   end, ent, part + g.at):
+                return False
         elif g.wide:
             _count_span(<const int64_t*>g.offs, g.data, g.size, i0, i1, cnt, reg)
         else:
             _count_span(<const int32_t*>g.offs, g.data, g.size, i0, i1, cnt, reg)
+    return True
 
 
-cdef void _row_pass(const Seg* segs, Py_ssize_t nseg, Py_ssize_t rows, Py_ssize_t block,
-                    Py_ssize_t* cnt, Entry* ent, uint8_t* part, uint8_t* reg, bint scatter,
-                    int threads) noexcept nogil:
+cdef bint _row_pass(const Seg* segs, Py_ssize_t nseg, Py_ssize_t rows, Py_ssize_t block,
+                    Py_ssize_t* cnt, const Py_ssize_t* end, Entry* ent, uint8_t* part,
+                    uint8_t* reg, bint scatter, int threads) noexcept nogil:
+    """The count or scatter pass over a piece, blocks taken by the threads (``cnt``, ``end``
+    and ``reg`` hold one row of PARTS or REGS per block).  False when a run filled up."""
     cdef Py_ssize_t b, nb = (rows + block - 1) // block
+    cdef int full = 0
     for b in prange(nb, num_threads=threads, schedule="dynamic"):
-        _row_block(segs, nseg, b * block, (b + 1) * block if (b + 1) * block < rows else rows,
-                   cnt + b * PARTS, ent, part, reg + b * REGS if reg != NULL else NULL,
-                   scatter)
+        if not _row_block(segs, nseg, b * block,
+                          (b + 1) * block if (b + 1) * block < rows else rows,
+                          cnt + b * PARTS, end + b * PARTS if end != NULL else NULL, ent, part,
+                          reg + b * REGS if reg != NULL else NULL, scatter):
+            full += 1
+    return full == 0
 
 
 # ---------------------------------------------------------------------------------------------
@@ -324,23 +343,17 @@ cdef bint _grow_table(Part* p) noexcept nogil:
 cdef void _probe(Part* p, const Entry* ent, Py_ssize_t n, int32_t* lids, const Seg* segs,
                  const Py_ssize_t* segblk) noexcept nogil:
     """Local ids (in order of first appearance within the partition) of its entries ``ent[:n]``
-    of this piece, written to ``lids[:n]``.  The table's fields are kept in locals (stores into
+    (one run: one block's entries of this piece, taken in block order), written to
+    ``lids[:n]``.  The table's fields are kept in locals (stores into
     the table could alias them, so the compiler would reload them on every probe) and written
     back to ``p`` when the table or the id arrays grow and at the end."""
-    cdef Py_ssize_t j, slot, lid, i
+    cdef Py_ssize_t j, slot, lid
     cdef Py_ssize_t count = p.count, cap = p.cap, mask = p.cap - 1
     cdef Py_ssize_t limit = _room(p)      # count may reach this before anything must grow
     cdef uint64_t h, w1, length
     cdef uint64_t* tbl = p.slots
     cdef int64_t* first = p.first
     cdef uint64_t* uptr = p.uptr
-    cdef uint64_t warm = 0
-    p.fresh = count
-    # read the table once in order (streamed from memory) before the scattered probes, which
-    # then hit the cache; the probe of entry j + 16 is prefetched
-    for i in range(0, 2 * cap, 8):
-        warm += tbl[i]
-    p.warm = warm
     for j in range(n):
         if count >= limit:
             p.count = count
@@ -386,12 +399,28 @@ cdef inline Py_ssize_t _room(const Part* p) noexcept nogil:
     return by_table if by_table < by_ids else by_ids
 
 
-cdef void _probe_all(Part* parts, const Entry* ent, const Py_ssize_t* start, int32_t* lids,
-                     const Seg* segs, const Py_ssize_t* segblk, int threads) noexcept nogil:
-    cdef Py_ssize_t q
+cdef void _probe_all(Part* parts, const Entry* ent, const Py_ssize_t* run,
+                     const Py_ssize_t* cur, Py_ssize_t nblk, int32_t* lids, const Seg* segs,
+                     const Py_ssize_t* segblk, int threads) noexcept nogil:
+    """Every partition's runs (``run``: their first entries, ``cur``: their ends; blocks x
+    PARTS), block by block, the partitions taken by the threads."""
+    cdef Py_ssize_t q, b, i, k
+    cdef uint64_t warm
+    cdef Part* p
     for q in prange(PARTS, num_threads=threads, schedule="dynamic"):
-        _probe(&parts[q], ent + start[q], start[q + 1] - start[q], lids + start[q], segs,
-               segblk)
+        p = &parts[q]
+        p.fresh = p.count
+        # read the table once in order (streamed from memory) before the scattered probes,
+        # which then hit the cache; the probe of entry j + 16 is prefetched
+        warm = 0
+        for i in range(0, 2 * p.cap, 8):
+            warm = warm + p.slots[i]
+        p.warm = warm
+        for b in range(nblk):
+            k = b * PARTS + q
+            if p.failed:
+                break
+            _probe(p, ent + run[k], cur[k] - run[k], lids + run[k], segs, segblk)
 
 
 cdef void _rank_new(Part* parts, uint64_t* bits, Py_ssize_t* below, Py_ssize_t rows,
@@ -437,15 +466,17 @@ cdef void _rank_new(Part* parts, uint64_t* bits, Py_ssize_t* below, Py_ssize_t r
                                    popcount64(bits[r >> 6] & (((<uint64_t>1) << (r & 63)) - 1)))
 
 
-cdef void _global_ids(Part* parts, const Py_ssize_t* start, int32_t* ids,
-                      int threads) noexcept nogil:
-    """``ids[j]``: the local id of entry j replaced by its global id, in place."""
-    cdef Py_ssize_t q, j
+cdef void _global_ids(Part* parts, const Py_ssize_t* run, const Py_ssize_t* cur,
+                      Py_ssize_t nblk, int32_t* ids, int threads) noexcept nogil:
+    """``ids[j]``: the local id of entry j replaced by its global id, in place, for the
+    entries of every run (``run``: first entries, ``cur``: ends)."""
+    cdef Py_ssize_t q, j, b
     cdef int32_t* g
     for q in prange(PARTS, num_threads=threads, schedule="static"):
         g = parts[q].gid
-        for j in range(start[q], start[q + 1]):
-            ids[j] = g[ids[j]]
+        for b in range(nblk):
+            for j in range(run[b * PARTS + q], cur[b * PARTS + q]):
+                ids[j] = g[ids[j]]
 
 
 cdef void _write_block(const uint8_t* part, const int32_t* ids, const Py_ssize_t* off0,
@@ -481,18 +512,19 @@ cdef void _gather_bytes(const uint64_t* ptr, Py_ssize_t n, const int64_t* offset
             memcpy(&out[offsets[i]], <const void *>ptr[i], k)
 
 
-cdef void _offsets(const Py_ssize_t* hist, Py_ssize_t nblk, Py_ssize_t rows, Py_ssize_t* off,
-                   Py_ssize_t* start) noexcept nogil:
-    """Entry offsets from the per-block counts ``hist`` (nblk x PARTS): partitions in order,
-    blocks in order within a partition.  OUT: ``off[b * PARTS + q]``, the first entry of block
-    b in partition q; ``start[q]``, partition q's first entry (``start[PARTS] = rows``)."""
+cdef Py_ssize_t _offsets(const Py_ssize_t* hist, Py_ssize_t nblk, Py_ssize_t* off,
+                         Py_ssize_t* end) noexcept nogil:
+    """Runs of entries from the room of each (block, partition) ``hist`` (nblk x PARTS):
+    partitions in order, blocks in order within a partition.  OUT: ``off[b * PARTS + q]``,
+    the first entry of block b's run in partition q, and ``end[...]`` the run's end.  Returns
+    the entries of all runs."""
     cdef Py_ssize_t q, b, acc = 0
     for q in range(PARTS):
-        start[q] = acc
         for b in range(nblk):
             off[b * PARTS + q] = acc
             acc += hist[b * PARTS + q]
-    start[PARTS] = rows
+            end[b * PARTS + q] = acc
+    return acc
 
 
 cdef void _free_parts(Part* parts) noexcept nogil:
@@ -539,6 +571,7 @@ cdef class LabelTables:
     cdef Py_ssize_t* hist           # the counted piece: blocks x PARTS counts
     cdef Py_ssize_t* segc           # its segment words
     cdef Py_ssize_t nhist, nsegc, crows, cblock, cnblk
+    cdef Py_ssize_t share[PARTS]    # rows of each partition in the last piece counted
     cdef object keep                # the reserved buffers in use
 
     def __cinit__(self):
@@ -546,6 +579,7 @@ cdef class LabelTables:
         if self.parts == NULL:
             raise MemoryError("text_ids: no memory for the label tables.")
         memset(self.hll, 0, REGS)
+        memset(self.share, 0, PARTS * sizeof(Py_ssize_t))
         self.own_g = True
         self.keep = ()
 
@@ -598,20 +632,17 @@ def count_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
             or _seg_rows(&seg[0], nseg) != rows):
         raise ValueError("count_piece: the segment table or a scratch array does not fit the "
                          "piece; use labels.text_ids, which sizes them.")
-    hist = <Py_ssize_t*>realloc(tables.hist, nblk * PARTS * sizeof(Py_ssize_t))
-    if hist == NULL:
-        raise MemoryError("text_ids: no memory for the partition counts.")
-    tables.hist = hist
-    segc = <Py_ssize_t*>realloc(tables.segc, 6 * nseg * sizeof(Py_ssize_t))
-    if segc == NULL:
-        raise MemoryError("text_ids: no memory for the partition counts.")
-    tables.segc = segc
+    _hold_piece(tables, seg, nblk)
+    hist = tables.hist
     with nogil:
-        memcpy(segc, &seg[0], 6 * nseg * sizeof(Py_ssize_t))
         memset(hist, 0, nblk * PARTS * sizeof(Py_ssize_t))
         memset(&regs[0], 0, nblk * REGS)
-        _row_pass(<const Seg*>&seg[0], nseg, rows, block, hist, NULL, NULL, &regs[0], False,
-                  threads)
+        _row_pass(<const Seg*>&seg[0], nseg, rows, block, hist, NULL, NULL, NULL, &regs[0],
+                  False, threads)
+        memset(tables.share, 0, PARTS * sizeof(Py_ssize_t))
+        for b in range(nblk):
+            for j in range(PARTS):
+                tables.share[j] += hist[b * PARTS + j]
         for b in range(nblk):
             r = &regs[b * REGS]
             for j in range(REGS):
@@ -622,6 +653,56 @@ def count_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
                 most = tables.parts[j].count
     tables.nsegc, tables.crows, tables.cblock, tables.cnblk = nseg, rows, block, nblk
     return int(_estimate(tables.hll) + 0.5), most
+
+
+cdef _hold_piece(LabelTables tables, const Py_ssize_t[::1] seg, Py_ssize_t nblk):
+    """Room in ``tables`` for the run sizes of ``nblk`` blocks and a copy of ``seg``."""
+    cdef Py_ssize_t* hist = <Py_ssize_t*>realloc(tables.hist, nblk * PARTS * sizeof(Py_ssize_t))
+    cdef Py_ssize_t* segc
+    if hist == NULL:
+        raise MemoryError("text_ids: no memory for the partition counts.")
+    tables.hist = hist
+    segc = <Py_ssize_t*>realloc(tables.segc, seg.shape[0] * sizeof(Py_ssize_t))
+    if segc == NULL:
+        raise MemoryError("text_ids: no memory for the partition counts.")
+    tables.segc = segc
+    memcpy(segc, &seg[0], seg.shape[0] * sizeof(Py_ssize_t))
+
+
+def plan_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
+               const Py_ssize_t[::1] segblk, Py_ssize_t rows, Py_ssize_t block,
+               Py_ssize_t room, /):
+    """Plan the runs of one piece without a counting pass, for the ``map_piece`` call that
+    follows: each (block, partition) run gets that partition's share of the rows in the last
+    piece ``count_piece`` counted, times the block's rows, with slack (x 1.15 + 32).  Returns
+    the entries the runs take, or -1 (nothing planned) when nothing was counted yet or they
+    would take more than ``room`` entries; ``map_piece`` returns -2 when the piece's rows
+    fall otherwise than planned (then count it).  The ids do not depend on the plan."""
+    cdef Py_ssize_t nseg = seg.shape[0] // 6, nblk, b, q, n, total = 0, counted = 0
+    cdef double f
+    if rows < 1 or block < 1 or nseg < 1 or seg.shape[0] != 6 * nseg:
+        raise ValueError(f"plan_piece: expected rows and block >= 1 and 6 words per segment, "
+                         f"received rows={rows}, block={block}, {seg.shape[0]} words.")
+    nblk = (rows + block - 1) // block
+    if (segblk.shape[0] < ((rows - 1) >> SEG_SHIFT) + 1 or _seg_rows(&seg[0], nseg) != rows):
+        raise ValueError("plan_piece: the segment table does not fit the piece; use "
+                         "labels.text_ids, which sizes it.")
+    for q in range(PARTS):
+        counted += tables.share[q]
+    if counted == 0:
+        return -1
+    _hold_piece(tables, seg, nblk)
+    for b in range(nblk):
+        n = block if (b + 1) * block <= rows else rows - b * block
+        for q in range(PARTS):
+            f = <double>tables.share[q] * <double>n / <double>counted
+            tables.hist[b * PARTS + q] = <Py_ssize_t>(1.15 * f) + 32
+            total += tables.hist[b * PARTS + q]
+    if total > room:
+        tables.crows = 0
+        return -1
+    tables.nsegc, tables.crows, tables.cblock, tables.cnblk = nseg, rows, block, nblk
+    return total
 
 
 cdef Py_ssize_t _seg_rows(const Py_ssize_t* seg, Py_ssize_t nseg) noexcept nogil:
@@ -695,42 +776,53 @@ def reserve(LabelTables tables not None, uint64_t[::1] slots, int64_t[::1] first
 
 def map_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
               const Py_ssize_t[::1] segblk, Py_ssize_t rows, Py_ssize_t block,
-              Py_ssize_t[::1] off, Py_ssize_t[::1] start,
-              uint8_t[::1] ent, uint8_t[::1] part, int32_t[::1] eid, uint64_t[::1] bits,
-              Py_ssize_t[::1] below, int32_t[::1] out, int threads, /):
+              Py_ssize_t[::1] off, uint8_t[::1] ent, uint8_t[::1] part, int32_t[::1] eid,
+              uint64_t[::1] bits, Py_ssize_t[::1] below, int32_t[::1] out, int threads, /):
     """Write the ids of the ``rows`` positions of one piece to ``out[:rows]`` and return the
-    number of distinct labels so far.  The piece must be the one ``count_piece`` just counted
-    (the same segment words, rows and block).
+    number of distinct labels so far, or -2 when a planned piece (``plan_piece``) does not
+    fit its runs (nothing was mapped: count the piece, then map it).  The piece must be the
+    one ``count_piece`` or ``plan_piece`` just took (the same segment words, rows and block).
 
     ``seg``: the piece's segments, 6 words each (offsets address from the segment's first
     row, data address, readable bytes, piece position, rows, 1 for int64 offsets), made by
     ``labels._segment_table`` from Arrow buffers that stay alive during the call; ``segblk``:
     the segment of each block of 2**SEG_ROWS_LOG2 rows.  The rest is scratch of the sizes
-    ``labels.text_ids`` gives (``off``: blocks x N_PARTS).
+    ``labels.text_ids`` gives (``off``: 3 x blocks x N_PARTS; ``ent`` and ``eid``: room for
+    the entries of the runs, what ``plan_piece`` returns, or ``rows`` after ``count_piece``).
     """
     cdef Py_ssize_t nseg = seg.shape[0] // 6, nblk = tables.cnblk, q, fresh = 0
-    cdef Py_ssize_t k
+    cdef Py_ssize_t k, total = 0
+    cdef Py_ssize_t *run
+    cdef Py_ssize_t *cur
+    cdef Py_ssize_t *end
+    cdef bint fits
     if threads < 1:
         raise ValueError(f"map_piece: threads must be positive, received {threads}.")
     if (tables.crows == 0 or rows != tables.crows or block != tables.cblock
             or nseg != tables.nsegc or seg.shape[0] != 6 * nseg
             or memcmp(&seg[0], tables.segc, 6 * nseg * sizeof(Py_ssize_t)) != 0):
-        raise ValueError("map_piece: expected the piece count_piece just counted (the same "
-                         "segment words, rows and block); call count_piece first.")
-    if (off.shape[0] != nblk * PARTS or start.shape[0] != PARTS + 1
-            or ent.shape[0] < rows * <Py_ssize_t>sizeof(Entry) or part.shape[0] < rows
-            or eid.shape[0] < rows or out.shape[0] < rows
+        raise ValueError("map_piece: expected the piece count_piece (or plan_piece) just took "
+                         "(the same segment words, rows and block); call count_piece first.")
+    for k in range(nblk * PARTS):
+        total += tables.hist[k]
+    if (off.shape[0] != 3 * nblk * PARTS
+            or ent.shape[0] < total * <Py_ssize_t>sizeof(Entry) or part.shape[0] < rows
+            or eid.shape[0] < total or out.shape[0] < rows
             or bits.shape[0] < (rows + 63) // 64 or below.shape[0] < (rows + 63) // 64
             or segblk.shape[0] < ((rows - 1) >> SEG_SHIFT) + 1):
         raise ValueError("map_piece: the segment table or a scratch array does not fit the "
                          "piece; use labels.text_ids, which sizes them.")
-    tables.crows = 0    # counted once, mapped once
+    tables.crows = 0    # taken once, mapped once
+    run, cur, end = &off[0], &off[nblk * PARTS], &off[2 * nblk * PARTS]
     with nogil:
-        _offsets(tables.hist, nblk, rows, &off[0], &start[0])
-        _row_pass(<const Seg*>&seg[0], nseg, rows, block, &off[0], <Entry*>&ent[0], &part[0],
-                  NULL, True, threads)
-        _offsets(tables.hist, nblk, rows, &off[0], &start[0])    # the scatter moved them on
-        _probe_all(tables.parts, <const Entry*>&ent[0], &start[0], &eid[0],
+        _offsets(tables.hist, nblk, run, end)
+        memcpy(cur, run, nblk * PARTS * sizeof(Py_ssize_t))
+        fits = _row_pass(<const Seg*>&seg[0], nseg, rows, block, cur, end, <Entry*>&ent[0],
+                         &part[0], NULL, True, threads)
+    if not fits:
+        return -2
+    with nogil:
+        _probe_all(tables.parts, <const Entry*>&ent[0], run, cur, nblk, &eid[0],
                    <const Seg*>&seg[0], &segblk[0], threads)
         for q in range(PARTS):
             fresh += tables.parts[q].count
@@ -746,8 +838,8 @@ def map_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
     with nogil:
         _rank_new(tables.parts, &bits[0], &below[0], rows, tables.count, <const Seg*>&seg[0],
                   nseg, tables.gptr, tables.glen, threads)
-        _global_ids(tables.parts, &start[0], &eid[0], threads)
-        _write_rows(&part[0], &eid[0], &off[0], rows, block, &out[0], threads)
+        _global_ids(tables.parts, run, cur, nblk, &eid[0], threads)
+        _write_rows(&part[0], &eid[0], run, rows, block, &out[0], threads)
     tables.count = fresh
     return fresh
 

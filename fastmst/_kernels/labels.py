@@ -13,6 +13,9 @@ from fastmst._kernels import _labels
 
 #: Rows handed to one round of the passes (tests lower it to run several rounds).
 PIECE_ROWS = 1 << 22
+#: Entries planned per row of a piece that is not counted (``_labels.plan_piece``: each run
+#: gets 1.15 x its expected share, plus 32); 0 counts every piece.
+PLAN_ROOM = 1.15
 
 
 def _empty(n, dtype):
@@ -121,14 +124,14 @@ def text_ids(chunks, n_tail, threads=1):
     nblk = 8 * threads if threads > 1 else 1
     block = (size + nblk - 1) // nblk
     words = (size + 63) // 64
-    # off, start, ent, part, eid, bits, below (map_piece's order)
-    scratch = (np.empty(nblk * _labels.N_PARTS, dtype=np.intp),
-               np.empty(_labels.N_PARTS + 1, dtype=np.intp),
-               _empty(size * _labels.ENTRY_BYTES, np.uint8), _empty(size, np.uint8),
-               _empty(size, np.int32), _empty(words, np.uint64), _empty(words, np.intp))
+    room = int(PLAN_ROOM * size) + nblk * _labels.N_PARTS * 33   # entries, as plan_piece plans
+    # off, ent, part, eid, bits, below (map_piece's order)
+    scratch = (np.empty(3 * nblk * _labels.N_PARTS, dtype=np.intp),
+               _empty(room * _labels.ENTRY_BYTES, np.uint8), _empty(size, np.uint8),
+               _empty(room, np.int32), _empty(words, np.uint64), _empty(words, np.intp))
     regs = _empty(nblk * _labels.REG_BYTES, np.uint8)
     tables = _labels.LabelTables()
-    done = count = room = 0
+    done = count = per_part = 0
     for segs in _segments(pieces, size):
         seg, rows = _segment_table(pieces, segs)
         # the segment holding the first row of each block of 2**SEG_ROWS_LOG2 rows
@@ -137,13 +140,23 @@ def text_ids(chunks, n_tail, threads=1):
                                  side="right").astype(np.intp)
         seg = seg.reshape(-1)
         pblock = (rows + nblk - 1) // nblk   # the last piece may be shorter
-        estimate, most = _labels.count_piece(tables, seg, segblk, rows, pblock, regs, threads)
-        need = max(_per_partition(estimate), most)
-        if need > room:   # tables sized once for the labels expected, not grown label by label
-            room = _reserve(tables, max(need, room + room // 2), count, threads)
-        count = _labels.map_piece(tables, seg, segblk, rows, pblock,
-                                  scratch[0][:((rows + pblock - 1) // pblock) * _labels.N_PARTS],
-                                  *scratch[1:], ids[done:], threads)
+        off = scratch[0][:3 * ((rows + pblock - 1) // pblock) * _labels.N_PARTS]
+        # after the first piece, the runs are planned from the last piece counted (no
+        # counting pass); a piece whose rows do not fit its plan is counted and mapped again
+        planned = (_labels.plan_piece(tables, seg, segblk, rows, pblock, room)
+                   if done and PLAN_ROOM else -1)
+        mapped = -2 if planned < 0 else _labels.map_piece(tables, seg, segblk, rows, pblock,
+                                                          off, *scratch[1:], ids[done:], threads)
+        if mapped == -2:
+            estimate, most = _labels.count_piece(tables, seg, segblk, rows, pblock, regs,
+                                                 threads)
+            need = max(_per_partition(estimate), most)
+            if need > per_part:   # tables sized once for the labels expected, not grown
+                per_part = _reserve(tables, max(need, per_part + per_part // 2), count,
+                                    threads)
+            mapped = _labels.map_piece(tables, seg, segblk, rows, pblock, off, *scratch[1:],
+                                       ids[done:], threads)
+        count = mapped
         done += rows
     # the distinct labels in id order (the chunks, which hold their bytes, are alive here)
     offsets = np.zeros(count + 1, dtype=np.int64)
