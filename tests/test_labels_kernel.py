@@ -321,3 +321,59 @@ def test_label_bytes_refuses_offsets_that_do_not_match_the_lengths():
             _labels.label_bytes(args["tables"], bad, np.empty(int(bad[-1]), dtype=np.uint8))
     with pytest.raises(ValueError, match="label_lengths"):
         _labels.label_lengths(args["tables"], np.empty(count + 1, dtype=np.int64))
+
+
+INT64 = (-2**63, 2**63 - 1)
+# digits, signs, spaces, hex prefixes, other digit characters, and values at the int64 limits
+int_text = st.one_of(
+    st.integers(-2**64, 2**64).map(str),
+    st.integers(-2**64, 2**64).map(lambda v: ("+" if v >= 0 else "") + str(v)),
+    st.integers(0, 10**6).map(lambda v: "0" * 3 + str(v)),
+    st.sampled_from(["", "+", "-", "+-7", " 7", "7 ", "0x10", "1e3", "7.0", "١٢", "1_000",
+                     str(INT64[0]), str(INT64[1]), str(INT64[1] + 1), str(INT64[0] - 1),
+                     "-0", "+0", "00"]),
+    st.text(alphabet="0123456789+- x", max_size=22))
+
+
+def python_integers(values):
+    """Python's reading of the rule ``[+-]?[0-9]+`` within int64 (reference: Python's re and
+    int), or None when a value breaks it."""
+    import re
+    out = []
+    for v in values:
+        if not re.fullmatch(r"[+-]?[0-9]+", v, flags=re.ASCII):
+            return None
+        n = int(v)
+        if not INT64[0] <= n <= INT64[1]:
+            return None
+        out.append(n)
+    return out
+
+
+@settings(max_examples=300, deadline=None)
+@given(values=st.lists(int_text, max_size=40), cuts=st.lists(st.integers(0, 60), max_size=3),
+       large=st.booleans(), sliced=st.booleans(), threads=st.sampled_from([1, 2, 3]))
+def test_integer_values_match_python(values, cuts, large, sliced, threads):
+    """Integer labels parsed in one pass (ids="integer"): the same values as Python's int for
+    every row that is ``[+-]?[0-9]+`` within int64, and None as soon as one row is not
+    (spaces, hex, exponents, other digits, overflow by one)."""
+    got = K.integer_values(chunked(values, cuts, large, sliced), threads)
+    want = python_integers(values)
+    if want is None:
+        assert got is None
+    else:
+        assert got is not None and got.dtype == np.int64 and got.tolist() == want
+
+
+def test_integer_labels_refuses_segments_that_do_not_fit():
+    from fastmst._kernels import _labels
+    pieces = [K._pieces(pa.array(["1", "2", "3"]))]
+    seg, rows = K._segment_table(pieces, [(0, 0, 3)])
+    with pytest.raises(ValueError, match="integer_labels"):
+        _labels.integer_labels(seg.reshape(-1), np.empty(2, np.int64), 1)
+    with pytest.raises(ValueError, match="integer_labels"):
+        _labels.integer_labels(seg.reshape(-1)[:-1], np.empty(3, np.int64), 1)
+    with pytest.raises(ValueError, match="threads"):
+        K.integer_values([pa.array(["1"])], 0)
+    out = np.empty(3, np.int64)
+    assert _labels.integer_labels(seg.reshape(-1), out, 1) and out.tolist() == [1, 2, 3]

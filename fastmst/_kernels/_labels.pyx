@@ -868,6 +868,73 @@ cdef bint _grow_labels(LabelTables t, Py_ssize_t k) noexcept nogil:
     return True
 
 
+# ---------------------------------------------------------------------------------------------
+# integer labels: text written as integers, parsed exactly (``ids="integer"``)
+
+cdef bint _integer_span(const offset_t* offs, const uint8_t* data, Py_ssize_t n,
+                        int64_t* out) noexcept nogil:
+    """``out[i]``: the integer written in row i (``[+-]?[0-9]+``, any number of leading
+    zeros, within int64).  False, at the first row that is anything else."""
+    cdef Py_ssize_t i, a, b
+    cdef uint64_t v, d, limit
+    cdef bint neg
+    for i in range(n):
+        a = offs[i]
+        b = offs[i + 1]
+        neg = False
+        if a < b and (data[a] == 43 or data[a] == 45):      # '+' or '-'
+            neg = data[a] == 45
+            a += 1
+        if a >= b:
+            return False
+        v = 0
+        if b - a <= 18:             # at most 18 digits: below 10**18, no overflow to check
+            while a < b:
+                d = <uint64_t>data[a] - 48
+                if d > 9:
+                    return False
+                v = v * 10 + d
+                a += 1
+        else:
+            limit = (<uint64_t>1) << 63 if neg else ((<uint64_t>1) << 63) - 1
+            while a < b:
+                d = <uint64_t>data[a] - 48
+                if d > 9 or v > (limit - d) // 10:
+                    return False
+                v = v * 10 + d
+                a += 1
+        out[i] = <int64_t>(0 - v) if neg else <int64_t>v
+    return True
+
+
+def integer_labels(const Py_ssize_t[::1] seg, int64_t[::1] out, int threads, /):
+    """Parse the rows of the segments ``seg`` (6 words each, as ``map_piece`` takes them)
+    as integers into ``out`` (one per row).  True when every row is an integer within int64
+    (``[+-]?[0-9]+``, leading zeros allowed); False at the first row that is not (``out`` is
+    then incomplete: the caller reports that row)."""
+    cdef Py_ssize_t nseg = seg.shape[0] // 6, s, rows
+    cdef const Seg* segs
+    cdef int bad = 0
+    if threads < 1:
+        raise ValueError(f"integer_labels: threads must be positive, received {threads}.")
+    rows = _seg_rows(&seg[0], nseg) if nseg and seg.shape[0] == 6 * nseg else -1
+    if rows < 0 or out.shape[0] != rows:
+        raise ValueError(f"integer_labels: expected 6 words per segment, the segments following "
+                         f"on from row 0 and out with one slot per row; received "
+                         f"{seg.shape[0]} words and {out.shape[0]} slots.")
+    segs = <const Seg*>&seg[0]
+    with nogil:
+        for s in prange(nseg, num_threads=threads, schedule="dynamic"):
+            if segs[s].wide:
+                if not _integer_span(<const int64_t*>segs[s].offs, segs[s].data, segs[s].n,
+                                     &out[segs[s].at]):
+                    bad += 1
+            elif not _integer_span(<const int32_t*>segs[s].offs, segs[s].data, segs[s].n,
+                                   &out[segs[s].at]):
+                bad += 1
+    return bad == 0
+
+
 def label_lengths(LabelTables tables not None, int64_t[::1] out, /):
     """Byte lengths of the distinct labels in id order, written to ``out`` (one per label)."""
     if out.shape[0] != tables.count:

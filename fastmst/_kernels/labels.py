@@ -166,3 +166,19 @@ def text_ids(chunks, n_tail, threads=1):
     data = np.empty(int(offsets[count]), dtype=np.uint8)
     _labels.label_bytes(tables, offsets, data)
     return ids[:n_tail], ids[n_tail:], offsets, data
+
+
+def integer_values(chunks, threads=1):
+    """The integers written in Arrow string chunks (``[+-]?[0-9]+``, leading zeros allowed,
+    within int64) as one int64 array, or None when a row holds anything else (the caller
+    then finds and reports it)."""
+    if threads < 1:
+        raise ValueError(f"integer_values: threads must be positive, received {threads}.")
+    pieces = [_pieces(c) for c in chunks]
+    total = sum([int(o.shape[0]) - 1 for o, _ in pieces])
+    out = _empty(total, np.int64)
+    if total == 0:
+        return out
+    segs = [(c, 0, int(o.shape[0]) - 1) for c, (o, _) in enumerate(pieces) if o.shape[0] > 1]
+    seg, _ = _segment_table(pieces, segs)
+    return out if _labels.integer_labels(seg.reshape(-1), out, threads) else None

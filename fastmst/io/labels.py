@@ -135,6 +135,11 @@ def as_integers(col, name, source, where):
     if not (pa.types.is_string(col.type) or pa.types.is_large_string(col.type)):
         raise FileFormatError(f"{source}: node ids in column {name!r} are {col.type} values; "
                               f"ids='integer' expects integers.")
+    if not col.null_count:   # one exact pass in the label kernel; anything else is reported
+        values = label_kernel.integer_values(list(getattr(col, "chunks", [col])),
+                                             validation.check_threads(None, "read_edges"))
+        if values is not None:
+            return pa.array(values, type=pa.int64())
     ok = pc.match_substring_regex(col, _INTEGER)
     if not pc.all(ok).as_py():
         bad = ~to_numpy(ok)
