@@ -278,6 +278,16 @@ cdef bint _resize(void** block, Py_ssize_t n, size_t size) noexcept nogil:
     return True
 
 
+cdef void* _copied(const void* old, Py_ssize_t n, Py_ssize_t keep, size_t size) noexcept nogil:
+    """A new block of ``n`` items of ``size`` bytes holding the first ``keep`` items of
+    ``old`` (NULL when memory ran out): arrays that lie in a reserved buffer move out this way
+    when they must grow."""
+    cdef void* a = malloc(n * size)
+    if a != NULL and keep:
+        memcpy(a, old, keep * size)
+    return a
+
+
 cdef bint _grow_ids(Part* p) noexcept nogil:
     """Room for more distinct labels in ``p`` (False when memory ran out).  Arrays that lie
     in a reserved buffer are copied to new memory of this module's own."""
@@ -291,18 +301,14 @@ cdef bint _grow_ids(Part* p) noexcept nogil:
                 and _resize(<void**>&p.gid, u, sizeof(int32_t))):
             return False
     else:
-        first = <int64_t*>malloc(u * sizeof(int64_t))
-        uptr = <uint64_t*>malloc(u * sizeof(uint64_t))
-        gid = <int32_t*>malloc(u * sizeof(int32_t))
+        first = <int64_t*>_copied(p.first, u, p.count, sizeof(int64_t))
+        uptr = <uint64_t*>_copied(p.uptr, u, p.count, sizeof(uint64_t))
+        gid = <int32_t*>_copied(p.gid, u, p.count, sizeof(int32_t))
         if first == NULL or uptr == NULL or gid == NULL:
             free(first)
             free(uptr)
             free(gid)
             return False
-        if p.count:
-            memcpy(first, p.first, p.count * sizeof(int64_t))
-            memcpy(uptr, p.uptr, p.count * sizeof(uint64_t))
-            memcpy(gid, p.gid, p.count * sizeof(int32_t))
         p.first, p.uptr, p.gid, p.own_ids = first, uptr, gid, True
     p.ucap = u
     return True
@@ -854,15 +860,12 @@ cdef bint _grow_labels(LabelTables t, Py_ssize_t k) noexcept nogil:
                 and _resize(<void**>&t.glen, k, sizeof(int64_t))):
             return False
     else:
-        gptr = <uint64_t*>malloc(k * sizeof(uint64_t))
-        glen = <int64_t*>malloc(k * sizeof(int64_t))
+        gptr = <uint64_t*>_copied(t.gptr, k, t.count, sizeof(uint64_t))
+        glen = <int64_t*>_copied(t.glen, k, t.count, sizeof(int64_t))
         if gptr == NULL or glen == NULL:
             free(gptr)
             free(glen)
             return False
-        if t.count:
-            memcpy(gptr, t.gptr, t.count * sizeof(uint64_t))
-            memcpy(glen, t.glen, t.count * sizeof(int64_t))
         t.gptr, t.glen, t.own_g = gptr, glen, True
     t.gcap = k
     return True
