@@ -91,7 +91,11 @@ def test_text_ids_same_for_every_thread_count_and_match_arrow(n_labels, piece, m
     col = pa.chunked_array([pa.array(rows[:70_000]), pa.array(rows[70_000:])])
     enc = col.combine_chunks().dictionary_encode()
     want = enc.indices.to_numpy()
+    reserved = []
+    real = K._reserve
+    monkeypatch.setattr(K, "_reserve", lambda *a: reserved.append(a[1]) or real(*a))
     results = [K.text_ids(col.chunks + col.chunks, len(col), t) for t in (1, 2, 3, 8)]
+    assert bool(reserved) == (n_labels > K.RESERVE_FROM)   # tables sized ahead when large
     for ti, hi, offsets, data in results:
         assert np.array_equal(ti, want)
         assert np.array_equal(hi, want)
@@ -261,6 +265,10 @@ def test_tables_too_small_for_the_labels_still_give_exact_ids(threads, monkeypat
     into memory of their own, and every id is as the reference gives it (NumPy first
     appearance, above)."""
     monkeypatch.setattr(K, "_per_partition", lambda estimate: 1)
+    monkeypatch.setattr(K, "RESERVE_FROM", 0)
+    reserved = []
+    real = K._reserve
+    monkeypatch.setattr(K, "_reserve", lambda *a: reserved.append(a[1]) or real(*a))
     monkeypatch.setattr(K, "PIECE_ROWS", 3_000)
     rng = np.random.default_rng(7)
     names = np.array([f"n{i}" if i % 2 else f"a-much-longer-label-{i}" for i in range(4_000)])
@@ -268,6 +276,7 @@ def test_tables_too_small_for_the_labels_still_give_exact_ids(threads, monkeypat
     head = names[rng.integers(0, 4_000, 10_000)].tolist()
     ids, labels = reference(tail + head)
     ti, hi, offsets, data = K.text_ids([pa.array(tail), pa.array(head)], len(tail), threads)
+    assert reserved and max(reserved) < 20      # reserved, and far too small
     assert np.concatenate([ti, hi]).tolist() == ids.tolist()
     assert label_arrays(offsets, data) == list(labels)
 

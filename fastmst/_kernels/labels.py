@@ -13,6 +13,8 @@ from fastmst._kernels import _labels
 
 #: Rows handed to one round of the passes (tests lower it to run several rounds).
 PIECE_ROWS = 1 << 22
+#: Distinct labels (estimated) from which the tables are reserved ahead (``_reserve``).
+RESERVE_FROM = 1 << 15
 #: Entries planned per row of a piece that is not counted (``_labels.plan_piece``: each run
 #: gets 1.15 x its expected share, plus 32); 0 counts every piece.
 PLAN_ROOM = 1.15
@@ -151,7 +153,9 @@ def text_ids(chunks, n_tail, threads=1):
             estimate, most = _labels.count_piece(tables, seg, segblk, rows, pblock, regs,
                                                  threads)
             need = max(_per_partition(estimate), most)
-            if need > per_part:   # tables sized once for the labels expected, not grown
+            # tables sized once for the labels expected, not grown label by label (small
+            # tables grow as cheaply as they are reserved)
+            if need > per_part and estimate >= RESERVE_FROM:
                 per_part = _reserve(tables, max(need, per_part + per_part // 2), count,
                                     threads)
             mapped = _labels.map_piece(tables, seg, segblk, rows, pblock, off, *scratch[1:],
