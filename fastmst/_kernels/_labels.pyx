@@ -34,10 +34,15 @@ partition) are sized from the partition shares of the last piece counted, with s
 the counting pass.  A piece whose rows overflow a run is counted and mapped again; the ids
 never depend on the plan.
 
-Files: this module holds the passes and thin typed ``def``s over one piece (``count_piece``
-or ``plan_piece``, then ``reserve`` when more room is needed, then ``map_piece``) and over the distinct labels at
-the end (``label_lengths``, ``label_bytes``); ``fastmst/_kernels/labels.py`` holds
-``text_ids``, which checks the chunks, cuts them into pieces and allocates every array.
+Files: this module holds the partition passes and the thin typed ``def``s over one piece
+(``count_piece`` or ``plan_piece``, then ``reserve`` when more room is needed, then
+``map_piece``), over the distinct labels at the end (``label_lengths``, ``label_bytes``) and
+over integer labels (``integer_labels``).  Inline pieces, one concept each: ``label_hash.pxd``
+(the segment table, a row's bytes, the hash), ``label_passes.pxd`` (the count and scatter row
+passes), ``label_tables.pxd`` (one partition's table: growth and probe),
+``label_estimate.pxd`` (the HyperLogLog estimate), ``integer_text.pxd`` (integers parsed
+exactly).  ``fastmst/_kernels/labels.py`` holds ``text_ids`` and ``integer_values``, which check
+the chunks, cut them into pieces and allocate every array.
 
 Threads: the row passes split a piece into position blocks (each block's entries sit in block
 order within every partition), the partition passes take partitions; every id is fixed by the
@@ -46,364 +51,19 @@ rows alone, so the ids are the same for every thread count.
 cimport cython
 from cython.parallel cimport prange
 from libc.stdint cimport int32_t, int64_t, uint8_t, uint32_t, uint64_t
-from libc.math cimport log
-from libc.stdlib cimport calloc, free, malloc, realloc
+from libc.stdlib cimport calloc, free, realloc
 from libc.string cimport memcmp, memcpy, memset
 
-from fastmst._kernels._atomics cimport prefetch
-
-
-cdef extern from *:
-    """
-    #if defined(__BYTE_ORDER__) && __BYTE_ORDER__ == __ORDER_LITTLE_ENDIAN__
-    #define FASTMST_LITTLE_ENDIAN 1
-    #else
-    #define FASTMST_LITTLE_ENDIAN 0
-    #endif
-    #if defined(__GNUC__) || defined(__clang__)
-    #define FASTMST_POPCOUNT64(x) __builtin_popcountll(x)
-    #define FASTMST_CTZ64(x) __builtin_ctzll(x)
-    #else
-    static inline int FASTMST_POPCOUNT64(uint64_t x) {
-        int n = 0; while (x) { x &= x - 1; n++; } return n;
-    }
-    static inline int FASTMST_CTZ64(uint64_t x) {
-        int n = 0; while (!(x & 1)) { x >>= 1; n++; } return n;
-    }
-    #endif
-    """
-    const bint LITTLE_ENDIAN "FASTMST_LITTLE_ENDIAN"
-    int popcount64 "FASTMST_POPCOUNT64"(uint64_t x) noexcept nogil
-    int _ctz64 "FASTMST_CTZ64"(uint64_t x) noexcept nogil
-
-
-ctypedef fused offset_t:
-    int32_t
-    int64_t
-
-cdef enum:
-    PARTS = 256     # partitions (top byte of the hash)
-    EMPTY = 0       # the second word of an empty table slot
-    REGS = 4096     # registers of the distinct-label estimate (HyperLogLog, 2**12)
-    REG_SHIFT = 44  # a hash's register: bits 44..55 (below the partition byte); its rank:
-                    # the trailing zeros of bits 0..43, plus one
-
-
-ctypedef struct Entry:      # 16 bytes; the label's bytes are found from its row (_row_bytes)
-    uint64_t h
-    uint32_t row        # position within the piece
-    uint32_t length
-
-
-ctypedef struct Part:
-    uint64_t* slots     # 2 * cap words: (hash, length << 32 | id + 1)
-    Py_ssize_t cap
-    Py_ssize_t count    # distinct labels so far
-    Py_ssize_t fresh    # the first id new in the current piece
-    Py_ssize_t ucap
-    int64_t* first      # piece position of the first occurrence (labels new in the piece)
-    uint64_t* uptr      # that occurrence's bytes, for labels of more than 8 bytes (compared)
-    int32_t* gid        # the global id of each local id
-    bint failed         # an allocation failed
-    bint own_slots      # slots were allocated here (else they lie in a reserved buffer)
-    bint own_ids        # first, uptr and gid were allocated here
-    uint64_t warm       # the sum of the warm-up reads (kept so they are not optimised away)
-
-
-cdef inline uint64_t _mix(uint64_t x) noexcept nogil:
-    """A bijection of 64-bit words (xor-shift / odd-multiply rounds)."""
-    x ^= x >> 32
-    x *= <uint64_t>0xd6e8feb86659fd93ULL
-    x ^= x >> 32
-    x *= <uint64_t>0xd6e8feb86659fd93ULL
-    x ^= x >> 32
-    return x
-
-
-cdef inline uint64_t _hash(const uint8_t *p, Py_ssize_t n, bint room) noexcept nogil:
-    """64-bit hash of ``n`` bytes; for n <= 8 a bijection of the zero-padded bytes.  ``room``:
-    8 bytes may be read from ``p`` (then, on little-endian machines, short labels are one load
-    and a mask, inlined; other labels go through _hash_bytes)."""
-    cdef uint64_t w
-    if n <= 8 and room and LITTLE_ENDIAN:
-        memcpy(&w, p, 8)
-        if n < 8:
-            w &= ((<uint64_t>1) << (8 * n)) - 1
-        return _mix(w)
-    return _hash_bytes(p, n)
-
-
-cdef uint64_t _hash_bytes(const uint8_t *p, Py_ssize_t n) noexcept nogil:
-    """_hash without reading past the label."""
-    cdef uint64_t w = 0, h
-    cdef Py_ssize_t i = 0
-    if n <= 8:
-        if n:
-            memcpy(&w, p, n)
-        return _mix(w)
-    h = <uint64_t>n * <uint64_t>0x9e3779b97f4a7c15ULL
-    while i + 8 <= n:
-        memcpy(&w, p + i, 8)
-        h = (h ^ _mix(w)) * <uint64_t>0xff51afd7ed558ccdULL
-        i += 8
-    if i < n:
-        w = 0
-        memcpy(&w, p + i, n - i)
-        h = (h ^ _mix(w)) * <uint64_t>0xff51afd7ed558ccdULL
-    return _mix(h ^ (h >> 29))
+from fastmst._kernels.integer_text cimport integer_span
+from fastmst._kernels.label_estimate cimport REGS, estimate
+from fastmst._kernels.label_hash cimport Seg, SEG_SHIFT, ctz64, popcount64, seg_rows
+from fastmst._kernels.label_passes cimport PARTS, row_pass
+from fastmst._kernels.label_tables cimport (Entry, Part, copied, free_parts, probe, rehash,
+                                           resize)
 
 
 # ---------------------------------------------------------------------------------------------
-# row passes over a piece: position blocks taken by the threads, each over its segments (row
-# ranges of one chunk)
-
-ctypedef struct Seg:
-    const void* offs        # the chunk's offsets from the segment's first row (int32 or int64)
-    const uint8_t* data     # the chunk's bytes
-    Py_ssize_t size         # bytes readable from data
-    Py_ssize_t at           # piece position of the segment's first row
-    Py_ssize_t n            # rows
-    Py_ssize_t wide         # 1: int64 offsets, 0: int32 (every field pointer-sized: a row of an
-                            # intp array is one Seg)
-
-
-cdef enum:
-    SEG_SHIFT = 10          # _row_bytes: the segment of each 1024-row block of a piece is listed
-
-
-cdef inline const uint8_t* _row_bytes(const Seg* segs, const Py_ssize_t* segblk,
-                                      Py_ssize_t k) noexcept nogil:
-    """The bytes of piece position ``k``: its segment from the block list, then its offset."""
-    cdef Py_ssize_t s = segblk[k >> SEG_SHIFT]
-    while segs[s].at + segs[s].n <= k:
-        s += 1
-    if segs[s].wide:
-        return segs[s].data + (<const int64_t*>segs[s].offs)[k - segs[s].at]
-    return segs[s].data + (<const int32_t*>segs[s].offs)[k - segs[s].at]
-
-
-cdef void _count_span(const offset_t* offs, const uint8_t* data, Py_ssize_t size,
-                      Py_ssize_t i0, Py_ssize_t i1, Py_ssize_t* hb, uint8_t* reg) noexcept nogil:
-    """Count per partition in ``hb`` and raise the block's estimate registers ``reg``."""
-    cdef Py_ssize_t i, a
-    cdef uint64_t h
-    cdef uint8_t rank
-    for i in range(i0, i1):
-        a = offs[i]
-        h = _hash(data + a, offs[i + 1] - a, a + 8 <= size)
-        hb[h >> 56] += 1
-        rank = <uint8_t>(_ctz64(h | ((<uint64_t>1) << REG_SHIFT)) + 1)
-        if rank > reg[(h >> REG_SHIFT) & (REGS - 1)]:
-            reg[(h >> REG_SHIFT) & (REGS - 1)] = rank
-
-
-cdef bint _scatter_span(const offset_t* offs, const uint8_t* data, Py_ssize_t size,
-                        Py_ssize_t i0, Py_ssize_t i1, Py_ssize_t at, Py_ssize_t* ob,
-                        const Py_ssize_t* end, Entry* ent, uint8_t* part) noexcept nogil:
-    """Hash again (cheaper than storing the hashes and reading them back) and write entries
-    (``ob``: the next entry of each partition's run, ``end``: the runs' ends).  False when a
-    run is full (a planned piece whose rows fall otherwise than planned)."""
-    cdef Py_ssize_t i, a, j, n
-    cdef uint64_t h
-    for i in range(i0, i1):
-        a = offs[i]
-        n = offs[i + 1] - a
-        h = _hash(data + a, n, a + 8 <= size)
-        j = ob[h >> 56]
-        if j >= end[h >> 56]:
-            return False
-        ob[h >> 56] = j + 1
-        ent[j].h = h
-        ent[j].row = <uint32_t>(at + i)
-        ent[j].length = <uint32_t>n
-        part[i] = <uint8_t>(h >> 56)
-    return True
-
-
-cdef bint _row_block(const Seg* segs, Py_ssize_t nseg, Py_ssize_t k0, Py_ssize_t k1,
-                     Py_ssize_t* cnt, const Py_ssize_t* end, Entry* ent, uint8_t* part,
-                     uint8_t* reg, bint scatter) noexcept nogil:
-    """Count per partition in ``cnt`` and raise the estimate registers ``reg`` (``scatter``
-    False) or scatter (``cnt``: the next entry of each partition's run, ``end``: the runs'
-    ends) the piece positions ``k0..k1-1``.  False when a run filled up."""
-    cdef Py_ssize_t s, i0, i1
-    cdef const Seg* g
-    for s in range(nseg):
-        g = &segs[s]
-        if g.at + g.n <= k0 or g.at >= k1:
-            continue
-        i0 = k0 - g.at if k0 > g.at else 0
-        i1 = k1 - g.at if k1 < g.at + g.n else g.n
-        if scatter:
-            if g.wide:
-                if not _scatter_span(<const int64_t*>g.offs, g.data, g.size, i0, i1, g.at, cnt,
-                                     end, ent, part + g.at):
-                    return False
-            elif not _scatter_span(<const int32_t*>g.offs, g.data, g.size, i0, i1, g.at, cnt,
-                                   end, ent, part + g.at):
-                return False
-        elif g.wide:
-            _count_span(<const int64_t*>g.offs, g.data, g.size, i0, i1, cnt, reg)
-        else:
-            _count_span(<const int32_t*>g.offs, g.data, g.size, i0, i1, cnt, reg)
-    return True
-
-
-cdef bint _row_pass(const Seg* segs, Py_ssize_t nseg, Py_ssize_t rows, Py_ssize_t block,
-                    Py_ssize_t* cnt, const Py_ssize_t* end, Entry* ent, uint8_t* part,
-                    uint8_t* reg, bint scatter, int threads) noexcept nogil:
-    """The count or scatter pass over a piece, blocks taken by the threads (``cnt``, ``end``
-    and ``reg`` hold one row of PARTS or REGS per block).  False when a run filled up."""
-    cdef Py_ssize_t b, nb = (rows + block - 1) // block
-    cdef int full = 0
-    for b in prange(nb, num_threads=threads, schedule="dynamic"):
-        if not _row_block(segs, nseg, b * block,
-                          (b + 1) * block if (b + 1) * block < rows else rows,
-                          cnt + b * PARTS, end + b * PARTS if end != NULL else NULL, ent, part,
-                          reg + b * REGS if reg != NULL else NULL, scatter):
-            full += 1
-    return full == 0
-
-
-# ---------------------------------------------------------------------------------------------
-# partition passes
-
-cdef bint _resize(void** block, Py_ssize_t n, size_t size) noexcept nogil:
-    """``*block`` reallocated to ``n`` items of ``size`` bytes (False, and ``*block`` as it
-    was, when memory ran out)."""
-    cdef void* a = realloc(block[0], n * size)
-    if a == NULL:
-        return False
-    block[0] = a
-    return True
-
-
-cdef void* _copied(const void* old, Py_ssize_t n, Py_ssize_t keep, size_t size) noexcept nogil:
-    """A new block of ``n`` items of ``size`` bytes holding the first ``keep`` items of
-    ``old`` (NULL when memory ran out): arrays that lie in a reserved buffer move out this way
-    when they must grow."""
-    cdef void* a = malloc(n * size)
-    if a != NULL and keep:
-        memcpy(a, old, keep * size)
-    return a
-
-
-cdef bint _grow_ids(Part* p) noexcept nogil:
-    """Room for more distinct labels in ``p`` (False when memory ran out).  Arrays that lie
-    in a reserved buffer are copied to new memory of this module's own."""
-    cdef Py_ssize_t u = 2 * p.ucap if p.ucap else 256
-    cdef int64_t* first
-    cdef uint64_t* uptr
-    cdef int32_t* gid
-    if p.own_ids:
-        if not (_resize(<void**>&p.first, u, sizeof(int64_t))
-                and _resize(<void**>&p.uptr, u, sizeof(uint64_t))
-                and _resize(<void**>&p.gid, u, sizeof(int32_t))):
-            return False
-    else:
-        first = <int64_t*>_copied(p.first, u, p.count, sizeof(int64_t))
-        uptr = <uint64_t*>_copied(p.uptr, u, p.count, sizeof(uint64_t))
-        gid = <int32_t*>_copied(p.gid, u, p.count, sizeof(int32_t))
-        if first == NULL or uptr == NULL or gid == NULL:
-            free(first)
-            free(uptr)
-            free(gid)
-            return False
-        p.first, p.uptr, p.gid, p.own_ids = first, uptr, gid, True
-    p.ucap = u
-    return True
-
-
-cdef void _rehash(const uint64_t* old, Py_ssize_t old_cap, uint64_t* new,
-                  Py_ssize_t cap) noexcept nogil:
-    """Move the filled slots of table ``old`` into the empty table ``new`` (``cap`` slots, a
-    power of two)."""
-    cdef Py_ssize_t i, slot, mask = cap - 1
-    cdef uint64_t h
-    for i in range(old_cap):
-        if old[2 * i + 1] == EMPTY:
-            continue
-        h = old[2 * i]
-        slot = h & mask
-        while new[2 * slot + 1] != EMPTY:
-            slot = (slot + 1) & mask
-        new[2 * slot] = h
-        new[2 * slot + 1] = old[2 * i + 1]
-
-
-cdef bint _grow_table(Part* p) noexcept nogil:
-    """Double the table of ``p`` and move its entries (False when memory ran out)."""
-    cdef Py_ssize_t cap = 2 * p.cap if p.cap else 512
-    cdef uint64_t* new = <uint64_t*>calloc(2 * cap, sizeof(uint64_t))
-    if new == NULL:
-        return False
-    _rehash(p.slots, p.cap, new, cap)
-    if p.own_slots:
-        free(p.slots)
-    p.slots = new
-    p.cap = cap
-    p.own_slots = True
-    return True
-
-
-cdef void _probe(Part* p, const Entry* ent, Py_ssize_t n, int32_t* lids, const Seg* segs,
-                 const Py_ssize_t* segblk) noexcept nogil:
-    """Local ids (in order of first appearance within the partition) of its entries ``ent[:n]``
-    (one run: one block's entries of this piece, taken in block order), written to
-    ``lids[:n]``.  The table's fields are kept in locals (stores into
-    the table could alias them, so the compiler would reload them on every probe) and written
-    back to ``p`` when the table or the id arrays grow and at the end."""
-    cdef Py_ssize_t j, slot, lid
-    cdef Py_ssize_t count = p.count, cap = p.cap, mask = p.cap - 1
-    cdef Py_ssize_t limit = _room(p)      # count may reach this before anything must grow
-    cdef uint64_t h, w1, length
-    cdef uint64_t* tbl = p.slots
-    cdef int64_t* first = p.first
-    cdef uint64_t* uptr = p.uptr
-    for j in range(n):
-        if count >= limit:
-            p.count = count
-            if 3 * (count + 1) > 2 * p.cap and not _grow_table(p):   # load factor <= 2/3
-                p.failed = True
-                return
-            if count + 1 > p.ucap and not _grow_ids(p):
-                p.failed = True
-                return
-            cap, tbl, first, uptr = p.cap, p.slots, p.first, p.uptr
-            mask = cap - 1
-            limit = _room(p)
-        if j + 16 < n:
-            prefetch(&tbl[2 * (ent[j + 16].h & mask)])
-        h = ent[j].h
-        length = ent[j].length
-        slot = h & mask
-        while True:
-            w1 = tbl[2 * slot + 1]
-            if w1 == EMPTY:
-                lid = count
-                count = lid + 1
-                tbl[2 * slot] = h
-                tbl[2 * slot + 1] = (length << 32) | <uint64_t>(lid + 1)
-                first[lid] = ent[j].row
-                if length > 8:      # short labels are never compared byte by byte
-                    uptr[lid] = <uint64_t>_row_bytes(segs, segblk, ent[j].row)
-                break
-            if tbl[2 * slot] == h and (w1 >> 32) == length:
-                lid = <Py_ssize_t>(w1 & 0xffffffffULL) - 1
-                if length <= 8 or memcmp(<const void*>uptr[lid],
-                                         _row_bytes(segs, segblk, ent[j].row), length) == 0:
-                    break
-            slot = (slot + 1) & mask
-        lids[j] = <int32_t>lid
-    p.count = count
-
-
-cdef inline Py_ssize_t _room(const Part* p) noexcept nogil:
-    """The largest label count for which one more label needs neither a larger table (load
-    factor <= 2/3: 3 * (count + 1) <= 2 * cap) nor larger id arrays (count + 1 <= ucap)."""
-    cdef Py_ssize_t by_table = (2 * p.cap) // 3, by_ids = p.ucap
-    return by_table if by_table < by_ids else by_ids
-
+# partition passes (the row passes are in label_passes.pxd)
 
 cdef void _probe_all(Part* parts, const Entry* ent, const Py_ssize_t* run,
                      const Py_ssize_t* cur, Py_ssize_t nblk, int32_t* lids, const Seg* segs,
@@ -426,7 +86,7 @@ cdef void _probe_all(Part* parts, const Entry* ent, const Py_ssize_t* run,
             k = b * PARTS + q
             if p.failed:
                 break
-            _probe(p, ent + run[k], cur[k] - run[k], lids + run[k], segs, segblk)
+            probe(p, ent + run[k], cur[k] - run[k], lids + run[k], segs, segblk)
 
 
 cdef void _rank_new(Part* parts, uint64_t* bits, Py_ssize_t* below, Py_ssize_t rows,
@@ -451,7 +111,7 @@ cdef void _rank_new(Part* parts, uint64_t* bits, Py_ssize_t* below, Py_ssize_t r
         x = bits[w]
         g = base + below[w]
         while x:
-            r = (w << 6) + _ctz64(x)
+            r = (w << 6) + ctz64(x)
             x &= x - 1
             while segs[s].at + segs[s].n <= r:
                 s += 1
@@ -533,20 +193,6 @@ cdef Py_ssize_t _offsets(const Py_ssize_t* hist, Py_ssize_t nblk, Py_ssize_t* of
     return acc
 
 
-cdef void _free_parts(Part* parts) noexcept nogil:
-    cdef Py_ssize_t q
-    if parts == NULL:
-        return
-    for q in range(PARTS):
-        if parts[q].own_slots:
-            free(parts[q].slots)
-        if parts[q].own_ids:
-            free(parts[q].first)
-            free(parts[q].uptr)
-            free(parts[q].gid)
-    free(parts)
-
-
 # ---------------------------------------------------------------------------------------------
 # the thin defs (their Python half, which slices the chunks into pieces and allocates every
 # array, is fastmst/_kernels/labels.py)
@@ -590,29 +236,12 @@ cdef class LabelTables:
         self.keep = ()
 
     def __dealloc__(self):
-        _free_parts(self.parts)
+        free_parts(self.parts, PARTS)
         if self.own_g:
             free(self.gptr)
             free(self.glen)
         free(self.hist)
         free(self.segc)
-
-
-cdef double _estimate(const uint8_t* reg) noexcept nogil:
-    """Distinct hashes seen, from HyperLogLog registers (Flajolet, Fusy, Gandouet, Meunier,
-    "HyperLogLog: the analysis of a near-optimal cardinality estimation algorithm", 2007),
-    with linear counting for small counts as that paper advises; relative error about 1.6 %
-    for 2**12 registers."""
-    cdef double s = 0, m = REGS, e
-    cdef Py_ssize_t j, zeros = 0
-    for j in range(REGS):
-        s += 1.0 / <double>((<uint64_t>1) << reg[j])
-        if reg[j] == 0:
-            zeros += 1
-    e = 0.7213 / (1.0 + 1.079 / m) * m * m / s
-    if e <= 2.5 * m and zeros:
-        e = m * log(m / <double>zeros)
-    return e
 
 
 def count_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
@@ -635,7 +264,7 @@ def count_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
                          f"received rows={rows}, block={block}, {seg.shape[0]} words.")
     nblk = (rows + block - 1) // block
     if (regs.shape[0] < nblk * REGS or segblk.shape[0] < ((rows - 1) >> SEG_SHIFT) + 1
-            or _seg_rows(&seg[0], nseg) != rows):
+            or seg_rows(&seg[0], nseg) != rows):
         raise ValueError("count_piece: the segment table or a scratch array does not fit the "
                          "piece; use labels.text_ids, which sizes them.")
     _hold_piece(tables, seg, nblk)
@@ -643,7 +272,7 @@ def count_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
     with nogil:
         memset(hist, 0, nblk * PARTS * sizeof(Py_ssize_t))
         memset(&regs[0], 0, nblk * REGS)
-        _row_pass(<const Seg*>&seg[0], nseg, rows, block, hist, NULL, NULL, NULL, &regs[0],
+        row_pass(<const Seg*>&seg[0], nseg, rows, block, hist, NULL, NULL, NULL, &regs[0],
                   False, threads)
         memset(tables.share, 0, PARTS * sizeof(Py_ssize_t))
         for b in range(nblk):
@@ -658,7 +287,7 @@ def count_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
             if tables.parts[j].count > most:
                 most = tables.parts[j].count
     tables.nsegc, tables.crows, tables.cblock, tables.cnblk = nseg, rows, block, nblk
-    return int(_estimate(tables.hll) + 0.5), most
+    return int(estimate(tables.hll) + 0.5), most
 
 
 cdef _hold_piece(LabelTables tables, const Py_ssize_t[::1] seg, Py_ssize_t nblk):
@@ -690,7 +319,7 @@ def plan_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
         raise ValueError(f"plan_piece: expected rows and block >= 1 and 6 words per segment, "
                          f"received rows={rows}, block={block}, {seg.shape[0]} words.")
     nblk = (rows + block - 1) // block
-    if (segblk.shape[0] < ((rows - 1) >> SEG_SHIFT) + 1 or _seg_rows(&seg[0], nseg) != rows):
+    if (segblk.shape[0] < ((rows - 1) >> SEG_SHIFT) + 1 or seg_rows(&seg[0], nseg) != rows):
         raise ValueError("plan_piece: the segment table does not fit the piece; use "
                          "labels.text_ids, which sizes it.")
     for q in range(PARTS):
@@ -709,16 +338,6 @@ def plan_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
         return -1
     tables.nsegc, tables.crows, tables.cblock, tables.cnblk = nseg, rows, block, nblk
     return total
-
-
-cdef Py_ssize_t _seg_rows(const Py_ssize_t* seg, Py_ssize_t nseg) noexcept nogil:
-    """The rows the segment words cover, or -1 when they do not follow on from position 0."""
-    cdef Py_ssize_t s, at = 0
-    for s in range(nseg):
-        if seg[6 * s + 3] != at or seg[6 * s + 4] < 1:
-            return -1
-        at += seg[6 * s + 4]
-    return at
 
 
 def reserve(LabelTables tables not None, uint64_t[::1] slots, int64_t[::1] first,
@@ -754,7 +373,7 @@ def reserve(LabelTables tables not None, uint64_t[::1] slots, int64_t[::1] first
             p = &tables.parts[q]
             memset(arena + 2 * cap * q, 0, 2 * cap * sizeof(uint64_t))
             if p.cap:
-                _rehash(p.slots, p.cap, arena + 2 * cap * q, cap)
+                rehash(p.slots, p.cap, arena + 2 * cap * q, cap)
             if p.own_slots:
                 free(p.slots)
             p.slots, p.cap, p.own_slots = arena + 2 * cap * q, cap, False
@@ -823,7 +442,7 @@ def map_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
     with nogil:
         _offsets(tables.hist, nblk, run, end)
         memcpy(cur, run, nblk * PARTS * sizeof(Py_ssize_t))
-        fits = _row_pass(<const Seg*>&seg[0], nseg, rows, block, cur, end, <Entry*>&ent[0],
+        fits = row_pass(<const Seg*>&seg[0], nseg, rows, block, cur, end, <Entry*>&ent[0],
                          &part[0], NULL, True, threads)
     if not fits:
         return -2
@@ -856,12 +475,12 @@ cdef bint _grow_labels(LabelTables t, Py_ssize_t k) noexcept nogil:
     cdef uint64_t* gptr
     cdef int64_t* glen
     if t.own_g:
-        if not (_resize(<void**>&t.gptr, k, sizeof(uint64_t))
-                and _resize(<void**>&t.glen, k, sizeof(int64_t))):
+        if not (resize(<void**>&t.gptr, k, sizeof(uint64_t))
+                and resize(<void**>&t.glen, k, sizeof(int64_t))):
             return False
     else:
-        gptr = <uint64_t*>_copied(t.gptr, k, t.count, sizeof(uint64_t))
-        glen = <int64_t*>_copied(t.glen, k, t.count, sizeof(int64_t))
+        gptr = <uint64_t*>copied(t.gptr, k, t.count, sizeof(uint64_t))
+        glen = <int64_t*>copied(t.glen, k, t.count, sizeof(int64_t))
         if gptr == NULL or glen == NULL:
             free(gptr)
             free(glen)
@@ -874,41 +493,6 @@ cdef bint _grow_labels(LabelTables t, Py_ssize_t k) noexcept nogil:
 # ---------------------------------------------------------------------------------------------
 # integer labels: text written as integers, parsed exactly (``ids="integer"``)
 
-cdef bint _integer_span(const offset_t* offs, const uint8_t* data, Py_ssize_t n,
-                        int64_t* out) noexcept nogil:
-    """``out[i]``: the integer written in row i (``[+-]?[0-9]+``, any number of leading
-    zeros, within int64).  False, at the first row that is anything else."""
-    cdef Py_ssize_t i, a, b
-    cdef uint64_t v, d, limit
-    cdef bint neg
-    for i in range(n):
-        a = offs[i]
-        b = offs[i + 1]
-        neg = False
-        if a < b and (data[a] == 43 or data[a] == 45):      # '+' or '-'
-            neg = data[a] == 45
-            a += 1
-        if a >= b:
-            return False
-        v = 0
-        if b - a <= 18:             # at most 18 digits: below 10**18, no overflow to check
-            while a < b:
-                d = <uint64_t>data[a] - 48
-                if d > 9:
-                    return False
-                v = v * 10 + d
-                a += 1
-        else:
-            limit = (<uint64_t>1) << 63 if neg else ((<uint64_t>1) << 63) - 1
-            while a < b:
-                d = <uint64_t>data[a] - 48
-                if d > 9 or v > (limit - d) // 10:
-                    return False
-                v = v * 10 + d
-                a += 1
-        out[i] = <int64_t>(0 - v) if neg else <int64_t>v
-    return True
-
 
 def integer_labels(const Py_ssize_t[::1] seg, int64_t[::1] out, int threads, /):
     """Parse the rows of the segments ``seg`` (6 words each, as ``map_piece`` takes them)
@@ -920,7 +504,7 @@ def integer_labels(const Py_ssize_t[::1] seg, int64_t[::1] out, int threads, /):
     cdef int bad = 0
     if threads < 1:
         raise ValueError(f"integer_labels: threads must be positive, received {threads}.")
-    rows = _seg_rows(&seg[0], nseg) if nseg and seg.shape[0] == 6 * nseg else -1
+    rows = seg_rows(&seg[0], nseg) if nseg and seg.shape[0] == 6 * nseg else -1
     if rows < 0 or out.shape[0] != rows:
         raise ValueError(f"integer_labels: expected 6 words per segment, the segments following "
                          f"on from row 0 and out with one slot per row; received "
@@ -929,10 +513,10 @@ def integer_labels(const Py_ssize_t[::1] seg, int64_t[::1] out, int threads, /):
     with nogil:
         for s in prange(nseg, num_threads=threads, schedule="dynamic"):
             if segs[s].wide:
-                if not _integer_span(<const int64_t*>segs[s].offs, segs[s].data, segs[s].n,
+                if not integer_span(<const int64_t*>segs[s].offs, segs[s].data, segs[s].n,
                                      &out[segs[s].at]):
                     bad += 1
-            elif not _integer_span(<const int32_t*>segs[s].offs, segs[s].data, segs[s].n,
+            elif not integer_span(<const int32_t*>segs[s].offs, segs[s].data, segs[s].n,
                                    &out[segs[s].at]):
                 bad += 1
     return bad == 0

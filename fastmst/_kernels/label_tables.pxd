@@ -1,0 +1,188 @@
+# One partition's open-addressing table of the label kernel (_labels.pyx): slots of (hash,
+# length << 32 | local id + 1), the first occurrence of each local id, growth (into memory of
+# its own, also out of a reserved buffer) and the probe of one run of entries.
+from libc.stdint cimport int32_t, int64_t, uint32_t, uint64_t
+from libc.stdlib cimport calloc, free, malloc, realloc
+from libc.string cimport memcmp, memcpy
+
+from fastmst._kernels._atomics cimport prefetch
+from fastmst._kernels.label_hash cimport Seg, row_bytes
+
+
+cdef enum:
+    EMPTY = 0       # the second word of an empty table slot
+
+
+ctypedef struct Entry:      # 16 bytes; the label's bytes are found from its row (row_bytes)
+    uint64_t h
+    uint32_t row        # position within the piece
+    uint32_t length
+
+
+ctypedef struct Part:
+    uint64_t* slots     # 2 * cap words: (hash, length << 32 | id + 1)
+    Py_ssize_t cap
+    Py_ssize_t count    # distinct labels so far
+    Py_ssize_t fresh    # the first id new in the current piece
+    Py_ssize_t ucap
+    int64_t* first      # piece position of the first occurrence (labels new in the piece)
+    uint64_t* uptr      # that occurrence's bytes, for labels of more than 8 bytes (compared)
+    int32_t* gid        # the global id of each local id
+    bint failed         # an allocation failed
+    bint own_slots      # slots were allocated here (else they lie in a reserved buffer)
+    bint own_ids        # first, uptr and gid were allocated here
+    uint64_t warm       # the sum of the warm-up reads (kept so they are not optimised away)
+
+
+cdef inline bint resize(void** block, Py_ssize_t n, size_t size) noexcept nogil:
+    """``*block`` reallocated to ``n`` items of ``size`` bytes (False, and ``*block`` as it
+    was, when memory ran out)."""
+    cdef void* a = realloc(block[0], n * size)
+    if a == NULL:
+        return False
+    block[0] = a
+    return True
+
+
+cdef inline void* copied(const void* old, Py_ssize_t n, Py_ssize_t keep,
+                         size_t size) noexcept nogil:
+    """A new block of ``n`` items of ``size`` bytes holding the first ``keep`` items of
+    ``old`` (NULL when memory ran out): arrays that lie in a reserved buffer move out this way
+    when they must grow."""
+    cdef void* a = malloc(n * size)
+    if a != NULL and keep:
+        memcpy(a, old, keep * size)
+    return a
+
+
+cdef inline bint grow_ids(Part* p) noexcept nogil:
+    """Room for more distinct labels in ``p`` (False when memory ran out).  Arrays that lie
+    in a reserved buffer are copied to new memory of this module's own."""
+    cdef Py_ssize_t u = 2 * p.ucap if p.ucap else 256
+    cdef int64_t* first
+    cdef uint64_t* uptr
+    cdef int32_t* gid
+    if p.own_ids:
+        if not (resize(<void**>&p.first, u, sizeof(int64_t))
+                and resize(<void**>&p.uptr, u, sizeof(uint64_t))
+                and resize(<void**>&p.gid, u, sizeof(int32_t))):
+            return False
+    else:
+        first = <int64_t*>copied(p.first, u, p.count, sizeof(int64_t))
+        uptr = <uint64_t*>copied(p.uptr, u, p.count, sizeof(uint64_t))
+        gid = <int32_t*>copied(p.gid, u, p.count, sizeof(int32_t))
+        if first == NULL or uptr == NULL or gid == NULL:
+            free(first)
+            free(uptr)
+            free(gid)
+            return False
+        p.first, p.uptr, p.gid, p.own_ids = first, uptr, gid, True
+    p.ucap = u
+    return True
+
+
+cdef inline void rehash(const uint64_t* old, Py_ssize_t old_cap, uint64_t* new,
+                        Py_ssize_t cap) noexcept nogil:
+    """Move the filled slots of table ``old`` into the empty table ``new`` (``cap`` slots, a
+    power of two)."""
+    cdef Py_ssize_t i, slot, mask = cap - 1
+    cdef uint64_t h
+    for i in range(old_cap):
+        if old[2 * i + 1] == EMPTY:
+            continue
+        h = old[2 * i]
+        slot = h & mask
+        while new[2 * slot + 1] != EMPTY:
+            slot = (slot + 1) & mask
+        new[2 * slot] = h
+        new[2 * slot + 1] = old[2 * i + 1]
+
+
+cdef inline bint grow_table(Part* p) noexcept nogil:
+    """Double the table of ``p`` and move its entries (False when memory ran out)."""
+    cdef Py_ssize_t cap = 2 * p.cap if p.cap else 512
+    cdef uint64_t* new = <uint64_t*>calloc(2 * cap, sizeof(uint64_t))
+    if new == NULL:
+        return False
+    rehash(p.slots, p.cap, new, cap)
+    if p.own_slots:
+        free(p.slots)
+    p.slots = new
+    p.cap = cap
+    p.own_slots = True
+    return True
+
+
+cdef inline void probe(Part* p, const Entry* ent, Py_ssize_t n, int32_t* lids, const Seg* segs,
+                       const Py_ssize_t* segblk) noexcept nogil:
+    """Local ids (in order of first appearance within the partition) of its entries ``ent[:n]``
+    (one run: one block's entries of this piece, taken in block order), written to
+    ``lids[:n]``.  The table's fields are kept in locals (stores into
+    the table could alias them, so the compiler would reload them on every probe) and written
+    back to ``p`` when the table or the id arrays grow and at the end."""
+    cdef Py_ssize_t j, slot, lid
+    cdef Py_ssize_t count = p.count, cap = p.cap, mask = p.cap - 1
+    cdef Py_ssize_t limit = room(p)      # count may reach this before anything must grow
+    cdef uint64_t h, w1, length
+    cdef uint64_t* tbl = p.slots
+    cdef int64_t* first = p.first
+    cdef uint64_t* uptr = p.uptr
+    for j in range(n):
+        if count >= limit:
+            p.count = count
+            if 3 * (count + 1) > 2 * p.cap and not grow_table(p):   # load factor <= 2/3
+                p.failed = True
+                return
+            if count + 1 > p.ucap and not grow_ids(p):
+                p.failed = True
+                return
+            cap, tbl, first, uptr = p.cap, p.slots, p.first, p.uptr
+            mask = cap - 1
+            limit = room(p)
+        if j + 16 < n:
+            prefetch(&tbl[2 * (ent[j + 16].h & mask)])
+        h = ent[j].h
+        length = ent[j].length
+        slot = h & mask
+        while True:
+            w1 = tbl[2 * slot + 1]
+            if w1 == EMPTY:
+                lid = count
+                count = lid + 1
+                tbl[2 * slot] = h
+                tbl[2 * slot + 1] = (length << 32) | <uint64_t>(lid + 1)
+                first[lid] = ent[j].row
+                if length > 8:      # short labels are never compared byte by byte
+                    uptr[lid] = <uint64_t>row_bytes(segs, segblk, ent[j].row)
+                break
+            if tbl[2 * slot] == h and (w1 >> 32) == length:
+                lid = <Py_ssize_t>(w1 & 0xffffffffULL) - 1
+                if length <= 8 or memcmp(<const void*>uptr[lid],
+                                         row_bytes(segs, segblk, ent[j].row), length) == 0:
+                    break
+            slot = (slot + 1) & mask
+        lids[j] = <int32_t>lid
+    p.count = count
+
+
+cdef inline Py_ssize_t room(const Part* p) noexcept nogil:
+    """The largest label count for which one more label needs neither a larger table (load
+    factor <= 2/3: 3 * (count + 1) <= 2 * cap) nor larger id arrays (count + 1 <= ucap)."""
+    cdef Py_ssize_t by_table = (2 * p.cap) // 3, by_ids = p.ucap
+    return by_table if by_table < by_ids else by_ids
+
+
+cdef inline void free_parts(Part* parts, Py_ssize_t n) noexcept nogil:
+    """Free ``n`` partitions' own memory and the array of them."""
+    cdef Py_ssize_t q
+    if parts == NULL:
+        return
+    for q in range(n):
+        if parts[q].own_slots:
+            free(parts[q].slots)
+        if parts[q].own_ids:
+            free(parts[q].first)
+            free(parts[q].uptr)
+            free(parts[q].gid)
+    free(parts)
+
