@@ -199,7 +199,7 @@ def test_pieces_that_do_not_fit_their_plan_are_counted_and_still_exact(threads, 
     """After the first piece the runs are planned from the last piece counted; a piece whose
     rows fall otherwise (here: spread labels, then one label in every row, then spread again)
     is counted and mapped again (the rest are not).  Ids as the reference gives them (NumPy first appearance),
-    and the same with planning off (PLAN_ROOM = 0: every piece counted)."""
+    and the same with planning off (PLAN = False: every piece counted)."""
     from fastmst._kernels import _labels
     monkeypatch.setattr(K, "PIECE_ROWS", 4_000)
     counted = []
@@ -217,7 +217,7 @@ def test_pieces_that_do_not_fit_their_plan_are_counted_and_still_exact(threads, 
     # the first piece and the hub piece are counted; the piece after the hub only when its
     # rows overflow the 32 spare entries per run planned from the hub piece
     assert len(counted) in (2, 3)
-    monkeypatch.setattr(K, "PLAN_ROOM", 0)
+    monkeypatch.setattr(K, "PLAN", False)
     counted.clear()
     again = K.text_ids([pa.array(values)], len(values), threads)
     assert again[0].tolist() == ids.tolist() and len(counted) == 4
@@ -235,7 +235,8 @@ def test_plan_piece_plans_nothing_before_a_count_or_beyond_the_room():
     _labels.count_piece(*counting.values())
     _labels.map_piece(*mapping.values())
     planned = _labels.plan_piece(*args, 10**6)
-    assert 1000 < planned <= int(1.15 * 1000) + 33 * _labels.N_PARTS
+    most = int(_labels.PLAN_SLACK * 1000) + (_labels.PLAN_EXTRA + 1) * _labels.N_PARTS
+    assert 1000 < planned <= most
     assert _labels.plan_piece(*args, planned - 1) == -1
     with pytest.raises(ValueError, match="plan_piece"):
         _labels.plan_piece(*args[:3], 999, args[4], 10**6)

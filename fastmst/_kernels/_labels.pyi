@@ -3,6 +3,8 @@ half, ``text_ids``, is fastmst/_kernels/labels.py)."""
 import numpy as np
 import numpy.typing as npt
 
+PLAN_SLACK: float
+PLAN_EXTRA: int
 REG_BYTES: int
 N_PARTS: int
 ENTRY_BYTES: int

@@ -62,6 +62,11 @@ from fastmst._kernels.label_tables cimport (Entry, Part, copied, free_parts, pro
                                            resize)
 
 
+cdef enum:
+    EXTRA = 32              # plan_piece: entries a run gets beyond its expected share
+cdef double SLACK = 1.15    # plan_piece: the factor of a run's expected share
+
+
 # ---------------------------------------------------------------------------------------------
 # partition passes (the row passes are in label_passes.pxd)
 
@@ -178,19 +183,17 @@ cdef void _gather_bytes(const uint64_t* ptr, Py_ssize_t n, const int64_t* offset
             memcpy(&out[offsets[i]], <const void *>ptr[i], k)
 
 
-cdef Py_ssize_t _offsets(const Py_ssize_t* hist, Py_ssize_t nblk, Py_ssize_t* off,
-                         Py_ssize_t* end) noexcept nogil:
+cdef void _offsets(const Py_ssize_t* hist, Py_ssize_t nblk, Py_ssize_t* off,
+                   Py_ssize_t* end) noexcept nogil:
     """Runs of entries from the room of each (block, partition) ``hist`` (nblk x PARTS):
     partitions in order, blocks in order within a partition.  OUT: ``off[b * PARTS + q]``,
-    the first entry of block b's run in partition q, and ``end[...]`` the run's end.  Returns
-    the entries of all runs."""
+    the first entry of block b's run in partition q, and ``end[...]`` the run's end."""
     cdef Py_ssize_t q, b, acc = 0
     for q in range(PARTS):
         for b in range(nblk):
             off[b * PARTS + q] = acc
             acc += hist[b * PARTS + q]
             end[b * PARTS + q] = acc
-    return acc
 
 
 # ---------------------------------------------------------------------------------------------
@@ -198,7 +201,10 @@ cdef Py_ssize_t _offsets(const Py_ssize_t* hist, Py_ssize_t nblk, Py_ssize_t* of
 # array, is fastmst/_kernels/labels.py)
 
 #: Partitions of a piece (the hash's top byte), bytes of one entry, rows per segment block,
-#: bytes of one block's estimate registers.
+#: bytes of one block's estimate registers; a planned run's room: its expected share times
+#: PLAN_SLACK, plus PLAN_EXTRA entries.
+PLAN_SLACK = SLACK
+PLAN_EXTRA = EXTRA
 REG_BYTES = REGS
 N_PARTS = PARTS
 ENTRY_BYTES = sizeof(Entry)
@@ -222,7 +228,7 @@ cdef class LabelTables:
     cdef uint8_t hll[REGS]
     cdef Py_ssize_t* hist           # the counted piece: blocks x PARTS counts
     cdef Py_ssize_t* segc           # its segment words
-    cdef Py_ssize_t nhist, nsegc, crows, cblock, cnblk
+    cdef Py_ssize_t nsegc, crows, cblock, cnblk
     cdef Py_ssize_t share[PARTS]    # rows of each partition in the last piece counted
     cdef object keep                # the reserved buffers in use
 
@@ -309,7 +315,8 @@ def plan_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
                Py_ssize_t room, /):
     """Plan the runs of one piece without a counting pass, for the ``map_piece`` call that
     follows: each (block, partition) run gets that partition's share of the rows in the last
-    piece ``count_piece`` counted, times the block's rows, with slack (x 1.15 + 32).  Returns
+    piece ``count_piece`` counted, times the block's rows, with slack (x SLACK +
+    EXTRA).  Returns
     the entries the runs take, or -1 (nothing planned) when nothing was counted yet or they
     would take more than ``room`` entries; ``map_piece`` returns -2 when the piece's rows
     fall otherwise than planned (then count it).  The ids do not depend on the plan."""
@@ -331,7 +338,7 @@ def plan_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
         n = block if (b + 1) * block <= rows else rows - b * block
         for q in range(PARTS):
             f = <double>tables.share[q] * <double>n / <double>counted
-            tables.hist[b * PARTS + q] = <Py_ssize_t>(1.15 * f) + 32
+            tables.hist[b * PARTS + q] = <Py_ssize_t>(SLACK * f) + EXTRA
             total += tables.hist[b * PARTS + q]
     if total > room:
         tables.crows = 0

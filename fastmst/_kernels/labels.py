@@ -1,10 +1,12 @@
 """Text labels to compact ids by first appearance: the Python half of ``_labels.pyx``.
 
 ``text_ids`` checks the Arrow string chunks, cuts their rows into pieces of ``PIECE_ROWS``,
-allocates every array and hands each piece to the compiled ``_labels.count_piece``, then (when
-the estimate of distinct labels calls for more room than the tables have) ``_labels.reserve``,
+allocates every array and hands each piece to the compiled ``_labels.count_piece`` (the first
+piece, and any piece that does not fit its plan) or ``_labels.plan_piece``, then (when the
+estimate of distinct labels calls for more room than the tables have) ``_labels.reserve``,
 then ``_labels.map_piece`` (the passes, the hashing and the tables are there, with the method's
-notes).  Nothing here loops over rows.
+notes).  ``integer_values`` parses integer labels through ``_labels.integer_labels``.  Nothing
+here loops over rows.
 """
 import numpy as np
 import pyarrow as pa
@@ -15,9 +17,9 @@ from fastmst._kernels import _labels
 PIECE_ROWS = 1 << 22
 #: Distinct labels (estimated) from which the tables are reserved ahead (``_reserve``).
 RESERVE_FROM = 1 << 15
-#: Entries planned per row of a piece that is not counted (``_labels.plan_piece``: each run
-#: gets 1.15 x its expected share, plus 32); 0 counts every piece.
-PLAN_ROOM = 1.15
+#: Pieces after the first are planned from the last piece counted (``_labels.plan_piece``)
+#: instead of counted; False counts every piece.
+PLAN = True
 
 
 def _empty(n, dtype):
@@ -86,7 +88,7 @@ def _segment_table(pieces, segs):
 def _per_partition(estimate):
     """Labels one partition should have room for when ``estimate`` distinct labels are
     expected in all: the mean share plus slack for the estimate's error (about 1.6 %, see
-    ``_labels._estimate``) and for the spread of a binomial count (three standard deviations)."""
+    ``label_estimate.pxd``) and for the spread of a binomial count (three standard deviations)."""
     mean = estimate / _labels.N_PARTS
     return int(1.1 * mean + 3.0 * mean ** 0.5) + 16
 
@@ -124,9 +126,9 @@ def text_ids(chunks, n_tail, threads=1):
     ids = _empty(total, np.int32)
     size = max(1, min(int(PIECE_ROWS), total))
     nblk = 8 * threads if threads > 1 else 1
-    block = (size + nblk - 1) // nblk
     words = (size + 63) // 64
-    room = int(PLAN_ROOM * size) + nblk * _labels.N_PARTS * 33   # entries, as plan_piece plans
+    # entries, as many as plan_piece plans at most (its rounding up included)
+    room = int(_labels.PLAN_SLACK * size) + nblk * _labels.N_PARTS * (_labels.PLAN_EXTRA + 1)
     # off, ent, part, eid, bits, below (map_piece's order)
     scratch = (np.empty(3 * nblk * _labels.N_PARTS, dtype=np.intp),
                _empty(room * _labels.ENTRY_BYTES, np.uint8), _empty(size, np.uint8),
@@ -146,7 +148,7 @@ def text_ids(chunks, n_tail, threads=1):
         # after the first piece, the runs are planned from the last piece counted (no
         # counting pass); a piece whose rows do not fit its plan is counted and mapped again
         planned = (_labels.plan_piece(tables, seg, segblk, rows, pblock, room)
-                   if done and PLAN_ROOM else -1)
+                   if done and PLAN else -1)
         mapped = -2 if planned < 0 else _labels.map_piece(tables, seg, segblk, rows, pblock,
                                                           off, *scratch[1:], ids[done:], threads)
         if mapped == -2:
