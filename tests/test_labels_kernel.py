@@ -319,19 +319,20 @@ def test_label_bytes_refuses_offsets_that_do_not_match_the_lengths():
     pieces, counting, args = _piece_arrays(["alpha", "be", "alpha", "gamma ray"])
     _labels.count_piece(*counting.values())
     count = _labels.map_piece(*args.values())
-    lengths = np.empty(count, dtype=np.int64)
-    _labels.label_lengths(args["tables"], lengths)
-    assert lengths.tolist() == [5, 2, 9]
-    good = np.concatenate([[0], np.cumsum(lengths)])
-    out = np.empty(int(good[-1]), dtype=np.uint8)
-    _labels.label_bytes(args["tables"], good, out)
-    assert out.tobytes() == b"alphabegamma ray"
+    good = np.empty(count + 1, dtype=np.int64)
+    assert _labels.label_offsets(args["tables"], good) == 16
+    assert good.tolist() == [0, 5, 7, 16]
+    for threads in (1, 2):
+        out = np.empty(int(good[-1]), dtype=np.uint8)
+        _labels.label_bytes(args["tables"], good, out, threads)
+        assert out.tobytes() == b"alphabegamma ray"
     for bad in (good + np.array([0, 1, 1, 1]), np.array([0, 2, 4, 16]), good[:-1]):
         with pytest.raises(ValueError, match="label_bytes"):
-            _labels.label_bytes(args["tables"], bad, np.empty(int(bad[-1]), dtype=np.uint8))
-    with pytest.raises(ValueError, match="label_lengths"):
-        _labels.label_lengths(args["tables"], np.empty(count + 1, dtype=np.int64))
-
+            _labels.label_bytes(args["tables"], bad, np.empty(int(bad[-1]), dtype=np.uint8), 1)
+    with pytest.raises(ValueError, match="label_offsets"):
+        _labels.label_offsets(args["tables"], np.empty(count, dtype=np.int64))
+    with pytest.raises(ValueError, match="threads"):
+        _labels.label_bytes(args["tables"], good, out, 0)
 
 INT64 = (-2**63, 2**63 - 1)
 # digits, signs, spaces, hex prefixes, other digit characters, and values at the int64 limits

@@ -36,7 +36,7 @@ never depend on the plan.
 
 Files: this module holds the partition passes and the thin typed ``def``s over one piece
 (``count_piece`` or ``plan_piece``, then ``reserve`` when more room is needed, then
-``map_piece``), over the distinct labels at the end (``label_lengths``, ``label_bytes``) and
+``map_piece``), over the distinct labels at the end (``label_offsets``, ``label_bytes``) and
 over integer labels (``integer_labels``).  Inline pieces, one concept each: ``label_hash.pxd``
 (the segment table, a row's bytes, the hash), ``label_passes.pxd`` (the count and scatter row
 passes), ``label_tables.pxd`` (one partition's table: growth and probe),
@@ -529,28 +529,41 @@ def integer_labels(const Py_ssize_t[::1] seg, int64_t[::1] out, int threads, /):
     return bad == 0
 
 
-def label_lengths(LabelTables tables not None, int64_t[::1] out, /):
-    """Byte lengths of the distinct labels in id order, written to ``out`` (one per label)."""
-    if out.shape[0] != tables.count:
-        raise ValueError(f"label_lengths: out must hold {tables.count} lengths, received "
-                         f"{out.shape[0]}.")
-    if tables.count:
-        memcpy(&out[0], tables.glen, tables.count * sizeof(int64_t))
+def label_offsets(LabelTables tables not None, int64_t[::1] offsets, /):
+    """The running sum of the distinct labels' byte lengths in id order, with a leading 0,
+    written to ``offsets`` (one more than the labels); returns the last (all their bytes)."""
+    cdef Py_ssize_t i, n = tables.count
+    if offsets.shape[0] != n + 1:
+        raise ValueError(f"label_offsets: offsets must hold {n + 1} values (the labels plus "
+                         f"one), received {offsets.shape[0]}.")
+    with nogil:
+        offsets[0] = 0
+        for i in range(n):
+            offsets[i + 1] = offsets[i] + tables.glen[i]
+    return offsets[n]
 
 
-def label_bytes(LabelTables tables not None, const int64_t[::1] offsets, uint8_t[::1] out, /):
-    """The distinct labels' bytes concatenated in id order into ``out``, at ``offsets`` (the
-    running sum of ``label_lengths``, with a leading 0).  The chunks must still be alive."""
-    cdef Py_ssize_t n = tables.count, i
+def label_bytes(LabelTables tables not None, const int64_t[::1] offsets, uint8_t[::1] out,
+                int threads, /):
+    """The distinct labels' bytes concatenated in id order into ``out``, at ``offsets`` (as
+    ``label_offsets`` writes them); ``threads`` copy ranges of labels.  The chunks must still
+    be alive."""
+    cdef Py_ssize_t n = tables.count, i, b, nb, step
     cdef bint fits = offsets.shape[0] == n + 1 and offsets[0] == 0
+    if threads < 1:
+        raise ValueError(f"label_bytes: threads must be positive, received {threads}.")
     if fits:
         for i in range(n):
             if offsets[i + 1] - offsets[i] != tables.glen[i]:
                 fits = False
                 break
     if not fits or out.shape[0] != offsets[n]:
-        raise ValueError("label_bytes: offsets must be the running sum of label_lengths "
-                         "(with a leading 0) and out hold their last value in bytes.")
+        raise ValueError("label_bytes: offsets must be the running sum of the label lengths "
+                         "(label_offsets) and out hold their last value in bytes.")
     if n and offsets[n]:
+        step = 1 << 16
+        nb = (n + step - 1) // step
         with nogil:
-            _gather_bytes(tables.gptr, n, &offsets[0], &out[0])
+            for b in prange(nb, num_threads=threads, schedule="static"):
+                _gather_bytes(tables.gptr + b * step, (n - b * step) if b == nb - 1 else step,
+                              &offsets[b * step], &out[0])

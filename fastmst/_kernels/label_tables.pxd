@@ -117,30 +117,42 @@ cdef inline void probe(Part* p, const Entry* ent, Py_ssize_t n, int32_t* lids, c
                        const Py_ssize_t* segblk) noexcept nogil:
     """Local ids (in order of first appearance within the partition) of its entries ``ent[:n]``
     (one run: one block's entries of this piece, taken in block order), written to
-    ``lids[:n]``.  The table's fields are kept in locals (stores into
-    the table could alias them, so the compiler would reload them on every probe) and written
-    back to ``p`` when the table or the id arrays grow and at the end."""
-    cdef Py_ssize_t j, slot, lid
-    cdef Py_ssize_t count = p.count, cap = p.cap, mask = p.cap - 1
-    cdef Py_ssize_t limit = room(p)      # count may reach this before anything must grow
-    cdef uint64_t h, w1, length
-    cdef uint64_t* tbl = p.slots
-    cdef int64_t* first = p.first
-    cdef uint64_t* uptr = p.uptr
-    for j in range(n):
-        if count >= limit:
-            p.count = count
-            if 3 * (count + 1) > 2 * p.cap and not grow_table(p):   # load factor <= 2/3
+    ``lids[:n]``.  The entries are taken in stretches that cannot outgrow the table (each
+    entry adds at most one label), so the probe loop (``probe_stretch``) never checks for
+    growth; the table grows between stretches."""
+    cdef Py_ssize_t j = 0, m, limit
+    while j < n:
+        limit = room(p)
+        if p.count >= limit:
+            if 3 * (p.count + 1) > 2 * p.cap and not grow_table(p):   # load factor <= 2/3
                 p.failed = True
                 return
-            if count + 1 > p.ucap and not grow_ids(p):
+            if p.count + 1 > p.ucap and not grow_ids(p):
                 p.failed = True
                 return
-            cap, tbl, first, uptr = p.cap, p.slots, p.first, p.uptr
-            mask = cap - 1
-            limit = room(p)
-        if j + 16 < n:
-            prefetch(&tbl[2 * (ent[j + 16].h & mask)])
+            continue
+        m = limit - p.count
+        if m > n - j:
+            m = n - j
+        p.count = probe_stretch(p.slots, <uint64_t>(p.cap - 1), p.count, ent + j, m, lids + j,
+                                p.first, p.uptr, segs, segblk)
+        j += m
+
+
+cdef inline Py_ssize_t probe_stretch(uint64_t* tbl, uint64_t mask, Py_ssize_t count,
+                                     const Entry* ent, Py_ssize_t n, int32_t* lids,
+                                     int64_t* first, uint64_t* uptr, const Seg* segs,
+                                     const Py_ssize_t* segblk) noexcept nogil:
+    """The probes of ``ent[:n]`` into a table with room for ``n`` more labels; returns the
+    label count after them.  Runs of labels of up to 8 bytes go through ``probe_short``
+    (equal hash and length is equal label: a small loop that keeps its values in
+    registers); a longer label is probed here, its bytes compared with its first occurrence."""
+    cdef Py_ssize_t j = 0, lid
+    cdef uint64_t h, w1, length, slot
+    while True:
+        j += probe_short(tbl, mask, &count, ent + j, n - j, lids + j, first)
+        if j >= n:
+            return count
         h = ent[j].h
         length = ent[j].length
         slot = h & mask
@@ -152,17 +164,50 @@ cdef inline void probe(Part* p, const Entry* ent, Py_ssize_t n, int32_t* lids, c
                 tbl[2 * slot] = h
                 tbl[2 * slot + 1] = (length << 32) | <uint64_t>(lid + 1)
                 first[lid] = ent[j].row
-                if length > 8:      # short labels are never compared byte by byte
-                    uptr[lid] = <uint64_t>row_bytes(segs, segblk, ent[j].row)
+                uptr[lid] = <uint64_t>row_bytes(segs, segblk, ent[j].row)
                 break
             if tbl[2 * slot] == h and (w1 >> 32) == length:
                 lid = <Py_ssize_t>(w1 & 0xffffffffULL) - 1
-                if length <= 8 or memcmp(<const void*>uptr[lid],
-                                         row_bytes(segs, segblk, ent[j].row), length) == 0:
+                if memcmp(<const void*>uptr[lid], row_bytes(segs, segblk, ent[j].row),
+                          length) == 0:
                     break
             slot = (slot + 1) & mask
         lids[j] = <int32_t>lid
-    p.count = count
+        j += 1
+
+
+cdef inline Py_ssize_t probe_short(uint64_t* tbl, uint64_t mask, Py_ssize_t* count_out,
+                                   const Entry* ent, Py_ssize_t n, int32_t* lids,
+                                   int64_t* first) noexcept nogil:
+    """The probes of ``ent[:n]`` up to the first label of more than 8 bytes; returns the
+    entries done and updates ``count_out``.  The slot of entry j + 16 is prefetched."""
+    cdef Py_ssize_t j, lid, count = count_out[0], ahead = n - 16
+    cdef uint64_t h, w1, length, slot
+    for j in range(n):
+        if j < ahead:
+            prefetch(&tbl[2 * (ent[j + 16].h & mask)])
+        h = ent[j].h
+        length = ent[j].length
+        if length > 8:
+            count_out[0] = count
+            return j
+        slot = h & mask
+        while True:
+            w1 = tbl[2 * slot + 1]
+            if w1 == EMPTY:
+                lid = count
+                count = lid + 1
+                tbl[2 * slot] = h
+                tbl[2 * slot + 1] = (length << 32) | <uint64_t>(lid + 1)
+                first[lid] = ent[j].row
+                break
+            if tbl[2 * slot] == h and (w1 >> 32) == length:
+                lid = <Py_ssize_t>(w1 & 0xffffffffULL) - 1
+                break
+            slot = (slot + 1) & mask
+        lids[j] = <int32_t>lid
+    count_out[0] = count
+    return n
 
 
 cdef inline Py_ssize_t room(const Part* p) noexcept nogil:

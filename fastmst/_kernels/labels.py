@@ -165,12 +165,9 @@ def text_ids(chunks, n_tail, threads=1):
         count = mapped
         done += rows
     # the distinct labels in id order (the chunks, which hold their bytes, are alive here)
-    offsets = np.zeros(count + 1, dtype=np.int64)
-    lengths = np.empty(count, dtype=np.int64)
-    _labels.label_lengths(tables, lengths)
-    np.cumsum(lengths, out=offsets[1:])
-    data = np.empty(int(offsets[count]), dtype=np.uint8)
-    _labels.label_bytes(tables, offsets, data)
+    offsets = _empty(count + 1, np.int64)
+    data = _empty(_labels.label_offsets(tables, offsets), np.uint8)
+    _labels.label_bytes(tables, offsets, data, threads)
     return ids[:n_tail], ids[n_tail:], offsets, data
 
 
