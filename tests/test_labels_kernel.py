@@ -54,9 +54,13 @@ def label_arrays(offsets, data):
                                             pa.py_buffer(data)).to_pylist()
 
 
-# short (packed into one word), exactly 8/9 bytes, long, empty, unicode, embedded NUL
+# short (packed into one word), exactly 8/9 bytes, long, empty, unicode, embedded NUL; and
+# labels that share their zero-padded word with a shorter one ("abc", "abc\0\0\0\0\x03"):
+# only the length tells them apart
 label = st.one_of(st.sampled_from(["", "a", "b", "ab", "abcdefgh", "abcdefghi", "a\0", "\0",
-                                   "é", "ключ", "节点-1", "x" * 40, "x" * 41]),
+                                   "é", "ключ", "节点-1", "x" * 40, "x" * 41, "abc",
+                                   "abc\0\0\0\0\x03", "\0" * 8, "a" + "\0" * 6 + "\x01",
+                                   "abcdefg", "abcdefg\x07", "abcdefg\x08"]),
                   st.text(max_size=3), st.text(min_size=7, max_size=30))
 
 
