@@ -23,6 +23,10 @@ cdef extern from *:
         int n = 0; while (!(x & 1)) { x >>= 1; n++; } return n;
     }
     #endif
+    /* The low n bytes of a word, n = 0..8. */
+    static const uint64_t fastmst_low_bytes[9] = {
+        0x0ULL, 0xffULL, 0xffffULL, 0xffffffULL, 0xffffffffULL, 0xffffffffffULL,
+        0xffffffffffffULL, 0xffffffffffffffULL, 0xffffffffffffffffULL};
     /* A bijection of 64-bit words (xor-shift / odd-multiply rounds). */
     static inline uint64_t fastmst_mix64(uint64_t x) {
         x ^= x >> 32;
@@ -58,6 +62,7 @@ cdef extern from *:
     }
     """
     const bint LITTLE_ENDIAN "FASTMST_LITTLE_ENDIAN"
+    const uint64_t* LOW_BYTES "fastmst_low_bytes"
     uint64_t mix64 "fastmst_mix64"(uint64_t x) noexcept nogil
     uint64_t hash_bytes "fastmst_hash_bytes"(const uint8_t* p, Py_ssize_t n) noexcept nogil
     int popcount64 "FASTMST_POPCOUNT64"(uint64_t x) noexcept nogil
@@ -72,14 +77,13 @@ ctypedef fused offset_t:
 cdef inline uint64_t label_hash(const uint8_t *p, Py_ssize_t n, bint room) noexcept nogil:
     """64-bit hash of ``n`` bytes; for n <= 8 a bijection of the zero-padded bytes.  ``room``:
     8 bytes may be read from ``p`` (then, on little-endian machines, short labels are one load
-    and a mask, inlined; other labels go through hash_bytes, which stays out of line so that
-    this stays small enough to inline into the row passes)."""
+    and a mask from a table, inlined and without a branch on the length; other labels go
+    through hash_bytes, which stays out of line so that this stays small enough to inline into
+    the row passes)."""
     cdef uint64_t w
     if n <= 8 and room and LITTLE_ENDIAN:
         memcpy(&w, p, 8)
-        if n < 8:
-            w &= ((<uint64_t>1) << (8 * n)) - 1
-        return mix64(w)
+        return mix64(w & LOW_BYTES[n])
     return hash_bytes(p, n)
 
 

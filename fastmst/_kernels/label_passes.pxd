@@ -18,11 +18,12 @@ cdef inline void _count_span(const offset_t* offs, const uint8_t* data, Py_ssize
                              Py_ssize_t i0, Py_ssize_t i1, Py_ssize_t* hb,
                              uint8_t* reg) noexcept nogil:
     """Count per partition in ``hb`` and raise the block's estimate registers ``reg``."""
-    cdef Py_ssize_t i, a
+    cdef Py_ssize_t i, a, b = offs[i0]
     cdef uint64_t h
     for i in range(i0, i1):
-        a = offs[i]
-        h = label_hash(data + a, offs[i + 1] - a, a + 8 <= size)
+        a = b                   # each offset read once (the stores could alias the offsets)
+        b = offs[i + 1]
+        h = label_hash(data + a, b - a, a + 8 <= size)
         hb[h >> 56] += 1
         raise_register(reg, h)
 
@@ -33,11 +34,12 @@ cdef inline bint _scatter_span(const offset_t* offs, const uint8_t* data, Py_ssi
     """Hash again (cheaper than storing the hashes and reading them back) and write entries
     (``ob``: the next entry of each partition's run, ``end``: the runs' ends).  False when a
     run is full (a planned piece whose rows fall otherwise than planned)."""
-    cdef Py_ssize_t i, a, j, n
+    cdef Py_ssize_t i, a, b = offs[i0], j, n
     cdef uint64_t h
     for i in range(i0, i1):
-        a = offs[i]
-        n = offs[i + 1] - a
+        a = b
+        b = offs[i + 1]
+        n = b - a
         h = label_hash(data + a, n, a + 8 <= size)
         j = ob[h >> 56]
         if j >= end[h >> 56]:
