@@ -55,6 +55,33 @@ def test_edge_table_round_trip(tmp_path, name):
     assert f.n_components == 2
 
 
+@pytest.mark.parametrize("compression", ["none", "snappy", "zstd"])
+@pytest.mark.parametrize("dictionary", [True, False])
+def test_parquet_edges_outlive_the_file(tmp_path, compression, dictionary):
+    """Parquet files are read through a memory map.  Nothing read_edges returns may point into
+    it: the file truncated and rewritten afterwards leaves the edges, labels and carried
+    columns as they were (reference: pyarrow.parquet's own read of the file, taken before)."""
+    import pyarrow.parquet as pq
+    rng = np.random.default_rng(7)
+    names = np.array([f"site-{i}" for i in range(300)])
+    table = pa.table({"from": names[rng.integers(0, 300, 4000)],
+                      "to": names[rng.integers(0, 300, 4000)],
+                      "cost": rng.random(4000), "hops": rng.integers(0, 9, 4000),
+                      "note": names[rng.integers(0, 300, 4000)]})
+    path = tmp_path / "g.parquet"
+    pq.write_table(table, path, compression=compression, use_dictionary=dictionary)
+    want = pq.read_table(path)
+    el = io.read_edges(path, keep_columns="all")
+    with open(path, "r+b") as fh:
+        fh.truncate(0)
+        fh.write(b"\xff" * 4096)
+    assert el.label(el.tail).tolist() == want.column("from").to_pylist()
+    assert el.label(el.head).tolist() == want.column("to").to_pylist()
+    assert el.weight.tolist() == want.column("cost").to_pylist()
+    assert el.attributes.column("note").to_pylist() == want.column("note").to_pylist()
+    assert el.attributes.column("hops").to_pylist() == want.column("hops").to_pylist()
+
+
 @pytest.mark.parametrize("name", ["f.csv", "f.tsv", "f.csv.gz", "f.parquet", "f.npz"])
 def test_forest_round_trip(tmp_path, name):
     """A written forest reads back with the user's labels, weights and input positions."""
