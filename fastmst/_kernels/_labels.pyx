@@ -129,7 +129,7 @@ cdef void _rank_new(Part* parts, uint64_t* bits, Py_ssize_t* below, Py_ssize_t r
                 glen[g] = (<const int32_t*>segs[s].offs)[i + 1] - a
             gptr[g] = <uint64_t>(segs[s].data + a)
             g += 1
-    for q in prange(PARTS, num_threads=threads, schedule="static"):
+    for q in prange(PARTS, num_threads=threads, schedule="dynamic"):
         p = &parts[q]
         for lid in range(p.fresh, p.count):
             r = p.first[lid]
@@ -143,7 +143,7 @@ cdef void _global_ids(Part* parts, const Py_ssize_t* run, const Py_ssize_t* cur,
     entries of every run (``run``: first entries, ``cur``: ends)."""
     cdef Py_ssize_t q, j, b
     cdef int32_t* g
-    for q in prange(PARTS, num_threads=threads, schedule="static"):
+    for q in prange(PARTS, num_threads=threads, schedule="dynamic"):
         g = parts[q].gid
         for b in range(nblk):
             for j in range(run[b * PARTS + q], cur[b * PARTS + q]):
@@ -168,7 +168,7 @@ cdef void _write_rows(const uint8_t* part, const int32_t* ids, const Py_ssize_t*
     """``out[k]`` for every position k of the piece: the next id of k's partition, read in
     row order (``off0``: each (block, partition)'s first entry)."""
     cdef Py_ssize_t b, nb = (rows + block - 1) // block
-    for b in prange(nb, num_threads=threads, schedule="static"):
+    for b in prange(nb, num_threads=threads, schedule="dynamic"):
         _write_block(part, ids, off0 + b * PARTS, b * block,
                      (b + 1) * block if (b + 1) * block < rows else rows, out)
 
@@ -376,7 +376,7 @@ def reserve(LabelTables tables not None, uint64_t[::1] slots, int64_t[::1] first
                              f"expected room for them (cap={cap} slots, ucap={ucap}).")
     arena = &slots[0]
     with nogil:
-        for q in prange(PARTS, num_threads=threads, schedule="static"):
+        for q in prange(PARTS, num_threads=threads, schedule="dynamic"):
             p = &tables.parts[q]
             memset(arena + 2 * cap * q, 0, 2 * cap * sizeof(uint64_t))
             if p.cap:
@@ -564,6 +564,6 @@ def label_bytes(LabelTables tables not None, const int64_t[::1] offsets, uint8_t
         step = 1 << 16
         nb = (n + step - 1) // step
         with nogil:
-            for b in prange(nb, num_threads=threads, schedule="static"):
+            for b in prange(nb, num_threads=threads, schedule="dynamic"):
                 _gather_bytes(tables.gptr + b * step, (n - b * step) if b == nb - 1 else step,
                               &offsets[b * step], &out[0])
