@@ -13,6 +13,19 @@ cdef enum:
     EMPTY = 0       # the second word of an empty table slot
 
 
+cdef extern from *:
+    """
+    /* A zero written to every 4096th byte (volatile: kept even though the memory is known to
+       be zero), so that each page's first touch is a store. */
+    static void fastmst_touch_pages(void* p, size_t n) {
+        volatile char* c = (volatile char*)p;
+        size_t i;
+        for (i = 0; i < n; i += 4096) c[i] = 0;
+    }
+    """
+    void touch_pages "fastmst_touch_pages"(void* p, size_t n) noexcept nogil
+
+
 ctypedef struct Entry:      # 16 bytes; the label's bytes are found from its row (row_bytes)
     uint64_t h
     uint32_t row        # position within the piece
@@ -104,6 +117,10 @@ cdef inline bint grow_table(Part* p) noexcept nogil:
     cdef uint64_t* new = <uint64_t*>calloc(2 * cap, sizeof(uint64_t))
     if new == NULL:
         return False
+    # pages written before the rehash reads them: a fresh page read first maps the shared zero
+    # page, and the first store then costs a copy-on-write fault and a TLB flush on every thread
+    # (seen as a quarter of the time of a 2-thread mapping whose tables grew)
+    touch_pages(new, 2 * cap * sizeof(uint64_t))
     rehash(p.slots, p.cap, new, cap)
     if p.own_slots:
         free(p.slots)
