@@ -120,6 +120,9 @@ def test_text_ids_refuses_nulls_and_other_types():
         K.text_ids([pa.array(["a", None])], 1, 1)
     with pytest.raises(TypeError, match="string or large_string"):
         K.text_ids([pa.array([1, 2])], 1, 1)
+    for whole in (pa.chunked_array([["a"], ["b"]]), np.array(["a", "b"]), ["a", "b"]):
+        with pytest.raises(TypeError, match="expected pyarrow arrays"):
+            K.text_ids([whole], 1, 1)
     with pytest.raises(ValueError, match="n_tail"):
         K.text_ids([pa.array(["a"])], 2, 1)
     with pytest.raises(ValueError, match="threads"):
@@ -282,6 +285,49 @@ def test_tables_too_small_for_the_labels_still_give_exact_ids(threads, monkeypat
     ids, labels = reference(tail + head)
     ti, hi, offsets, data = K.text_ids([pa.array(tail), pa.array(head)], len(tail), threads)
     assert reserved and max(reserved) < 20      # reserved, and far too small
+    assert np.concatenate([ti, hi]).tolist() == ids.tolist()
+    assert label_arrays(offsets, data) == list(labels)
+
+
+@pytest.mark.parametrize("threads", [1, 2])
+def test_room_for_labels_still_to_come_is_reserved_ahead(threads, monkeypatch):
+    """Rows whose labels are all new (a file sorted by node): before each piece, room is
+    reserved for as many new labels as the last piece brought, so the tables need not grow in
+    the kernel; labels that repeat reserve once.  Ids as the reference gives them (NumPy first
+    appearance, above)."""
+    from fastmst._kernels import _labels
+    monkeypatch.setattr(K, "RESERVE_FROM", 1_000)
+    monkeypatch.setattr(K, "PIECE_ROWS", 20_000)
+    reserved = []
+    real = K._reserve
+    monkeypatch.setattr(K, "_reserve", lambda *a: reserved.append(a[1]) or real(*a))
+    unique = [f"node-{i:07d}" for i in range(80_000)]
+    rng = np.random.default_rng(3)
+    repeats = [f"n{i}" for i in rng.integers(0, 5_000, 80_000)]
+    for values, ahead in ((unique, True), (repeats, False)):
+        reserved.clear()
+        tail, head = values[:40_000], values[40_000:]
+        ids, labels = reference(tail + head)
+        ti, hi, offsets, data = K.text_ids([pa.array(tail), pa.array(head)], 40_000, threads)
+        if ahead:   # after the first piece's count, again before later pieces, growing
+            assert len(reserved) >= 2 and reserved == sorted(reserved)
+            assert max(reserved) * _labels.N_PARTS >= len(set(values))
+        else:       # only the first piece's count
+            assert len(reserved) == 1
+        assert np.concatenate([ti, hi]).tolist() == ids.tolist()
+        assert label_arrays(offsets, data) == list(labels)
+
+
+def test_room_reserved_ahead_holds_partitions_that_grew(monkeypatch):
+    """Tables reserved too small (forced) grow in the kernel; room reserved ahead afterwards
+    still holds the largest partition (``largest_partition``), and the ids stay exact."""
+    monkeypatch.setattr(K, "_per_partition", lambda estimate: max(1, estimate // 2_000))
+    monkeypatch.setattr(K, "RESERVE_FROM", 0)
+    monkeypatch.setattr(K, "PIECE_ROWS", 3_000)
+    values = [f"site {i}" for i in range(12_000)]
+    ids, labels = reference(values)
+    ti, hi, offsets, data = K.text_ids([pa.array(values[:6_000]), pa.array(values[6_000:])],
+                                       6_000, 2)
     assert np.concatenate([ti, hi]).tolist() == ids.tolist()
     assert label_arrays(offsets, data) == list(labels)
 

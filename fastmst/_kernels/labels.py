@@ -3,9 +3,9 @@
 ``text_ids`` checks the Arrow string chunks, cuts their rows into pieces of ``PIECE_ROWS``,
 allocates every array and hands each piece to the compiled ``_labels.count_piece`` (the first
 piece, and any piece that does not fit its plan) or ``_labels.plan_piece``, then (when the
-estimate of distinct labels calls for more room than the tables have) ``_labels.reserve``,
-then ``_labels.map_piece`` (the passes, the hashing and the tables are there, with the method's
-notes).  ``integer_values`` parses integer labels through ``_labels.integer_labels``.  Nothing
+estimate of distinct labels, or the new labels of the last piece, call for more room than the
+tables have) ``_labels.reserve``, then ``_labels.map_piece`` (the passes, the hashing and the
+tables are there, with the method's notes).  ``integer_values`` parses integer labels through ``_labels.integer_labels``.  Nothing
 here loops over rows.
 """
 import numpy as np
@@ -32,6 +32,9 @@ def _empty(n, dtype):
 
 def _pieces(chunk):
     """(offsets as NumPy, data as NumPy bytes) of one Arrow string chunk, checked."""
+    if not isinstance(chunk, pa.Array):
+        raise TypeError(f"text_ids: expected pyarrow arrays (chunks), received "
+                        f"{type(chunk).__name__}; pass a ChunkedArray's .chunks.")
     if pa.types.is_string(chunk.type):
         width = np.int32
     elif pa.types.is_large_string(chunk.type):
@@ -135,7 +138,7 @@ def text_ids(chunks, n_tail, threads=1):
                _empty(room, np.int32), _empty(words, np.uint64), _empty(words, np.intp))
     regs = _empty(nblk * _labels.REG_BYTES, np.uint8)
     tables = _labels.LabelTables()
-    done = count = per_part = 0
+    done = count = before = last = per_part = 0
     for segs in _segments(pieces, size):
         seg, rows = _segment_table(pieces, segs)
         # the segment holding the first row of each block of 2**SEG_ROWS_LOG2 rows
@@ -145,6 +148,14 @@ def text_ids(chunks, n_tail, threads=1):
         seg = seg.reshape(-1)
         pblock = (rows + nblk - 1) // nblk   # the last piece may be shorter
         off = scratch[0][:3 * ((rows + pblock - 1) // pblock) * _labels.N_PARTS]
+        # labels still to come, reckoned from the last piece: its new labels times their share
+        # of its rows (all new: as many again; mostly repeats: few), so that a file whose later
+        # rows bring new nodes gets room reserved ahead, not grown table by table in the kernel
+        ahead = count + (count - before) * (count - before) // max(last, 1)
+        if done and ahead >= RESERVE_FROM and _per_partition(ahead) > per_part:
+            need = max(_per_partition(ahead), _labels.largest_partition(tables))
+            per_part = _reserve(tables, max(need, per_part + per_part // 2), count, threads)
+        before = count
         # after the first piece, the runs are planned from the last piece counted (no
         # counting pass); a piece whose rows do not fit its plan is counted and mapped again
         planned = (_labels.plan_piece(tables, seg, segblk, rows, pblock, room)
@@ -162,7 +173,7 @@ def text_ids(chunks, n_tail, threads=1):
                                     threads)
             mapped = _labels.map_piece(tables, seg, segblk, rows, pblock, off, *scratch[1:],
                                        ids[done:], threads)
-        count = mapped
+        count, last = mapped, rows
         done += rows
     # the distinct labels in id order (the chunks, which hold their bytes, are alive here)
     offsets = _empty(count + 1, np.int64)
