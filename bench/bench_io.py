@@ -4,8 +4,7 @@ Writes a random edge list (default 10M edges over 1M nodes, float weights) as CS
 with ``--format parquet``), then times, alternating and best of ``--repeat``:
 
 * ``pyarrow.csv.read_csv(path)`` / ``pyarrow.parquet.read_table(path)``: parsing only, the
-  floor for any reader built on pyarrow; also with the options read_edges uses (CSV: its block
-  size; Parquet: ``memory_map=True``), printed beside it;
+  floor for any reader built on pyarrow;
 * ``fastmst.io.read_edges(path)``: parsing plus everything a solver needs (columns chosen,
   nulls and NaN checked, node labels mapped to compact ids, NumPy arrays out).  Labels are read
   as text (the default); ``--ids integer`` passes ``ids="integer"``.
@@ -131,9 +130,7 @@ def main(argv=None):
 
             def bare_read():
                 return pq.read_table(path)
-
-            def same_read():
-                return pq.read_table(path, memory_map=True)
+            same_read = bare_read
         else:
             def bare_read():
                 return pcsv.read_csv(path)
@@ -190,13 +187,9 @@ def main(argv=None):
         if args.format == "csv":
             print(f"  pyarrow, same blocks       {res['pyarrow_read_csv_same_block_size_s']:.3f} "
                   f"s (block_size={io.CSV_BLOCK_SIZE >> 20} MiB, as read_edges uses)")
-        else:
-            print(f"  pyarrow, memory map        {res['pyarrow_read_csv_same_block_size_s']:.3f} "
-                  f"s (memory_map=True, as read_edges uses)")
         print(f"  fastmst.io.read_edges      {res['read_edges_s']:.3f} s")
         print(f"  ratio                      {res['ratio']:.2f}x vs the bare default read "
-              f"(goal <= 1.5x), {res['ratio_same_block_size']:.2f}x vs the "
-              f"{'same block size' if args.format == 'csv' else 'memory-mapped read'}")
+              f"(goal <= 1.5x), {res['ratio_same_block_size']:.2f}x vs the same block size")
         print(f"  median of the {args.repeat} paired runs' ratios: {res['median_ratio']:.2f}x wall, "
               f"{res['median_cpu_ratio']:.2f}x CPU (each read_edges over the bare read of "
               f"the same round)")

@@ -58,9 +58,9 @@ def test_edge_table_round_trip(tmp_path, name):
 @pytest.mark.parametrize("compression", ["none", "snappy", "zstd"])
 @pytest.mark.parametrize("dictionary", [True, False])
 def test_parquet_edges_outlive_the_file(tmp_path, compression, dictionary):
-    """Parquet files are read through a memory map.  Nothing read_edges returns may point into
-    it: the file truncated and rewritten afterwards leaves the edges, labels and carried
-    columns as they were (reference: pyarrow.parquet's own read of the file, taken before)."""
+    """Nothing read_edges returns points into the file: the file truncated and rewritten
+    afterwards leaves the edges, labels and carried columns as they were (reference:
+    pyarrow.parquet's own read of the file, taken before)."""
     import pyarrow.parquet as pq
     rng = np.random.default_rng(7)
     names = np.array([f"site-{i}" for i in range(300)])

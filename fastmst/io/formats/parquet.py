@@ -9,13 +9,10 @@ from fastmst.io.edgelist import edges_from_table
 
 
 def _read(path, columns):
-    """The chosen columns of a Parquet file, read through a memory map: no copy of the file's
-    bytes into buffers of their own (the decoded columns never point into the map, so the
-    file may change afterwards)."""
     import pyarrow as pa
     import pyarrow.parquet as pq
     try:
-        return pq.read_table(str(path), columns=columns, memory_map=True)
+        return pq.read_table(str(path), columns=columns)
     except (pa.ArrowInvalid, OSError) as exc:
         raise FileFormatError(f"{path}: not a readable Parquet file ({exc}).") from None
 
