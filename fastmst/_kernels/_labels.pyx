@@ -11,13 +11,16 @@ means equal label; longer labels are also compared byte by byte with their first
 Cache-sized work (radix partitioning by hash): the rows are taken in pieces of
 ``labels.PIECE_ROWS``.  One pass over a piece (``count_piece``) hashes every row and counts the
 rows of each of ``PARTS`` partitions (the hash's top byte); a second (``map_piece``) hashes
-again (cheaper than storing the hashes and reading them back) and writes 16-byte (hash, row, length) entries into the partitions, each in row order.  Every
-partition has its own small table (1/256 of the distinct labels: in cache), so the probes of
-one partition run in cache instead of jumping around one large table; they write each entry's
-local id to a compact array.  A label's bytes are found from its row only where needed (the
-first occurrence of a label of more than 8 bytes, and the rows compared with it).  New labels
-of the piece are then ranked by their first row (a bitmap over the piece), which gives their
-ids; the same walk over the bitmap, in row order, records each new label's bytes.  A last pass
+again (cheaper than storing the hashes and reading them back) and writes 16-byte (hash, row,
+length) entries into the partitions, each in row order.  Every partition has its own small
+table (1/256 of the distinct labels: in cache), so the probes of one partition run in cache
+instead of jumping around one large table; they write each entry's local id to a compact
+array.  The probes run in stretches that cannot outgrow the table, and labels of up to 8
+bytes go through a loop of their own that keeps its values in registers.  A label's bytes are
+found from its row only where needed (the first occurrence of a label of more than 8 bytes,
+and the rows compared with it).  New labels of the piece are then ranked by their first row (a
+bitmap over the piece, one range of it per thread), which gives their ids; the same walk over
+the bitmap, in row order, records each new label's bytes.  A last pass
 writes each row's id, reading the partitions' id lists in row order.  Scratch and output arrays
 come from pyarrow's memory pool, which keeps freed memory between calls (fresh NumPy arrays of
 this size cost page faults and zeroing on every call).
@@ -25,8 +28,12 @@ this size cost page faults and zeroing on every call).
 Tables sized ahead: the counting pass also feeds a HyperLogLog estimate of the distinct labels
 (2**12 registers, about 1.6 % error).  Before a piece is probed, ``text_ids`` gives the tables
 buffers from the memory pool with room for that many labels (``reserve``), so they need not
-grow, rehash and fault in fresh pages label by label; a partition that still outgrows its
-room (an estimate too low, or skew) grows into memory of its own, exactly as before.
+grow, rehash and fault in fresh pages label by label.  Before each later piece the room is
+raised again when the last piece's new labels, times their share of its rows, call for more
+(a file whose later rows bring new nodes).  A partition that still outgrows its room (skew)
+grows into memory of its own, its pages written before they are read (a fresh page read
+first maps the shared zero page, and the first store then costs a copy-on-write fault and a
+TLB flush on every thread).
 
 Pieces planned, not counted: after the first piece, the runs of entries (one per block and
 partition) are sized from the partition shares of the last piece counted, with slack
