@@ -177,10 +177,7 @@ cdef inline Py_ssize_t probe_stretch(uint64_t* tbl, uint64_t mask, Py_ssize_t co
             w1 = tbl[2 * slot + 1]
             if w1 == EMPTY:
                 lid = count
-                count = lid + 1
-                tbl[2 * slot] = h
-                tbl[2 * slot + 1] = (length << 32) | <uint64_t>(lid + 1)
-                first[lid] = ent[j].row
+                count = fill_slot(tbl, slot, h, length, lid, first, ent[j].row)
                 uptr[lid] = <uint64_t>row_bytes(segs, segblk, ent[j].row)
                 break
             if tbl[2 * slot] == h and (w1 >> 32) == length:
@@ -213,10 +210,7 @@ cdef inline Py_ssize_t probe_short(uint64_t* tbl, uint64_t mask, Py_ssize_t* cou
             w1 = tbl[2 * slot + 1]
             if w1 == EMPTY:
                 lid = count
-                count = lid + 1
-                tbl[2 * slot] = h
-                tbl[2 * slot + 1] = (length << 32) | <uint64_t>(lid + 1)
-                first[lid] = ent[j].row
+                count = fill_slot(tbl, slot, h, length, lid, first, ent[j].row)
                 break
             if tbl[2 * slot] == h and (w1 >> 32) == length:
                 lid = <Py_ssize_t>(w1 & 0xffffffffULL) - 1
@@ -225,6 +219,16 @@ cdef inline Py_ssize_t probe_short(uint64_t* tbl, uint64_t mask, Py_ssize_t* cou
         lids[j] = <int32_t>lid
     count_out[0] = count
     return n
+
+
+cdef inline Py_ssize_t fill_slot(uint64_t* tbl, uint64_t slot, uint64_t h, uint64_t length,
+                                 Py_ssize_t lid, int64_t* first, int64_t row) noexcept nogil:
+    """Put new label ``lid`` (hash ``h``, ``length`` bytes, first seen at ``row``) into the
+    empty ``slot``; returns the label count after it."""
+    tbl[2 * slot] = h
+    tbl[2 * slot + 1] = (length << 32) | <uint64_t>(lid + 1)
+    first[lid] = row
+    return lid + 1
 
 
 cdef inline Py_ssize_t room(const Part* p) noexcept nogil:
