@@ -47,8 +47,8 @@ Files: this module holds the partition passes and the thin typed ``def``s over o
 over integer labels (``integer_labels``).  Inline pieces, one concept each: ``label_hash.pxd``
 (the segment table, a row's bytes, the hash), ``label_passes.pxd`` (the count and scatter row
 passes), ``label_tables.pxd`` (one partition's table: growth and probe),
-``label_estimate.pxd`` (the HyperLogLog estimate), ``integer_text.pxd`` (integers parsed
-exactly).  ``fastmst/_kernels/labels.py`` holds ``text_ids`` and ``integer_values``, which check
+``label_estimate.pxd`` (the HyperLogLog estimate), ``label_rank.pxd`` (the new labels of a
+piece ranked by first row), ``integer_text.pxd`` (integers parsed exactly).  ``fastmst/_kernels/labels.py`` holds ``text_ids`` and ``integer_values``, which check
 the chunks, cut them into pieces and allocate every array.
 
 Threads: the row passes split a piece into position blocks (each block's entries sit in block
@@ -63,15 +63,15 @@ from libc.string cimport memcmp, memcpy, memset
 
 from fastmst._kernels.integer_text cimport integer_span
 from fastmst._kernels.label_estimate cimport REGS, estimate
-from fastmst._kernels.label_hash cimport Seg, SEG_SHIFT, ctz64, popcount64, seg_rows
+from fastmst._kernels.label_hash cimport Seg, SEG_SHIFT, seg_rows
 from fastmst._kernels.label_passes cimport PARTS, row_pass
+from fastmst._kernels.label_rank cimport rank_new
 from fastmst._kernels.label_tables cimport (Entry, Part, copied, free_parts, probe, rehash,
                                            resize)
 
 
 cdef enum:
     EXTRA = 32              # plan_piece: entries a run gets beyond its expected share
-    RANK_RANGES = 64        # _rank_new: ranges of the bitmap, at most one per thread
 cdef double SLACK = 1.15    # plan_piece: the factor of a run's expected share
 
 
@@ -100,90 +100,6 @@ cdef void _probe_all(Part* parts, const Entry* ent, const Py_ssize_t* run,
             if p.failed:
                 break
             probe(p, ent + run[k], cur[k] - run[k], lids + run[k], segs, segblk)
-
-
-cdef void _rank_new(Part* parts, uint64_t* bits, Py_ssize_t* below, Py_ssize_t rows,
-                    Py_ssize_t base, const Seg* segs, const Py_ssize_t* segblk, uint64_t* gptr,
-                    int64_t* glen, int threads) noexcept nogil:
-    """Ids of the labels new in this piece: ``base`` plus the rank of their first row among
-    all new labels' first rows (a bitmap of the piece's rows).  ``gptr``/``glen`` of those
-    ids: the bytes of their first occurrence, read in row order (so the offsets stream).
-
-    The bitmap is cut into one range of words per thread: each thread sets the bits of its
-    range (reading every new label's first row, so no two threads write one word), counts
-    them, and after a running sum over the ranges walks its range."""
-    cdef Py_ssize_t nw = (rows + 63) // 64, nc, size, c, q, lid
-    cdef Py_ssize_t cnt[RANK_RANGES + 1]
-    cdef int64_t r
-    cdef Part* p
-    nc = threads if threads < RANK_RANGES else RANK_RANGES
-    if nc > nw:
-        nc = nw
-    size = (nw + nc - 1) // nc
-    nc = (nw + size - 1) // size
-    for c in prange(nc, num_threads=threads, schedule="static"):
-        cnt[c + 1] = _mark_range(parts, bits, c * size,
-                                 (c + 1) * size if (c + 1) * size < nw else nw)
-    cnt[0] = base
-    for c in range(nc):
-        cnt[c + 1] += cnt[c]
-    for c in prange(nc, num_threads=threads, schedule="static"):
-        _walk_range(bits, below, c * size, (c + 1) * size if (c + 1) * size < nw else nw,
-                    cnt[c], segs, segblk, gptr, glen)
-    for q in prange(PARTS, num_threads=threads, schedule="dynamic"):
-        p = &parts[q]
-        for lid in range(p.fresh, p.count):
-            r = p.first[lid]
-            p.gid[lid] = <int32_t>(below[r >> 6] +
-                                   popcount64(bits[r >> 6] & (((<uint64_t>1) << (r & 63)) - 1)))
-
-
-cdef Py_ssize_t _mark_range(const Part* parts, uint64_t* bits, Py_ssize_t w0,
-                            Py_ssize_t w1) noexcept nogil:
-    """Clear words ``w0..w1-1`` of the bitmap, set the bits of the new labels' first rows that
-    fall in them, and return how many were set."""
-    cdef Py_ssize_t q, lid, w, n = 0
-    cdef int64_t r
-    cdef const Part* p
-    memset(bits + w0, 0, (w1 - w0) * sizeof(uint64_t))
-    for q in range(PARTS):
-        p = &parts[q]
-        for lid in range(p.fresh, p.count):
-            r = p.first[lid]
-            w = r >> 6
-            if w0 <= w < w1:
-                bits[w] |= (<uint64_t>1) << (r & 63)
-                n += 1
-    return n
-
-
-cdef void _walk_range(const uint64_t* bits, Py_ssize_t* below, Py_ssize_t w0, Py_ssize_t w1,
-                      Py_ssize_t g, const Seg* segs, const Py_ssize_t* segblk, uint64_t* gptr,
-                      int64_t* glen) noexcept nogil:
-    """For words ``w0..w1-1``: ``below[w]``, the id of the first new label at or after word
-    w (``g`` at w0), and the address and length of each new label's first occurrence."""
-    cdef Py_ssize_t w, s = -1, i
-    cdef int64_t r, a
-    cdef uint64_t x
-    for w in range(w0, w1):
-        below[w] = g
-        x = bits[w]
-        while x:
-            r = (w << 6) + ctz64(x)
-            x &= x - 1
-            if s < 0:
-                s = segblk[r >> SEG_SHIFT]
-            while segs[s].at + segs[s].n <= r:
-                s += 1
-            i = r - segs[s].at
-            if segs[s].wide:
-                a = (<const int64_t*>segs[s].offs)[i]
-                glen[g] = (<const int64_t*>segs[s].offs)[i + 1] - a
-            else:
-                a = (<const int32_t*>segs[s].offs)[i]
-                glen[g] = (<const int32_t*>segs[s].offs)[i + 1] - a
-            gptr[g] = <uint64_t>(segs[s].data + a)
-            g += 1
 
 
 cdef void _global_ids(Part* parts, const Py_ssize_t* run, const Py_ssize_t* cur,
@@ -526,8 +442,8 @@ def map_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
     if fresh < 0:
         raise MemoryError("text_ids: no memory for the label tables.")
     with nogil:
-        _rank_new(tables.parts, &bits[0], &below[0], rows, tables.count, <const Seg*>&seg[0],
-                  &segblk[0], tables.gptr, tables.glen, threads)
+        rank_new(tables.parts, &bits[0], &below[0], rows, tables.count, <const Seg*>&seg[0],
+                 &segblk[0], tables.gptr, tables.glen, threads)
         _global_ids(tables.parts, run, cur, nblk, &eid[0], threads)
         _write_rows(&part[0], &eid[0], run, rows, block, &out[0], threads)
     tables.count = fresh
