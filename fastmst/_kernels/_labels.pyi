@@ -15,7 +15,7 @@ class LabelTables:
 
 def count_piece(tables: LabelTables, seg: npt.NDArray[np.intp], segblk: npt.NDArray[np.intp],
                 rows: int, block: int, regs: npt.NDArray[np.uint8],
-                threads: int, /) -> tuple[int, int]: ...
+                threads: int, /) -> int: ...
 def reserve(tables: LabelTables, slots: npt.NDArray[np.uint64], first: npt.NDArray[np.int64],
             uptr: npt.NDArray[np.uint64], gid: npt.NDArray[np.int32],
             gptr: npt.NDArray[np.uint64], glen: npt.NDArray[np.int64],

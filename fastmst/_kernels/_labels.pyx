@@ -219,14 +219,13 @@ def count_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
                 const Py_ssize_t[::1] segblk, Py_ssize_t rows, Py_ssize_t block,
                 uint8_t[::1] regs, int threads, /):
     """Count the rows of each partition of one piece, block by block, into ``tables`` (for
-    the ``map_piece`` call that follows, on the same piece) and return (the estimated number
-    of distinct labels of every piece counted so far, the most labels one partition holds).
+    the ``map_piece`` call that follows, on the same piece) and return the estimated number
+    of distinct labels of every piece counted so far.
 
     ``seg``, ``segblk``, ``rows``: as ``map_piece`` takes them; ``block``: rows per block;
     ``regs``: scratch for the blocks' estimate registers (blocks x 2**12 bytes)."""
-    cdef Py_ssize_t nseg = seg.shape[0] // 6, nblk, b, j, most = 0
+    cdef Py_ssize_t nseg = seg.shape[0] // 6, nblk, b, j
     cdef Py_ssize_t* hist
-    cdef Py_ssize_t* segc
     cdef uint8_t* r
     if threads < 1:
         raise ValueError(f"count_piece: threads must be positive, received {threads}.")
@@ -254,11 +253,8 @@ def count_piece(LabelTables tables not None, const Py_ssize_t[::1] seg,
             for j in range(REGS):
                 if r[j] > tables.hll[j]:
                     tables.hll[j] = r[j]
-        for j in range(PARTS):
-            if tables.parts[j].count > most:
-                most = tables.parts[j].count
     tables.nsegc, tables.crows, tables.cblock, tables.cnblk = nseg, rows, block, nblk
-    return int(estimate(tables.hll) + 0.5), most
+    return int(estimate(tables.hll) + 0.5)
 
 
 cdef _hold_piece(LabelTables tables, const Py_ssize_t[::1] seg, Py_ssize_t nblk):

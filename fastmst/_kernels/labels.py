@@ -5,8 +5,8 @@ allocates every array and hands each piece to the compiled ``_labels.count_piece
 piece, and any piece that does not fit its plan) or ``_labels.plan_piece``, then (when the
 estimate of distinct labels, or the new labels of the last piece, call for more room than the
 tables have) ``_labels.reserve``, then ``_labels.map_piece`` (the passes, the hashing and the
-tables are there, with the method's notes).  ``integer_values`` parses integer labels through ``_labels.integer_labels``.  Nothing
-here loops over rows.
+tables are there, with the method's notes).  ``integer_values`` parses integer labels
+through ``_labels.integer_labels``.  Nothing here loops over rows.
 """
 import numpy as np
 import pyarrow as pa
@@ -110,6 +110,18 @@ def _reserve(tables, need, count, threads):
     return room
 
 
+def _raise_room(tables, expected, per_part, count, threads):
+    """The room per partition after making room for ``expected`` distinct labels: the tables
+    are reserved again (``_reserve``) when that calls for more than ``per_part``, by half as
+    much again at least and never less than the largest partition holds; small tables grow as
+    cheaply as they are reserved (``RESERVE_FROM``)."""
+    need = _per_partition(expected)
+    if need <= per_part or expected < RESERVE_FROM:
+        return per_part
+    need = max(need, per_part + per_part // 2, _labels.largest_partition(tables))
+    return _reserve(tables, need, count, threads)
+
+
 def text_ids(chunks, n_tail, threads=1):
     """Compact ids of Arrow string chunks by first appearance.
 
@@ -151,10 +163,9 @@ def text_ids(chunks, n_tail, threads=1):
         # labels still to come, reckoned from the last piece: its new labels times their share
         # of its rows (all new: as many again; mostly repeats: few), so that a file whose later
         # rows bring new nodes gets room reserved ahead, not grown table by table in the kernel
-        ahead = count + (count - before) * (count - before) // max(last, 1)
-        if done and ahead >= RESERVE_FROM and _per_partition(ahead) > per_part:
-            need = max(_per_partition(ahead), _labels.largest_partition(tables))
-            per_part = _reserve(tables, max(need, per_part + per_part // 2), count, threads)
+        if done:
+            ahead = count + (count - before) * (count - before) // last
+            per_part = _raise_room(tables, ahead, per_part, count, threads)
         before = count
         # after the first piece, the runs are planned from the last piece counted (no
         # counting pass); a piece whose rows do not fit its plan is counted and mapped again
@@ -163,14 +174,9 @@ def text_ids(chunks, n_tail, threads=1):
         mapped = -2 if planned < 0 else _labels.map_piece(tables, seg, segblk, rows, pblock,
                                                           off, *scratch[1:], ids[done:], threads)
         if mapped == -2:
-            estimate, most = _labels.count_piece(tables, seg, segblk, rows, pblock, regs,
-                                                 threads)
-            need = max(_per_partition(estimate), most)
-            # tables sized once for the labels expected, not grown label by label (small
-            # tables grow as cheaply as they are reserved)
-            if need > per_part and estimate >= RESERVE_FROM:
-                per_part = _reserve(tables, max(need, per_part + per_part // 2), count,
-                                    threads)
+            # tables sized once for the labels expected, not grown label by label
+            estimate = _labels.count_piece(tables, seg, segblk, rows, pblock, regs, threads)
+            per_part = _raise_room(tables, estimate, per_part, count, threads)
             mapped = _labels.map_piece(tables, seg, segblk, rows, pblock, off, *scratch[1:],
                                        ids[done:], threads)
         count, last = mapped, rows
